@@ -1,0 +1,2 @@
+//! File input and output: model files (TOML), recordings, PSD files, atomic writes.
+//! The only module of `core` that touches the file system.

@@ -1,0 +1,63 @@
+//! # stillsky: will the star stay inside one pixel?
+//!
+//! A library for the image motion of telescope rigs (mount, tripod or pier, footing, isolator
+//! pads, soil) driven by ground vibration and wind. Rigs are linear multi-degree-of-freedom
+//! structures with complex (lossy) stiffness; responses are reported in the sensor plane in
+//! micrometres, arcseconds and pixels.
+//!
+//! ## Conventions (hold everywhere)
+//! - SI units inside: m, kg, s, N, rad, Pa. Frequencies are Hz at every API; ω = 2πf inside.
+//!   Arguments carry their unit in the name where it is not SI (`focal_length_mm`, `pixel_um`).
+//! - Harmonic convention e^{+iωt}. Complex stiffness k* = k′(ω)(1 + iη(ω)); a viscous damper
+//!   adds iωc. Dynamic stiffness Z(ω) = K*(ω) + iωC − ω²M.
+//! - PSDs are one-sided, per Hz: mean square = ∫₀^∞ S(f) df. RMS integrals use the trapezoid
+//!   rule on the given grid.
+//! - Frequency grids are strictly increasing, finite and > 0. Spectra are interpolated log–log
+//!   and never extrapolated silently.
+//! - Axes: x east, y north, z up. Azimuth from north through east; altitude above the horizon.
+//!   Rotational DOFs are small rotations about a body's centre of gravity (right-hand rule). A
+//!   point at offset r from the CG moves as u_p = u + θ × r; a force F there gives moment r × F.
+//! - Base excitation moves every ground attachment together (coherent translation x, y, z).
+//!   Transmissibility = absolute response / ground motion.
+//! - Only rotation of the optics moves a star's image (a source at infinity). A small rotation θ
+//!   turns the line of sight â by θ × â; `image_x` is its component along increasing azimuth,
+//!   `image_y` along increasing altitude. arcsec = rad × 206264.806; µm on the sensor =
+//!   f_mm × 1000 × rad; plate scale ″/px = 206.264806 × pixel_um / f_mm.
+//!
+//! ## Modules
+//! - [`grid`]: validated frequency grids.
+//! - [`material`], [`section`]: named materials (with sources) and tube/rod sections.
+//! - [`stiffness`]: complex stiffness models and series/parallel combinators.
+//! - [`soil`]: impedance of a rigid circular contact on an elastic half-space; soil presets.
+//! - [`assembly`]: bodies, nodes, connectors and beams → mass, damping, stiffness matrices.
+//! - [`model`]: the assembled [`Model`] with named inputs and outputs.
+//! - [`frf`]: frequency response by direct complex solve per frequency.
+//! - [`modal`]: natural frequencies, mode shapes, modal damping and participation.
+//! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
+//! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
+//! - [`identify`], [`checks`]: tap-test identification; static safety checks.
+//! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
+#![forbid(unsafe_code)]
+#![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
+
+pub mod error;
+pub mod grid;
+pub mod linalg;
+pub mod material;
+pub mod section;
+pub mod stiffness;
+pub mod soil;
+pub mod assembly;
+pub mod model;
+pub mod frf;
+pub mod modal;
+pub mod rig;
+pub mod spectrum;
+pub mod wind;
+pub mod identify;
+pub mod checks;
+pub mod io;
+
+pub use error::{Error, Result};
+pub use grid::FreqGrid;
+pub use num_complex::Complex64;
