@@ -12,7 +12,11 @@ pub fn validate_freqs(name: &str, hz: &[f64]) -> Result<()> {
         return bad("is empty".into());
     }
     if hz.len() > MAX_GRID_LEN {
-        return Err(Error::TooLarge { what: format!("length of {name}"), value: hz.len(), limit: MAX_GRID_LEN });
+        return Err(Error::TooLarge {
+            what: format!("length of {name}"),
+            value: hz.len(),
+            limit: MAX_GRID_LEN,
+        });
     }
     for (i, &f) in hz.iter().enumerate() {
         if !f.is_finite() {
@@ -64,7 +68,10 @@ impl FreqGrid {
         crate::error::require_positive("f_min_hz", f_min_hz)?;
         crate::error::require_positive("f_max_hz", f_max_hz)?;
         if f_max_hz <= f_min_hz {
-            return Err(Error::invalid("f_max_hz", format!("must exceed f_min_hz = {f_min_hz}, got {f_max_hz}")));
+            return Err(Error::invalid(
+                "f_max_hz",
+                format!("must exceed f_min_hz = {f_min_hz}, got {f_max_hz}"),
+            ));
         }
         if n < 2 {
             return Err(Error::invalid("n", format!("a grid needs at least 2 points, got {n}")));

@@ -40,23 +40,23 @@
 #![forbid(unsafe_code)]
 #![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
 
+pub mod assembly;
+pub mod checks;
 pub mod error;
+pub mod frf;
 pub mod grid;
+pub mod identify;
+pub mod io;
 pub mod linalg;
 pub mod material;
-pub mod section;
-pub mod stiffness;
-pub mod soil;
-pub mod assembly;
-pub mod model;
-pub mod frf;
 pub mod modal;
+pub mod model;
 pub mod rig;
+pub mod section;
+pub mod soil;
 pub mod spectrum;
+pub mod stiffness;
 pub mod wind;
-pub mod identify;
-pub mod checks;
-pub mod io;
 
 pub use error::{Error, Result};
 pub use grid::FreqGrid;
