@@ -1,1 +1,428 @@
-//! (in progress)
+//! The assembled structural [`Model`]: matrices over the free DOFs, named inputs and outputs.
+//!
+//! Inputs (one column of the FRF each):
+//! - `ground_x`, `ground_y`, `ground_z`: unit ground displacement (m) of every ground attachment.
+//! - `wind`: unit force (N) at the wind's centre of pressure along its direction.
+//! - `force:NAME:x|y|z`: unit force at the CG of body or node NAME; `moment:NAME:x|y|z`: unit
+//!   moment (N·m) on body NAME.
+//!
+//! Outputs (one row each):
+//! - `NAME:x|y|z|rx|ry|rz`: absolute displacement (m) or rotation (rad) of a body's CG or a node.
+//! - `image_x`, `image_y`: line-of-sight motion on the sky (rad) along increasing azimuth and
+//!   altitude (rotated by the camera rotation), from the rotation of the optics body.
+//!
+//! So output `payload:z` for input `ground_z` is the dimensionless transmissibility.
+
+use crate::assembly::{self, Assembled, Dof, DofLabel, GROUND, ModelSpec, OpticsSpec, WindLoadSpec};
+use crate::error::{Error, Result};
+use ndarray::{Array1, Array2};
+use num_complex::Complex64;
+use std::f64::consts::PI;
+
+/// The three ground-motion inputs.
+pub const GROUND_INPUTS: [&str; 3] = ["ground_x", "ground_y", "ground_z"];
+
+/// A resolved input: ground motion along an axis, or a fixed load vector over the free DOFs.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) enum Input {
+    Ground(usize),
+    Load(Vec<f64>),
+}
+
+/// A frequency-dependent rank-one stiffness term restricted to the free DOFs (`bf`) and the
+/// ground translations (`bg`).
+#[derive(Debug, Clone)]
+pub(crate) struct Term {
+    /// The connector's name (for sweeps that replace a spring).
+    #[allow(dead_code)]
+    pub(crate) name: String,
+    pub(crate) model: crate::stiffness::StiffnessModel,
+    pub(crate) bf: Vec<(usize, f64)>,
+    pub(crate) bg: [f64; 3],
+}
+
+/// An assembled linear structure. Immutable once built; cheap to share between threads.
+#[derive(Debug, Clone)]
+pub struct Model {
+    spec: ModelSpec,
+    n: usize,
+    labels: Vec<DofLabel>,
+    /// Column-major n × n blocks over the free DOFs, and n × 3 couplings to the ground.
+    pub(crate) m_ff: Vec<f64>,
+    pub(crate) c_ff: Vec<f64>,
+    pub(crate) k_ff: Vec<Complex64>,
+    pub(crate) m_fg: Vec<f64>,
+    pub(crate) c_fg: Vec<f64>,
+    pub(crate) k_fg: Vec<Complex64>,
+    pub(crate) terms: Vec<Term>,
+    carriers: std::collections::BTreeMap<String, assembly::Carrier>,
+}
+
+impl Model {
+    /// Validate and assemble a generic-layer spec. Refuses structures with a free rigid-body
+    /// mode, naming the body and DOF.
+    pub fn from_spec(spec: &ModelSpec) -> Result<Model> {
+        if let Some(o) = &spec.optics {
+            o.validate()?;
+        }
+        let a = assembly::assemble(spec)?;
+        let model = Model::from_assembled(spec.clone(), a)?;
+        if let Some(o) = &spec.optics {
+            let c = model.carrier(&o.body, "optics.body")?;
+            if !c.rotates {
+                return Err(Error::invalid(
+                    "optics.body",
+                    format!("'{}' is a node; optics need a rigid body", o.body),
+                ));
+            }
+        }
+        if let Some(w) = &spec.wind {
+            model.carrier(&w.body, "wind.body")?;
+            crate::error::require_positive("wind.area_m2", w.area_m2)?;
+            crate::error::require_positive("wind.drag_coefficient", w.drag_coefficient)?;
+            for x in w.centre_of_pressure_m {
+                crate::error::require_finite("wind.centre_of_pressure_m", x)?;
+            }
+            let d = w.direction;
+            let l = (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt();
+            if !(l.is_finite() && l > 1e-12) {
+                return Err(Error::invalid("wind.direction", "must be a non-zero vector"));
+            }
+        }
+        model.check_supported()?;
+        Ok(model)
+    }
+
+    fn from_assembled(spec: ModelSpec, a: Assembled) -> Result<Model> {
+        let n = a.n;
+        let nf = n + 3;
+        let block = |full: &[f64]| -> (Vec<f64>, Vec<f64>) {
+            let ff = (0..n * n).map(|k| full[(k % n) + (k / n) * nf]).collect();
+            let fg = (0..n * 3).map(|k| full[(k % n) + (n + k / n) * nf]).collect();
+            (ff, fg)
+        };
+        let (m_ff, m_fg) = block(&a.mass);
+        let (c_ff, c_fg) = block(&a.damping);
+        let k_ff = (0..n * n).map(|k| a.k_const[(k % n) + (k / n) * nf]).collect();
+        let k_fg = (0..n * 3).map(|k| a.k_const[(k % n) + (n + k / n) * nf]).collect();
+        let terms = a
+            .terms
+            .into_iter()
+            .map(|t| {
+                let mut bg = [0.0; 3];
+                let mut bf = Vec::new();
+                for (i, v) in t.b {
+                    if i < n { bf.push((i, v)) } else { bg[i - n] = v }
+                }
+                Term { name: t.name, model: t.model, bf, bg }
+            })
+            .collect();
+        Ok(Model {
+            spec,
+            n,
+            labels: a.labels,
+            m_ff,
+            c_ff,
+            k_ff,
+            m_fg,
+            c_fg,
+            k_fg,
+            terms,
+            carriers: a.carriers,
+        })
+    }
+
+    /// Number of free DOFs.
+    pub fn dof_count(&self) -> usize {
+        self.n
+    }
+
+    /// Label of each free DOF, in matrix order.
+    pub fn dof_labels(&self) -> &[DofLabel] {
+        &self.labels
+    }
+
+    /// The generic-layer spec this model was built from.
+    pub fn spec(&self) -> &ModelSpec {
+        &self.spec
+    }
+
+    /// The optics, if the model has them.
+    pub fn optics(&self) -> Option<&OpticsSpec> {
+        self.spec.optics.as_ref()
+    }
+
+    /// The wind load placement, if any.
+    pub fn wind(&self) -> Option<&WindLoadSpec> {
+        self.spec.wind.as_ref()
+    }
+
+    /// Mass matrix M (n × n, kg and kg·m²).
+    pub fn mass_matrix(&self) -> Array2<f64> {
+        col_major(self.n, self.n, &self.m_ff)
+    }
+
+    /// Viscous damping matrix C (n × n).
+    pub fn damping_matrix(&self) -> Array2<f64> {
+        col_major(self.n, self.n, &self.c_ff)
+    }
+
+    /// Complex stiffness K*(f) (n × n) at `f_hz`, without the viscous part (which is in C), so
+    /// that Z(ω) = K*(ω) + iωC − ω²M.
+    pub fn stiffness_matrix(&self, f_hz: f64) -> Array2<Complex64> {
+        let mut k = self.k_ff.clone();
+        let n = self.n;
+        for t in &self.terms {
+            let kv = t.model.elastic_at(f_hz);
+            for &(i, bi) in &t.bf {
+                for &(j, bj) in &t.bf {
+                    k[i + j * n] += kv * bi * bj;
+                }
+            }
+        }
+        col_major(n, n, &k)
+    }
+
+    /// Names of all inputs this model accepts.
+    pub fn input_names(&self) -> Vec<String> {
+        let mut v: Vec<String> = GROUND_INPUTS.iter().map(|s| s.to_string()).collect();
+        if self.spec.wind.is_some() {
+            v.push("wind".into());
+        }
+        for (name, c) in &self.carriers {
+            if name == GROUND {
+                continue;
+            }
+            if name.contains('#') {
+                continue;
+            }
+            for (k, d) in ["x", "y", "z"].iter().enumerate() {
+                if c.index[k].is_some() {
+                    v.push(format!("force:{name}:{d}"));
+                }
+            }
+            for (k, d) in ["x", "y", "z"].iter().enumerate() {
+                if c.index[3 + k].is_some() {
+                    v.push(format!("moment:{name}:{d}"));
+                }
+            }
+        }
+        v
+    }
+
+    /// Names of all outputs this model offers.
+    pub fn output_names(&self) -> Vec<String> {
+        let mut v: Vec<String> =
+            self.labels.iter().filter(|l| !l.owner.contains('#')).map(|l| l.to_string()).collect();
+        if self.spec.optics.is_some() {
+            v.push("image_x".into());
+            v.push("image_y".into());
+        }
+        v
+    }
+
+    fn carrier(&self, name: &str, field: &str) -> Result<&assembly::Carrier> {
+        self.carriers.get(name).filter(|_| name != GROUND).ok_or_else(|| Error::UnknownName {
+            kind: format!("body or node ({field})"),
+            name: name.into(),
+            known: self
+                .carriers
+                .keys()
+                .filter(|k| *k != GROUND && !k.contains('#'))
+                .cloned()
+                .collect::<Vec<_>>()
+                .join(", "),
+        })
+    }
+
+    /// Resolve an input name.
+    pub(crate) fn input(&self, name: &str) -> Result<Input> {
+        if let Some(k) = GROUND_INPUTS.iter().position(|g| *g == name) {
+            return Ok(Input::Ground(k));
+        }
+        let unknown = || Error::UnknownName {
+            kind: "input".into(),
+            name: name.into(),
+            known: "ground_x, ground_y, ground_z, wind, force:BODY:x|y|z, moment:BODY:x|y|z".into(),
+        };
+        let n = self.n;
+        if name == "wind" {
+            let w = self
+                .spec
+                .wind
+                .as_ref()
+                .ok_or_else(|| Error::invalid("input 'wind'", "the model has no [wind] section"))?;
+            let c = self.carrier(&w.body, "wind.body")?;
+            let map = c.point_map_free(w.centre_of_pressure_m, n);
+            let l = (w.direction.iter().map(|x| x * x).sum::<f64>()).sqrt();
+            let dir: Vec<f64> = w.direction.iter().map(|x| x / l).collect();
+            // generalised force Tᵀ F
+            let v = (0..n).map(|g| (0..3).map(|i| map[i][g] * dir[i]).sum()).collect();
+            return Ok(Input::Load(v));
+        }
+        let parts: Vec<&str> = name.split(':').collect();
+        if parts.len() != 3 || !(parts[0] == "force" || parts[0] == "moment") {
+            return Err(unknown());
+        }
+        let c = self.carrier(parts[1], name)?;
+        let axis = ["x", "y", "z"].iter().position(|a| *a == parts[2]).ok_or_else(unknown)?;
+        let k = if parts[0] == "force" { axis } else { 3 + axis };
+        let g = c.index[k].ok_or_else(|| {
+            Error::invalid(
+                format!("input '{name}'"),
+                format!("'{}' has no free {} DOF", parts[1], Dof::ALL[k].name()),
+            )
+        })?;
+        let mut v = vec![0.0; n];
+        v[g] = 1.0;
+        Ok(Input::Load(v))
+    }
+
+    /// Resolve an output name to a real row over the free DOFs.
+    pub(crate) fn output(&self, name: &str) -> Result<Vec<f64>> {
+        let n = self.n;
+        if name == "image_x" || name == "image_y" {
+            let o = self.spec.optics.as_ref().ok_or_else(|| {
+                Error::invalid(format!("output '{name}'"), "the model has no [optics] section")
+            })?;
+            let c = self.carrier(&o.body, "optics.body")?;
+            let (los, ex, ey) = o.axes();
+            let e = if name == "image_x" { ex } else { ey };
+            // e·(θ × â) = θ·(â × e)
+            let w =
+                [los[1] * e[2] - los[2] * e[1], los[2] * e[0] - los[0] * e[2], los[0] * e[1] - los[1] * e[0]];
+            let mut v = vec![0.0; n];
+            for k in 0..3 {
+                if let Some(g) = c.index[3 + k] {
+                    v[g] += w[k];
+                }
+            }
+            return Ok(v);
+        }
+        let (owner, dof) = name.rsplit_once(':').ok_or_else(|| Error::UnknownName {
+            kind: "output".into(),
+            name: name.into(),
+            known: "BODY:x|y|z|rx|ry|rz, image_x, image_y".into(),
+        })?;
+        let c = self.carrier(owner, name)?;
+        let d = Dof::parse(dof)?;
+        let g = c.index[d.index()].ok_or_else(|| {
+            Error::invalid(
+                format!("output '{name}'"),
+                format!("'{owner}' has no free {} DOF (held or absent)", d.name()),
+            )
+        })?;
+        let mut v = vec![0.0; n];
+        v[g] = 1.0;
+        Ok(v)
+    }
+
+    /// The load vector of an input at `f_hz` (n, complex): for ground inputs −Z_fg(ω)·e_d; for
+    /// forces and moments the fixed generalised force.
+    pub fn input_vector(&self, name: &str, f_hz: f64) -> Result<Array1<Complex64>> {
+        crate::error::require_non_negative("f_hz", f_hz)?;
+        let inp = self.input(name)?;
+        let mut out = vec![Complex64::default(); self.n];
+        self.fill_input(&inp, 2.0 * PI * f_hz, &mut out);
+        Ok(Array1::from(out))
+    }
+
+    /// The output row of an output name (n, real).
+    pub fn output_vector(&self, name: &str) -> Result<Array1<f64>> {
+        Ok(Array1::from(self.output(name)?))
+    }
+
+    /// Write the right-hand side of `inp` at ω into `out` (length n).
+    pub(crate) fn fill_input(&self, inp: &Input, w: f64, out: &mut [Complex64]) {
+        let n = self.n;
+        match inp {
+            Input::Load(v) => {
+                for (o, x) in out.iter_mut().zip(v) {
+                    *o = Complex64::new(*x, 0.0);
+                }
+            }
+            Input::Ground(d) => {
+                let f = w / (2.0 * PI);
+                for i in 0..n {
+                    let k = i + d * n;
+                    out[i] = -(self.k_fg[k] + Complex64::new(-w * w * self.m_fg[k], w * self.c_fg[k]));
+                }
+                for t in &self.terms {
+                    if t.bg[*d] != 0.0 {
+                        let kv = t.model.elastic_at(f);
+                        for &(i, bi) in &t.bf {
+                            out[i] -= kv * bi * t.bg[*d];
+                        }
+                    }
+                }
+            }
+        }
+    }
+
+    /// Static (f → 0) real stiffness over the free DOFs, column-major.
+    pub(crate) fn static_stiffness(&self) -> Vec<f64> {
+        self.real_stiffness_at(0.0)
+    }
+
+    /// Re K*(f) over the free DOFs, column-major.
+    pub(crate) fn real_stiffness_at(&self, f_hz: f64) -> Vec<f64> {
+        let n = self.n;
+        let mut k: Vec<f64> = self.k_ff.iter().map(|c| c.re).collect();
+        for t in &self.terms {
+            let kv = t.model.elastic_at(f_hz).re;
+            for &(i, bi) in &t.bf {
+                for &(j, bj) in &t.bf {
+                    k[i + j * n] += kv * bi * bj;
+                }
+            }
+        }
+        k
+    }
+
+    /// Refuse a structure with a free rigid-body mode, naming the body and DOF that moves most.
+    fn check_supported(&self) -> Result<()> {
+        let n = self.n;
+        let k = self.static_stiffness();
+        let (vals, vecs) = crate::linalg::sym_generalized_eigen(&k, &self.m_ff, n).map_err(|e| match e {
+            Error::NotPositiveDefinite { .. } => Error::unsupported(format!(
+                "the mass matrix is not positive definite ({e}); every free DOF needs mass or inertia"
+            )),
+            other => other,
+        })?;
+        let lmax = vals.iter().cloned().fold(0.0f64, f64::max);
+        let tol = (2.0 * PI * 1e-3f64).powi(2).max(1e-12 * lmax);
+        if let Some(j) = vals.iter().position(|&l| l < tol) {
+            let phi = &vecs[j * n..(j + 1) * n];
+            let (imax, _) = phi
+                .iter()
+                .enumerate()
+                .map(|(i, p)| (i, p * p * self.m_ff[i + i * n]))
+                .fold((0, -1.0), |a, b| if b.1 > a.1 { b } else { a });
+            let l = &self.labels[imax];
+            return Err(Error::unsupported(format!(
+                "'{}' is free to move in {} (a rigid-body mode at {:.2e} Hz): connect it to the ground through springs or beams, or hold that DOF",
+                l.owner,
+                l.dof.name(),
+                vals[j].max(0.0).sqrt() / (2.0 * PI)
+            )));
+        }
+        Ok(())
+    }
+}
+
+impl assembly::Carrier {
+    /// 6 × n dense map of a point's motion over the free DOFs only.
+    pub(crate) fn point_map_free(&self, p: [f64; 3], n: usize) -> Vec<Vec<f64>> {
+        self.point_map(p, n + 3)
+            .into_iter()
+            .map(|mut r| {
+                r.truncate(n);
+                r
+            })
+            .collect()
+    }
+}
+
+fn col_major<T: Copy>(rows: usize, cols: usize, v: &[T]) -> Array2<T> {
+    Array2::from_shape_fn((rows, cols), |(i, j)| v[i + j * rows])
+}
