@@ -252,7 +252,7 @@ impl SegmentEngine {
     /// Density scale and one-sided factor for bin k: c_k / (fs Σw²).
     pub(crate) fn bin_scale(&self, k: usize, fs: f64) -> f64 {
         let base = 1.0 / (fs * self.win_sq_sum);
-        let nyquist = self.nperseg % 2 == 0 && k == self.nperseg / 2;
+        let nyquist = self.nperseg.is_multiple_of(2) && k == self.nperseg / 2;
         if k == 0 || nyquist { base } else { 2.0 * base }
     }
 
@@ -492,7 +492,9 @@ impl WelchStream {
         if na == 1 {
             return self.push_axis(0, data);
         }
-        let (phase, ns) = (self.phase, self.n_samples.clone());
+        let mut ns = [0u64; 3];
+        ns[..na].copy_from_slice(&self.n_samples);
+        let phase = self.phase;
         self.check_chunk("samples", data, |i| {
             let a = (phase + i) % na;
             let before = (0..i).filter(|j| (phase + j) % na == a).count() as u64;
