@@ -126,7 +126,11 @@ pub struct WelchPsd {
 impl WelchPsd {
     /// Drop the DC bin and wrap as a [`Psd`] of the given quantity (the input's unit).
     pub fn to_psd(&self, quantity: Quantity) -> Result<Psd> {
-        Psd::new(self.freq_hz[1..].to_vec(), self.values[1..].to_vec(), quantity)
+        if self.values.len() != self.freq_hz.len() {
+            return Err(Error::shape("WelchPsd values vs freq_hz", self.freq_hz.len(), self.values.len()));
+        }
+        let tail = |v: &[f64]| v.get(1..).unwrap_or_default().to_vec();
+        Psd::new(tail(&self.freq_hz), tail(&self.values), quantity)
     }
 }
 
@@ -747,5 +751,7 @@ mod tests {
         assert_eq!(q.len(), 50);
         assert_eq!(q.freq_hz()[0], 0.1);
         assert_eq!(q.values(), &p.values[1..]);
+        let empty = WelchPsd { freq_hz: vec![], values: vec![], n_segments: 0 };
+        assert!(matches!(empty.to_psd(Quantity::Velocity), Err(Error::InvalidGrid { .. })));
     }
 }
