@@ -10,6 +10,21 @@
 //! - von Kármán with the published constant 70.8: integral √(c/70.8)·σ_u² with the exact
 //!   c = (2√π Γ(1/3)/Γ(5/6))² = 70.78012763…, so it is divided by √(c/70.8) = 0.99986;
 //! - Davenport (1961): the normalised variant σ_u² (2/3)(L/U)² n / (1 + (nL/U)²)^(4/3), L = 1200 m.
+//!
+//! ```
+//! use stillsky::FreqGrid;
+//! use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+//!
+//! // 5 m/s at 2 m, 20 % turbulence; a 0.3 m × 0.6 m tube assembly with Cd = 1.2.
+//! let wind = WindSpec::new(WindSpectrum::VonKarman, 5.0, 2.0, Turbulence::Intensity(0.2));
+//! let grid = FreqGrid::log(1e-3, 100.0, 400)?;
+//! let s_u = wind.velocity_psd(&grid)?;                     // (m/s)²/Hz
+//! let s_f = wind.drag_force_psd(1.2, 0.18, &grid, None)?;  // N²/Hz
+//! assert!((wind.mean_drag_force_n(1.2, 0.18)? - 3.3075).abs() < 1e-9);
+//! assert!(s_f.rms() < wind.drag_force_std_n(1.2, 0.18)?);  // grid covers most, not all
+//! # let _ = s_u;
+//! # Ok::<(), stillsky::Error>(())
+//! ```
 
 use crate::error::{Error, Result, require_positive};
 use crate::grid::FreqGrid;
@@ -66,7 +81,12 @@ pub fn davenport(freq_hz: f64, surface_drag_kappa: f64, u10_m_s: f64) -> f64 {
 /// ρ = p/(287.05287 T). Valid from −1000 to 11 000 m.
 pub fn isa_air_density_kg_m3(altitude_m: f64) -> Result<f64> {
     if !altitude_m.is_finite() || !(-1000.0..=11_000.0).contains(&altitude_m) {
-        return Err(Error::OutOfRange { what: "altitude_m".into(), value: altitude_m, min: -1000.0, max: 11_000.0 });
+        return Err(Error::OutOfRange {
+            what: "altitude_m".into(),
+            value: altitude_m,
+            min: -1000.0,
+            max: 11_000.0,
+        });
     }
     let t = 288.15 - 0.0065 * altitude_m;
     let p = 101_325.0 * (t / 288.15).powf(5.25588);
@@ -171,7 +191,10 @@ impl WindSpec {
         require_positive("air_density_kg_m3", self.air_density_kg_m3)?;
         require_positive("shelter_factor", self.shelter_factor)?;
         if self.shelter_factor > 1.0 {
-            return Err(Error::invalid("shelter_factor", format!("must be <= 1, got {}", self.shelter_factor)));
+            return Err(Error::invalid(
+                "shelter_factor",
+                format!("must be <= 1, got {}", self.shelter_factor),
+            ));
         }
         match self.turbulence {
             Turbulence::RoughnessLength { z0_m } => {
@@ -363,7 +386,9 @@ mod tests {
     fn spectra_integrate_to_sigma_squared() {
         // ∫S_u df = σ_u² (REFERENCES.md §6 intro and §6.1–6.4 integrals), trapezoid on a wide
         // log grid; the normalisation is analytic, the check numerical (1 %).
-        for kind in [WindSpectrum::Kaimal, WindSpectrum::KaimalIec, WindSpectrum::VonKarman, WindSpectrum::Davenport] {
+        for kind in
+            [WindSpectrum::Kaimal, WindSpectrum::KaimalIec, WindSpectrum::VonKarman, WindSpectrum::Davenport]
+        {
             for (u, z, turb) in [
                 (5.0, 2.0, Turbulence::Intensity(0.2)),
                 (12.0, 80.0, Turbulence::RoughnessLength { z0_m: 0.03 }),
@@ -379,12 +404,17 @@ mod tests {
         }
         // Unnormalised Kaimal (1972): σ_u² = 4.7727 u*² (REFERENCES.md §6.1).
         let g = wide();
-        let raw = Psd::on_grid(&g, g.hz().iter().map(|&f| kaimal_1972(f, 0.3, 2.0, 5.0)).collect(), Quantity::Velocity)
-            .unwrap();
+        let raw = Psd::on_grid(
+            &g,
+            g.hz().iter().map(|&f| kaimal_1972(f, 0.3, 2.0, 5.0)).collect(),
+            Quantity::Velocity,
+        )
+        .unwrap();
         assert_relative_eq!(raw.mean_square(), 4.7727 * 0.09, max_relative = 2e-3);
         // Davenport: 6 κ U10² (REFERENCES.md §6.4).
         let raw =
-            Psd::on_grid(&g, g.hz().iter().map(|&f| davenport(f, 0.005, 10.0)).collect(), Quantity::Velocity).unwrap();
+            Psd::on_grid(&g, g.hz().iter().map(|&f| davenport(f, 0.005, 10.0)).collect(), Quantity::Velocity)
+                .unwrap();
         assert_relative_eq!(raw.mean_square(), 3.0, max_relative = 2e-3);
     }
 
@@ -439,8 +469,16 @@ mod tests {
             (WindSpec { height_m: -2.0, ..ok.clone() }, "height_m", "-2"),
             (WindSpec { air_density_kg_m3: f64::NAN, ..ok.clone() }, "air_density_kg_m3", "NaN"),
             (ok.clone().with_shelter_factor(1.5), "shelter_factor", "1.5"),
-            (WindSpec { turbulence: Turbulence::Intensity(1.2), ..ok.clone() }, "turbulence_intensity", "1.2"),
-            (WindSpec { turbulence: Turbulence::RoughnessLength { z0_m: 1.0 }, ..ok.clone() }, "z0_m", "2.718"),
+            (
+                WindSpec { turbulence: Turbulence::Intensity(1.2), ..ok.clone() },
+                "turbulence_intensity",
+                "1.2",
+            ),
+            (
+                WindSpec { turbulence: Turbulence::RoughnessLength { z0_m: 1.0 }, ..ok.clone() },
+                "z0_m",
+                "2.718",
+            ),
         ];
         for (s, name, needle) in cases {
             let e = s.validate().unwrap_err();

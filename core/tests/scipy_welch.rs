@@ -3,7 +3,7 @@
 //! conventions). Every option the Python binding will pass (window, nperseg, noverlap,
 //! detrend, fs), including odd lengths and odd nperseg, must reproduce scipy to rtol 1e-10.
 
-use stillsky::spectrum::{Detrend, Window, WelchConfig, WelchStream, coherence, csd, welch};
+use stillsky::spectrum::{Detrend, WelchConfig, WelchStream, Window, coherence, csd, welch};
 
 /// Same integer LCG signal as the generator (exact in both languages up to `sin`).
 fn lcg_signal(n: usize, seed: u64) -> Vec<f64> {

@@ -9,8 +9,8 @@
 //!
 //! Line 1 is the header (quantity name as [`Quantity::name`], unit as [`Quantity::unit_ascii`]),
 //! line 2 the column names, then one `freq_hz,value` row per line. Frequencies must be finite,
-//! > 0 and strictly increasing; values finite and >= 0. A final newline (and `\r\n` line ends)
-//! are accepted; blank lines are not. Every error names the file and line.
+//! positive and strictly increasing; values finite and non-negative. A final newline (and
+//! `\r\n` line ends) are accepted; blank lines are not. Every error names the file and line.
 
 use std::path::Path;
 
@@ -157,7 +157,7 @@ mod tests {
             (format!("{h}1,NaN\n"), "line 3", "NaN"),
             (format!("{h}1,2,3\n"), "line 3", "2 comma-separated"),
             (format!("{h}1,2\n\n3,4\n"), "line 4", "2 comma-separated"),
-            (format!("{h}"), "line 3", "no data"),
+            (h.to_string(), "line 3", "no data"),
             ("freq_hz,value\n1,2\n".to_string(), "line 1", "header"),
             ("# stillsky psd, quantity=jerk, unit=x\nfreq_hz,value\n1,2\n".into(), "line 1", "jerk"),
             (

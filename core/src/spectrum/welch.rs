@@ -126,7 +126,11 @@ pub struct WelchPsd {
 impl WelchPsd {
     /// Drop the DC bin and wrap as a [`Psd`] of the given quantity (the input's unit).
     pub fn to_psd(&self, quantity: Quantity) -> Result<Psd> {
-        Psd::new(self.freq_hz[1..].to_vec(), self.values[1..].to_vec(), quantity)
+        if self.values.len() != self.freq_hz.len() {
+            return Err(Error::shape("WelchPsd values vs freq_hz", self.freq_hz.len(), self.values.len()));
+        }
+        let tail = |v: &[f64]| v.get(1..).unwrap_or_default().to_vec();
+        Psd::new(tail(&self.freq_hz), tail(&self.values), quantity)
     }
 }
 
@@ -252,7 +256,7 @@ impl SegmentEngine {
     /// Density scale and one-sided factor for bin k: c_k / (fs Σw²).
     pub(crate) fn bin_scale(&self, k: usize, fs: f64) -> f64 {
         let base = 1.0 / (fs * self.win_sq_sum);
-        let nyquist = self.nperseg % 2 == 0 && k == self.nperseg / 2;
+        let nyquist = self.nperseg.is_multiple_of(2) && k == self.nperseg / 2;
         if k == 0 || nyquist { base } else { 2.0 * base }
     }
 
@@ -492,7 +496,9 @@ impl WelchStream {
         if na == 1 {
             return self.push_axis(0, data);
         }
-        let (phase, ns) = (self.phase, self.n_samples.clone());
+        let mut ns = [0u64; 3];
+        ns[..na].copy_from_slice(&self.n_samples);
+        let phase = self.phase;
         self.check_chunk("samples", data, |i| {
             let a = (phase + i) % na;
             let before = (0..i).filter(|j| (phase + j) % na == a).count() as u64;
@@ -745,5 +751,7 @@ mod tests {
         assert_eq!(q.len(), 50);
         assert_eq!(q.freq_hz()[0], 0.1);
         assert_eq!(q.values(), &p.values[1..]);
+        let empty = WelchPsd { freq_hz: vec![], values: vec![], n_segments: 0 };
+        assert!(matches!(empty.to_psd(Quantity::Velocity), Err(Error::InvalidGrid { .. })));
     }
 }
