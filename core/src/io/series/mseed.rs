@@ -248,10 +248,14 @@ fn decode_steim(
                 (3, true, 2) => (7, 4),
                 (c, _, d) => return Err(format!("invalid Steim-2 code {c} with sub-code {d} in frame {f}")),
             };
-            for k in 0..count {
-                let shift = (count - 1 - k) * bits;
-                let v = if bits == 32 { w as i32 } else { sext(w >> shift, bits) };
-                diffs.push(v);
+            let at = 4 * (16 * f + j);
+            match bits {
+                // Bytes and 16-bit halves are stored in memory order (for a little-endian record
+                // each half is little-endian), as libmseed reads them; bit fields use the word.
+                8 => diffs.extend(data[at..at + 4].iter().map(|&b| i32::from(b as i8))),
+                16 => diffs.extend([0, 2].map(|o| i32::from(u16_at(data, at + o, big) as i16))),
+                32 => diffs.push(w as i32),
+                _ => diffs.extend((0..count).map(|k| sext(w >> ((count - 1 - k) * bits), bits))),
             }
         }
     }

@@ -30,7 +30,8 @@ pub enum TimingSource {
 pub struct Gap {
     /// Time (s, as in the file) of the last sample before the gap.
     pub time_s: f64,
-    /// Length of the interval (s).
+    /// Interval between the samples either side of the gap (s). The span without data is
+    /// one sample period shorter (what ObsPy's `Stream.get_gaps` calls the gap's delta).
     pub length_s: f64,
 }
 
