@@ -253,7 +253,9 @@ pub struct SeriesHeader {
     pub start_time: Option<String>,
     /// Number of frames that will be delivered, when known up front.
     pub n_frames: Option<usize>,
-    /// Timing of the input (for text without a time column and WAV: nominal).
+    /// Timing of the input (for text without a time column and WAV: nominal; for text
+    /// without a time column `n_input_frames` is 0 here because the length is not known before
+    /// reading; [`read_series`] fills it in).
     pub report: TimingReport,
 }
 
