@@ -347,3 +347,42 @@ fn bad_rig_inputs_name_the_field() {
         ModelFile::parse(&PIER.replace("\"lawn\"", "\"moon-dust\""), "p").unwrap().expanded().unwrap_err();
     assert!(matches!(e, Error::UnknownName { .. }) && e.to_string().contains("lawn"), "{e}");
 }
+
+#[test]
+fn model_file_doc_examples_build() {
+    // Every ```toml block of docs/model-file.md marked "full example" is a working model file.
+    let doc = std::fs::read_to_string(example("../model-file.md")).unwrap();
+    let blocks: Vec<&str> = doc
+        .split("```toml")
+        .skip(1)
+        .filter_map(|b| b.split("```").next())
+        .filter(|b| b.contains("# full example"))
+        .collect();
+    assert_eq!(blocks.len(), 2);
+    for b in blocks {
+        let model = Model::from_toml_str(b, "docs/model-file.md").unwrap();
+        assert!(model.modes().unwrap().frequency_hz[0] > 0.0);
+        model.frf(&[10.0], &["ground_x"], &["image_x", "image_y"]).unwrap();
+    }
+}
+
+#[test]
+fn beam_legs_vertical_mode_matches_rayleigh() {
+    // Beam legs clamped to the head and to rigid ground: vertical k = N[(EA/L)cos²θ +
+    // (12EI/L³)sin²θ] (axial and fixed–fixed transverse stiffness, elementary statics) and a third
+    // of each leg's mass moving with the head (Rayleigh's estimate for a rod with an end mass,
+    // Thomson, Theory of Vibration). Leg mass ρAL is 20 % of the head mass: expect ~1 %.
+    let text = TRIPOD.replace("leg_mass_kg = 0.5", "legs_as_beams = true\nbeam_elements = 4");
+    let s = spec(&text);
+    assert_eq!(s.beams.len(), 3);
+    let (e, rho, d, t, l) = (193e9, 7900.0, 0.03_f64, 0.002, 1.2_f64);
+    let di = d - 2.0 * t;
+    let a = PI / 4.0 * (d * d - di * di);
+    let i = PI / 64.0 * (d.powi(4) - di.powi(4));
+    let th = 25f64.to_radians();
+    let kv = 3.0 * (e * a / l * th.cos().powi(2) + 12.0 * e * i / l.powi(3) * th.sin().powi(2));
+    let m = 25.0 + 3.0 * rho * a * l / 3.0;
+    let modes = Model::from_spec(&s).unwrap().modes().unwrap();
+    let j = mode_along(&modes, 2);
+    assert_relative_eq!(modes.frequency_hz[j], (kv / m).sqrt() / (2.0 * PI), max_relative = 1e-2);
+}
