@@ -36,6 +36,8 @@
 //! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
 //! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
+//! - [`transient`]: time histories by FFT convolution (gusts, steps, random realisations) and a
+//!   Newmark check.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
 //! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
 #![forbid(unsafe_code)]
