@@ -51,6 +51,7 @@ pub mod linalg;
 pub mod material;
 pub mod modal;
 pub mod model;
+pub mod monitor;
 pub mod rig;
 pub mod section;
 pub mod soil;
