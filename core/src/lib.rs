@@ -39,6 +39,7 @@
 //! - [`transient`]: time histories by FFT convolution (gusts, steps, random realisations) and a
 //!   Newmark check.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
+//! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
 //! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
 #![forbid(unsafe_code)]
 #![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
@@ -56,6 +57,7 @@ pub mod material;
 pub mod modal;
 pub mod model;
 pub mod response;
+pub mod monitor;
 pub mod rig;
 pub mod section;
 pub mod soil;
