@@ -1,7 +1,7 @@
 //! Image motion from ground acceleration: an offline PSD estimate and a streaming monitor.
 //!
 //! # Offline estimate
-//! [`image_motion_from_ground_acceleration`] integrates, per image axis,
+//! [`image_motion_from_ground_acceleration`] is a summary of [`Model::image_motion`]: per image axis,
 //! σ² = ∫ Σ_axes |H_image,axis(f)|² · S_acc,axis(f) / (2πf)⁴ df with the trapezoid rule on the
 //! caller's grid, where H is the model's image FRF for unit ground *displacement* (rad/m) and
 //! S_acc the one-sided ground-acceleration PSD ((m/s²)²/Hz). Ground axes are taken as
@@ -40,21 +40,18 @@
 //!   coverage and the fraction of time above threshold.
 
 use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
+use crate::image::{ImageOptions, p_outside_isotropic};
 use crate::model::{GROUND_INPUTS, Model};
+use crate::response::Disturbances;
+use crate::spectrum::{Psd, Quantity};
 use num_complex::Complex64;
 use std::f64::consts::PI;
 
-/// Arcseconds per radian (180 × 3600 / π).
-pub const ARCSEC_PER_RAD: f64 = 206_264.806_247_096_36;
+pub use crate::image::ARCSEC_PER_RAD;
 /// Largest FIR length accepted.
 pub const MAX_FIR_TAPS: usize = 1 << 16;
 /// Longest RMS window accepted (samples).
 pub const MAX_WINDOW_SAMPLES: usize = 1 << 22;
-
-/// Trapezoid rule ∫ y df over the points of `f`.
-pub fn trapezoid(f: &[f64], y: &[f64]) -> f64 {
-    f.windows(2).zip(y.windows(2)).map(|(f, y)| 0.5 * (f[1] - f[0]) * (y[0] + y[1])).sum()
-}
 
 /// Image motion statistics for a ground-acceleration PSD.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -86,8 +83,8 @@ pub fn image_motion_from_ground_acceleration(
     acc_psd: [Option<&[f64]>; 3],
     radius_px: f64,
 ) -> Result<ImageMotion> {
-    crate::grid::validate_freqs("freq_hz", freq_hz)?;
-    if freq_hz.len() < 2 {
+    let grid = crate::grid::FreqGrid::new(freq_hz.to_vec())?;
+    if grid.len() < 2 {
         return Err(Error::InvalidGrid {
             name: "freq_hz".into(),
             reason: "the trapezoid rule needs at least 2 points".into(),
@@ -96,45 +93,33 @@ pub fn image_motion_from_ground_acceleration(
     require_non_negative("radius_px", radius_px)?;
     let optics = model
         .optics()
-        .ok_or_else(|| Error::invalid("model", "has no [optics] section: image motion is undefined"))?;
-    let mut inputs = Vec::new();
-    let mut psds = Vec::new();
+        .ok_or_else(|| Error::invalid("model", "has no [optics] section: image motion is undefined"))?
+        .clone();
+    let mut d = Disturbances::default();
     for (a, p) in acc_psd.iter().enumerate() {
         if let Some(p) = p {
             let name = format!("acc_psd_{}", ["x", "y", "z"][a]);
             if p.len() != freq_hz.len() {
                 return Err(Error::shape(name, freq_hz.len(), p.len()));
             }
-            if let Some(i) = p.iter().position(|v| !(v.is_finite() && *v >= 0.0)) {
-                return Err(Error::invalid(
-                    name,
-                    format!("value {} at index {i} must be finite and >= 0", p[i]),
-                ));
-            }
-            inputs.push(GROUND_INPUTS[a]);
-            psds.push(*p);
+            let psd = Psd::new(freq_hz.to_vec(), p.to_vec(), Quantity::Acceleration)
+                .map_err(|e| Error::invalid(name, e.to_string()))?;
+            d.ground[a] = Some(psd);
         }
     }
-    if inputs.is_empty() {
+    if d.ground.iter().all(|g| g.is_none()) {
         return Err(Error::invalid("acc_psd", "at least one ground axis needs a PSD"));
     }
-    let frf = model.frf(freq_hz, &inputs, &["image_x", "image_y"])?;
-    let mut var = [0.0; 2];
-    let mut integrand = vec![0.0; freq_hz.len()];
-    for (o, v) in var.iter_mut().enumerate() {
-        for (k, &f) in freq_hz.iter().enumerate() {
-            let w4 = (2.0 * PI * f).powi(4);
-            integrand[k] = (0..inputs.len()).map(|a| frf.data[[k, o, a]].norm_sqr() * psds[a][k] / w4).sum();
-        }
-        *v = trapezoid(freq_hz, &integrand);
-    }
+    // The one image-motion computation of the library (image.rs), without per-mode shares.
+    let opts = ImageOptions { skip_mode_shares: true, ..Default::default() };
+    let im = model.image_motion(&grid, &d, &opts)?;
+    let [sx, sy] = im.per_axis_arcsec.map(|a| a / ARCSEC_PER_RAD);
+    let sr = (sx * sx + sy * sy).sqrt();
     let um_per_rad = optics.focal_length_mm * 1000.0;
     let px_per_rad = um_per_rad / optics.pixel_um;
-    let (sx, sy) = (var[0].sqrt(), var[1].sqrt());
-    let sr = (var[0] + var[1]).sqrt();
-    let sigma_iso_px = ((var[0] + var[1]) / 2.0).sqrt() * px_per_rad;
+    let sigma_iso_px = sr / 2f64.sqrt() * px_per_rad;
     let p_outside = if sigma_iso_px > 0.0 {
-        (-radius_px * radius_px / (2.0 * sigma_iso_px * sigma_iso_px)).exp()
+        p_outside_isotropic(radius_px, sigma_iso_px)
     } else if radius_px > 0.0 {
         0.0
     } else {
@@ -868,12 +853,5 @@ mod tests {
         ));
         assert!(parse_axes("xx").is_err() && parse_axes("w").is_err() && parse_axes("").is_err());
         assert_eq!(parse_axes("zx").unwrap(), vec![2, 0]);
-    }
-
-    #[test]
-    fn trapezoid_is_exact_for_lines() {
-        // The trapezoid rule is exact for linear integrands (elementary).
-        let f = [1.0, 2.0, 4.0];
-        assert_relative_eq!(trapezoid(&f, &[1.0, 2.0, 4.0]), (16.0 - 1.0) / 2.0);
     }
 }
