@@ -1,0 +1,163 @@
+"""Type stubs and user documentation for the extension module ``stillsky._native``.
+
+Conventions: SI units (m, kg, s, N, rad); frequencies in Hz; harmonic convention e^{+iωt};
+complex stiffness k* = k'(1 + iη); dynamic stiffness Z(ω) = K*(ω) + iωC − ω²M.
+
+Array arguments are float64 and 1-D. NumPy float64 arrays are read in place (one copy when not
+C-contiguous); lists and tuples are converted once; a NumPy array of another dtype raises
+``TypeError``. Results are new arrays owned by NumPy (no copy on the way out). Heavy calls
+release the GIL: do not modify an input array from another thread during a call.
+"""
+
+from os import PathLike
+from typing import Literal, Sequence, overload
+
+import numpy as np
+import numpy.typing as npt
+
+__version__: str
+
+_F64In = npt.ArrayLike
+_F64 = npt.NDArray[np.float64]
+_C128 = npt.NDArray[np.complex128]
+
+class StillskyError(Exception):
+    """Base class of every error raised by stillsky."""
+
+class InvalidInputError(StillskyError, ValueError):
+    """An input value, grid, shape, name or file text is wrong; the message names the field,
+    file and line, or value."""
+
+class UnsupportedModelError(InvalidInputError):
+    """The structure cannot be analysed, e.g. a body with a free rigid-body mode (named)."""
+
+class SingularSystemError(InvalidInputError):
+    """The dynamic stiffness matrix is singular at the frequency named in the message."""
+
+class NotPositiveDefiniteError(InvalidInputError):
+    """A matrix that must be symmetric positive definite (e.g. the mass matrix) is not."""
+
+class ConvergenceError(StillskyError, RuntimeError):
+    """An iterative method did not converge."""
+
+class StillskyIOError(StillskyError, OSError):
+    """Reading or writing a file failed; the message names the path."""
+
+class Modes:
+    """Natural modes of a :class:`Model`, ascending in frequency.
+
+    Shapes are undamped and mass-normalised (Φᵀ M Φ = I). Where stiffness depends on frequency,
+    each mode's stiffness is evaluated at that mode's own frequency. The attributes return the
+    same array objects on every access.
+    """
+
+    @property
+    def frequency_hz(self) -> _F64:
+        """Natural frequencies (Hz), shape (n_modes,)."""
+    @property
+    def damping_ratio(self) -> _F64:
+        """Modal damping ratio ζ (dimensionless), shape (n_modes,): half the modal loss factor
+        plus the viscous modal damping (modal strain energy estimate)."""
+    @property
+    def shapes(self) -> _F64:
+        """Mass-normalised mode shapes, shape (dof_count, n_modes); row order is
+        ``Model.dof_labels``; units m or rad per sqrt(kg)."""
+    @property
+    def participation(self) -> _F64:
+        """Participation factor Γ for ground motion along x, y, z (kg^½), shape (n_modes, 3)."""
+    @property
+    def effective_mass_kg(self) -> _F64:
+        """Effective modal mass Γ² (kg) for ground x, y, z, shape (n_modes, 3)."""
+    @property
+    def dominant_dofs(self) -> list[str]:
+        """For each mode, the DOF label with the largest kinetic-energy share."""
+    def __len__(self) -> int: ...
+
+class Model:
+    """An assembled linear structure: mass, damping and complex stiffness over its free DOFs,
+    with named inputs and outputs. Immutable; safe to share between threads.
+
+    Inputs: ``ground_x``, ``ground_y``, ``ground_z`` (unit ground displacement, m, of every
+    ground attachment), ``wind`` (unit force, N, at the wind's centre of pressure),
+    ``force:NAME:x|y|z`` (N) and ``moment:NAME:x|y|z`` (N·m).
+
+    Outputs: ``NAME:x|y|z|rx|ry|rz`` (absolute displacement, m, or rotation, rad) and, with
+    optics, ``image_x``, ``image_y`` (line-of-sight motion on the sky, rad).
+    """
+
+    @staticmethod
+    def from_toml(path: str | PathLike[str]) -> Model:
+        """Read a TOML model file.
+
+        Args:
+            path: file path.
+
+        Raises:
+            StillskyIOError: the file cannot be read (also an ``OSError``).
+            InvalidInputError: malformed file, unknown key (message names file and line),
+                bad values (message names the field).
+            UnsupportedModelError: e.g. a body free to move (named).
+        """
+    @staticmethod
+    def from_toml_str(text: str, label: str = "<string>") -> Model:
+        """Build a model from TOML text.
+
+        Args:
+            text: the model file contents.
+            label: name of the source used in error messages (e.g. a file name).
+        """
+    @property
+    def dof_count(self) -> int:
+        """Number of free degrees of freedom n."""
+    @property
+    def dof_labels(self) -> list[str]:
+        """Label of each free DOF in matrix order, e.g. ``"payload:z"``."""
+    @property
+    def input_names(self) -> list[str]:
+        """All input names this model accepts."""
+    @property
+    def output_names(self) -> list[str]:
+        """All output names this model offers."""
+    def modes(self) -> Modes:
+        """Natural frequencies, damping ratios, shapes and participation (GIL released)."""
+    @overload
+    def frf(self, freq_hz: _F64In, input: str, output: str) -> _C128:
+        """Frequency response of one output to one input.
+
+        Args:
+            freq_hz: frequencies (Hz), 1-D float64, strictly increasing, finite, > 0.
+            input: input name (ground displacement in m, force in N, moment in N·m).
+            output: output name (displacement in m or rotation in rad).
+
+        Returns:
+            complex128 array, shape (n_freq,): output per unit input (so ``ground_z`` →
+            ``body:z`` is the dimensionless transmissibility).
+        """
+    @overload
+    def frf(
+        self, freq_hz: _F64In, input: str | Sequence[str], output: str | Sequence[str]
+    ) -> _C128:
+        """Frequency response of several outputs to several inputs.
+
+        With a list for ``input`` or ``output`` (a single str counts as a list of one) the
+        result has shape (n_freq, n_out, n_in), complex128. Runs with the GIL released.
+        """
+    def matrices(self, freq_hz: float) -> dict[Literal["mass", "damping", "stiffness"], npt.NDArray[np.float64] | _C128]:
+        """The system matrices over the free DOFs, each (n, n).
+
+        Args:
+            freq_hz: frequency (Hz, ≥ 0) at which the complex stiffness is evaluated.
+
+        Returns:
+            ``{"mass": M (kg, kg·m²; float64), "damping": C (viscous, N·s/m etc.; float64),
+            "stiffness": K*(f) (N/m, N·m/rad; complex128, without the viscous part)}``, so that
+            Z(ω) = K* + iωC − ω²M.
+        """
+    def input_vector(self, name: str, freq_hz: float = 0.0) -> _C128:
+        """Right-hand side b of Z(ω) x = b for one input at ``freq_hz`` (Hz, ≥ 0).
+
+        For ground inputs b = −Z_fg(ω) e_d (forces, N, per metre of ground motion); for forces
+        and moments the fixed generalised load. Shape (n,), complex128.
+        """
+    def output_vector(self, name: str) -> _F64:
+        """Row r of an output over the free DOFs (output = r · x), shape (n,), float64."""
