@@ -444,6 +444,8 @@ impl BeamSpec {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct OpticsSpec {
+    /// The rigid body carrying the optics (default `payload`, the rig layer's payload body).
+    #[serde(default = "default_optics_body")]
     pub body: String,
     pub focal_length_mm: f64,
     pub pixel_um: f64,
@@ -454,6 +456,10 @@ pub struct OpticsSpec {
     /// Rotation of the camera's axes about the line of sight from (azimuth, altitude) (deg).
     #[serde(default)]
     pub camera_rotation_deg: f64,
+}
+
+fn default_optics_body() -> String {
+    "payload".into()
 }
 
 impl OpticsSpec {

@@ -64,9 +64,6 @@ impl<'m> FrfPlan<'m> {
         if inputs.is_empty() {
             return Err(Error::invalid("inputs", "at least one input is needed"));
         }
-        if outputs.is_empty() {
-            return Err(Error::invalid("outputs", "at least one output is needed"));
-        }
         let ins = inputs.iter().map(|n| model.input(n)).collect::<Result<Vec<_>>>()?;
         let mut rows = Vec::with_capacity(outputs.len() * model.dof_count());
         for o in outputs {
@@ -79,6 +76,19 @@ impl<'m> FrfPlan<'m> {
             inputs: ins,
             rows,
         })
+    }
+
+    /// A plan whose outputs are arbitrary real rows over the free DOFs (row-major
+    /// `names.len()` × n), e.g. modal coordinates φᵀM.
+    pub fn with_rows(model: &'m Model, inputs: &[&str], names: Vec<String>, rows: Vec<f64>) -> Result<Self> {
+        let n = model.dof_count();
+        if rows.len() != names.len() * n {
+            return Err(Error::shape("output rows", names.len() * n, rows.len()));
+        }
+        let mut plan = FrfPlan::new(model, inputs, &[])?;
+        plan.output_names = names;
+        plan.rows = rows;
+        Ok(plan)
     }
 
     fn scratch(&self) -> Scratch {
@@ -111,6 +121,9 @@ impl<'m> FrfPlan<'m> {
     /// Evaluate into `out` laid out (n_freq, n_out, n_in) row-major.
     pub fn evaluate_into(&self, freq_hz: &[f64], out: &mut [Complex64]) -> Result<()> {
         crate::grid::validate_freqs("freq_hz", freq_hz)?;
+        if self.output_names.is_empty() {
+            return Err(Error::invalid("outputs", "at least one output is needed"));
+        }
         let per = self.output_names.len() * self.inputs.len();
         if out.len() != freq_hz.len() * per {
             return Err(Error::shape("FRF output buffer", freq_hz.len() * per, out.len()));

@@ -53,7 +53,10 @@ impl FreqGrid {
     pub fn log(f_min_hz: f64, f_max_hz: f64, n: usize) -> Result<Self> {
         Self::check_span(f_min_hz, f_max_hz, n)?;
         let (a, b) = (f_min_hz.ln(), f_max_hz.ln());
-        let hz = (0..n).map(|i| (a + (b - a) * i as f64 / (n - 1) as f64).exp()).collect();
+        let mut hz: Vec<f64> = (0..n).map(|i| (a + (b - a) * i as f64 / (n - 1) as f64).exp()).collect();
+        // Pin the ends exactly (exp(ln x) is not always x).
+        hz[0] = f_min_hz;
+        hz[n - 1] = f_max_hz;
         Self::new(hz)
     }
 

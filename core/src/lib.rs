@@ -30,11 +30,12 @@
 //! - [`stiffness`]: complex stiffness models and series/parallel combinators.
 //! - [`soil`]: impedance of a rigid circular contact on an elastic half-space; soil presets.
 //! - [`assembly`]: bodies, nodes, connectors and beams → mass, damping, stiffness matrices.
-//! - [`model`]: the assembled [`Model`] with named inputs and outputs.
+//! - [`model`]: the assembled [`model::Model`] with named inputs and outputs.
 //! - [`frf`]: frequency response by direct complex solve per frequency.
 //! - [`modal`]: natural frequencies, mode shapes, modal damping and participation.
 //! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
+//! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
 //! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
 #![forbid(unsafe_code)]
@@ -46,11 +47,13 @@ pub mod error;
 pub mod frf;
 pub mod grid;
 pub mod identify;
+pub mod image;
 pub mod io;
 pub mod linalg;
 pub mod material;
 pub mod modal;
 pub mod model;
+pub mod response;
 pub mod rig;
 pub mod section;
 pub mod soil;

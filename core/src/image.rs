@@ -1,0 +1,503 @@
+//! Image motion on the sensor plane: arcsec, µm and pixels; probability of leaving a radius;
+//! blur against seeing; exposure and guiding.
+//!
+//! Conventions (reference notes §11):
+//! - arcsec = rad × 206264.806; µm on the sensor = f_mm × 1000 × rad; plate scale
+//!   ″/px = 206.264806 × pixel_um / f_mm.
+//! - Motion is zero-mean Gaussian. Isotropic 2-D motion with per-axis σ leaves a radius R with
+//!   probability exp(−R²/2σ²) (Rayleigh); the anisotropic, correlated case is integrated
+//!   numerically over angle ([`p_outside`]).
+//! - Blur: FWHM = 2.35482 σ per axis, added in quadrature to the seeing FWHM (exact for Gaussian
+//!   profiles only; real seeing is closer to Moffat — common practice).
+//! - Exposure T (random start): centroid wander has weight sinc²(πfT), smear within the frame
+//!   1 − sinc²(πfT) (boxcar average; Bendat & Piersol, *Random Data*, from memory: verify).
+//! - Guiding at cadence T_g with integrator gain g and one frame of delay: residual =
+//!   |E(z)|² × PSD with E(z) = (1 − z⁻¹)/(1 − (1 − g)z⁻¹), z = e^{i2πfT_g} (Franklin, Powell &
+//!   Workman, *Digital Control of Dynamic Systems*; notes §11). Stable for 0 < g < 2.
+
+use crate::error::{Error, Result, require_positive};
+use crate::grid::FreqGrid;
+use crate::model::Model;
+use crate::response::{Disturbances, response_psd};
+use crate::spectrum::BandWidth;
+use serde::Serialize;
+use std::f64::consts::PI;
+
+/// Arcseconds per radian (180 × 3600 / π).
+pub const ARCSEC_PER_RAD: f64 = 206_264.806_247_096_36;
+
+/// FWHM of a Gaussian per unit σ: 2√(2 ln 2).
+pub const FWHM_PER_SIGMA: f64 = 2.354_820_045_030_949_3;
+
+/// Plate scale (arcsec per pixel).
+pub fn plate_scale_arcsec_per_px(pixel_um: f64, focal_length_mm: f64) -> f64 {
+    ARCSEC_PER_RAD * pixel_um / (focal_length_mm * 1000.0)
+}
+
+/// P(r > R) for isotropic 2-D Gaussian motion with per-axis σ (Rayleigh).
+pub fn p_outside_isotropic(radius: f64, sigma: f64) -> f64 {
+    if sigma <= 0.0 {
+        return if radius < 0.0 { 1.0 } else { 0.0 };
+    }
+    (-radius * radius / (2.0 * sigma * sigma)).exp()
+}
+
+/// P(r > R) for zero-mean 2-D Gaussian motion with variances `var_x`, `var_y` and covariance
+/// `cov_xy`. With principal variances a², b² the probability inside is
+/// (1/2πab) ∫₀^{2π} (1 − e^{−R²q(θ)/2})/q(θ) dθ, q = cos²θ/a² + sin²θ/b², integrated by the
+/// trapezoid rule on 512 angles (spectrally accurate for a smooth periodic integrand).
+pub fn p_outside(radius: f64, var_x: f64, var_y: f64, cov_xy: f64) -> f64 {
+    let tr = var_x + var_y;
+    let det = (var_x * var_y - cov_xy * cov_xy).max(0.0);
+    let disc = (0.25 * (var_x - var_y).powi(2) + cov_xy * cov_xy).sqrt();
+    let (a2, b2) = (0.5 * tr + disc, (0.5 * tr - disc).max(0.0));
+    if a2 <= 0.0 {
+        return 0.0;
+    }
+    if b2 <= 1e-15 * a2 || det <= 0.0 {
+        // Degenerate: motion along one line; P(|x| > R) = erfc(R / (a√2)).
+        return erfc(radius / (2.0 * a2).sqrt());
+    }
+    let (a, b) = (a2.sqrt(), b2.sqrt());
+    let m = 512;
+    let mut acc = 0.0;
+    for k in 0..m {
+        let th = 2.0 * PI * k as f64 / m as f64;
+        let q = th.cos().powi(2) / a2 + th.sin().powi(2) / b2;
+        acc += (1.0 - (-radius * radius * q / 2.0).exp()) / q;
+    }
+    let inside = acc * (2.0 * PI / m as f64) / (2.0 * PI * a * b);
+    (1.0 - inside).clamp(0.0, 1.0)
+}
+
+/// Complementary error function (Numerical Recipes' erfcc rational approximation, relative
+/// error < 1.2e-7; ample for a probability).
+fn erfc(x: f64) -> f64 {
+    let z = x.abs();
+    let t = 1.0 / (1.0 + 0.5 * z);
+    let r = t
+        * (-z * z - 1.265_512_23
+            + t * (1.000_023_68
+                + t * (0.374_091_96
+                    + t * (0.096_784_18
+                        + t * (-0.186_288_06
+                            + t * (0.278_868_07
+                                + t * (-1.135_203_98
+                                    + t * (1.488_515_87 + t * (-0.822_152_23 + t * 0.170_872_77)))))))))
+            .exp();
+    if x >= 0.0 { r } else { 2.0 - r }
+}
+
+/// sinc²(πfT) with sinc(u) = sin(u)/u.
+pub fn sinc2(f_hz: f64, t_s: f64) -> f64 {
+    let u = PI * f_hz * t_s;
+    if u.abs() < 1e-8 { 1.0 } else { (u.sin() / u).powi(2) }
+}
+
+/// |E|² of a guider: discrete integrator with gain g at cadence T_g and one frame of delay.
+pub fn guide_rejection_sq(f_hz: f64, cadence_s: f64, gain: f64) -> f64 {
+    let w = 2.0 * PI * f_hz * cadence_s;
+    let num = 2.0 - 2.0 * w.cos(); // |1 − z⁻¹|²
+    let a = 1.0 - gain;
+    let den = 1.0 + a * a - 2.0 * a * w.cos(); // |1 − a z⁻¹|²
+    num / den
+}
+
+/// Guiding parameters.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Guiding {
+    /// Guide exposure cadence T_g (s).
+    pub cadence_s: f64,
+    /// Integrator gain g in (0, 2).
+    pub gain: f64,
+}
+
+/// Options of an image-motion evaluation.
+#[derive(Debug, Clone, PartialEq, Default)]
+#[non_exhaustive]
+pub struct ImageOptions {
+    /// Split into centroid wander and smear for exposures of this length (s).
+    pub exposure_s: Option<f64>,
+    /// Apply a guider's rejection to the PSD before statistics.
+    pub guide: Option<Guiding>,
+    /// Radius for the probability of leaving it, in pixels (default ½ pixel).
+    pub radius_px: Option<f64>,
+    /// Seeing FWHM (arcsec); defaults to the model's optics.
+    pub seeing_fwhm_arcsec: Option<f64>,
+    /// Compute per-mode shares (costs one solve per mode row; default on).
+    pub skip_mode_shares: bool,
+}
+
+impl ImageOptions {
+    /// Set the exposure length (s).
+    pub fn exposure(mut self, t_s: f64) -> Self {
+        self.exposure_s = Some(t_s);
+        self
+    }
+    /// Set guiding.
+    pub fn guiding(mut self, g: Guiding) -> Self {
+        self.guide = Some(g);
+        self
+    }
+}
+
+/// One mode's share of the image mean square.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ModeShare {
+    /// "mode 3" or "quasi-static".
+    pub label: String,
+    pub frequency_hz: f64,
+    /// Fraction of the radial mean square (sums to 1 over all entries).
+    pub share: f64,
+}
+
+/// Wander/smear split for an exposure.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct ExposureSplit {
+    pub exposure_s: f64,
+    /// RMS centroid wander between exposures, radial (arcsec).
+    pub wander_rms_arcsec: f64,
+    /// RMS smear within one exposure, radial (arcsec).
+    pub smear_rms_arcsec: f64,
+}
+
+/// Image motion of a model under given disturbances.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ImageMotion {
+    pub freq_hz: Vec<f64>,
+    /// PSD of image_x and image_y on the sky (arcsec²/Hz), after guiding if requested.
+    pub psd_arcsec2: [Vec<f64>; 2],
+    /// Co-spectrum of image_x with image_y (arcsec²/Hz).
+    pub co_psd_arcsec2: Vec<f64>,
+    /// Cumulative RMS from low frequency, per axis (arcsec).
+    pub cumulative_rms_arcsec: [Vec<f64>; 2],
+    pub per_axis_arcsec: [f64; 2],
+    /// Radial RMS √(σx² + σy²) (arcsec).
+    pub rms_arcsec: f64,
+    pub rms_um: f64,
+    pub rms_px: f64,
+    pub plate_scale_arcsec_per_px: f64,
+    pub focal_length_mm: f64,
+    pub pixel_um: f64,
+    /// Probability that the image is outside `radius_px` at a random instant.
+    pub p_outside: f64,
+    pub radius_px: f64,
+    /// Covariance (arcsec²): [var_x, var_y, cov_xy].
+    pub covariance_arcsec2: [f64; 3],
+    pub seeing_fwhm_arcsec: Option<f64>,
+    /// Gaussian blur FWHM of the motion per axis (arcsec).
+    pub blur_fwhm_arcsec: [f64; 2],
+    /// Seeing and blur in quadrature, per axis (arcsec), when seeing is known.
+    pub total_fwhm_arcsec: Option<[f64; 2]>,
+    pub mode_share: Vec<ModeShare>,
+    /// Share of the mean square per disturbance input.
+    pub input_share: Vec<(String, f64)>,
+    pub exposure: Option<ExposureSplit>,
+    pub guide: Option<Guiding>,
+    /// The third-octave band (centre Hz) holding the largest part of the mean square, and its share.
+    pub dominant_band_hz: f64,
+    pub dominant_band_share: f64,
+    /// Notes on coverage or assumptions.
+    pub notes: Vec<String>,
+}
+
+fn trapz(f: &[f64], y: &[f64]) -> f64 {
+    f.windows(2).zip(y.windows(2)).map(|(fw, yw)| 0.5 * (fw[1] - fw[0]) * (yw[0] + yw[1])).sum()
+}
+
+fn cumulative(f: &[f64], y: &[f64]) -> Vec<f64> {
+    let mut acc = 0.0;
+    let mut out = vec![0.0; f.len()];
+    for k in 1..f.len() {
+        acc += 0.5 * (f[k] - f[k - 1]) * (y[k] + y[k - 1]);
+        out[k] = acc.sqrt();
+    }
+    out
+}
+
+impl ImageMotion {
+    /// P(outside radius) for another radius in pixels.
+    pub fn p_outside_px(&self, radius_px: f64) -> f64 {
+        let s = self.plate_scale_arcsec_per_px;
+        let [vx, vy, c] = self.covariance_arcsec2;
+        p_outside(radius_px * s, vx, vy, c)
+    }
+
+    /// The mode with the largest share.
+    pub fn dominant_mode(&self) -> Option<&ModeShare> {
+        self.mode_share.iter().max_by(|a, b| a.share.total_cmp(&b.share))
+    }
+}
+
+impl Model {
+    /// Image motion under `disturbances` on `grid` (see module docs for the statistics).
+    pub fn image_motion(
+        &self,
+        grid: &FreqGrid,
+        disturbances: &Disturbances,
+        opts: &ImageOptions,
+    ) -> Result<ImageMotion> {
+        let optics = self
+            .optics()
+            .ok_or_else(|| Error::invalid("optics", "the model has no [optics] section"))?
+            .clone();
+        if let Some(t) = opts.exposure_s {
+            require_positive("exposure_s", t)?;
+        }
+        if let Some(g) = opts.guide {
+            require_positive("guide.cadence_s", g.cadence_s)?;
+            if !(g.gain.is_finite() && g.gain > 0.0 && g.gain < 2.0) {
+                return Err(Error::invalid(
+                    "guide.gain",
+                    format!("must lie in (0, 2) for a stable loop, got {}", g.gain),
+                ));
+            }
+        }
+        let radius_px = opts.radius_px.unwrap_or(0.5);
+        require_positive("radius_px", radius_px)?;
+        let r = response_psd(self, grid, disturbances, &["image_x", "image_y"], !opts.skip_mode_shares)?;
+        let f = &r.freq_hz;
+        let a2 = ARCSEC_PER_RAD * ARCSEC_PER_RAD;
+        let guide_w: Vec<f64> = f
+            .iter()
+            .map(|&fh| opts.guide.map_or(1.0, |g| guide_rejection_sq(fh, g.cadence_s, g.gain)))
+            .collect();
+        let scale = |v: &[f64]| -> Vec<f64> { v.iter().zip(&guide_w).map(|(x, w)| x * w * a2).collect() };
+        let px = scale(&r.psd[0]);
+        let py = scale(&r.psd[1]);
+        let co = scale(&r.co_spectra[0].2);
+        let (vx, vy, cxy) = (trapz(f, &px), trapz(f, &py), trapz(f, &co));
+        let total = vx + vy;
+        let plate = optics.plate_scale_arcsec_per_px();
+        let rms = total.sqrt();
+        let um_per_arcsec = optics.focal_length_mm * 1000.0 / ARCSEC_PER_RAD;
+        let seeing = opts.seeing_fwhm_arcsec.or(optics.seeing_fwhm_arcsec);
+        let blur = [FWHM_PER_SIGMA * vx.sqrt(), FWHM_PER_SIGMA * vy.sqrt()];
+        let mode_share = match &r.by_mode {
+            Some(bm) if total > 0.0 => {
+                let n = r.mode_frequency_hz.len();
+                (0..=n)
+                    .map(|j| {
+                        let s = trapz(f, &scale(&bm[0][j])) + trapz(f, &scale(&bm[1][j]));
+                        ModeShare {
+                            label: if j < n { format!("mode {}", j + 1) } else { "quasi-static".into() },
+                            frequency_hz: if j < n { r.mode_frequency_hz[j] } else { 0.0 },
+                            share: s / total,
+                        }
+                    })
+                    .collect()
+            }
+            _ => Vec::new(),
+        };
+        let input_share = r
+            .inputs
+            .iter()
+            .enumerate()
+            .map(|(i, name)| {
+                let s = trapz(f, &scale(&r.by_input[0][i])) + trapz(f, &scale(&r.by_input[1][i]));
+                (name.clone(), if total > 0.0 { s / total } else { 0.0 })
+            })
+            .collect();
+        let exposure = opts.exposure_s.map(|t| {
+            let wx: Vec<f64> =
+                f.iter().zip(px.iter().zip(&py)).map(|(&fh, (a, b))| (a + b) * sinc2(fh, t)).collect();
+            let wander = trapz(f, &wx);
+            ExposureSplit {
+                exposure_s: t,
+                wander_rms_arcsec: wander.sqrt(),
+                smear_rms_arcsec: (total - wander).max(0.0).sqrt(),
+            }
+        });
+        // Dominant third-octave band of the radial PSD.
+        let radial: Vec<f64> = px.iter().zip(&py).map(|(a, b)| a + b).collect();
+        let (mut best_c, mut best_s) = (f64::NAN, 0.0);
+        let bw = BandWidth::ThirdOctave;
+        let (k0, k1) = (bw.nearest_index(f[0]), bw.nearest_index(f[f.len() - 1]));
+        for k in k0..=k1 {
+            let (lo, hi) = bw.edges_hz(k);
+            let s = band_integral(f, &radial, lo, hi);
+            if s > best_s {
+                best_s = s;
+                best_c = bw.centre_hz(k);
+            }
+        }
+        let mut notes = Vec::new();
+        if let Some(nn) = disturbances.coverage_note(grid) {
+            notes.push(nn);
+        }
+        Ok(ImageMotion {
+            freq_hz: f.clone(),
+            cumulative_rms_arcsec: [cumulative(f, &px), cumulative(f, &py)],
+            psd_arcsec2: [px, py],
+            co_psd_arcsec2: co,
+            per_axis_arcsec: [vx.sqrt(), vy.sqrt()],
+            rms_arcsec: rms,
+            rms_um: rms * um_per_arcsec,
+            rms_px: rms / plate,
+            plate_scale_arcsec_per_px: plate,
+            focal_length_mm: optics.focal_length_mm,
+            pixel_um: optics.pixel_um,
+            p_outside: p_outside(radius_px * plate, vx, vy, cxy),
+            radius_px,
+            covariance_arcsec2: [vx, vy, cxy],
+            seeing_fwhm_arcsec: seeing,
+            blur_fwhm_arcsec: blur,
+            total_fwhm_arcsec: seeing.map(|s| [s.hypot(blur[0]), s.hypot(blur[1])]),
+            mode_share,
+            input_share,
+            exposure,
+            guide: opts.guide,
+            dominant_band_hz: best_c,
+            dominant_band_share: if total > 0.0 { best_s / total } else { 0.0 },
+            notes,
+        })
+    }
+}
+
+/// ∫ y df over [lo, hi] ∩ grid, trapezoid with linear interpolation at the edges.
+fn band_integral(f: &[f64], y: &[f64], lo: f64, hi: f64) -> f64 {
+    let mut s = 0.0;
+    for k in 1..f.len() {
+        let (a, b) = (f[k - 1].max(lo), f[k].min(hi));
+        if b <= a {
+            continue;
+        }
+        let lerp = |x: f64| y[k - 1] + (y[k] - y[k - 1]) * (x - f[k - 1]) / (f[k] - f[k - 1]);
+        s += 0.5 * (b - a) * (lerp(a) + lerp(b));
+    }
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn plate_scale_check_values() {
+        // Reference notes §11 (computed from the published formula).
+        assert_relative_eq!(plate_scale_arcsec_per_px(3.76, 1000.0), 0.77556, max_relative = 1e-5);
+        assert_relative_eq!(plate_scale_arcsec_per_px(5.4, 800.0), 1.39229, max_relative = 1e-5);
+        // Issue check: 3.8 µm at 3910 mm ≈ 0.200 ″/px (common practice).
+        assert_relative_eq!(plate_scale_arcsec_per_px(3.8, 3910.0), 0.2005, max_relative = 1e-3);
+    }
+
+    #[test]
+    fn rayleigh_and_anisotropic_probability() {
+        // Notes §11: P(r > σ) = 0.606531, P(r > 2σ) = 0.135335, P(r > 3σ) = 0.011109.
+        for (k, p) in [(1.0, 0.606531), (2.0, 0.135335), (3.0, 0.011109)] {
+            assert_relative_eq!(p_outside_isotropic(k, 1.0), p, max_relative = 1e-5);
+            assert_relative_eq!(
+                p_outside(k, 1.0, 1.0, 0.0),
+                p_outside_isotropic(k, 1.0),
+                max_relative = 1e-9
+            );
+        }
+        // Rotation invariance: a correlated pair equals its principal-axis form.
+        let (a2, b2, th) = (2.0f64, 0.5f64, 0.6f64);
+        let (c, s) = (th.cos(), th.sin());
+        let vx = a2 * c * c + b2 * s * s;
+        let vy = a2 * s * s + b2 * c * c;
+        let cxy = (a2 - b2) * c * s;
+        assert_relative_eq!(p_outside(1.3, vx, vy, cxy), p_outside(1.3, a2, b2, 0.0), max_relative = 1e-9);
+    }
+
+    #[test]
+    fn anisotropic_probability_matches_monte_carlo() {
+        // Monte Carlo of 2-D Gaussian samples (seeded): within 1 %.
+        use rand::{Rng, SeedableRng};
+        let mut rng = rand::rngs::StdRng::seed_from_u64(7);
+        let (sx, sy, rho) = (1.0f64, 0.4f64, 0.3f64);
+        let n = 400_000;
+        let r = 0.9;
+        let mut out = 0usize;
+        for _ in 0..n {
+            let (u, v): (f64, f64) =
+                (rng.sample(rand_distr::StandardNormal), rng.sample(rand_distr::StandardNormal));
+            let x = sx * u;
+            let y = sy * (rho * u + (1.0 - rho * rho).sqrt() * v);
+            if x * x + y * y > r * r {
+                out += 1;
+            }
+        }
+        let mc = out as f64 / n as f64;
+        let p = p_outside(r, sx * sx, sy * sy, rho * sx * sy);
+        assert_relative_eq!(p, mc, max_relative = 0.01);
+    }
+
+    #[test]
+    fn guider_rejection_check_values() {
+        // Notes §11 table, one-frame delay: g = 0.5 at f/fs = 0.1 → 0.930682; g = 0.3 at 0.05 → 0.785813.
+        assert_relative_eq!(guide_rejection_sq(0.1, 1.0, 0.5).sqrt(), 0.930682, max_relative = 1e-6);
+        assert_relative_eq!(guide_rejection_sq(0.05, 1.0, 0.3).sqrt(), 0.785813, max_relative = 1e-6);
+        assert_relative_eq!(guide_rejection_sq(0.5, 1.0, 0.5).sqrt(), 4.0 / 3.0, max_relative = 1e-12);
+    }
+
+    #[test]
+    fn sinc2_check_values() {
+        // Notes §11: sinc² at fT = 0.25 is 0.810569, at 0.5 is (2/π)², at 1 is 0.
+        assert_relative_eq!(sinc2(0.25, 1.0), 0.810569, max_relative = 1e-6);
+        assert_relative_eq!(sinc2(0.5, 1.0), (2.0 / PI).powi(2), max_relative = 1e-12);
+        assert!(sinc2(1.0, 1.0) < 1e-30);
+    }
+}
+
+/// Image RMS over a grid of pointings.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PointingMap {
+    pub altitude_deg: Vec<f64>,
+    pub azimuth_deg: Vec<f64>,
+    /// Radial RMS (arcsec), `[altitude][azimuth]`.
+    pub rms_arcsec: Vec<Vec<f64>>,
+    /// Radial RMS in pixels, `[altitude][azimuth]`.
+    pub rms_px: Vec<Vec<f64>>,
+}
+
+/// Image RMS on a grid of altitude × azimuth: the model file is rebuilt at each pointing, so a
+/// rig-layer payload is re-posed (tube along the line of sight, inertia rotated). Disturbances
+/// stay fixed in the site's frame (e.g. wind from a given direction); the wind's area and drag
+/// coefficient are kept as given.
+pub fn pointing_map(
+    file: &crate::io::ModelFile,
+    altitude_deg: &[f64],
+    azimuth_deg: &[f64],
+    grid: &FreqGrid,
+    disturbances: &Disturbances,
+    opts: &ImageOptions,
+) -> Result<PointingMap> {
+    use rayon::prelude::*;
+    if altitude_deg.is_empty() || azimuth_deg.is_empty() {
+        return Err(Error::invalid("pointing grid", "needs at least one altitude and one azimuth"));
+    }
+    if file.optics.is_none() {
+        return Err(Error::invalid("optics", "the model file has no [optics] section"));
+    }
+    let opts = ImageOptions { skip_mode_shares: true, ..opts.clone() };
+    let cells: Vec<(usize, usize)> =
+        (0..altitude_deg.len()).flat_map(|i| (0..azimuth_deg.len()).map(move |j| (i, j))).collect();
+    let vals = cells
+        .par_iter()
+        .map(|&(i, j)| {
+            let mut f = file.clone();
+            if let Some(o) = f.optics.as_mut() {
+                o.altitude_deg = altitude_deg[i];
+                o.azimuth_deg = azimuth_deg[j];
+            }
+            let m = f.to_model()?;
+            let im = m.image_motion(grid, disturbances, &opts)?;
+            Ok((im.rms_arcsec, im.rms_px))
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let na = azimuth_deg.len();
+    let rows = |k: usize| -> Vec<Vec<f64>> {
+        (0..altitude_deg.len())
+            .map(|i| (0..na).map(|j| if k == 0 { vals[i * na + j].0 } else { vals[i * na + j].1 }).collect())
+            .collect()
+    };
+    Ok(PointingMap {
+        altitude_deg: altitude_deg.to_vec(),
+        azimuth_deg: azimuth_deg.to_vec(),
+        rms_arcsec: rows(0),
+        rms_px: rows(1),
+    })
+}

@@ -1,0 +1,24 @@
+#!/usr/bin/env bash
+# Runs every test of the project from a fresh clone: Rust (fmt, clippy, unit, reference, C ABI),
+# Python (builds the wheel into a private venv, then pytest against numpy/scipy/ObsPy/Dask and the
+# notebook), and compiles the benches. Needs Rust and Python 3; installs the rest.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+root=$(pwd)
+
+echo "== Rust: format, lint, tests"
+cargo fmt --all --check
+cargo clippy --workspace --all-targets --locked -- -D warnings
+cargo test --workspace --locked
+
+echo "== Python: venv, wheel, pytest"
+venv="${STILLSKY_VENV:-$root/target/venv}"
+[ -x "$venv/bin/python" ] || python3 -m venv "$venv"
+"$venv/bin/python" -m pip install --quiet --upgrade pip
+"$venv/bin/python" -m pip install --quiet -r "$root/bindings-py/requirements-test.txt"
+CARGO_TARGET_DIR="$root/target" "$venv/bin/python" -m pip install --quiet --force-reinstall --no-deps "$root/bindings-py"
+"$venv/bin/python" -m pytest -q "$root/bindings-py/tests"
+
+echo "== Benches compile"
+cargo bench --workspace --no-run --locked
+echo "all test stages passed"
