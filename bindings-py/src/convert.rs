@@ -31,7 +31,7 @@ pub fn f64_1d<'py>(obj: &Bound<'py, PyAny>, name: &str) -> PyResult<PyReadonlyAr
     if arr.ndim() != 1 {
         return Err(to_pyerr(Error::invalid(
             name,
-            format!("must be a 1-D array, got {}-D with shape {:?}", arr.ndim(), arr.shape()),
+            format!("must be a 1-D array, got {}-D with shape {}", arr.ndim(), shape_str(arr.shape())),
         )));
     }
     let typed = arr.cast_into::<PyArray1<f64>>()?;
@@ -54,4 +54,12 @@ pub fn names(obj: &Bound<'_, PyAny>, what: &str) -> PyResult<(Vec<String>, bool)
     obj.extract::<Vec<String>>()
         .map(|v| (v, false))
         .map_err(|_| PyTypeError::new_err(format!("{what}: expected a str or a sequence of str")))
+}
+
+/// A shape as Python prints it: `(2, 3)`, `(4,)`, `()`.
+fn shape_str(s: &[usize]) -> String {
+    match s {
+        [a] => format!("({a},)"),
+        _ => format!("({})", s.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", ")),
+    }
 }

@@ -7,6 +7,8 @@
 mod convert;
 mod errors;
 mod model;
+mod series;
+mod spectrum;
 
 use pyo3::prelude::*;
 
@@ -16,5 +18,7 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     errors::register(m)?;
     m.add_class::<model::PyModel>()?;
     m.add_class::<model::PyModes>()?;
+    spectrum::register(m)?;
+    m.add_function(wrap_pyfunction!(series::read_series, m)?)?;
     Ok(())
 }

@@ -161,3 +161,138 @@ class Model:
         """
     def output_vector(self, name: str) -> _F64:
         """Row r of an output over the free DOFs (output = r · x), shape (n,), float64."""
+
+_Quantity = Literal["displacement", "velocity", "acceleration", "force", "moment", "angle"]
+
+class Psd:
+    """A one-sided power spectral density per Hz (mean square = ∫ S df) on a strictly
+    increasing, positive frequency grid, carrying its physical quantity.
+
+    Args:
+        freq_hz: grid (Hz), 1-D float64, strictly increasing, finite, > 0.
+        values: PSD values (quantity unit²/Hz, e.g. (m/s²)²/Hz), same length, finite, ≥ 0.
+        quantity: what the PSD describes.
+    """
+
+    def __init__(self, freq_hz: _F64In, values: _F64In, quantity: _Quantity = "acceleration") -> None: ...
+    @staticmethod
+    def from_csv(path: str | PathLike[str]) -> Psd:
+        """Read a PSD CSV file (format: docs of the core's PSD file reader)."""
+    @property
+    def freq_hz(self) -> _F64:
+        """Grid (Hz), shape (n,); a new array (copy) on each access."""
+    @property
+    def values(self) -> _F64:
+        """Values (unit²/Hz), shape (n,); a new array (copy) on each access."""
+    @property
+    def quantity(self) -> _Quantity: ...
+    @property
+    def unit(self) -> str:
+        """SI unit of the values, e.g. ``"(m/s²)²/Hz"``."""
+    def mean_square(self) -> float:
+        """∫ S df over the grid by the trapezoid rule (unit²)."""
+    def rms(self) -> float:
+        """√(mean square) (unit, e.g. m/s²)."""
+    def band_rms(self, f_lo_hz: float, f_hi_hz: float) -> float:
+        """RMS over [f_lo_hz, f_hi_hz] (Hz), inside the grid."""
+    def to(self, quantity: _Quantity) -> Psd:
+        """Convert between displacement, velocity and acceleration by powers of (2πf)²."""
+    def resample(self, freq_hz: _F64In, *, extrapolate: Literal["error", "zero"] = "error") -> Psd:
+        """Log–log interpolation onto ``freq_hz`` (Hz). Outside the grid: error (default) or zero."""
+    def check_criterion(self, name: str) -> dict[str, object]:
+        """Third-octave band RMS velocity (m/s) against a criterion curve (see
+        :func:`criterion_curve`); keys ``band_centre_hz``, ``band_rms_m_s``, ``limit_m_s``,
+        ``worst_ratio``, ``worst_band_hz``, ``passes``, ``bands_not_covered_hz``."""
+    def __len__(self) -> int: ...
+
+def welch(
+    x: _F64In,
+    fs: float,
+    *,
+    nperseg: int = 256,
+    noverlap: int | None = None,
+    window: str | _F64In = "hann",
+    detrend: Literal["constant", "linear", "none", False] = "constant",
+) -> tuple[_F64, _F64]:
+    """Welch PSD estimate with the meaning of ``scipy.signal.welch`` (one-sided, density).
+
+    Args:
+        x: samples (any unit u), 1-D float64.
+        fs: sample rate (Hz).
+        nperseg: samples per segment; unlike scipy, a value longer than ``x`` is an error.
+        noverlap: samples shared by consecutive segments (default ``nperseg // 2``).
+        window: "hann", "hamming", "blackman", "blackmanharris", "flattop", "boxcar", or an
+            array of ``nperseg`` weights.
+        detrend: per-segment trend removal: "constant", "linear", or False / "none".
+
+    Returns:
+        ``(f, pxx)``: frequencies (Hz, from 0 to fs/2) and the PSD (u²/Hz), both (nperseg//2 + 1,).
+        GIL released during the computation.
+    """
+
+def csd(
+    x: _F64In,
+    y: _F64In,
+    fs: float,
+    *,
+    nperseg: int = 256,
+    noverlap: int | None = None,
+    window: str | _F64In = "hann",
+    detrend: Literal["constant", "linear", "none", False] = "constant",
+) -> tuple[_F64, _C128]:
+    """Cross spectral density Pxy = conj(X)·Y (meaning of ``scipy.signal.csd``); units u_x·u_y/Hz."""
+
+def coherence(
+    x: _F64In,
+    y: _F64In,
+    fs: float,
+    *,
+    nperseg: int = 256,
+    noverlap: int | None = None,
+    window: str | _F64In = "hann",
+    detrend: Literal["constant", "linear", "none", False] = "constant",
+) -> tuple[_F64, _F64]:
+    """Magnitude-squared coherence |Pxy|²/(Pxx Pyy) (meaning of ``scipy.signal.coherence``)."""
+
+def reference_ground(name: Literal["nlnm", "nhnm"], freq_hz: _F64In) -> Psd:
+    """Peterson (1993) low / high noise model as a ground acceleration PSD ((m/s²)²/Hz) on
+    ``freq_hz`` (Hz, inside the model's defined period range)."""
+
+def criterion_curve(name: str) -> tuple[_F64, _F64]:
+    """A vibration criterion curve ("workshop", "office", "residential-day",
+    "operating-theatre", "vc-a" … "vc-e"): third-octave band centres (Hz) and band RMS
+    velocity limits (m/s)."""
+
+def wind_spectrum(
+    kind: Literal["kaimal", "kaimal-iec", "von-karman", "davenport"],
+    freq_hz: _F64In,
+    mean_speed_m_s: float,
+    height_m: float,
+    *,
+    turbulence_intensity: float | None = None,
+    roughness_length_m: float | None = None,
+    shelter_factor: float = 1.0,
+) -> Psd:
+    """Along-wind velocity PSD ((m/s)²/Hz) normalised to σ_u².
+
+    Args:
+        kind: spectrum shape.
+        freq_hz: grid (Hz).
+        mean_speed_m_s: mean wind speed U at ``height_m`` (m/s).
+        height_m: height above ground (m).
+        turbulence_intensity: I_u = σ_u/U in (0, 1]; give this or ``roughness_length_m``.
+        roughness_length_m: aerodynamic roughness length z0 (m).
+        shelter_factor: factor in (0, 1] on the mean speed.
+    """
+
+def read_series(path: str | PathLike[str], *, fs_hz: float | None = None) -> dict[str, object]:
+    """Read a recording (CSV/whitespace text, WAV, miniSEED).
+
+    Args:
+        path: file path.
+        fs_hz: sample rate (Hz) for text files without a time column.
+
+    Returns:
+        ``{"samples": (n_axes, n_frames) float64 in SI units, "axis_names": list[str],
+        "fs_hz": float, "unit": str, "start_time": str | None}``.
+    """
