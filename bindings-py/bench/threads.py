@@ -38,6 +38,10 @@ if __name__ == "__main__":
     m = stillsky.Model.from_toml_str(random_chain_toml(7, 4))
     grids = [np.geomspace(0.5, 300.0, 800) for _ in range(16)]
     compare(f"frf n={m.dof_count} F=800 x16", lambda g: m.frf(g, "ground_z", "p3:z"), grids)
+    tri = stillsky.Model.from_toml(os.path.join(os.path.dirname(__file__), "..", "..", "docs", "examples", "tripod-lawn.toml"))
+    f = np.geomspace(0.5, 100.0, 400)
+    psds = [stillsky.Psd(f, 1e-16 * (1 + k) * (f / 5.0) ** -4, "displacement") for k in range(16)]
+    compare(f"image_motion n={tri.dof_count} F=400 x16", lambda p: tri.image_motion(f, ground=p), psds)
     rng = np.random.default_rng(1)
     xs = [rng.normal(size=200_000) for _ in range(16)]
     compare("welch 200k samples nperseg=1024 x16", lambda x: stillsky.welch(x, 200.0, nperseg=1024), xs)

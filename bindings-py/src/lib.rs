@@ -7,6 +7,7 @@
 mod convert;
 mod errors;
 mod model;
+mod results;
 mod series;
 mod spectrum;
 
@@ -20,5 +21,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<model::PyModes>()?;
     spectrum::register(m)?;
     m.add_function(wrap_pyfunction!(series::read_series, m)?)?;
+    m.add_function(wrap_pyfunction!(results::identify_ringdown, m)?)?;
     Ok(())
 }

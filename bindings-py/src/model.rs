@@ -123,6 +123,38 @@ impl PyModel {
         Ok(self.inner.output_vector(name).py_err()?.into_pyarray(py))
     }
 
+    #[pyo3(signature = (freq_hz, *, ground = None, loads = None, exposure_s = None,
+                        guide_cadence_s = None, guide_gain = 0.5, radius_px = None,
+                        seeing_fwhm_arcsec = None, mode_shares = true))]
+    #[allow(clippy::too_many_arguments)]
+    fn image_motion<'py>(
+        &self,
+        py: Python<'py>,
+        freq_hz: &Bound<'py, PyAny>,
+        ground: Option<&Bound<'py, PyAny>>,
+        loads: Option<Vec<(String, PyRef<'py, crate::spectrum::PyPsd>)>>,
+        exposure_s: Option<f64>,
+        guide_cadence_s: Option<f64>,
+        guide_gain: f64,
+        radius_px: Option<f64>,
+        seeing_fwhm_arcsec: Option<f64>,
+        mode_shares: bool,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        crate::results::image_motion(
+            &self.inner,
+            py,
+            freq_hz,
+            ground,
+            loads,
+            exposure_s,
+            guide_cadence_s,
+            guide_gain,
+            radius_px,
+            seeing_fwhm_arcsec,
+            mode_shares,
+        )
+    }
+
     fn __repr__(&self) -> String {
         format!(
             "Model(dof_count={}, inputs={}, outputs={})",

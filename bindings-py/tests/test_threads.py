@@ -27,3 +27,18 @@ def test_four_threads_welch_identical_to_serial():
         threaded = list(ex.map(lambda x: stillsky.welch(x, 200.0, nperseg=512)[1], xs))
     for a, b in zip(serial, threaded):
         np.testing.assert_array_equal(a, b)
+
+
+def test_four_threads_image_motion_identical_to_serial():
+    import pathlib
+
+    path = pathlib.Path(__file__).resolve().parents[2] / "docs" / "examples" / "tripod-lawn.toml"
+    m = stillsky.Model.from_toml(path)
+    f = np.geomspace(0.5, 100.0, 300)
+    psds = [stillsky.Psd(f, 1e-16 * (1 + k) * (f / 5.0) ** -4, "displacement") for k in range(8)]
+    run = lambda p: m.image_motion(f, ground=p)["psd_arcsec2"]  # noqa: E731
+    serial = [run(p) for p in psds]
+    with ThreadPoolExecutor(max_workers=4) as ex:
+        threaded = list(ex.map(run, psds))
+    for a, b in zip(serial, threaded):
+        np.testing.assert_array_equal(a, b)

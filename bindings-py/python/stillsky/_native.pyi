@@ -161,6 +161,45 @@ class Model:
         """
     def output_vector(self, name: str) -> _F64:
         """Row r of an output over the free DOFs (output = r · x), shape (n,), float64."""
+    def image_motion(
+        self,
+        freq_hz: _F64In,
+        *,
+        ground: Psd | Sequence[Psd | None] | None = None,
+        loads: Sequence[tuple[str, Psd]] | None = None,
+        exposure_s: float | None = None,
+        guide_cadence_s: float | None = None,
+        guide_gain: float = 0.5,
+        radius_px: float | None = None,
+        seeing_fwhm_arcsec: float | None = None,
+        mode_shares: bool = True,
+    ) -> dict[str, object]:
+        """Image motion on the sky and sensor under uncorrelated disturbances (needs [optics]).
+
+        Args:
+            freq_hz: evaluation grid (Hz), 1-D float64, strictly increasing, > 0.
+            ground: ground-motion PSD (displacement, velocity or acceleration), one ``Psd`` for
+                all three axes or one per axis x, y, z (``None`` = no motion on that axis).
+                Spectra are resampled log–log onto ``freq_hz`` and taken as zero outside their
+                own range (reported in ``notes``).
+            loads: (input name, force PSD N²/Hz or moment PSD (N·m)²/Hz) pairs, e.g.
+                ``("force:payload:x", psd)``.
+            exposure_s: split the motion into centroid wander and smear for exposures of this
+                length (s).
+            guide_cadence_s: guider exposure cadence (s); with ``guide_gain`` (integrator gain
+                in (0, 2)) applies the guider's rejection.
+            radius_px: radius (pixels) for the probability of leaving it (default ½ pixel).
+            seeing_fwhm_arcsec: seeing FWHM (arcsec); default from the model's optics.
+            mode_shares: compute each mode's share of the mean square.
+
+        Returns:
+            dict with ``rms_arcsec``, ``rms_um``, ``rms_px``, ``per_axis_arcsec``,
+            ``p_outside``, ``radius_px``, ``plate_scale_arcsec_per_px``, ``blur_fwhm_arcsec``,
+            ``total_fwhm_arcsec``, ``covariance_arcsec2``, ``mode_share``, ``input_share``,
+            ``exposure``, ``dominant_band_hz``, ``dominant_band_share``, ``notes`` and the arrays
+            ``freq_hz`` (F,), ``psd_arcsec2`` (2, F) for image_x / image_y (arcsec²/Hz),
+            ``co_psd_arcsec2`` (F,), ``cumulative_rms_arcsec`` (2, F). GIL released.
+        """
 
 _Quantity = Literal["displacement", "velocity", "acceleration", "force", "moment", "angle"]
 
@@ -295,4 +334,27 @@ def read_series(path: str | PathLike[str], *, fs_hz: float | None = None) -> dic
     Returns:
         ``{"samples": (n_axes, n_frames) float64 in SI units, "axis_names": list[str],
         "fs_hz": float, "unit": str, "start_time": str | None}``.
+    """
+
+def identify_ringdown(
+    x: _F64In,
+    fs: float,
+    *,
+    min_frequency_hz: float | None = None,
+    max_frequency_hz: float | None = None,
+    max_modes: int = 8,
+) -> dict[str, object]:
+    """Natural frequencies and damping ratios from a free-decay (tap test) record.
+
+    Args:
+        x: samples of the decay (any unit), 1-D float64.
+        fs: sample rate (Hz).
+        min_frequency_hz, max_frequency_hz: band searched for the dominant peak (Hz).
+        max_modes: most modes kept from the matrix-pencil fit.
+
+    Returns:
+        dict with arrays ``frequency_hz``, ``damping_ratio``, ``amplitude`` (units of x),
+        ``dominant`` (index), ``methods`` (single-mode estimates: log decrement, envelope fit,
+        half power), ``clipped``, ``close_modes``, ``warnings`` and more diagnostics.
+        GIL released.
     """
