@@ -36,7 +36,10 @@
 //! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
 //! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
+//! - [`transient`]: time histories by FFT convolution (gusts, steps, random realisations) and a
+//!   Newmark check.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
+//! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
 //! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
 #![forbid(unsafe_code)]
 #![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
@@ -54,11 +57,13 @@ pub mod material;
 pub mod modal;
 pub mod model;
 pub mod response;
+pub mod monitor;
 pub mod rig;
 pub mod section;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;
+pub mod transient;
 pub mod wind;
 
 pub use error::{Error, Result};
