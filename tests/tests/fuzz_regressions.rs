@@ -7,8 +7,10 @@ use stillsky_tests::fuzz_targets::TARGETS;
 
 fn replay(dir: &Path, target: fn(&[u8])) -> usize {
     let Ok(entries) = std::fs::read_dir(dir) else { return 0 };
-    let mut files: Vec<_> =
-        entries.filter_map(|e| e.ok().map(|e| e.path())).filter(|p| p.is_file()).collect();
+    let mut files: Vec<_> = entries
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.is_file() && !p.file_name().is_some_and(|n| n.to_string_lossy().starts_with('.')))
+        .collect();
     files.sort();
     for f in &files {
         let data = std::fs::read(f).unwrap();
