@@ -239,18 +239,7 @@ impl StiffnessSpec {
                 _ => return Err(Error::invalid(format!("{name}.{k_name}"), "is required")),
             }
         };
-        if matches!(m, StiffnessModel::Parallel(ref p) if p.len() == 2 && matches!(p[1], StiffnessModel::KelvinVoigt { k, .. } if k == 0.0))
-        {
-            // spring + dashpot with loss: validate the parts with the dashpot's zero k allowed
-            if let StiffnessModel::Parallel(p) = &m {
-                p[0].validate(name)?;
-                if let StiffnessModel::KelvinVoigt { c, .. } = p[1] {
-                    require_non_negative(&format!("{name}.{c_name}"), c)?;
-                }
-            }
-        } else {
-            m.validate(name)?;
-        }
+        m.validate(name)?;
         Ok(m)
     }
 
@@ -387,8 +376,8 @@ pub struct GeneralSpringSpec {
 }
 
 /// A 3-D Euler–Bernoulli beam (column, leg, pier) between two carriers, split into elements with
-/// consistent mass. Ends attached to bodies or the ground are clamped; ends at a 3-DOF node are
-/// pinned (the beam end gets its own rotations).
+/// consistent mass. Ends are clamped to bodies or the ground (a point node has no rotations, so
+/// a beam cannot end on one; use a small body for a pinned end).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct BeamSpec {
@@ -444,6 +433,8 @@ impl BeamSpec {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct OpticsSpec {
+    /// The rigid body carrying the optics (default `payload`, the rig layer's payload body).
+    #[serde(default = "default_optics_body")]
     pub body: String,
     pub focal_length_mm: f64,
     pub pixel_um: f64,
@@ -454,6 +445,10 @@ pub struct OpticsSpec {
     /// Rotation of the camera's axes about the line of sight from (azimuth, altitude) (deg).
     #[serde(default)]
     pub camera_rotation_deg: f64,
+}
+
+fn default_optics_body() -> String {
+    "payload".into()
 }
 
 impl OpticsSpec {

@@ -441,3 +441,63 @@ mod tests {
         assert!(sinc2(1.0, 1.0) < 1e-30);
     }
 }
+
+/// Image RMS over a grid of pointings.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PointingMap {
+    pub altitude_deg: Vec<f64>,
+    pub azimuth_deg: Vec<f64>,
+    /// Radial RMS (arcsec), `[altitude][azimuth]`.
+    pub rms_arcsec: Vec<Vec<f64>>,
+    /// Radial RMS in pixels, `[altitude][azimuth]`.
+    pub rms_px: Vec<Vec<f64>>,
+}
+
+/// Image RMS on a grid of altitude × azimuth: the model file is rebuilt at each pointing, so a
+/// rig-layer payload is re-posed (tube along the line of sight, inertia rotated). Disturbances
+/// stay fixed in the site's frame (e.g. wind from a given direction); the wind's area and drag
+/// coefficient are kept as given.
+pub fn pointing_map(
+    file: &crate::io::ModelFile,
+    altitude_deg: &[f64],
+    azimuth_deg: &[f64],
+    grid: &FreqGrid,
+    disturbances: &Disturbances,
+    opts: &ImageOptions,
+) -> Result<PointingMap> {
+    use rayon::prelude::*;
+    if altitude_deg.is_empty() || azimuth_deg.is_empty() {
+        return Err(Error::invalid("pointing grid", "needs at least one altitude and one azimuth"));
+    }
+    if file.optics.is_none() {
+        return Err(Error::invalid("optics", "the model file has no [optics] section"));
+    }
+    let opts = ImageOptions { skip_mode_shares: true, ..opts.clone() };
+    let cells: Vec<(usize, usize)> =
+        (0..altitude_deg.len()).flat_map(|i| (0..azimuth_deg.len()).map(move |j| (i, j))).collect();
+    let vals = cells
+        .par_iter()
+        .map(|&(i, j)| {
+            let mut f = file.clone();
+            if let Some(o) = f.optics.as_mut() {
+                o.altitude_deg = altitude_deg[i];
+                o.azimuth_deg = azimuth_deg[j];
+            }
+            let m = f.to_model()?;
+            let im = m.image_motion(grid, disturbances, &opts)?;
+            Ok((im.rms_arcsec, im.rms_px))
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let na = azimuth_deg.len();
+    let rows = |k: usize| -> Vec<Vec<f64>> {
+        (0..altitude_deg.len())
+            .map(|i| (0..na).map(|j| if k == 0 { vals[i * na + j].0 } else { vals[i * na + j].1 }).collect())
+            .collect()
+    };
+    Ok(PointingMap {
+        altitude_deg: altitude_deg.to_vec(),
+        azimuth_deg: azimuth_deg.to_vec(),
+        rms_arcsec: rows(0),
+        rms_px: rows(1),
+    })
+}

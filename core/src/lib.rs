@@ -61,6 +61,7 @@ pub mod section;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;
+pub mod transient;
 pub mod wind;
 
 pub use error::{Error, Result};

@@ -1,6 +1,7 @@
 //! The only module that touches `faer`. Everything else passes plain column-major slices.
 //!
 //! - [`ComplexLu`]: a reusable partial-pivot LU workspace for Z(ω) x = b (allocates once).
+//! - [`RealLu`]: a real LU factored once and solved many times (implicit time stepping).
 //! - [`sym_generalized_eigen`]: K φ = λ M φ for symmetric K and positive-definite M.
 
 use crate::error::{Error, Result};
@@ -73,6 +74,64 @@ impl ComplexLu {
     }
 }
 
+/// A real partial-pivot LU factorisation kept for repeated solves with the same matrix (time
+/// stepping: the effective stiffness of an implicit integrator is factored once).
+pub struct RealLu {
+    n: usize,
+    lu: Vec<f64>,
+    perm: Vec<usize>,
+    perm_inv: Vec<usize>,
+    mem: MemBuffer,
+}
+
+impl RealLu {
+    /// Factor the column-major n × n matrix `a`. Returns `Err(ratio)` with the smallest relative
+    /// pivot when `a` is numerically singular (see [`SINGULAR_PIVOT_RATIO`]).
+    pub fn factor(a: &[f64], n: usize) -> std::result::Result<Self, f64> {
+        if a.len() != n * n {
+            return Err(0.0);
+        }
+        let req = factor::lu_in_place_scratch::<usize, f64>(n, n, Par::Seq, Default::default())
+            .or(solve::solve_in_place_scratch::<usize, f64>(n, 1, Par::Seq));
+        let mut s =
+            RealLu { n, lu: a.to_vec(), perm: vec![0; n], perm_inv: vec![0; n], mem: MemBuffer::new(req) };
+        if n == 0 {
+            return Ok(s);
+        }
+        let mut am = MatMut::from_column_major_slice_mut(&mut s.lu, n, n);
+        let stack = MemStack::new(&mut s.mem);
+        factor::lu_in_place(am.rb_mut(), &mut s.perm, &mut s.perm_inv, Par::Seq, stack, Default::default());
+        let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
+        for i in 0..n {
+            let d = am[(i, i)].abs();
+            lo = lo.min(d);
+            hi = hi.max(d);
+        }
+        if hi > 0.0 && lo.is_finite() && lo / hi > SINGULAR_PIVOT_RATIO {
+            Ok(s)
+        } else {
+            Err(if hi > 0.0 { lo / hi } else { 0.0 })
+        }
+    }
+
+    /// Overwrite `b` (length n) with the solution of A x = b.
+    pub fn solve_in_place(&mut self, b: &mut [f64]) -> Result<()> {
+        let n = self.n;
+        if b.len() != n {
+            return Err(Error::shape("right-hand side of a real LU solve", n, b.len()));
+        }
+        if n == 0 {
+            return Ok(());
+        }
+        let lu = MatRef::from_column_major_slice(&self.lu, n, n);
+        let perm = faer::perm::PermRef::new_checked(&self.perm, &self.perm_inv, n);
+        let bm = MatMut::from_column_major_slice_mut(b, n, 1);
+        let stack = MemStack::new(&mut self.mem);
+        solve::solve_in_place(lu, lu, perm, bm, Par::Seq, stack);
+        Ok(())
+    }
+}
+
 /// Eigenpairs of K φ = λ M φ, λ ascending, φ mass-normalised (Φᵀ M Φ = I).
 ///
 /// `k` and `m` are column-major n × n and symmetric. M is factored by Cholesky (M = L Lᵀ) and
@@ -124,6 +183,21 @@ mod tests {
         assert!((b[0] - 1.0).norm() < 1e-14 && (b[1] - 1.0).norm() < 1e-14);
         let mut a: Vec<Complex64> = [1.0, 2.0, 2.0, 4.0].iter().map(|&v| Complex64::new(v, 0.0)).collect();
         assert!(lu.solve_in_place(&mut a, &mut b).is_err());
+    }
+
+    #[test]
+    fn real_lu_solves_and_flags_singular() {
+        // [[4, 1], [2, 3]] x = [6, 8] → x = [1, 2] (column-major storage).
+        let mut lu = RealLu::factor(&[4.0, 2.0, 1.0, 3.0], 2).unwrap();
+        let mut b = vec![6.0, 8.0];
+        lu.solve_in_place(&mut b).unwrap();
+        assert!((b[0] - 1.0).abs() < 1e-14 && (b[1] - 2.0).abs() < 1e-14);
+        // reusable: a second right-hand side with the same factors
+        let mut b = vec![5.0, 5.0];
+        lu.solve_in_place(&mut b).unwrap();
+        assert!((b[0] - 1.0).abs() < 1e-14 && (b[1] - 1.0).abs() < 1e-14);
+        assert!(lu.solve_in_place(&mut [1.0]).is_err());
+        assert!(RealLu::factor(&[1.0, 2.0, 2.0, 4.0], 2).is_err());
     }
 
     #[test]

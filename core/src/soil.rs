@@ -131,7 +131,7 @@ impl Soil {
         let one = |k: f64, c: f64| {
             let h = StiffnessModel::hysteretic(k, self.loss_factor);
             if radiation {
-                StiffnessModel::Parallel(vec![h, StiffnessModel::KelvinVoigt { k: f64::MIN_POSITIVE, c }])
+                StiffnessModel::Parallel(vec![h, StiffnessModel::KelvinVoigt { k: 0.0, c }])
             } else {
                 h
             }

@@ -122,8 +122,12 @@ impl StiffnessModel {
                 require_non_negative(&f("loss_factor"), *loss_factor)?;
             }
             StiffnessModel::KelvinVoigt { k, c } => {
-                require_positive(&f("stiffness"), *k)?;
+                // k = 0 is a pure dashpot (e.g. radiation damping in parallel with a spring).
+                require_non_negative(&f("stiffness"), *k)?;
                 require_non_negative(&f("damping"), *c)?;
+                if *k == 0.0 && *c == 0.0 {
+                    return Err(Error::invalid(f("stiffness"), "spring and dashpot are both zero"));
+                }
             }
             StiffnessModel::Zener { k0, k_inf, tau_s } => {
                 require_positive(&f("k0"), *k0)?;

@@ -1,0 +1,388 @@
+//! Checks of the rig builders against hand calculations and the half-space formulas.
+
+use approx::assert_relative_eq;
+use std::f64::consts::PI;
+use stillsky::Error;
+use stillsky::assembly::ModelSpec;
+use stillsky::io::{ModelFile, spec_to_toml};
+use stillsky::model::Model;
+
+fn example(name: &str) -> std::path::PathBuf {
+    std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/examples").join(name)
+}
+
+fn spec(text: &str) -> ModelSpec {
+    ModelFile::parse(text, "test").unwrap().expanded().unwrap()
+}
+
+fn spring_k(spec: &ModelSpec, name: &str) -> f64 {
+    let s = spec.springs.iter().chain(&spec.torsion_springs).find(|s| s.name == name).unwrap();
+    s.stiffness_n_per_m.or(s.stiffness_nm_per_rad).unwrap()
+}
+
+/// Index of the mode with the largest effective mass for ground input `d` (0 x, 1 y, 2 z).
+fn mode_along(modes: &stillsky::modal::Modes, d: usize) -> usize {
+    (0..modes.frequency_hz.len())
+        .max_by(|&a, &b| modes.effective_mass_kg[[a, d]].total_cmp(&modes.effective_mass_kg[[b, d]]))
+        .unwrap()
+}
+
+#[test]
+fn demo_files_load_with_modes_in_plausible_ranges() {
+    // Ranges: tripods 5–20 Hz, piers 10–40 Hz for the first mode (common practice, no source).
+    for (file, lo, hi) in
+        [("tripod-lawn.toml", 5.0, 20.0), ("tripod-paver.toml", 5.0, 20.0), ("pier.toml", 10.0, 40.0)]
+    {
+        let mf = ModelFile::read(&example(file)).unwrap();
+        let model = mf.to_model().unwrap();
+        let f0 = model.modes().unwrap().frequency_hz[0];
+        assert!((lo..=hi).contains(&f0), "{file}: first mode {f0} Hz outside [{lo}, {hi}]");
+        // The printed generic layer is a model file of its own and builds the same structure.
+        let text = spec_to_toml(&mf.expanded().unwrap()).unwrap();
+        let again = Model::from_toml_str(&text, file).unwrap();
+        assert_relative_eq!(again.modes().unwrap().frequency_hz[0], f0, max_relative = 1e-9);
+        assert!(model.output_names().iter().any(|o| o == "image_x"));
+    }
+}
+
+const TRIPOD: &str = r#"
+[payload]
+mass_kg = 20.0
+inertia_kgm2 = [0.4, 1.0, 1.0]
+
+[mount]
+mass_kg = 5.0
+inertia_kgm2 = [0.1, 0.1, 0.1]
+pivot_height_m = 0.2
+tilt_stiffness_nm_per_rad = 1e5
+yaw_stiffness_nm_per_rad = 1e5
+translational_stiffness_n_per_m = 1e12
+
+[tripod]
+head_radius_m = 0.1
+leg_length_m = 1.2
+splay_deg = 25
+leg_section = { shape = "tube", outer_diameter_m = 0.03, wall_m = 0.002 }
+leg_material = "stainless-304"
+leg_mass_kg = 0.5
+
+[ground]
+kind = "rigid"
+"#;
+
+#[test]
+fn tripod_leg_spring_and_vertical_mode_match_statics() {
+    // Leg EA/L with the tube area (π/4)(D_o² − D_i²) (reference notes §9) and E = 193 GPa
+    // (stainless-304 preset, notes §9).
+    let s = spec(TRIPOD);
+    let (e, d, t, l) = (193e9, 0.03_f64, 0.002, 1.2);
+    let a = PI / 4.0 * (d * d - (d - 2.0 * t).powi(2));
+    assert_relative_eq!(spring_k(&s, "leg1"), e * a / l, max_relative = 1e-12);
+    // Vertical mode of a symmetric tripod on rigid ground: k_v = N (EA/L) cos²θ (elementary
+    // statics of inclined two-force members); the mass on the legs is the payload, the mount and
+    // the upper half of each leg. The 1e12 N/m pivot adds ~1e-4 relative compliance.
+    let th = 25f64.to_radians();
+    let kv = 3.0 * e * a / l * th.cos().powi(2);
+    let m = 20.0 + 5.0 + 3.0 * 0.25;
+    let model = Model::from_spec(&s).unwrap();
+    let modes = model.modes().unwrap();
+    let j = mode_along(&modes, 2);
+    assert_relative_eq!(modes.frequency_hz[j], (kv / m).sqrt() / (2.0 * PI), max_relative = 1e-3);
+    // Its effective mass is the whole mass on the legs.
+    assert_relative_eq!(modes.effective_mass_kg[[j, 2]], m, max_relative = 1e-3);
+}
+
+#[test]
+fn pad_in_series_lowers_vertical_mode_by_series_rule() {
+    // Pads in series under each foot: per leg k = k_pad / (1 + k_pad / (k_leg cos²θ)) (series
+    // springs, elementary mechanics); f = sqrt(N k / m) / 2π. The pads are stiff in shear so
+    // the feet move only vertically; the feet carry 0.01 kg each (negligible).
+    let k_pad = 2.0e5;
+    let text = TRIPOD.replace("leg_mass_kg = 0.5", "leg_mass_kg = 0.02").replace(
+        "[ground]",
+        &format!(
+            "[pads]\ncompression = {{ stiffness_n_per_m = {k_pad} }}\nshear = {{ stiffness_n_per_m = 1e10 }}\n\n[ground]"
+        ),
+    );
+    let s = spec(&text);
+    let (e, d, t, l) = (193e9, 0.03_f64, 0.002, 1.2);
+    let a = PI / 4.0 * (d * d - (d - 2.0 * t).powi(2));
+    let k_leg_v = e * a / l * 25f64.to_radians().cos().powi(2);
+    let k = k_pad / (1.0 + k_pad / k_leg_v);
+    let m = 20.0 + 5.0 + 3.0 * 0.01;
+    let modes = Model::from_spec(&s).unwrap().modes().unwrap();
+    let j = mode_along(&modes, 2);
+    assert_relative_eq!(modes.frequency_hz[j], (3.0 * k / m).sqrt() / (2.0 * PI), max_relative = 2e-3);
+    // ... far below the bare tripod's vertical mode.
+    let bare = Model::from_spec(&spec(TRIPOD)).unwrap().modes().unwrap();
+    assert!(modes.frequency_hz[j] < 0.2 * bare.frequency_hz[mode_along(&bare, 2)]);
+}
+
+fn posed(alt: f64, az: f64) -> ModelSpec {
+    let text = std::fs::read_to_string(example("tripod-paver.toml"))
+        .unwrap()
+        .replace("altitude_deg = 45", &format!("altitude_deg = {alt}"))
+        .replace("azimuth_deg = 135", &format!("azimuth_deg = {az}"));
+    spec(&text)
+}
+
+/// Invariants of a symmetric 3 × 3 tensor: trace, sum of principal 2 × 2 minors, determinant.
+/// Equal invariants ⇔ equal eigenvalues (principal moments).
+fn invariants(b: &stillsky::assembly::BodySpec) -> [f64; 3] {
+    let [xx, yy, zz] = b.inertia_kgm2;
+    let [xy, xz, yz] = b.products_kgm2;
+    [
+        xx + yy + zz,
+        xx * yy + yy * zz + zz * xx - xy * xy - xz * xz - yz * yz,
+        xx * (yy * zz - yz * yz) - xy * (xy * zz - yz * xz) + xz * (xy * yz - yy * xz),
+    ]
+}
+
+#[test]
+fn payload_pose_rotates_the_inertia_tensor() {
+    // A rotation J' = R J Rᵀ keeps mass, trace and principal moments (tensor invariants; any
+    // rigid-body dynamics text) and the CG's distance from the pivot.
+    let (a, b) = (posed(90.0, 0.0), posed(30.0, 200.0));
+    let pa = a.bodies.iter().find(|b| b.name == "payload").unwrap();
+    let pb = b.bodies.iter().find(|b| b.name == "payload").unwrap();
+    assert_relative_eq!(pa.mass_kg, 24.7, max_relative = 1e-12);
+    assert_relative_eq!(pa.mass_kg, pb.mass_kg, max_relative = 1e-12);
+    for (x, y) in invariants(pa).iter().zip(invariants(pb)) {
+        assert_relative_eq!(*x, y, max_relative = 1e-10);
+    }
+    assert!(pb.products_kgm2.iter().any(|p| p.abs() > 1e-3), "a tilted pose has products of inertia");
+    let pivot = a.springs.iter().find(|s| s.name == "pivot_x").unwrap().at_m.unwrap();
+    let dist = |c: [f64; 3]| {
+        ((c[0] - pivot[0]).powi(2) + (c[1] - pivot[1]).powi(2) + (c[2] - pivot[2]).powi(2)).sqrt()
+    };
+    assert_relative_eq!(dist(pa.cg_m), dist(pb.cg_m), max_relative = 1e-10);
+    // Image motion is defined (finite, non-zero) at both pointings.
+    for s in [a, b] {
+        let m = Model::from_spec(&s).unwrap();
+        let h = m.frf(&[5.0, 12.0, 30.0], &["ground_x", "ground_y"], &["image_x", "image_y"]).unwrap();
+        assert!(h.data.iter().all(|c| c.re.is_finite() && c.im.is_finite()));
+        assert!(h.data.iter().map(|c| c.norm()).fold(0.0, f64::max) > 1e-6);
+    }
+}
+
+#[test]
+fn payload_parts_match_cylinder_formulas() {
+    // A thin-walled tube (R = r) centred on the pivot at the zenith: axial J = m R², transverse
+    // m (6R² + L²)/12; a point counterweight at s on the shaft (x axis at azimuth 0) adds m s²
+    // about y and z, shifted to the common CG (standard rigid-body tables, Meriam & Kraige).
+    let text = TRIPOD.replace(
+        "mass_kg = 20.0\ninertia_kgm2 = [0.4, 1.0, 1.0]",
+        "parts = [ { kind = \"tube\", mass_kg = 10, length_m = 0.6, diameter_m = 0.3 }, { kind = \"point\", mass_kg = 5, shaft_m = -0.3 } ]",
+    );
+    let s = spec(&text);
+    let p = s.bodies.iter().find(|b| b.name == "payload").unwrap();
+    let (mt, r, l, mc, sc) = (10.0, 0.15_f64, 0.6_f64, 5.0, -0.3_f64);
+    let xc = mc * sc / (mt + mc);
+    assert_relative_eq!(p.cg_m[0], xc, max_relative = 1e-12);
+    let shift = mt * xc * xc + mc * (sc - xc).powi(2);
+    let jt = mt * (6.0 * r * r + l * l) / 12.0;
+    assert_relative_eq!(p.inertia_kgm2[0], jt, max_relative = 1e-12); // about the shaft
+    assert_relative_eq!(p.inertia_kgm2[1], jt + shift, max_relative = 1e-12);
+    assert_relative_eq!(p.inertia_kgm2[2], mt * r * r + shift, max_relative = 1e-12); // line of sight
+}
+
+const PIER: &str = r#"
+[payload]
+mass_kg = 20.0
+inertia_kgm2 = [0.4, 1.0, 1.0]
+
+[mount]
+mass_kg = 15.0
+inertia_kgm2 = [0.3, 0.3, 0.3]
+pivot_height_m = 0.3
+tilt_stiffness_nm_per_rad = 3e4
+yaw_stiffness_nm_per_rad = 2e4
+
+[pier]
+section = { shape = "tube", outer_diameter_m = 0.1683, wall_m = 0.0045 }
+material = "steel-s235"
+height_m = 1.2
+fill_density_kg_m3 = 2400
+added_loss_factor = 0.02
+footing = { diameter_m = 1.0, depth_m = 0.7 }
+
+[ground]
+soil = "lawn"
+"#;
+
+#[test]
+fn pier_footing_springs_are_the_half_space_formulas() {
+    // Arya, O'Neill & Pincus (1979) ch. 4 via reference notes §8.1, rigid circular footing:
+    // K_z = 4GR/(1−ν), K_x = 32(1−ν)GR/(7−8ν), K_ψ = 8GR³/(3(1−ν)), K_t = 16GR³/3; lawn preset
+    // G = 20 MPa, ν = 0.33 (notes §8.3 worked row).
+    let s = spec(PIER);
+    let (g, nu, r) = (20e6, 0.33, 0.5_f64);
+    assert_relative_eq!(spring_k(&s, "footing_z"), 4.0 * g * r / (1.0 - nu), max_relative = 1e-12);
+    for n in ["footing_x", "footing_y"] {
+        assert_relative_eq!(
+            spring_k(&s, n),
+            32.0 * (1.0 - nu) * g * r / (7.0 - 8.0 * nu),
+            max_relative = 1e-12
+        );
+    }
+    for n in ["footing_rx", "footing_ry"] {
+        assert_relative_eq!(spring_k(&s, n), 8.0 * g * r.powi(3) / (3.0 * (1.0 - nu)), max_relative = 1e-12);
+    }
+    assert_relative_eq!(spring_k(&s, "footing_rz"), 16.0 * g * r.powi(3) / 3.0, max_relative = 1e-12);
+    // Footing block: ρ π R² d with ρ = 2400 (notes §8.4), and the fill as added mass per length
+    // ρ_fill (π/4) D_i².
+    let f = s.bodies.iter().find(|b| b.name == "footing").unwrap();
+    assert_relative_eq!(f.mass_kg, 2400.0 * PI * r * r * 0.7, max_relative = 1e-12);
+    let beam = s.beams.iter().find(|b| b.name == "pier").unwrap();
+    assert_relative_eq!(beam.added_mass_kg_per_m, 2400.0 * PI / 4.0 * 0.1593f64.powi(2), max_relative = 1e-9);
+    Model::from_spec(&s).unwrap().modes().unwrap();
+}
+
+const FLOOR: &str = r#"
+[floor]
+mass_kg = 400
+inertia_kgm2 = [200, 300, 450]
+height_m = 0.5
+cg_m = [1.2, 0.6, 0.45]
+vertical_stiffness_n_per_m = 4e6
+rocking_stiffness_nm_per_rad = 2e6
+horizontal_stiffness_n_per_m = 5e6
+torsion_stiffness_nm_per_rad = 2e6
+loss_factor = 0.05
+"#;
+
+const OPTICS: &str = r#"
+[optics]
+focal_length_mm = 2800
+pixel_um = 3.76
+altitude_deg = 40
+azimuth_deg = 60
+"#;
+
+fn walking_peak(text: &str) -> f64 {
+    let model = Model::from_toml_str(text, "floor").unwrap();
+    let f: Vec<f64> = (0..300).map(|i| 1.0 * 100f64.powf(i as f64 / 299.0)).collect();
+    let h = model.frf(&f, &["force:floor:z"], &["image_x", "image_y"]).unwrap();
+    h.data.iter().map(|c| c.norm()).fold(0.0, f64::max)
+}
+
+#[test]
+fn walking_on_the_floor_reaches_the_image_unless_the_pier_is_isolated() {
+    // Load path (statics): a tripod on the deck is driven by the deck's motion; a pier on its
+    // own footing is reached only through the gap filler (1e3 N/m against ~1e6–1e7 N/m paths).
+    let tripod_on_floor = format!(
+        "{OPTICS}{FLOOR}{}",
+        TRIPOD.replace("[ground]\nkind = \"rigid\"\n", "").replace("[tripod]", "[tripod]\non = \"floor\"")
+    );
+    let pier_on_floor = format!(
+        "{OPTICS}{FLOOR}{}",
+        PIER.replace("[ground]\nsoil = \"lawn\"\n", "")
+            .replace("footing = { diameter_m = 1.0, depth_m = 0.7 }", "on = \"floor\"")
+    );
+    let pier_isolated = format!("{OPTICS}{FLOOR}gap_stiffness_n_per_m = 1e3\n{PIER}");
+    let (a, b, c) =
+        (walking_peak(&tripod_on_floor), walking_peak(&pier_on_floor), walking_peak(&pier_isolated));
+    assert!(a > 1e-9 && b > 1e-9, "walking must reach the image: {a} {b} rad/N");
+    assert!(c < 1e-2 * a && c < 1e-2 * b, "isolated pier {c} vs tripod {a}, pier on deck {b}");
+    assert!(c > 0.0, "the gap filler still couples a little");
+}
+
+#[test]
+fn bad_rig_inputs_name_the_field() {
+    let cases: &[(&str, &str, &str)] = &[
+        (TRIPOD, "splay_deg = 25", "splay_deg = 25\nheight_m = 1.0"),
+        (TRIPOD, "leg_length_m = 1.2", "leg_length_m = -1.2"),
+        (TRIPOD, "head_radius_m = 0.1\n", ""),
+        (TRIPOD, "mass_kg = 20.0", "mass_kg = nan"),
+        (TRIPOD, "tilt_stiffness_nm_per_rad = 1e5\n", ""),
+        (TRIPOD, "inertia_kgm2 = [0.1, 0.1, 0.1]", "inertia_kgm2 = [0.1, -0.1, 0.1]"),
+        (TRIPOD, "leg_material = \"stainless-304\"\n", ""),
+        (TRIPOD, "[ground]", "[pads]\nshear = { stiffness_n_per_m = 1e5 }\n[ground]"),
+        (TRIPOD, "kind = \"rigid\"", "contact_radius_m = 0.02"),
+        (TRIPOD, "[tripod]", "[tripod]\nlegs = 2"),
+        (PIER, "height_m = 1.2\n", ""),
+        (PIER, "diameter_m = 1.0,", "diameter_m = 1.0, side_m = 1.0,"),
+        (PIER, "soil = \"lawn\"", "soil = \"lawn\"\ncontact_radius_m = -1"),
+        (PIER, "fill_density_kg_m3 = 2400", "fill_density_kg_m3 = -5"),
+    ];
+    let expected = [
+        "tripod.leg_length_m",
+        "tripod.leg_length_m",
+        "tripod.head_radius_m",
+        "payload.mass_kg",
+        "mount.tilt_stiffness_nm_per_rad",
+        "mount.inertia_kgm2[1]",
+        "tripod.leg_material",
+        "pads.compression",
+        "ground.soil",
+        "tripod.legs",
+        "pier.height_m",
+        "pier.footing.diameter_m",
+        "ground.contact_radius_m",
+        "pier.fill_density_kg_m3",
+    ];
+    for ((base, from, to), want) in cases.iter().zip(expected) {
+        assert!(base.contains(from), "bad test case: {from}");
+        let text = base.replacen(from, to, 1);
+        match ModelFile::parse(&text, "bad").and_then(|f| f.expanded()) {
+            Err(Error::InvalidArgument { name, .. }) => assert_eq!(name, want, "{to}"),
+            other => panic!("{to}: expected an error naming {want}, got {other:?}"),
+        }
+    }
+    // A floor on soil needs its stiffness; an unknown key is a parse error with its line.
+    let e =
+        ModelFile::parse(&format!("{}{}", FLOOR.replace("vertical_stiffness_n_per_m = 4e6\n", ""), ""), "f")
+            .unwrap()
+            .expanded()
+            .unwrap_err();
+    assert!(
+        matches!(e, Error::InvalidArgument { ref name, .. } if name == "floor.vertical_stiffness_n_per_m"),
+        "{e}"
+    );
+    let e =
+        ModelFile::parse(&TRIPOD.replace("[tripod]", "[tripod]\nleg_lenght_m = 1"), "t.toml").unwrap_err();
+    assert!(matches!(e, Error::Parse { ref location, .. } if location.starts_with("line ")), "{e}");
+    // An unknown soil preset lists the known ones.
+    let e =
+        ModelFile::parse(&PIER.replace("\"lawn\"", "\"moon-dust\""), "p").unwrap().expanded().unwrap_err();
+    assert!(matches!(e, Error::UnknownName { .. }) && e.to_string().contains("lawn"), "{e}");
+}
+
+#[test]
+fn model_file_doc_examples_build() {
+    // Every ```toml block of docs/model-file.md marked "full example" is a working model file.
+    let doc = std::fs::read_to_string(example("../model-file.md")).unwrap();
+    let blocks: Vec<&str> = doc
+        .split("```toml")
+        .skip(1)
+        .filter_map(|b| b.split("```").next())
+        .filter(|b| b.contains("# full example"))
+        .collect();
+    assert_eq!(blocks.len(), 2);
+    for b in blocks {
+        let model = Model::from_toml_str(b, "docs/model-file.md").unwrap();
+        assert!(model.modes().unwrap().frequency_hz[0] > 0.0);
+        model.frf(&[10.0], &["ground_x"], &["image_x", "image_y"]).unwrap();
+    }
+}
+
+#[test]
+fn beam_legs_vertical_mode_matches_rayleigh() {
+    // Beam legs clamped to the head and to rigid ground: vertical k = N[(EA/L)cos²θ +
+    // (12EI/L³)sin²θ] (axial and fixed–fixed transverse stiffness, elementary statics) and a third
+    // of each leg's mass moving with the head (Rayleigh's estimate for a rod with an end mass,
+    // Thomson, Theory of Vibration). Leg mass ρAL is 20 % of the head mass: expect ~1 %.
+    let text = TRIPOD.replace("leg_mass_kg = 0.5", "legs_as_beams = true\nbeam_elements = 4");
+    let s = spec(&text);
+    assert_eq!(s.beams.len(), 3);
+    let (e, rho, d, t, l) = (193e9, 7900.0, 0.03_f64, 0.002, 1.2_f64);
+    let di = d - 2.0 * t;
+    let a = PI / 4.0 * (d * d - di * di);
+    let i = PI / 64.0 * (d.powi(4) - di.powi(4));
+    let th = 25f64.to_radians();
+    let kv = 3.0 * (e * a / l * th.cos().powi(2) + 12.0 * e * i / l.powi(3) * th.sin().powi(2));
+    let m = 25.0 + 3.0 * rho * a * l / 3.0;
+    let modes = Model::from_spec(&s).unwrap().modes().unwrap();
+    let j = mode_along(&modes, 2);
+    assert_relative_eq!(modes.frequency_hz[j], (kv / m).sqrt() / (2.0 * PI), max_relative = 1e-2);
+}
