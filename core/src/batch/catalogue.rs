@@ -167,12 +167,16 @@ impl Isolator {
                 "shear_damping_ns_per_m",
                 "rated_load_n",
             ],
-            PadModel::Zener => &["compression_n_per_m", "shear_n_per_m", "dynamic_ratio", "tau_s", "rated_load_n"],
+            PadModel::Zener => {
+                &["compression_n_per_m", "shear_n_per_m", "dynamic_ratio", "tau_s", "rated_load_n"]
+            }
         };
         if self.is_none() != (self.name == NO_PAD) {
             return Err(Error::invalid(
                 who,
-                format!("the name '{NO_PAD}' is reserved for model = \"none\" (the no-pad baseline) and vice versa"),
+                format!(
+                    "the name '{NO_PAD}' is reserved for model = \"none\" (the no-pad baseline) and vice versa"
+                ),
             ));
         }
         for (field, present) in given {
@@ -210,7 +214,9 @@ impl Isolator {
         };
         Some(match self.model {
             PadModel::None => return None,
-            PadModel::Hysteretic => StiffnessModel::Hysteretic { k, loss_factor: self.loss_factor.unwrap_or(0.0) },
+            PadModel::Hysteretic => {
+                StiffnessModel::Hysteretic { k, loss_factor: self.loss_factor.unwrap_or(0.0) }
+            }
             PadModel::KelvinVoigt => StiffnessModel::KelvinVoigt { k, c: c.unwrap_or(0.0) },
             PadModel::Zener => StiffnessModel::Zener {
                 k0: k,
@@ -273,7 +279,8 @@ impl Catalogue {
     /// Read a catalogue file.
     pub fn read(path: &Path) -> Result<Catalogue> {
         let name = path.display().to_string();
-        let meta = std::fs::metadata(path).map_err(|e| Error::Io { path: name.clone(), reason: e.to_string() })?;
+        let meta =
+            std::fs::metadata(path).map_err(|e| Error::Io { path: name.clone(), reason: e.to_string() })?;
         if meta.len() > MAX_CATALOGUE_BYTES {
             return Err(Error::TooLarge {
                 what: format!("size of {name} (bytes)"),
@@ -281,8 +288,8 @@ impl Catalogue {
                 limit: MAX_CATALOGUE_BYTES as usize,
             });
         }
-        let text =
-            std::fs::read_to_string(path).map_err(|e| Error::Io { path: name.clone(), reason: e.to_string() })?;
+        let text = std::fs::read_to_string(path)
+            .map_err(|e| Error::Io { path: name.clone(), reason: e.to_string() })?;
         Self::parse(&text, &name)
     }
 }
@@ -331,8 +338,11 @@ pub fn pad_sites(spec: &ModelSpec, prefix: &str) -> Result<Vec<PadSite>> {
         let d = spring_direction(s).ok_or_else(|| {
             Error::invalid(format!("{who}.direction"), "is needed to tell compression from shear")
         })?;
-        let direction =
-            if d[2].abs() >= std::f64::consts::FRAC_1_SQRT_2 { PadDirection::Compression } else { PadDirection::Shear };
+        let direction = if d[2].abs() >= std::f64::consts::FRAC_1_SQRT_2 {
+            PadDirection::Compression
+        } else {
+            PadDirection::Shear
+        };
         sites.push(PadSite { spring: i, name: s.name.clone(), direction });
     }
     for s in spec.torsion_springs.iter().filter(|s| s.name.starts_with(prefix)) {

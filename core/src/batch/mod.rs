@@ -29,13 +29,14 @@ pub mod report;
 
 pub use catalogue::{Catalogue, DEFAULT_PAD_PREFIX, Isolator, NO_PAD, PadDirection, PadModel, PadSite};
 pub use ground::{GroundSource, GroundSpectrum};
-pub use report::{Report, ReportOptions, build_report};
+pub use report::{CriterionVerdict, Curve, GustTrace, ModeRow, Report, ReportOptions, build_report};
 
 use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::image::ImageOptions;
 use crate::io::atomic::{AtomicCsvWriter, completed_keys};
+use crate::io::model_file::ModelFile;
 use crate::io::series::SeriesOptions;
 use crate::model::Model;
 use crate::response::Disturbances;
@@ -145,7 +146,7 @@ impl SweepConfig {
 }
 
 /// The columns of a sweep CSV, in order.
-pub const SWEEP_COLUMNS: [&str; 15] = [
+pub const SWEEP_COLUMNS: [&str; 17] = [
     "key",
     "spec",
     "spectrum",
@@ -160,6 +161,8 @@ pub const SWEEP_COLUMNS: [&str; 15] = [
     "worse_than_none",
     "pad_load_n",
     "overloaded",
+    "gust_peak_px",
+    "gust_settle_s",
     "error",
 ];
 
@@ -182,6 +185,12 @@ pub struct SweepRow {
     pub pad_load_n: f64,
     /// None when the isolator has no rated load (or for the baseline).
     pub overloaded: Option<bool>,
+    /// Peak image excursion (px) under the wind case's design gust ([`design_gust`]); NaN when
+    /// calm.
+    pub gust_peak_px: f64,
+    /// Time from the gust's start until the image stays within ½ px (s); NaN when calm or when
+    /// the record ends outside.
+    pub gust_settle_s: f64,
 }
 
 /// Six significant digits, plain for ordinary magnitudes, exponent form otherwise.
@@ -222,6 +231,8 @@ impl SweepRow {
             worse_than_none: false,
             pad_load_n: f64::NAN,
             overloaded: None,
+            gust_peak_px: f64::NAN,
+            gust_settle_s: f64::NAN,
         }
     }
 
@@ -247,13 +258,16 @@ impl SweepRow {
             if self.is_error() { String::new() } else { self.worse_than_none.to_string() },
             sig6(self.pad_load_n),
             self.overloaded.map(|b| b.to_string()).unwrap_or_default(),
+            sig6(self.gust_peak_px),
+            sig6(self.gust_settle_s),
             self.error.clone().unwrap_or_default(),
         ]
     }
 
     /// Parse a row written by [`fields`](Self::fields) (`line` names it in errors).
     pub fn from_fields(f: &[&str], file: &str, line: usize) -> Result<SweepRow> {
-        let perr = |reason: String| Error::Parse { file: file.into(), location: format!("line {line}"), reason };
+        let perr =
+            |reason: String| Error::Parse { file: file.into(), location: format!("line {line}"), reason };
         if f.len() != SWEEP_COLUMNS.len() {
             return Err(perr(format!("expected {} fields, got {}", SWEEP_COLUMNS.len(), f.len())));
         }
@@ -273,7 +287,7 @@ impl SweepRow {
         };
         let error = match f[4] {
             "ok" => None,
-            "error" => Some(f[14].to_string()),
+            "error" => Some(f[16].to_string()),
             v => return Err(perr(format!("status '{v}' is not ok/error"))),
         };
         Ok(SweepRow {
@@ -291,6 +305,8 @@ impl SweepRow {
             worse_than_none: b(11)?.unwrap_or(false),
             pad_load_n: x(12)?,
             overloaded: b(13)?,
+            gust_peak_px: x(14)?,
+            gust_settle_s: x(15)?,
         })
     }
 }
@@ -356,6 +372,73 @@ impl SweepOutcome {
     }
 }
 
+/// How isolators enter the model: the rig layer's `[pads]`, or generic pad springs.
+#[derive(Debug, Clone)]
+pub enum PadMechanism {
+    /// A rig file with a `[tripod]`: each spec sets `[pads]` (compression and shear per pad);
+    /// the baseline removes the section (the feet stand on the `[ground]` as given).
+    Rig { file: ModelFile, n_pads: usize },
+    /// A generic-layer model with pad springs in series with their support ([`catalogue`]).
+    Generic { spec: ModelSpec, sites: Vec<PadSite> },
+}
+
+impl PadMechanism {
+    /// Choose the mechanism for a model file: the rig layer when it has a `[tripod]`, else the
+    /// generic pad springs named `prefix*`.
+    pub fn for_file(file: &ModelFile, prefix: &str) -> Result<PadMechanism> {
+        if let Some(t) = &file.tripod {
+            let n_pads = t.legs.unwrap_or(3);
+            return Ok(PadMechanism::Rig { file: file.clone(), n_pads });
+        }
+        if file.pier.is_some() && file.springs.iter().all(|s| !s.name.starts_with(prefix)) {
+            return Err(Error::invalid(
+                "model",
+                "pads go under tripod feet; this rig has no [tripod] (and no generic pad springs)",
+            ));
+        }
+        let spec = file.expanded()?;
+        let sites = catalogue::pad_sites(&spec, prefix)?;
+        Ok(PadMechanism::Generic { spec, sites })
+    }
+
+    /// The generic model with `iso` in place of the pads (or none).
+    pub fn spec_with(&self, iso: &Isolator) -> Result<ModelSpec> {
+        match self {
+            PadMechanism::Generic { spec, sites } => catalogue::apply_isolator(spec, sites, iso),
+            PadMechanism::Rig { file, .. } => {
+                let mut f = file.clone();
+                f.pads = match (iso.stiffness(PadDirection::Compression), iso.stiffness(PadDirection::Shear))
+                {
+                    (Some(c), Some(s)) => Some(crate::rig::PadSpec {
+                        compression: Some(crate::assembly::StiffnessSpec::from_model(&c, false)),
+                        shear: Some(crate::assembly::StiffnessSpec::from_model(&s, false)),
+                    }),
+                    _ => None,
+                };
+                f.expanded()
+            }
+        }
+    }
+
+    /// Number of pads carrying the weight (one per foot).
+    pub fn compression_pads(&self) -> usize {
+        match self {
+            PadMechanism::Rig { n_pads, .. } => *n_pads,
+            PadMechanism::Generic { sites, .. } => {
+                sites.iter().filter(|s| s.direction == PadDirection::Compression).count()
+            }
+        }
+    }
+
+    /// The model's `[wind]` load point, if any.
+    fn has_wind(&self) -> bool {
+        match self {
+            PadMechanism::Rig { file, .. } => file.wind.is_some(),
+            PadMechanism::Generic { spec, .. } => spec.wind.is_some(),
+        }
+    }
+}
+
 /// A built spec: its model (or why it failed), first mode and pad load.
 struct BuiltSpec {
     model: std::result::Result<Model, String>,
@@ -363,13 +446,13 @@ struct BuiltSpec {
     pad_load_n: f64,
 }
 
-fn build_spec(spec: &ModelSpec, sites: &[PadSite], iso: &Isolator) -> BuiltSpec {
+fn build_spec(mech: &PadMechanism, iso: &Isolator) -> BuiltSpec {
     let fail = |e: Error| BuiltSpec {
         model: Err(format!("isolator '{}': {e}", iso.name)),
         first_mode: (f64::NAN, f64::NAN),
         pad_load_n: f64::NAN,
     };
-    let model = match catalogue::apply_isolator(spec, sites, iso).and_then(|s| Model::from_spec(&s)) {
+    let model = match mech.spec_with(iso).and_then(|s| Model::from_spec(&s)) {
         Ok(m) => m,
         Err(e) => return fail(e),
     };
@@ -381,7 +464,7 @@ fn build_spec(spec: &ModelSpec, sites: &[PadSite], iso: &Isolator) -> BuiltSpec 
         modes.frequency_hz.first().copied().unwrap_or(f64::NAN),
         modes.damping_ratio.first().copied().unwrap_or(f64::NAN),
     );
-    let n_comp = sites.iter().filter(|s| s.direction == PadDirection::Compression).count();
+    let n_comp = mech.compression_pads();
     let load = match model.static_influence() {
         Ok(r) if n_comp > 0 => {
             let n = model.dof_count();
@@ -397,6 +480,30 @@ fn build_spec(spec: &ModelSpec, sites: &[PadSite], iso: &Isolator) -> BuiltSpec 
         _ => f64::NAN,
     };
     BuiltSpec { model: Ok(model), first_mode: first, pad_load_n: load }
+}
+
+/// The design gust of a wind case: a "1-cosine" gust of amplitude 3 σ_u (peak factor 3,
+/// common practice, no source) lasting 2 s, starting at t = 0.5 s; 8 s are simulated at
+/// 200 Hz with the quadratic drag law (padding decay tolerance 1e-4). Returns (peak px,
+/// settle time from the gust's start, s).
+pub const GUST_START_S: f64 = 0.5;
+
+/// The design gust's image response (see [`GUST_START_S`]).
+pub fn design_gust_response(model: &Model, wind: &WindSpec) -> Result<crate::transient::ImageTransient> {
+    use crate::transient::{Gust, GustWind, TransientOptions};
+    let u = wind.effective_speed_m_s()?;
+    let gust = Gust::one_minus_cosine_duration(3.0 * wind.sigma_u_m_s()?, 2.0).starting_at(GUST_START_S);
+    let gw = GustWind::new(u).with_air_density(wind.air_density_kg_m3);
+    let opts = TransientOptions::default().with_decay_tolerance(1e-4);
+    model.gust_response(&gust, &gw, 200.0, 8.0, &opts)
+}
+
+/// Peak (px) and settle time from the gust's start (s) of the design gust (see
+/// [`GUST_START_S`]).
+pub fn design_gust(model: &Model, wind: &WindSpec) -> Result<(f64, f64)> {
+    let r = design_gust_response(model, wind)?;
+    let settle = r.metrics.settle_time_s.map_or(f64::NAN, |t| (t - GUST_START_S).max(0.0));
+    Ok((r.metrics.peak_px, settle))
 }
 
 /// One (spectrum, wind, isolator) combination.
@@ -424,8 +531,8 @@ fn evaluate(
 /// What a sweep combines.
 #[derive(Debug, Clone, Copy)]
 pub struct SweepInputs<'a> {
-    /// The generic-layer model with its pad springs.
-    pub model: &'a ModelSpec,
+    /// The model file: a rig with a `[tripod]`, or a generic layer with pad springs.
+    pub model: &'a ModelFile,
     pub catalogue: &'a Catalogue,
     pub grounds: &'a [GroundSource],
     /// Wind cases; empty means one calm case.
@@ -443,11 +550,18 @@ pub fn run_sweep(
 ) -> Result<SweepOutcome> {
     let SweepInputs { model, catalogue, grounds, winds } = *inputs;
     if grounds.is_empty() {
-        return Err(Error::invalid("ground", "give at least one ground spectrum (recording, PSD file, nlnm, nhnm)"));
+        return Err(Error::invalid(
+            "ground",
+            "give at least one ground spectrum (recording, PSD file, nlnm, nhnm)",
+        ));
     }
     let winds: Vec<WindCase> = if winds.is_empty() { vec![WindCase::calm()] } else { winds.to_vec() };
-    if winds.iter().any(|w| w.wind.is_some()) && model.wind.is_none() {
-        return Err(Error::invalid("wind", "the model has no [wind] section (load point, area, drag coefficient)"));
+    let mech = PadMechanism::for_file(model, &cfg.pad_prefix)?;
+    if winds.iter().any(|w| w.wind.is_some()) && !mech.has_wind() {
+        return Err(Error::invalid(
+            "wind",
+            "the model has no [wind] section (load point, area, drag coefficient)",
+        ));
     }
     let mut seen = HashSet::new();
     for w in &winds {
@@ -455,12 +569,12 @@ pub fn run_sweep(
             return Err(Error::invalid(format!("wind case '{}'", w.label), "is given twice"));
         }
     }
-    let sites = catalogue::pad_sites(model, &cfg.pad_prefix)?;
     // Unique spectrum labels: the file stem, or the whole path when stems collide.
     let mut labels: Vec<String> = grounds.iter().map(GroundSource::label).collect();
     for i in 0..labels.len() {
         if labels.iter().filter(|l| **l == labels[i]).count() > 1 {
-            labels[i] = grounds[i].path().map(|p| p.display().to_string()).unwrap_or_else(|| labels[i].clone());
+            labels[i] =
+                grounds[i].path().map(|p| p.display().to_string()).unwrap_or_else(|| labels[i].clone());
         }
     }
     if let Some(l) = labels.iter().find(|l| l.contains('|') || l.contains(['\n', '\r'])) {
@@ -471,7 +585,7 @@ pub fn run_sweep(
     }
     let done_keys = if resume { completed_keys(out, "key")? } else { HashSet::new() };
 
-    let built: Vec<BuiltSpec> = catalogue.isolators.par_iter().map(|iso| build_spec(model, &sites, iso)).collect();
+    let built: Vec<BuiltSpec> = catalogue.isolators.par_iter().map(|iso| build_spec(&mech, iso)).collect();
     let spectra: Vec<std::result::Result<GroundSpectrum, String>> = grounds
         .par_iter()
         .zip(labels.par_iter())
@@ -526,11 +640,27 @@ pub fn run_sweep(
         })
         .collect();
 
+    // Design gusts per (isolator, wind case): they do not depend on the ground.
+    let gust_jobs: Vec<(usize, usize)> = (0..catalogue.isolators.len())
+        .flat_map(|si| (0..winds.len()).map(move |wi| (si, wi)))
+        .filter(|&(_, wi)| winds[wi].wind.is_some())
+        .collect();
+    let gusts: BTreeMap<(usize, usize), (f64, f64)> = gust_jobs
+        .into_par_iter()
+        .filter_map(|(si, wi)| {
+            let m = built[si].model.as_ref().ok()?;
+            let w = winds[wi].wind.as_ref()?;
+            design_gust(m, w).ok().map(|g| ((si, wi), g))
+        })
+        .collect();
+
     let make_row = |i: usize| -> SweepRow {
         if let Some(r) = fixed.get(&i) {
             return r.clone();
         }
-        let Some(j) = &jobs[i] else { return SweepRow::failed("*", "*", "*", "internal: missing job".into()) };
+        let Some(j) = &jobs[i] else {
+            return SweepRow::failed("*", "*", "*", "internal: missing job".into());
+        };
         let iso = &catalogue.isolators[j.spec];
         let (spec_l, spec_s, wind_l) = (&iso.name, &labels[j.ground], &winds[j.wind].label);
         let Ok(ground) = &spectra[j.ground] else {
@@ -561,7 +691,12 @@ pub fn run_sweep(
                     ratio_to_none: ratio,
                     worse_than_none: ratio > 1.0,
                     pad_load_n: if iso.is_none() { f64::NAN } else { b.pad_load_n },
-                    overloaded: iso.rated_load_n.filter(|_| b.pad_load_n.is_finite()).map(|r| b.pad_load_n > r),
+                    overloaded: iso
+                        .rated_load_n
+                        .filter(|_| b.pad_load_n.is_finite())
+                        .map(|r| b.pad_load_n > r),
+                    gust_peak_px: gusts.get(&(j.spec, j.wind)).map_or(f64::NAN, |g| g.0),
+                    gust_settle_s: gusts.get(&(j.spec, j.wind)).map_or(f64::NAN, |g| g.1),
                 }
             }
         }
@@ -653,7 +788,8 @@ fn rank(scope: &str, rows: &[&SweepRow]) -> RankTable {
     let mut entries: Vec<RankEntry> = specs
         .iter()
         .map(|s| {
-            let mine: Vec<&&SweepRow> = rows.iter().filter(|r| &r.spec == s && r.ratio_to_none.is_finite()).collect();
+            let mine: Vec<&&SweepRow> =
+                rows.iter().filter(|r| &r.spec == s && r.ratio_to_none.is_finite()).collect();
             let n = mine.len().max(1) as f64;
             let mean_ratio = mine.iter().map(|r| r.ratio_to_none).sum::<f64>() / n;
             RankEntry {
@@ -692,10 +828,7 @@ pub fn summarize(rows: &[SweepRow]) -> SweepSummary {
     SweepSummary {
         per_spectrum,
         overall: rank("all spectra", &good),
-        failures: rows
-            .iter()
-            .filter_map(|r| r.error.as_ref().map(|e| (r.key.clone(), e.clone())))
-            .collect(),
+        failures: rows.iter().filter_map(|r| r.error.as_ref().map(|e| (r.key.clone(), e.clone()))).collect(),
     }
 }
 
@@ -722,8 +855,12 @@ mod tests {
         path
     }
 
+    fn file() -> ModelFile {
+        ModelFile::parse(MODEL, "tripod-paver-generic.toml").unwrap()
+    }
+
     fn spec() -> ModelSpec {
-        ModelFile::parse(MODEL, "tripod-paver-generic.toml").unwrap().expanded().unwrap()
+        file().expanded().unwrap()
     }
 
     #[test]
@@ -741,7 +878,8 @@ mod tests {
         let soft = &cat.isolators[1];
         let padded = catalogue::apply_isolator(&s, &sites, soft).unwrap();
         let k = padded.springs[sites[0].spring].stiffness().to_model("k", false).unwrap();
-        let (kp, ks) = (crate::Complex64::new(2.0e5, 0.4 * 2.0e5), crate::Complex64::new(1.0e8, 0.05 * 1.0e8));
+        let (kp, ks) =
+            (crate::Complex64::new(2.0e5, 0.4 * 2.0e5), crate::Complex64::new(1.0e8, 0.05 * 1.0e8));
         let want = 1.0 / (1.0 / kp + 1.0 / ks);
         assert!((k.at(3.0) - want).norm() / want.norm() < 1e-12);
     }
@@ -764,8 +902,9 @@ mod tests {
         let dir = tmpdir("series");
         let g = flat_psd_file(&dir, 1e-9);
         let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
-        let s = spec();
-        let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &[GroundSource::PsdFile(g)], winds: &[] };
+        let s = file();
+        let inputs =
+            SweepInputs { model: &s, catalogue: &cat, grounds: &[GroundSource::PsdFile(g)], winds: &[] };
         let out = dir.join("rows.csv");
         let r = run_sweep(&inputs, &SweepConfig::new().unwrap(), &out, false, &|_| {}).unwrap();
         assert_eq!(r.rows.len(), cat.isolators.len());
@@ -784,9 +923,10 @@ mod tests {
         let dir = tmpdir("resume");
         let g = flat_psd_file(&dir, 1e-9);
         let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
-        let s = spec();
+        let s = file();
         let winds = [WindCase::calm(), WindCase::parse("4").unwrap()];
-        let grounds = [GroundSource::PsdFile(g), GroundSource::Reference(crate::spectrum::ReferenceGround::Nlnm)];
+        let grounds =
+            [GroundSource::PsdFile(g), GroundSource::Reference(crate::spectrum::ReferenceGround::Nlnm)];
         let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &winds };
         let cfg = SweepConfig::new().unwrap();
         let full = dir.join("full.csv");
@@ -811,7 +951,7 @@ mod tests {
         let bad = dir.join("broken.csv");
         std::fs::write(&bad, "# fs_hz=100\nz_m_s2\n0.1\n0.2\nabc\n").unwrap();
         let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
-        let s = spec();
+        let s = file();
         let grounds = [GroundSource::Recording(bad), GroundSource::PsdFile(g)];
         let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &[] };
         let r = run_sweep(&inputs, &SweepConfig::new().unwrap(), &dir.join("o.csv"), false, &|_| {}).unwrap();

@@ -10,7 +10,7 @@ use crate::image::{ARCSEC_PER_RAD, Guiding, ImageMotion, ImageOptions};
 use crate::io::series::SeriesOptions;
 use crate::model::{GROUND_INPUTS, Model};
 use crate::response::Disturbances;
-use crate::spectrum::{BandWidth, CriterionCurve, Extrapolate, Quantity, ReferenceGround};
+use crate::spectrum::{CriterionCurve, Extrapolate, Quantity, ReferenceGround};
 use crate::wind::WindSpec;
 use serde::Serialize;
 
@@ -111,7 +111,22 @@ pub struct Report {
     /// third octave, 10^(1/20) − 10^(−1/20) = 0.2316 of the centre).
     pub criterion_accel_psd: Vec<Curve>,
     pub criteria: Vec<CriterionVerdict>,
+    /// Response to the wind case's design gust (with wind only; see [`super::GUST_START_S`]).
+    pub gust: Option<GustTrace>,
     pub notes: Vec<String>,
+}
+
+/// The image history under the design gust.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GustTrace {
+    pub time_s: Vec<f64>,
+    pub image_x_px: Vec<f64>,
+    pub image_y_px: Vec<f64>,
+    pub amplitude_m_s: f64,
+    pub start_s: f64,
+    pub peak_px: f64,
+    /// From the gust's start until the image stays within ½ px; None if it never does.
+    pub settle_s: Option<f64>,
 }
 
 impl Report {
@@ -179,7 +194,8 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         let src = match &o.ground {
             Some(g) => g.clone(),
             None => {
-                notes.push("no ground spectrum given: Peterson (1993) NHNM (a noisy site) on all axes".into());
+                notes
+                    .push("no ground spectrum given: Peterson (1993) NHNM (a noisy site) on all axes".into());
                 GroundSource::Reference(ReferenceGround::Nhnm)
             }
         };
@@ -251,8 +267,13 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
                 freq_hz: on.freq_hz().to_vec(),
                 values: on.values().to_vec(),
             });
-            for c in [CriterionCurve::VcA, CriterionCurve::VcB, CriterionCurve::VcC, CriterionCurve::VcD, CriterionCurve::VcE]
-            {
+            for c in [
+                CriterionCurve::VcA,
+                CriterionCurve::VcB,
+                CriterionCurve::VcC,
+                CriterionCurve::VcD,
+                CriterionCurve::VcE,
+            ] {
                 let Ok(r) = c.evaluate(p) else { continue };
                 let v = CriterionVerdict {
                     curve: c.name().to_ascii_uppercase(),
@@ -276,12 +297,14 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         let rg = FreqGrid::new(ref_hz)?;
         for (name, r) in [("NLNM", ReferenceGround::Nlnm), ("NHNM", ReferenceGround::Nhnm)] {
             let p = r.psd(&rg)?;
-            reference_accel_psd.push(Curve { label: name.into(), freq_hz: p.freq_hz().to_vec(), values: p.values().to_vec() });
+            reference_accel_psd.push(Curve {
+                label: name.into(),
+                freq_hz: p.freq_hz().to_vec(),
+                values: p.values().to_vec(),
+            });
         }
     }
-    let bw = BandWidth::ThirdOctave;
     let centres = CriterionCurve::band_centres_hz();
-    let _ = bw;
     let criterion_accel_psd = [CriterionCurve::VcA, CriterionCurve::VcC, CriterionCurve::VcE]
         .iter()
         .map(|c| {
@@ -296,7 +319,29 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
             }
         })
         .collect();
+    let gust = match &o.wind {
+        Some(w) => match super::design_gust_response(&model, w) {
+            Ok(g) => {
+                let px = |v: &[f64]| v.iter().map(|a| a / g.plate_scale_arcsec_per_px).collect();
+                Some(GustTrace {
+                    image_x_px: px(&g.image_x_arcsec),
+                    image_y_px: px(&g.image_y_arcsec),
+                    time_s: g.time_s.clone(),
+                    amplitude_m_s: 3.0 * w.sigma_u_m_s()?,
+                    start_s: super::GUST_START_S,
+                    peak_px: g.metrics.peak_px,
+                    settle_s: g.metrics.settle_time_s.map(|t| (t - super::GUST_START_S).max(0.0)),
+                })
+            }
+            Err(e) => {
+                notes.push(format!("design gust not computed: {e}"));
+                None
+            }
+        },
+        None => None,
+    };
     Ok(Report {
+        gust,
         dof_count: model.dof_count(),
         optics_body,
         ground_label: ground.as_ref().map(|g| g.label.clone()),
