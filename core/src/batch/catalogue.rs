@@ -345,7 +345,7 @@ pub fn pad_sites(spec: &ModelSpec, prefix: &str) -> Result<Vec<PadSite>> {
         };
         sites.push(PadSite { spring: i, name: s.name.clone(), direction });
     }
-    for s in spec.torsion_springs.iter().filter(|s| s.name.starts_with(prefix)) {
+    if let Some(s) = spec.torsion_springs.iter().find(|s| s.name.starts_with(prefix)) {
         return Err(Error::invalid(
             format!("torsion_spring '{}'", s.name),
             format!("pads are axial springs; rename it so it does not start with '{prefix}'"),

@@ -377,9 +377,9 @@ impl SweepOutcome {
 pub enum PadMechanism {
     /// A rig file with a `[tripod]`: each spec sets `[pads]` (compression and shear per pad);
     /// the baseline removes the section (the feet stand on the `[ground]` as given).
-    Rig { file: ModelFile, n_pads: usize },
+    Rig { file: Box<ModelFile>, n_pads: usize },
     /// A generic-layer model with pad springs in series with their support ([`catalogue`]).
-    Generic { spec: ModelSpec, sites: Vec<PadSite> },
+    Generic { spec: Box<ModelSpec>, sites: Vec<PadSite> },
 }
 
 impl PadMechanism {
@@ -388,7 +388,7 @@ impl PadMechanism {
     pub fn for_file(file: &ModelFile, prefix: &str) -> Result<PadMechanism> {
         if let Some(t) = &file.tripod {
             let n_pads = t.legs.unwrap_or(3);
-            return Ok(PadMechanism::Rig { file: file.clone(), n_pads });
+            return Ok(PadMechanism::Rig { file: Box::new(file.clone()), n_pads });
         }
         if file.pier.is_some() && file.springs.iter().all(|s| !s.name.starts_with(prefix)) {
             return Err(Error::invalid(
@@ -398,7 +398,7 @@ impl PadMechanism {
         }
         let spec = file.expanded()?;
         let sites = catalogue::pad_sites(&spec, prefix)?;
-        Ok(PadMechanism::Generic { spec, sites })
+        Ok(PadMechanism::Generic { spec: Box::new(spec), sites })
     }
 
     /// The generic model with `iso` in place of the pads (or none).
@@ -406,7 +406,7 @@ impl PadMechanism {
         match self {
             PadMechanism::Generic { spec, sites } => catalogue::apply_isolator(spec, sites, iso),
             PadMechanism::Rig { file, .. } => {
-                let mut f = file.clone();
+                let mut f = (**file).clone();
                 f.pads = match (iso.stiffness(PadDirection::Compression), iso.stiffness(PadDirection::Shear))
                 {
                     (Some(c), Some(s)) => Some(crate::rig::PadSpec {
@@ -514,13 +514,16 @@ struct Job {
     key: String,
 }
 
+/// RMS arcsec, RMS px and P(outside ½ px) of one combination, or why it failed.
+type Evaluated = std::result::Result<(f64, f64, f64), String>;
+
 fn evaluate(
     built: &BuiltSpec,
     iso: &Isolator,
     ground: &GroundSpectrum,
     wind: &WindCase,
     grid: &FreqGrid,
-) -> std::result::Result<(f64, f64, f64), String> {
+) -> Evaluated {
     let model = built.model.as_ref().map_err(Clone::clone)?;
     let d = Disturbances { ground: ground.axes.clone(), wind: wind.wind.clone(), loads: Vec::new() };
     let opts = ImageOptions { skip_mode_shares: true, ..ImageOptions::default() };
@@ -628,7 +631,7 @@ pub fn run_sweep(
     let skip: Vec<bool> = (0..total).map(|i| done_keys.contains(&key_at(i))).collect();
     // Baselines (always computed: later rows need them for the ratio).
     let base_idx = catalogue.isolators.iter().position(Isolator::is_none).unwrap_or(0);
-    let baselines: BTreeMap<(usize, usize), std::result::Result<(f64, f64, f64), String>> = spectra
+    let baselines: BTreeMap<(usize, usize), Evaluated> = spectra
         .iter()
         .enumerate()
         .filter_map(|(gi, s)| s.as_ref().ok().map(|s| (gi, s)))

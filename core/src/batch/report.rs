@@ -209,10 +209,12 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         wind: o.wind.clone(),
         loads: Vec::new(),
     };
-    let mut io = ImageOptions::default();
-    io.exposure_s = o.exposure_s;
-    io.guide = o.guide;
-    io.seeing_fwhm_arcsec = o.seeing_fwhm_arcsec;
+    let io = ImageOptions {
+        exposure_s: o.exposure_s,
+        guide: o.guide,
+        seeing_fwhm_arcsec: o.seeing_fwhm_arcsec,
+        ..ImageOptions::default()
+    };
     let image = model.image_motion(grid, &d, &io)?;
     notes.extend(image.notes.iter().cloned());
 
