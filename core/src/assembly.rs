@@ -1038,7 +1038,7 @@ fn add_rank_one(b: &mut Builder, name: &str, model: StiffnessModel, bvec: &[f64]
             }
         }
     }
-    if model.is_frequency_independent() {
+    if model.elastic_is_constant() {
         let k = model.elastic_at(0.0);
         for (i, &bi) in bvec.iter().enumerate() {
             for (j, &bj) in bvec.iter().enumerate() {

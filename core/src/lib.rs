@@ -36,7 +36,10 @@
 //! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
 //! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
+//! - [`transient`]: time histories by FFT convolution (gusts, steps, random realisations) and a
+//!   Newmark check.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
+//! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
 //! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
 //! - [`batch`]: isolator catalogues, the isolator sweep, ground sources and the one-model report.
 #![forbid(unsafe_code)]
@@ -55,6 +58,7 @@ pub mod linalg;
 pub mod material;
 pub mod modal;
 pub mod model;
+pub mod monitor;
 pub mod response;
 pub mod rig;
 pub mod section;

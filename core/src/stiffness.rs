@@ -90,6 +90,18 @@ impl StiffnessModel {
         }
     }
 
+    /// True when [`elastic_at`](Self::elastic_at) does not depend on frequency (the viscous part,
+    /// which assembly moves into C, may): hysteretic springs, Kelvin–Voigt, and parallel groups of
+    /// them; series groups only when every element is frequency independent.
+    pub fn elastic_is_constant(&self) -> bool {
+        match self {
+            StiffnessModel::Hysteretic { .. } | StiffnessModel::KelvinVoigt { .. } => true,
+            StiffnessModel::Parallel(p) => p.iter().all(|m| m.elastic_is_constant()),
+            StiffnessModel::Series(p) => p.iter().all(|m| m.is_frequency_independent()),
+            _ => false,
+        }
+    }
+
     /// The part of the model that is a plain viscous dashpot in parallel with the rest (N·s/m).
     ///
     /// Assembly moves this part into the damping matrix C, so that Z = K*(ω) + iωC − ω²M holds

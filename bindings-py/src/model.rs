@@ -1,0 +1,212 @@
+//! `Model` and `Modes`.
+
+use crate::convert::{f64_1d, names, slice_or_copy};
+use crate::errors::IntoPyResult;
+use numpy::{IntoPyArray, PyArray1, PyArray2};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+use std::path::PathBuf;
+use stillsky::model::Model;
+
+/// An assembled linear structure (immutable; safe to share between threads).
+#[pyclass(name = "Model", module = "stillsky._native", frozen)]
+pub struct PyModel {
+    pub inner: Model,
+}
+
+#[pymethods]
+impl PyModel {
+    #[staticmethod]
+    fn from_toml(py: Python<'_>, path: PathBuf) -> PyResult<Self> {
+        let inner = py.detach(|| Model::from_toml_path(&path)).py_err()?;
+        Ok(PyModel { inner })
+    }
+
+    #[staticmethod]
+    #[pyo3(signature = (text, label = "<string>"))]
+    fn from_toml_str(py: Python<'_>, text: &str, label: &str) -> PyResult<Self> {
+        let inner = py.detach(|| Model::from_toml_str(text, label)).py_err()?;
+        Ok(PyModel { inner })
+    }
+
+    #[getter]
+    fn dof_count(&self) -> usize {
+        self.inner.dof_count()
+    }
+
+    #[getter]
+    fn dof_labels(&self) -> Vec<String> {
+        self.inner.dof_labels().iter().map(|l| l.to_string()).collect()
+    }
+
+    #[getter]
+    fn input_names(&self) -> Vec<String> {
+        self.inner.input_names()
+    }
+
+    #[getter]
+    fn output_names(&self) -> Vec<String> {
+        self.inner.output_names()
+    }
+
+    fn modes(&self, py: Python<'_>) -> PyResult<PyModes> {
+        let m = &self.inner;
+        let (modes, dominant) = py
+            .detach(|| {
+                m.modes().map(|x| {
+                    let d = x.dominant_dofs(m);
+                    (x, d)
+                })
+            })
+            .py_err()?;
+        Ok(PyModes {
+            frequency_hz: modes.frequency_hz.into_pyarray(py).unbind(),
+            damping_ratio: modes.damping_ratio.into_pyarray(py).unbind(),
+            shapes: modes.shapes.into_pyarray(py).unbind(),
+            participation: modes.participation.into_pyarray(py).unbind(),
+            effective_mass_kg: modes.effective_mass_kg.into_pyarray(py).unbind(),
+            dominant_dofs: dominant,
+        })
+    }
+
+    fn frf<'py>(
+        &self,
+        py: Python<'py>,
+        freq_hz: &Bound<'py, PyAny>,
+        input: &Bound<'py, PyAny>,
+        output: &Bound<'py, PyAny>,
+    ) -> PyResult<Bound<'py, PyAny>> {
+        let f = f64_1d(freq_hz, "freq_hz")?;
+        let f = slice_or_copy(&f);
+        let (ins, one_in) = names(input, "input")?;
+        let (outs, one_out) = names(output, "output")?;
+        let m = &self.inner;
+        let frf = py
+            .detach(|| {
+                let i: Vec<&str> = ins.iter().map(String::as_str).collect();
+                let o: Vec<&str> = outs.iter().map(String::as_str).collect();
+                m.frf(&f, &i, &o)
+            })
+            .py_err()?;
+        if one_in && one_out {
+            // (F, 1, 1) → (F,): a standard-layout reshape, no copy.
+            let n = frf.data.len();
+            let flat = frf.data.into_shape_with_order(n).map_err(|e| {
+                pyo3::exceptions::PyRuntimeError::new_err(format!("internal reshape failed: {e}"))
+            })?;
+            Ok(flat.into_pyarray(py).into_any())
+        } else {
+            Ok(frf.data.into_pyarray(py).into_any())
+        }
+    }
+
+    fn matrices<'py>(&self, py: Python<'py>, freq_hz: f64) -> PyResult<Bound<'py, PyDict>> {
+        stillsky::error::require_non_negative("freq_hz", freq_hz).py_err()?;
+        let d = PyDict::new(py);
+        d.set_item("mass", self.inner.mass_matrix().into_pyarray(py))?;
+        d.set_item("damping", self.inner.damping_matrix().into_pyarray(py))?;
+        d.set_item("stiffness", self.inner.stiffness_matrix(freq_hz).into_pyarray(py))?;
+        Ok(d)
+    }
+
+    #[pyo3(signature = (name, freq_hz = 0.0))]
+    fn input_vector<'py>(
+        &self,
+        py: Python<'py>,
+        name: &str,
+        freq_hz: f64,
+    ) -> PyResult<Bound<'py, PyArray1<num_complex::Complex64>>> {
+        Ok(self.inner.input_vector(name, freq_hz).py_err()?.into_pyarray(py))
+    }
+
+    fn output_vector<'py>(&self, py: Python<'py>, name: &str) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        Ok(self.inner.output_vector(name).py_err()?.into_pyarray(py))
+    }
+
+    #[pyo3(signature = (freq_hz, *, ground = None, loads = None, exposure_s = None,
+                        guide_cadence_s = None, guide_gain = 0.5, radius_px = None,
+                        seeing_fwhm_arcsec = None, mode_shares = true))]
+    #[allow(clippy::too_many_arguments)]
+    fn image_motion<'py>(
+        &self,
+        py: Python<'py>,
+        freq_hz: &Bound<'py, PyAny>,
+        ground: Option<&Bound<'py, PyAny>>,
+        loads: Option<Vec<(String, PyRef<'py, crate::spectrum::PyPsd>)>>,
+        exposure_s: Option<f64>,
+        guide_cadence_s: Option<f64>,
+        guide_gain: f64,
+        radius_px: Option<f64>,
+        seeing_fwhm_arcsec: Option<f64>,
+        mode_shares: bool,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        crate::results::image_motion(
+            &self.inner,
+            py,
+            freq_hz,
+            ground,
+            loads,
+            exposure_s,
+            guide_cadence_s,
+            guide_gain,
+            radius_px,
+            seeing_fwhm_arcsec,
+            mode_shares,
+        )
+    }
+
+    fn __repr__(&self) -> String {
+        format!(
+            "Model(dof_count={}, inputs={}, outputs={})",
+            self.inner.dof_count(),
+            self.inner.input_names().len(),
+            self.inner.output_names().len()
+        )
+    }
+}
+
+/// Modes of a model, ascending in frequency.
+#[pyclass(name = "Modes", module = "stillsky._native", frozen)]
+pub struct PyModes {
+    frequency_hz: Py<PyArray1<f64>>,
+    damping_ratio: Py<PyArray1<f64>>,
+    shapes: Py<PyArray2<f64>>,
+    participation: Py<PyArray2<f64>>,
+    effective_mass_kg: Py<PyArray2<f64>>,
+    dominant_dofs: Vec<String>,
+}
+
+#[pymethods]
+impl PyModes {
+    #[getter]
+    fn frequency_hz(&self, py: Python<'_>) -> Py<PyArray1<f64>> {
+        self.frequency_hz.clone_ref(py)
+    }
+    #[getter]
+    fn damping_ratio(&self, py: Python<'_>) -> Py<PyArray1<f64>> {
+        self.damping_ratio.clone_ref(py)
+    }
+    #[getter]
+    fn shapes(&self, py: Python<'_>) -> Py<PyArray2<f64>> {
+        self.shapes.clone_ref(py)
+    }
+    #[getter]
+    fn participation(&self, py: Python<'_>) -> Py<PyArray2<f64>> {
+        self.participation.clone_ref(py)
+    }
+    #[getter]
+    fn effective_mass_kg(&self, py: Python<'_>) -> Py<PyArray2<f64>> {
+        self.effective_mass_kg.clone_ref(py)
+    }
+    #[getter]
+    fn dominant_dofs(&self) -> Vec<String> {
+        self.dominant_dofs.clone()
+    }
+    fn __len__(&self) -> usize {
+        self.dominant_dofs.len()
+    }
+    fn __repr__(&self, py: Python<'_>) -> String {
+        let f = self.frequency_hz.bind(py).to_string();
+        format!("Modes(n={}, frequency_hz={f})", self.dominant_dofs.len())
+    }
+}
