@@ -18,8 +18,11 @@ use stillsky_c::stillsky_status;
 /// ones are only assembled, so one input stays fast.
 pub const EVAL_MAX_DOFS: usize = 36;
 
+/// A fuzz target body.
+pub type Target = fn(&[u8]);
+
 /// The targets by name (the fuzz/ target names and the corpus folder names).
-pub const TARGETS: [(&str, fn(&[u8])); 4] =
+pub const TARGETS: [(&str, Target); 4] =
     [("model_toml", model_toml), ("series_text", series_text), ("psd_csv", psd_csv), ("c_api", c_api)];
 
 /// TOML model reader: `ModelFile::parse` then `to_model`; a model that builds answers an FRF
