@@ -38,6 +38,17 @@ enum Cmd {
         #[arg(long, default_value = "out/demo")]
         out: PathBuf,
     },
+    /// Static safety checks of a rig file: leg stress and buckling, tipping in wind, pier.
+    Check {
+        /// Model file (TOML with a [tripod] or [pier] rig section).
+        model: PathBuf,
+        /// Design mean wind speed (m/s).
+        #[arg(long, default_value_t = 10.0)]
+        design_wind_m_s: f64,
+        /// Factor on the mean drag for gusts.
+        #[arg(long, default_value_t = 2.0)]
+        gust_factor: f64,
+    },
     /// Identify frequency and damping from a tap-test ring-down recording.
     Tap {
         /// Recording (CSV/text/WAV/miniSEED).
@@ -177,6 +188,7 @@ fn main() -> ExitCode {
         Cmd::Expand { model } => expand(&model),
         Cmd::Demo { out } => demo(&out),
         Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
+        Cmd::Check { model, design_wind_m_s, gust_factor } => check(&model, design_wind_m_s, gust_factor),
     };
     match r {
         Ok(()) => ExitCode::SUCCESS,
@@ -231,6 +243,10 @@ fn run_report(model: &Path, o: &ReportOptions, plots: Option<&Path>, json: Optio
     let spec = file.expanded()?;
     let r = batch::build_report(&spec, o)?;
     print!("{}", print::report_text(&model.display().to_string(), &r));
+    if file.tripod.is_some() || file.pier.is_some() {
+        let c = stillsky::checks::rig_checks(&file, &stillsky::checks::StaticWind::default())?;
+        print!("{}", print::checks_text(&stillsky::checks::StaticWind::default(), &c));
+    }
     if let Some(dir) = plots {
         std::fs::create_dir_all(dir).map_err(|e| Failure::io(&dir.display().to_string(), e))?;
         let written = plots::report_plots(&r, dir).map_err(|e| Failure::io("plots", e))?;
@@ -397,5 +413,17 @@ fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
     let id =
         stillsky::identify::identify_ringdown(x, s.fs_hz, &stillsky::identify::RingdownOptions::default())?;
     print!("{}", print::tap_text(&file.display().to_string(), &name, s.fs_hz, &id));
+    Ok(())
+}
+
+fn check(model: &Path, speed_m_s: f64, gust_factor: f64) -> CliResult {
+    let file = ModelFile::read(model)?;
+    let wind = stillsky::checks::StaticWind { speed_m_s, gust_factor, ..Default::default() };
+    let c = stillsky::checks::rig_checks(&file, &wind)?;
+    println!("== static checks: {} ==", model.display());
+    print!("{}", print::checks_text(&wind, &c));
+    if c.verdict() == stillsky::checks::Verdict::Fail {
+        return Err(Failure { code: 1, message: "at least one static check fails".into() });
+    }
     Ok(())
 }

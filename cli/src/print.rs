@@ -199,3 +199,26 @@ pub fn tap_text(file: &str, axis: &str, fs: f64, id: &RingdownId) -> String {
     }
     s
 }
+
+/// Static checks with their verdicts and the cautions that always go with them.
+pub fn checks_text(wind: &stillsky::checks::StaticWind, r: &stillsky::checks::CheckReport) -> String {
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        "\nStatic checks (design wind {:.1} m/s, gust factor {:.2}):",
+        wind.speed_m_s, wind.gust_factor
+    );
+    let _ = writeln!(o, "  {:<58} {:>12} {:>12} {:>6} {:>9}", "check", "demand", "capacity", "unit", "FoS");
+    for c in &r.checks {
+        let _ = writeln!(
+            o,
+            "  {:<58} {:>12.4e} {:>12.4e} {:>6} {:>9.2}  {:?}",
+            c.name, c.value, c.limit, c.unit, c.margin, c.verdict
+        );
+    }
+    let _ = writeln!(o, "  overall: {:?}", r.verdict());
+    for line in r.cautions() {
+        let _ = writeln!(o, "  CAUTION: {line}");
+    }
+    o
+}

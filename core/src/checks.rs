@@ -904,7 +904,8 @@ impl Default for StaticWind {
 
 /// Total mass of a generic model (bodies, nodes, beams with added mass) (kg).
 pub fn total_mass_kg(spec: &crate::assembly::ModelSpec) -> Result<f64> {
-    let mut m: f64 = spec.bodies.iter().map(|b| b.mass_kg).sum::<f64>() + spec.nodes.iter().map(|n| n.mass_kg).sum::<f64>();
+    let mut m: f64 = spec.bodies.iter().map(|b| b.mass_kg).sum::<f64>()
+        + spec.nodes.iter().map(|n| n.mass_kg).sum::<f64>();
     for b in &spec.beams {
         let l = (0..3).map(|i| (b.to_at_m[i] - b.from_at_m[i]).powi(2)).sum::<f64>().sqrt();
         m += (b.material()?.density_kg_m3 * b.section.area_m2() + b.added_mass_kg_per_m) * l;
@@ -928,23 +929,38 @@ pub fn rig_checks(file: &crate::io::ModelFile, wind: &StaticWind) -> Result<Chec
     let weight = total * STANDARD_GRAVITY;
     let load = spec.wind.as_ref();
     let wind_force = match load {
-        Some(w) => wind_force_n(wind.air_density_kg_m3, w.drag_coefficient, w.area_m2, wind.speed_m_s, wind.gust_factor)?,
+        Some(w) => wind_force_n(
+            wind.air_density_kg_m3,
+            w.drag_coefficient,
+            w.area_m2,
+            wind.speed_m_s,
+            wind.gust_factor,
+        )?,
         None => 0.0,
     };
     let mut checks = Vec::new();
     if let Some(t) = &file.tripod {
         let g = t.geometry()?;
         let n = t.legs.unwrap_or(3);
-        let section = t.leg_section.clone().ok_or_else(|| Error::invalid("tripod.leg_section", "is required for static checks"))?;
+        let section = t
+            .leg_section
+            .clone()
+            .ok_or_else(|| Error::invalid("tripod.leg_section", "is required for static checks"))?;
         let material = match (&t.leg_material, &t.leg_material_properties) {
             (Some(name), None) => Material::preset(name)?,
             (None, Some(m)) => m.clone(),
-            _ => return Err(Error::invalid("tripod.leg_material", "give a preset name or leg_material_properties")),
+            _ => {
+                return Err(Error::invalid(
+                    "tripod.leg_material",
+                    "give a preset name or leg_material_properties",
+                ));
+            }
         };
         let leg_n = leg_axial_load_n(weight, n, g.splay_rad)?;
         let st = axial_stress(leg_n, &section, &material)?;
         checks.push(Check::new("leg axial stress", st.stress_pa, material.yield_strength_pa, "Pa"));
-        let b = buckling(&section, &material, g.leg_length_m, EndCondition::PinnedPinned.k_theoretical(), leg_n)?;
+        let b =
+            buckling(&section, &material, g.leg_length_m, EndCondition::PinnedPinned.k_theoretical(), leg_n)?;
         checks.push(b.check("leg buckling (pinned-pinned, K = 1)"));
         if let Some(w) = load {
             let input = TippingInput {
@@ -975,14 +991,19 @@ pub fn rig_checks(file: &crate::io::ModelFile, wind: &StaticWind) -> Result<Chec
         };
         let h = p.height_m.ok_or_else(|| Error::invalid("pier.height_m", "is required"))?;
         // Everything but the pier column and its footing sits on top.
-        let pier_mass = (material.density_kg_m3 * section.area_m2() + p.added_mass_kg_per_m.unwrap_or(0.0)) * h;
-        let footing_mass: f64 = spec.bodies.iter().filter(|b| b.name.contains("footing")).map(|b| b.mass_kg).sum();
+        let pier_mass =
+            (material.density_kg_m3 * section.area_m2() + p.added_mass_kg_per_m.unwrap_or(0.0)) * h;
+        let footing_mass: f64 =
+            spec.bodies.iter().filter(|b| b.name.contains("footing")).map(|b| b.mass_kg).sum();
         let top = (total - pier_mass - footing_mass).max(0.0);
         let r = pier(&section, &material, h, top, wind_force)?;
         checks.extend(r.report(&material, None).checks);
     }
     if checks.is_empty() {
-        return Err(Error::invalid("model", "static checks need a [tripod] or [pier] section in the rig layer"));
+        return Err(Error::invalid(
+            "model",
+            "static checks need a [tripod] or [pier] section in the rig layer",
+        ));
     }
     Ok(CheckReport { checks })
 }
