@@ -6,6 +6,7 @@
 
 mod convert;
 mod errors;
+mod image;
 mod model;
 mod results;
 mod series;
@@ -19,6 +20,9 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     errors::register(m)?;
     m.add_class::<model::PyModel>()?;
     m.add_class::<model::PyModes>()?;
+    m.add_class::<image::PyWind>()?;
+    m.add_class::<image::PyImageMotion>()?;
+    m.add_class::<series::PySeries>()?;
     spectrum::register(m)?;
     m.add_function(wrap_pyfunction!(series::read_series, m)?)?;
     m.add_function(wrap_pyfunction!(results::identify_ringdown, m)?)?;

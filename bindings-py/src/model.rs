@@ -123,32 +123,31 @@ impl PyModel {
         Ok(self.inner.output_vector(name).py_err()?.into_pyarray(py))
     }
 
-    #[pyo3(signature = (freq_hz, *, ground = None, loads = None, exposure_s = None,
-                        guide_cadence_s = None, guide_gain = 0.5, radius_px = None,
-                        seeing_fwhm_arcsec = None, mode_shares = true))]
+    #[pyo3(signature = (freq_hz, *, ground = None, wind = None, loads = None, exposure_s = None,
+                        guide = None, radius_px = None, seeing_fwhm_arcsec = None, mode_shares = true))]
     #[allow(clippy::too_many_arguments)]
     fn image_motion<'py>(
         &self,
         py: Python<'py>,
         freq_hz: &Bound<'py, PyAny>,
         ground: Option<&Bound<'py, PyAny>>,
-        loads: Option<Vec<(String, PyRef<'py, crate::spectrum::PyPsd>)>>,
+        wind: Option<PyRef<'py, crate::image::PyWind>>,
+        loads: Option<&Bound<'py, PyAny>>,
         exposure_s: Option<f64>,
-        guide_cadence_s: Option<f64>,
-        guide_gain: f64,
+        guide: Option<&Bound<'py, PyAny>>,
         radius_px: Option<f64>,
         seeing_fwhm_arcsec: Option<f64>,
         mode_shares: bool,
-    ) -> PyResult<Bound<'py, PyDict>> {
-        crate::results::image_motion(
+    ) -> PyResult<crate::image::PyImageMotion> {
+        crate::image::image_motion(
             &self.inner,
             py,
             freq_hz,
             ground,
+            wind,
             loads,
             exposure_s,
-            guide_cadence_s,
-            guide_gain,
+            guide,
             radius_px,
             seeing_fwhm_arcsec,
             mode_shares,

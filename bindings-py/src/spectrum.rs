@@ -9,7 +9,6 @@ use std::path::PathBuf;
 use stillsky::spectrum::{
     self, CriterionCurve, Detrend, Extrapolate, Psd, Quantity, ReferenceGround, WelchConfig, Window,
 };
-use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 use stillsky::{Error, FreqGrid};
 
 type F64Array<'py> = Bound<'py, PyArray1<f64>>;
@@ -252,18 +251,15 @@ pub fn wind_spectrum(
     roughness_length_m: Option<f64>,
     shelter_factor: f64,
 ) -> PyResult<PyPsd> {
-    let turbulence = match (turbulence_intensity, roughness_length_m) {
-        (Some(i), None) => Turbulence::Intensity(i),
-        (None, Some(z0_m)) => Turbulence::RoughnessLength { z0_m },
-        _ => {
-            return Err(to_pyerr(Error::invalid(
-                "turbulence",
-                "give exactly one of turbulence_intensity or roughness_length_m",
-            )));
-        }
-    };
-    let spec = WindSpec::new(WindSpectrum::from_name(kind).py_err()?, mean_speed_m_s, height_m, turbulence)
-        .with_shelter_factor(shelter_factor);
+    let spec = crate::image::wind_spec(
+        kind,
+        mean_speed_m_s,
+        height_m,
+        turbulence_intensity,
+        roughness_length_m,
+        shelter_factor,
+        None,
+    )?;
     let g = grid(freq_hz, "freq_hz")?;
     Ok(PyPsd { inner: spec.velocity_psd(&g).py_err()? })
 }

@@ -10,7 +10,7 @@ release the GIL: do not modify an input array from another thread during a call.
 """
 
 from os import PathLike
-from typing import Literal, Sequence, overload
+from typing import Literal, Mapping, Sequence, overload
 
 import numpy as np
 import numpy.typing as npt
@@ -165,41 +165,110 @@ class Model:
         self,
         freq_hz: _F64In,
         *,
-        ground: Psd | Sequence[Psd | None] | None = None,
-        loads: Sequence[tuple[str, Psd]] | None = None,
+        ground: Psd | Mapping[str, Psd | None] | Sequence[Psd | None] | None = None,
+        wind: Wind | None = None,
+        loads: Mapping[str, Psd] | Sequence[tuple[str, Psd]] | None = None,
         exposure_s: float | None = None,
-        guide_cadence_s: float | None = None,
-        guide_gain: float = 0.5,
+        guide: float | tuple[float, float] | None = None,
         radius_px: float | None = None,
         seeing_fwhm_arcsec: float | None = None,
         mode_shares: bool = True,
-    ) -> dict[str, object]:
+    ) -> ImageMotion:
         """Image motion on the sky and sensor under uncorrelated disturbances (needs [optics]).
 
         Args:
             freq_hz: evaluation grid (Hz), 1-D float64, strictly increasing, > 0.
-            ground: ground-motion PSD (displacement, velocity or acceleration), one ``Psd`` for
-                all three axes or one per axis x, y, z (``None`` = no motion on that axis).
-                Spectra are resampled log–log onto ``freq_hz`` and taken as zero outside their
-                own range (reported in ``notes``).
-            loads: (input name, force PSD N²/Hz or moment PSD (N·m)²/Hz) pairs, e.g.
-                ``("force:payload:x", psd)``.
+            ground: ground-motion PSD (displacement, velocity or acceleration) per axis, as
+                ``{"x": psd, "y": psd, "z": psd}`` (missing axes = no motion), one ``Psd`` for
+                all three axes, or a sequence of three ``Psd | None``. Spectra are resampled
+                log–log onto ``freq_hz`` and taken as zero outside their own range (reported in
+                ``summary()["notes"]``).
+            wind: mean wind and turbulence (``Wind``) acting at the model's ``[wind]`` load
+                point through the linearised drag S_F = (ρ C_d A U)² S_u.
+            loads: {input name: force PSD N²/Hz or moment PSD (N·m)²/Hz}, e.g.
+                ``{"force:payload:x": psd}`` (or a sequence of such pairs); uncorrelated.
             exposure_s: split the motion into centroid wander and smear for exposures of this
                 length (s).
-            guide_cadence_s: guider exposure cadence (s); with ``guide_gain`` (integrator gain
-                in (0, 2)) applies the guider's rejection.
-            radius_px: radius (pixels) for the probability of leaving it (default ½ pixel).
+            guide: guider cadence (s), or ``(cadence_s, gain)`` with the integrator gain in
+                (0, 2) (default gain 0.5); applies the guider's rejection.
+            radius_px: radius (pixels) for ``p_outside()`` (default ½ pixel).
             seeing_fwhm_arcsec: seeing FWHM (arcsec); default from the model's optics.
             mode_shares: compute each mode's share of the mean square.
 
         Returns:
-            dict with ``rms_arcsec``, ``rms_um``, ``rms_px``, ``per_axis_arcsec``,
-            ``p_outside``, ``radius_px``, ``plate_scale_arcsec_per_px``, ``blur_fwhm_arcsec``,
-            ``total_fwhm_arcsec``, ``covariance_arcsec2``, ``mode_share``, ``input_share``,
-            ``exposure``, ``dominant_band_hz``, ``dominant_band_share``, ``notes`` and the arrays
-            ``freq_hz`` (F,), ``psd_arcsec2`` (2, F) for image_x / image_y (arcsec²/Hz),
-            ``co_psd_arcsec2`` (F,), ``cumulative_rms_arcsec`` (2, F). GIL released.
+            ``ImageMotion`` (RMS in arcsec, µm and px, PSDs, cumulative RMS, shares,
+            ``p_outside()``, ``summary()``). GIL released.
         """
+
+class Wind:
+    """Mean wind and its turbulence at a height (a ``wind=`` disturbance)."""
+
+    def __init__(
+        self,
+        kind: Literal["kaimal", "kaimal-iec", "von-karman", "davenport"] | str,
+        mean_speed_m_s: float,
+        height_m: float,
+        *,
+        turbulence_intensity: float | None = None,
+        roughness_length_m: float | None = None,
+        shelter_factor: float = 1.0,
+        air_density_kg_m3: float | None = None,
+    ) -> None:
+        """Args:
+        kind: along-wind spectrum shape (see ``wind_spectrum``).
+        mean_speed_m_s: mean speed U at ``height_m`` (m/s), > 0.
+        height_m: height above ground (m), > 0.
+        turbulence_intensity: σ_u / U; give this or ``roughness_length_m`` (m), not both.
+        shelter_factor: factor in (0, 1] on the mean speed for a sheltered site.
+        air_density_kg_m3: ρ (kg/m³), default 1.225 (ISA sea level).
+        """
+    @property
+    def mean_speed_m_s(self) -> float: ...
+    @property
+    def height_m(self) -> float: ...
+    def spectrum(self, freq_hz: _F64In) -> Psd:
+        """Along-wind velocity PSD ((m/s)²/Hz) on ``freq_hz``."""
+
+class ImageMotion:
+    """Image motion on the sky (arcsec) and sensor (µm, px): the result of ``Model.image_motion``."""
+
+    @property
+    def rms_arcsec(self) -> float:
+        """Radial RMS √(σx² + σy²) on the sky (arcsec)."""
+    @property
+    def rms_um(self) -> float:
+        """Radial RMS in the sensor plane (µm)."""
+    @property
+    def rms_px(self) -> float:
+        """Radial RMS in pixels."""
+    @property
+    def plate_scale_arcsec_per_px(self) -> float: ...
+    @property
+    def per_axis_arcsec(self) -> _F64:
+        """RMS of image_x (azimuth) and image_y (altitude), arcsec, shape (2,)."""
+    @property
+    def freq_hz(self) -> _F64: ...
+    @property
+    def psd(self) -> _F64:
+        """PSD of image_x and image_y (arcsec²/Hz), shape (2, F)."""
+    @property
+    def co_psd(self) -> _F64:
+        """Co-spectrum of image_x with image_y (arcsec²/Hz), shape (F,)."""
+    @property
+    def cumulative_rms_arcsec(self) -> _F64:
+        """Cumulative RMS from the lowest frequency per axis (arcsec), shape (2, F)."""
+    @property
+    def mode_share(self) -> list[dict[str, object]]:
+        """Share of the radial mean square per mode: ``{"label", "frequency_hz", "share"}``."""
+    @property
+    def input_share(self) -> dict[str, float]:
+        """Share of the mean square per disturbance input (e.g. ``"ground_z"``, ``"wind"``)."""
+    def p_outside(self, radius_px: float | None = None) -> float:
+        """Probability the image is outside ``radius_px`` (px) at a random instant (default: the
+        radius given to ``image_motion``, ½ px)."""
+    def summary(self) -> dict[str, object]:
+        """All scalars and small results (RMS, blur vs seeing, covariance, shares, exposure split,
+        dominant band, notes) as a dict; no per-frequency arrays."""
 
 _Quantity = Literal["displacement", "velocity", "acceleration", "force", "moment", "angle"]
 
@@ -324,16 +393,57 @@ def wind_spectrum(
         shelter_factor: factor in (0, 1] on the mean speed.
     """
 
-def read_series(path: str | PathLike[str], *, fs_hz: float | None = None) -> dict[str, object]:
-    """Read a recording (CSV/whitespace text, WAV, miniSEED).
+_UnitToken = Literal["m_s2", "g", "m_s", "mm_s", "um_s", "m", "mm", "um"]
+
+class Series:
+    """A recording: samples in SI units (or counts), sample rate and timing report."""
+
+    @property
+    def samples(self) -> _F64:
+        """Samples, shape (n_frames, n_axes), float64 (a transposed view, no copy)."""
+    @property
+    def axes(self) -> list[str]:
+        """Axis (channel) names."""
+    @property
+    def fs(self) -> float:
+        """Sample rate (Hz): nominal, or the real mean rate when resampled from timestamps."""
+    @property
+    def unit(self) -> str:
+        """SI unit of the samples ("m/s^2", "m/s", "m") or "counts"."""
+    @property
+    def start_time(self) -> str | None: ...
+    @property
+    def timing(self) -> dict[str, object]:
+        """Timing of the input: ``source`` ("nominal", "time column", "records"), ``fs_hz_mean``,
+        ``median_interval_s``, ``jitter_std_s``, ``jitter_max_s`` and their fractions,
+        ``n_gaps``, ``gaps`` [(time_s, interval_s)], ``resampled``."""
+    def __len__(self) -> int: ...
+
+def read_series(
+    path: str | PathLike[str],
+    *,
+    fs_hz: float | None = None,
+    unit: _UnitToken | None = None,
+    wav_full_scale: tuple[float, _UnitToken] | None = None,
+    sensitivity: tuple[float, _UnitToken] | None = None,
+    channel: str | None = None,
+    max_jitter_fraction: float | None = None,
+) -> Series:
+    """Read a recording (CSV/whitespace text, WAV, miniSEED); large files are refused above the
+    core's sample limit rather than exhausting memory. GIL released.
 
     Args:
-        path: file path.
+        path: file path; format from the extension or sniffed from the first bytes.
         fs_hz: sample rate (Hz) for text files without a time column.
-
-    Returns:
-        ``{"samples": (n_axes, n_frames) float64 in SI units, "axis_names": list[str],
-        "fs_hz": float, "unit": str, "start_time": str | None}``.
+        unit: unit of text columns whose name has no unit suffix.
+        wav_full_scale: physical value of digital full scale ±1.0, e.g. ``(2.0, "g")``;
+            required for WAV (it carries no unit).
+        sensitivity: miniSEED counts per unit, e.g. ``(1500.0, "mm_s")``; without it samples
+            stay in counts.
+        channel: miniSEED channel (``NET.STA.LOC.CHA`` or ``CHA``) when a file holds several.
+        max_jitter_fraction: timestamped text: largest |interval − median| / median that is
+            still resampled onto a uniform grid (default 0.10); beyond it the reader refuses
+            with the measured rate, jitter and gaps.
     """
 
 def identify_ringdown(
