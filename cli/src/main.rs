@@ -11,7 +11,7 @@ use std::process::ExitCode;
 use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig, SweepInputs, WindCase};
 use stillsky::image::Guiding;
 use stillsky::io::model_file::ModelFile;
-use stillsky::io::series::{SeriesOptions, read_series};
+use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 
 #[derive(Parser)]
@@ -91,6 +91,10 @@ struct ReportArgs {
     /// Sample rate (Hz) of text recordings without a time column or `# fs_hz=` line.
     #[arg(long)]
     fs: Option<f64>,
+    /// miniSEED recordings: counts per unit, as COUNTS:UNIT (e.g. 6.0e8:m_s); units m_s2, g,
+    /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
+    #[arg(long, value_parser = parse_sensitivity)]
+    sensitivity: Option<Sensitivity>,
     #[command(flatten)]
     wind: WindArgs,
     #[arg(long)]
@@ -150,6 +154,10 @@ struct SweepArgs {
     /// Sample rate (Hz) of text recordings without a time column or `# fs_hz=` line.
     #[arg(long)]
     fs: Option<f64>,
+    /// miniSEED recordings: counts per unit, as COUNTS:UNIT (e.g. 6.0e8:m_s); units m_s2, g,
+    /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
+    #[arg(long, value_parser = parse_sensitivity)]
+    sensitivity: Option<Sensitivity>,
 }
 
 fn parse_triple(s: &str) -> Result<[f64; 3], String> {
@@ -199,11 +207,26 @@ fn main() -> ExitCode {
     }
 }
 
-fn series_options(fs: Option<f64>) -> SeriesOptions {
-    match fs {
-        Some(f) => SeriesOptions::default().with_fs_hz(f),
-        None => SeriesOptions::default(),
+fn series_options(fs: Option<f64>, sensitivity: Option<Sensitivity>) -> SeriesOptions {
+    let mut o = SeriesOptions::default();
+    if let Some(f) = fs {
+        o = o.with_fs_hz(f);
     }
+    if let Some(s) = sensitivity {
+        o = o.with_sensitivity(s);
+    }
+    o
+}
+
+fn parse_sensitivity(s: &str) -> Result<Sensitivity, String> {
+    let (c, u) =
+        s.split_once(':').ok_or_else(|| format!("expected COUNTS:UNIT (e.g. 6.0e8:m_s), got '{s}'"))?;
+    let counts: f64 = c.trim().parse().map_err(|_| format!("counts per unit '{c}' is not a number"))?;
+    if !counts.is_finite() || counts == 0.0 {
+        return Err(format!("counts per unit must be finite and non-zero, got {counts}"));
+    }
+    let unit = Unit::parse(u).map_err(|e| e.to_string())?;
+    Ok(Sensitivity::new(counts, unit))
 }
 
 fn wind_spec(w: &WindArgs) -> Result<Option<WindSpec>, Failure> {
@@ -224,7 +247,7 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     if let Some(s) = a.ground_scale {
         o.ground_scale = s;
     }
-    o.series = series_options(a.fs);
+    o.series = series_options(a.fs, a.sensitivity);
     o.wind = wind_spec(&a.wind)?;
     o.focal_length_mm = a.focal_length_mm;
     o.pixel_um = a.pixel_um;
@@ -341,7 +364,7 @@ fn sweep(a: &SweepArgs) -> CliResult {
     if let Some(s) = a.ground_scale {
         cfg = cfg.with_ground_scale(s);
     }
-    cfg.series = series_options(a.fs);
+    cfg.series = series_options(a.fs, a.sensitivity);
     let winds = a.wind.iter().map(|w| WindCase::parse(w)).collect::<Result<Vec<_>, _>>()?;
     run_sweep(&SweepRun {
         model: &a.model,
@@ -399,7 +422,7 @@ fn demo(out: &Path) -> CliResult {
 }
 
 fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
-    let s = read_series(file, &series_options(fs))?;
+    let s = read_series(file, &series_options(fs, None))?;
     let (name, x) = match axis {
         Some(a) => (
             a.to_string(),

@@ -256,3 +256,32 @@ fn demo_finishes() {
     assert!(d.join("plots").join("gust.svg").exists());
     assert!(out.contains("ranking, all spectra"), "{out}");
 }
+
+/// The report on a real seismometer recording: ObsPy's bundled example BW.BGLD..EHE (Steim-1
+/// miniSEED, copied to core/tests/data/mseed). The file holds counts; the sensitivity given
+/// here (6.0e8 counts per m/s) is a placeholder, not that station's response.
+#[test]
+fn report_on_a_real_miniseed_recording_needs_and_uses_the_sensitivity() {
+    let d = tmp("mseed");
+    let rec = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../core/tests/data/mseed/BW.BGLD..EHE.steim1.10rec.mseed");
+    let model = examples().join("tripod-paver.toml");
+    let o = run(&["report", s(&model), "--ground", s(&rec)]);
+    let (_, err) = text(&o);
+    assert_ne!(o.status.code(), Some(0));
+    assert!(err.contains("BW.BGLD..EHE.steim1.10rec.mseed") && err.contains("counts"), "{err}");
+    let rms = |sens: &str, tag: &str| {
+        let json = d.join(format!("{tag}.json"));
+        let o = run(&["report", s(&model), "--ground", s(&rec), "--sensitivity", sens, "--json", s(&json)]);
+        assert_eq!(o.status.code(), Some(0), "{}", text(&o).1);
+        let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+        v["image"]["rms_arcsec"].as_f64().unwrap()
+    };
+    let a = rms("6.0e8:m_s", "a");
+    let b = rms("3.0e8:m_s", "b");
+    assert!(a.is_finite() && a > 0.0);
+    // Linearity: half the counts per unit is twice the ground motion and twice the image RMS.
+    assert!((b / a - 2.0).abs() < 1e-9, "{a} {b}");
+    let o = run(&["report", s(&model), "--ground", s(&rec), "--sensitivity", "6e8:furlongs"]);
+    assert!(text(&o).1.contains("furlongs"), "{}", text(&o).1);
+}
