@@ -75,6 +75,19 @@ impl PyModel {
         )
     }
 
+    #[pyo3(signature = (input, history, fs, *, outputs, ground = "displacement"))]
+    fn newmark<'py>(
+        &self,
+        py: Python<'py>,
+        input: &str,
+        history: &Bound<'py, PyAny>,
+        fs: f64,
+        outputs: &Bound<'py, PyAny>,
+        ground: &str,
+    ) -> PyResult<crate::transient::PyTransient> {
+        crate::transient::newmark(&self.inner, py, input, history, fs, outputs, ground)
+    }
+
     #[pyo3(signature = (input, history, fs, *, ground = "displacement", decay_tolerance = 1e-6,
                         radius_px = 0.5))]
     #[allow(clippy::too_many_arguments)]

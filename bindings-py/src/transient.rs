@@ -354,16 +354,47 @@ pub fn transient(
             Ok::<_, Error>((r, metrics))
         })
         .py_err()?;
-    let (no, nt) = (r.values.len(), r.time_s.len());
-    let values = ndarray::Array2::from_shape_vec((no, nt), r.values.into_iter().flatten().collect())
-        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: transient layout: {e}")))?;
-    Ok(PyTransient {
-        time_s: r.time_s.into_pyarray(py).unbind(),
-        outputs: r.outputs,
-        values: values.into_pyarray(py).unbind(),
-        fft_len: r.fft_len,
-        metrics: metrics.as_ref().map(Metrics::from),
-    })
+    PyTransient::new(py, r, metrics.as_ref())
+}
+
+impl PyTransient {
+    fn new(py: Python<'_>, r: core_t::TransientResult, metrics: Option<&ImageMetrics>) -> PyResult<Self> {
+        let (no, nt) = (r.values.len(), r.time_s.len());
+        let values = ndarray::Array2::from_shape_vec((no, nt), r.values.into_iter().flatten().collect())
+            .map_err(|e| {
+                pyo3::exceptions::PyRuntimeError::new_err(format!("internal: transient layout: {e}"))
+            })?;
+        Ok(PyTransient {
+            time_s: r.time_s.into_pyarray(py).unbind(),
+            outputs: r.outputs,
+            values: values.into_pyarray(py).unbind(),
+            fft_len: r.fft_len,
+            metrics: metrics.map(Metrics::from),
+        })
+    }
+}
+
+/// `Model.newmark`: the independent time-stepping check (viscously damped models only).
+pub fn newmark(
+    m: &Model,
+    py: Python<'_>,
+    input: &str,
+    history: &Bound<'_, PyAny>,
+    fs: f64,
+    outputs: &Bound<'_, PyAny>,
+    ground: &str,
+) -> PyResult<PyTransient> {
+    let g = options(ground, 1e-6, 0.5)?.ground;
+    let (outs, _) = names(outputs, "outputs")?;
+    let h = f64_1d(history, "history")?;
+    let h = slice_or_copy(&h);
+    let r = py
+        .detach(|| {
+            let o: Vec<&str> = outs.iter().map(String::as_str).collect();
+            m.newmark(input, &h, fs, &o, g)
+        })
+        .py_err()?;
+    PyTransient::new(py, r, None)
 }
 
 /// `Model.image_response`.

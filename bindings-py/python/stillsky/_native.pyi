@@ -254,6 +254,20 @@ class Model:
             hysteretic damping is not causal (a small precursor); prefer Kelvin–Voigt, Zener
             or fractional models for time histories.
         """
+    def newmark(
+        self,
+        input: str,
+        history: _F64In,
+        fs: float,
+        *,
+        outputs: str | Sequence[str],
+        ground: Literal["displacement", "acceleration"] = "displacement",
+    ) -> Transient:
+        """Average-acceleration Newmark integration (γ = ½, β = ¼) of a history of ``input``
+        (unit as in ``transient``) at time step 1/``fs`` (Hz), from rest: an independent check
+        of ``transient`` for viscously damped, frequency-independent models (others raise
+        ``UnsupportedModelError``). The load is linear between samples. Outputs in m or rad;
+        ``fft_len`` is 0. GIL released."""
     def image_response(
         self,
         input: str,
