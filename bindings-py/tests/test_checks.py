@@ -53,10 +53,13 @@ def test_leg_stress_and_euler_by_hand():
     # Axial stress N / A, A = π/4 (OD² − ID²) for a tube.
     ID = OD - 2 * WALL
     area = math.pi / 4 * (OD**2 - ID**2)
+    # REFERENCES.md §9 check value: this tube has A = 0.300333 in², so 40 lbf gives 133.19 psi.
+    assert area / IN**2 == pytest.approx(0.300333, rel=2e-6)
+    assert 40.0 / (area / IN**2) == pytest.approx(133.19, rel=1e-4)
     assert st["value"] == pytest.approx(load / area, rel=1e-9)
     assert st["limit"] == YIELD and st["unit"] == "Pa"
     assert st["factor_of_safety"] == pytest.approx(YIELD / (load / area), rel=1e-12)
-    # Euler load π² E I / (K L)², I = π/64 (OD⁴ − ID⁴), K = 1 (pinned–pinned); KL/r ≈ 141 is
+    # Euler load π² E I / (K L)², I = π/64 (OD⁴ − ID⁴), K = 1 (pinned–pinned); KL/r ≈ 143 is
     # above the transition slenderness √(2π²E/σ_y) ≈ 126, so Euler governs.
     I = math.pi / 64 * (OD**4 - ID**4)
     assert LEG_L / math.sqrt(I / area) > math.sqrt(2 * math.pi**2 * E / YIELD)

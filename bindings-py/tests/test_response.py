@@ -54,8 +54,8 @@ def test_response_wind_matches_image_motion_path():
 
 
 def test_miles_equation_white_force_on_sdof():
-    # Miles (1954): an SDOF under white one-sided force PSD S0 has displacement mean square
-    # σ² = (π/2) f_n Q S0 / k², Q = 1/(2ζ) (equivalently S0/(4kc)).
+    # Miles (1954), force-input form (REFERENCES.md §3): an SDOF under white one-sided force PSD
+    # S0 has displacement mean square σ² = (π/2) f_n Q S0 / k², Q = 1/(2ζ) (= S0/(4kc)).
     mass, k, zeta = 2.0, 1.0e4, 0.02
     c = float(2 * zeta * np.sqrt(k * mass))
     m = stillsky.Model.from_toml_str(sdof_toml(m=mass, k=k, c=c))
@@ -64,7 +64,8 @@ def test_miles_equation_white_force_on_sdof():
     s0 = 0.5
     r = m.response(f, loads={"force:mass:z": stillsky.Psd(f, np.full_like(f, s0), "force")}, output="mass:z")
     miles = np.pi / 2 * fn * (1 / (2 * zeta)) * s0 / k**2
-    # 1e-4: trapezoid on ~55 points per half-power band plus the band below 1e-4 f_n (~3e-6).
+    # 1e-4: trapezoid with ~100 points per half-power band, plus the band below 1e-4 f_n (~3e-6);
+    # measured −2.5e-6.
     assert r.mean_square() == pytest.approx(miles, rel=1e-4)
 
 
