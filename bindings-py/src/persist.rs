@@ -1,13 +1,14 @@
 //! Pickling: a `Model` travels as its model-file TOML text (the text it was built from, else
 //! the generic-layer TOML of its spec), a `Psd` as its arrays and quantity.
 
-use crate::errors::{IntoPyResult, to_pyerr};
+use crate::errors::IntoPyResult;
 use crate::model::PyModel;
 use pyo3::prelude::*;
 use pyo3::types::PyTuple;
 use std::path::Path;
 use std::sync::Arc;
 use stillsky::Error;
+use stillsky::io::model_file::MAX_MODEL_FILE_BYTES;
 use stillsky::io::spec_to_toml;
 use stillsky::model::Model;
 
@@ -27,9 +28,21 @@ pub fn model_from_text(py: Python<'_>, text: String, label: String) -> PyResult<
 /// Read a model file's text (I/O errors name the path) and build the model from it.
 pub fn model_from_path(py: Python<'_>, path: &Path) -> PyResult<PyModel> {
     let label = path.display().to_string();
+    let io = |e: std::io::Error| Error::Io { path: label.clone(), reason: e.to_string() };
     let text = py
-        .detach(|| std::fs::read_to_string(path))
-        .map_err(|e| to_pyerr(Error::Io { path: label.clone(), reason: e.to_string() }))?;
+        .detach(|| {
+            // The same size limit as the core's reader, checked before reading.
+            let len = std::fs::metadata(path).map_err(io)?.len();
+            if len > MAX_MODEL_FILE_BYTES as u64 {
+                return Err(Error::TooLarge {
+                    what: format!("size of {label} (bytes)"),
+                    value: usize::try_from(len).unwrap_or(usize::MAX),
+                    limit: MAX_MODEL_FILE_BYTES,
+                });
+            }
+            std::fs::read_to_string(path).map_err(io)
+        })
+        .py_err()?;
     model_from_text(py, text, label)
 }
 
