@@ -115,6 +115,18 @@ impl PyPsd {
         self.inner.len()
     }
 
+    /// Pickle as (Psd, (freq_hz, values, quantity)): the arrays round-trip bit for bit.
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<Bound<'py, pyo3::types::PyTuple>> {
+        let py = slf.py();
+        let p = &slf.get().inner;
+        let args = (
+            p.freq_hz().to_vec().into_pyarray(py),
+            p.values().to_vec().into_pyarray(py),
+            p.quantity().name(),
+        );
+        pyo3::types::PyTuple::new(py, [slf.get_type().into_any(), args.into_pyobject(py)?.into_any()])
+    }
+
     fn __repr__(&self) -> String {
         let (lo, hi) = self.inner.span_hz();
         format!(

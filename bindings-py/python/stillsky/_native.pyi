@@ -200,6 +200,117 @@ class Model:
             ``p_outside()``, ``summary()``). GIL released.
         """
 
+    def response(
+        self,
+        freq_hz: _F64In,
+        *,
+        ground: Psd | Mapping[str, Psd | None] | Sequence[Psd | None] | None = None,
+        wind: Wind | None = None,
+        loads: Mapping[str, Psd] | Sequence[tuple[str, Psd]] | None = None,
+        output: str | Sequence[str],
+    ) -> Psd | dict[str, Psd]:
+        """Response PSD of an output under uncorrelated disturbances: S_y = Σ_i |H_yi|² S_i.
+
+        Args:
+            freq_hz: evaluation grid (Hz), 1-D float64, strictly increasing, > 0.
+            ground, wind, loads: as in ``image_motion`` (ground motion PSD per axis x/y/z in
+                any motion quantity; ``Wind`` at the ``[wind]`` load point; {input name: force
+                PSD N²/Hz or moment PSD (N·m)²/Hz}).
+            output: an output name (``"BODY:x|y|z|rx|ry|rz"``, ``"image_x"``, ``"image_y"``), or
+                a sequence of names.
+
+        Returns:
+            a ``Psd`` on ``freq_hz`` (displacement m²/Hz, or angle rad²/Hz for rotations and
+            image axes), or {name: Psd} for a sequence of names. GIL released.
+        """
+    def transient(
+        self,
+        input: str,
+        history: _F64In,
+        fs: float,
+        *,
+        outputs: str | Sequence[str] | None = None,
+        ground: Literal["displacement", "acceleration"] = "displacement",
+        decay_tolerance: float = 1e-6,
+        radius_px: float = 0.5,
+    ) -> Transient:
+        """Response to a time history of one input, from rest, by FFT convolution.
+
+        Args:
+            input: input name (``"force:BODY:x"`` N, ``"moment:BODY:y"`` N·m, ``"wind"`` N,
+                ``"ground_z"`` m, or m/s² with ``ground="acceleration"``).
+            history: input samples from t = 0 (unit of the input), 1-D float64. A jump on a
+                sample should carry the mid value (see the core's transient docs).
+            fs: sample rate (Hz).
+            outputs: output names (default ``("image_x", "image_y")``); results in m or rad.
+            ground: meaning of a ground-input history.
+            decay_tolerance: the zero padding lasts until the slowest mode's envelope has
+                fallen by this factor (wrap-around below about this fraction).
+            radius_px: radius (pixels) for the settle time and fraction outside (image outputs).
+
+        Returns:
+            ``Transient`` (``time_s``, ``values`` (n_out, n), and image metrics when both image
+            axes are among the outputs and the model has optics). GIL released. Constant
+            hysteretic damping is not causal (a small precursor); prefer Kelvin–Voigt, Zener
+            or fractional models for time histories.
+        """
+    def newmark(
+        self,
+        input: str,
+        history: _F64In,
+        fs: float,
+        *,
+        outputs: str | Sequence[str],
+        ground: Literal["displacement", "acceleration"] = "displacement",
+    ) -> Transient:
+        """Average-acceleration Newmark integration (γ = ½, β = ¼) of a history of ``input``
+        (unit as in ``transient``) at time step 1/``fs`` (Hz), from rest: an independent check
+        of ``transient`` for viscously damped, frequency-independent models (others raise
+        ``UnsupportedModelError``). The load is linear between samples. Outputs in m or rad;
+        ``fft_len`` is 0. GIL released."""
+    def image_response(
+        self,
+        input: str,
+        history: _F64In,
+        fs: float,
+        *,
+        ground: Literal["displacement", "acceleration"] = "displacement",
+        decay_tolerance: float = 1e-6,
+        radius_px: float = 0.5,
+    ) -> ImageTransient:
+        """Sensor-plane response (arcsec) to a history of ``input`` (unit as in ``transient``),
+        sampled at ``fs`` (Hz); needs ``[optics]``. Metrics use ``radius_px`` (pixels).
+        GIL released."""
+    def gust_response(
+        self,
+        gust: Gust,
+        *,
+        mean_speed_m_s: float,
+        fs: float,
+        duration_s: float,
+        air_density_kg_m3: float = 1.225,
+        drag_law: Literal["quadratic", "linearised"] = "quadratic",
+        decay_tolerance: float = 1e-6,
+        radius_px: float = 0.5,
+    ) -> ImageTransient:
+        """Image response to a gust on the model's ``wind`` input (needs ``[wind]`` and ``[optics]``).
+
+        Args:
+            gust: the wind-speed fluctuation u′(t) (``Gust``).
+            mean_speed_m_s: mean wind speed U (m/s).
+            fs: sample rate (Hz); duration_s: length of the history (s), n = round(duration·fs).
+            air_density_kg_m3: ρ (kg/m³).
+            drag_law: ``"quadratic"`` F′ = ½ρC_dA[(U+u′)|U+u′| − U²] or ``"linearised"``
+                F′ = ρC_dA U u′; area and C_d from ``[wind]``.
+            decay_tolerance, radius_px: as in ``transient``.
+
+        Returns:
+            ``ImageTransient``; ``input_history`` is the drag fluctuation (N). The mean drag's
+            static deflection is not included. GIL released.
+        """
+    def __reduce__(self) -> tuple[object, tuple[str, str]]:
+        """Pickle as the model-file text it was built from (bit-identical results after loading)."""
+
 class Wind:
     """Mean wind and its turbulence at a height (a ``wind=`` disturbance)."""
 
@@ -453,7 +564,7 @@ def identify_ringdown(
     min_frequency_hz: float | None = None,
     max_frequency_hz: float | None = None,
     max_modes: int = 8,
-) -> dict[str, object]:
+) -> RingdownId:
     """Natural frequencies and damping ratios from a free-decay (tap test) record.
 
     Args:
@@ -463,8 +574,218 @@ def identify_ringdown(
         max_modes: most modes kept from the matrix-pencil fit.
 
     Returns:
-        dict with arrays ``frequency_hz``, ``damping_ratio``, ``amplitude`` (units of x),
-        ``dominant`` (index), ``methods`` (single-mode estimates: log decrement, envelope fit,
-        half power), ``clipped``, ``close_modes``, ``warnings`` and more diagnostics.
+        ``RingdownId``: ``frequency_hz`` (Hz) and ``damping_ratio`` arrays over the modes
+        found, per-method values of the dominant mode (``log_decrement``, ``envelope_fit``,
+        ``half_power``, ``spread``, ``methods``), and ``summary()`` (every field as a dict).
         GIL released.
     """
+
+class RingdownId:
+    """Result of ``identify_ringdown``."""
+    @property
+    def frequency_hz(self) -> _F64:
+        """Best natural frequency per mode (Hz)."""
+    @property
+    def damping_ratio(self) -> _F64:
+        """Best damping ratio per mode (dimensionless)."""
+    @property
+    def amplitude(self) -> _F64:
+        """Amplitude per mode (units of x)."""
+    @property
+    def dominant(self) -> int:
+        """Index of the dominant mode in the arrays."""
+    @property
+    def dominant_source(self) -> Literal["single_mode", "matrix_pencil"]: ...
+    @property
+    def dominant_frequency_hz(self) -> float:
+        """Dominant spectral peak (Hz), interpolated."""
+    @property
+    def log_decrement(self) -> float | None:
+        """Damping ratio of the dominant mode by logarithmic decrement."""
+    @property
+    def log_decrement_cycles(self) -> int: ...
+    @property
+    def envelope_fit(self) -> float | None:
+        """Damping ratio by an exponential fit to the Hilbert envelope."""
+    @property
+    def half_power(self) -> float | None:
+        """Damping ratio by half-power bandwidth of the PSD."""
+    @property
+    def spread(self) -> float:
+        """Spread of the single-mode damping estimates."""
+    @property
+    def methods(self) -> dict[str, object]:
+        """All per-method values of the dominant mode."""
+    @property
+    def pencil(self) -> list[dict[str, object]]:
+        """Matrix-pencil modes (frequency_hz, damped_frequency_hz, damping_ratio, amplitude, phase_rad)."""
+    @property
+    def close_modes(self) -> bool: ...
+    @property
+    def clipped(self) -> bool: ...
+    @property
+    def warnings(self) -> list[str]: ...
+    def summary(self) -> dict[str, object]:
+        """Every field as a dict (NaN and ±inf as None)."""
+
+def compare_ringdowns(
+    before: _F64In,
+    after: _F64In,
+    fs: float,
+    *,
+    settle_fraction: float | None = None,
+    settle_level: float | None = None,
+    min_frequency_hz: float | None = None,
+    max_frequency_hz: float | None = None,
+    max_modes: int = 8,
+) -> RingdownComparison:
+    """Two ring-downs (e.g. without and with pads) side by side.
+
+    Args:
+        before, after: the records (same unit), 1-D float64, sampled at ``fs`` (Hz).
+        settle_fraction: settle threshold as a fraction of the first excursion (default 0.1),
+            or settle_level: an absolute threshold (units of x); give at most one.
+        min_frequency_hz, max_frequency_hz, max_modes: as in ``identify_ringdown``.
+
+    Returns:
+        ``RingdownComparison``: ``before``/``after`` dicts (first_excursion,
+        first_excursion_time_s, decay_time_s, settle_time_s, settle_threshold, frequency_hz,
+        damping_ratio) and after/before ratios. GIL released.
+    """
+
+class RingdownComparison:
+    @property
+    def before(self) -> dict[str, object]: ...
+    @property
+    def after(self) -> dict[str, object]: ...
+    @property
+    def excursion_ratio(self) -> float: ...
+    @property
+    def decay_time_ratio(self) -> float | None: ...
+    @property
+    def settle_time_ratio(self) -> float | None: ...
+    def summary(self) -> dict[str, object]: ...
+
+class Transient:
+    """Output histories of ``Model.transient`` (SI: m or rad)."""
+    @property
+    def time_s(self) -> _F64:
+        """Sample times (s), shape (n,)."""
+    @property
+    def outputs(self) -> list[str]: ...
+    @property
+    def values(self) -> _F64:
+        """Histories, shape (n_out, n), m or rad."""
+    @property
+    def fft_len(self) -> int:
+        """Padded FFT length used."""
+    @property
+    def peak_arcsec(self) -> float | None:
+        """Largest radial image excursion (arcsec); None without image outputs/optics."""
+    @property
+    def peak_px(self) -> float | None: ...
+    @property
+    def peak_time_s(self) -> float | None: ...
+    @property
+    def radius_px(self) -> float | None: ...
+    @property
+    def settle_time_s(self) -> float | None:
+        """First time (s) from which the image stays within ``radius_px``; None if it ends outside."""
+    @property
+    def fraction_outside(self) -> float | None: ...
+    def __getitem__(self, name: str) -> _F64:
+        """One output's history (m or rad)."""
+    def summary(self) -> dict[str, object]: ...
+
+class ImageTransient:
+    """Sensor-plane history of ``Model.image_response`` / ``Model.gust_response``."""
+    @property
+    def time_s(self) -> _F64: ...
+    @property
+    def image_x_arcsec(self) -> _F64: ...
+    @property
+    def image_y_arcsec(self) -> _F64: ...
+    @property
+    def input_history(self) -> _F64:
+        """The history that drove the model (a gust: drag fluctuation, N)."""
+    @property
+    def plate_scale_arcsec_per_px(self) -> float: ...
+    @property
+    def peak_arcsec(self) -> float: ...
+    @property
+    def peak_px(self) -> float: ...
+    @property
+    def peak_time_s(self) -> float: ...
+    @property
+    def radius_px(self) -> float: ...
+    @property
+    def settle_time_s(self) -> float | None: ...
+    @property
+    def fraction_outside(self) -> float: ...
+    def summary(self) -> dict[str, object]: ...
+
+class Gust:
+    """A wind-speed fluctuation history u′(t) (m/s) about the mean speed."""
+    @staticmethod
+    def step(amplitude_m_s: float, *, start_s: float = 0.0) -> Gust:
+        """u′ = amplitude (m/s) from ``start_s`` (s) on."""
+    @staticmethod
+    def one_minus_cosine(
+        amplitude_m_s: float,
+        *,
+        gradient_distance_m: float | None = None,
+        duration_s: float | None = None,
+        start_s: float = 0.0,
+    ) -> Gust:
+        """The discrete "1-cosine" gust (A/2)(1 − cos(2π(t − t₀)/T)); give the gust gradient
+        distance H (m, T = 2H/U) or the duration T (s)."""
+    @staticmethod
+    def measured(speed_m_s: _F64In, fs: float) -> Gust:
+        """A measured total wind speed (m/s) sampled at ``fs`` (Hz); u′ = speed − mean speed."""
+    @staticmethod
+    def random(psd: Psd, *, seed: int) -> Gust:
+        """A random realisation (random phases, ``seed``) of a velocity ``Psd`` ((m/s)²/Hz)."""
+    def velocity_history(self, mean_speed_m_s: float, fs: float, n: int) -> _F64:
+        """u′ (m/s) at n samples of ``fs`` (Hz) from t = 0."""
+
+def random_realisation(psd: Psd, fs: float, n: int, *, seed: int) -> _F64:
+    """n samples at ``fs`` (Hz) of a zero-mean random realisation of a one-sided PSD (unit²/Hz):
+    random phases from ``seed``; variance = Σ S(f_j) Δf over the FFT bins."""
+
+def static_checks(
+    model_or_path: Model | str | PathLike[str],
+    *,
+    design_wind_m_s: float = 10.0,
+    gust_factor: float = 2.0,
+    air_density_kg_m3: float = 1.225,
+) -> StaticChecks:
+    """Static checks of a rig: leg axial stress and buckling (pinned–pinned, K = 1), tipping in
+    the steady wind about the line through two feet, pier stress and buckling.
+
+    Args:
+        model_or_path: a rig model file (path) or a ``Model`` built from one.
+        design_wind_m_s: mean design wind speed (m/s).
+        gust_factor: factor on the mean drag for gusts (dimensionless).
+        air_density_kg_m3: ρ (kg/m³).
+
+    Returns:
+        ``StaticChecks``: a sequence of dicts (name, value = demand, limit = capacity, unit,
+        factor_of_safety, verdict "pass" | "marginal" | "fail") and ``cautions``. Estimates
+        only: heavy rigs and piers can injure; follow local building codes and a licensed
+        engineer for piers, footings and observatory structures.
+    """
+
+class StaticChecks:
+    def __len__(self) -> int: ...
+    def __getitem__(self, i: int) -> dict[str, object]: ...
+    @property
+    def checks(self) -> list[dict[str, object]]: ...
+    @property
+    def verdict(self) -> Literal["pass", "marginal", "fail"]:
+        """The worst verdict."""
+    @property
+    def min_factor_of_safety(self) -> float: ...
+    @property
+    def cautions(self) -> str:
+        """The cautions that go with every report, one per line."""
+    def summary(self) -> dict[str, object]: ...
