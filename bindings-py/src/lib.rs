@@ -10,6 +10,7 @@ mod model;
 mod results;
 mod series;
 mod spectrum;
+mod sweep;
 
 use pyo3::prelude::*;
 
@@ -22,5 +23,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     spectrum::register(m)?;
     m.add_function(wrap_pyfunction!(series::read_series, m)?)?;
     m.add_function(wrap_pyfunction!(results::identify_ringdown, m)?)?;
+    sweep::register(m)?;
     Ok(())
 }

@@ -559,13 +559,16 @@ pub struct SweepInputs<'a> {
 /// or the whole path where stems collide. Refuses labels with `|` or line breaks and an input
 /// given twice.
 pub fn ground_labels(grounds: &[GroundSource]) -> Result<Vec<String>> {
-    let mut labels: Vec<String> = grounds.iter().map(GroundSource::label).collect();
-    for i in 0..labels.len() {
-        if labels.iter().filter(|l| **l == labels[i]).count() > 1 {
-            labels[i] =
-                grounds[i].path().map(|p| p.display().to_string()).unwrap_or_else(|| labels[i].clone());
-        }
-    }
+    let stems: Vec<String> = grounds.iter().map(GroundSource::label).collect();
+    // Collisions are counted on the stems, so one input given twice stays a duplicate.
+    let labels: Vec<String> = stems
+        .iter()
+        .zip(grounds)
+        .map(|(s, g)| match g.path() {
+            Some(p) if stems.iter().filter(|x| *x == s).count() > 1 => p.display().to_string(),
+            _ => s.clone(),
+        })
+        .collect();
     check_labels(&labels, grounds.len())?;
     Ok(labels)
 }
@@ -1137,6 +1140,12 @@ mod tests {
         assert!(e.to_string().contains("at least one ground"), "{e}");
         let twice = [grounds[2].clone(), grounds[2].clone()];
         assert!(check_sweep(&SweepInputs { grounds: &twice, ..inputs }, &cfg).is_err());
+        let twice = [grounds[1].clone(), grounds[1].clone()];
+        let e = check_sweep(&SweepInputs { grounds: &twice, ..inputs }, &cfg).unwrap_err();
+        assert!(e.to_string().contains("given twice"), "{e}");
+        let same_stem = [grounds[1].clone(), GroundSource::Recording(dir.join("sub").join("broken.csv"))];
+        let l = ground_labels(&same_stem).unwrap();
+        assert!(l[0].ends_with("broken.csv") && l[1].ends_with("sub/broken.csv"), "{l:?}");
         let e = sweep_rows_labelled(&inputs, &labels[..1], &cfg).unwrap_err();
         assert!(e.to_string().contains("ground labels"), "{e}");
         let mut zero = cfg.clone();
