@@ -14,6 +14,7 @@ mod persist;
 mod response;
 mod series;
 mod spectrum;
+mod sweep;
 mod transient;
 
 use pyo3::prelude::*;
@@ -34,5 +35,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<checks::PyStaticChecks>()?;
     m.add_function(wrap_pyfunction!(checks::static_checks, m)?)?;
     m.add_function(wrap_pyfunction!(persist::_model_from_toml, m)?)?;
+    sweep::register(m)?;
     Ok(())
 }

@@ -350,7 +350,7 @@ fn run_sweep(s: &SweepRun) -> CliResult {
         return Err(Failure {
             code: 1,
             message: format!(
-                "{} input(s) failed; see the error rows in {}",
+                "{} row(s) failed; see the error rows in {}",
                 failures.len(),
                 outcome.path.display()
             ),

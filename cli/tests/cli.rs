@@ -239,11 +239,12 @@ fn a_bad_recording_is_an_error_row_and_the_exit_code_says_so() {
     ));
     let (stdout, err) = text(&o);
     assert_eq!(o.status.code(), Some(1), "{err}");
-    assert!(err.contains("1 input(s) failed"), "{err}");
+    // One error row per spec of the bad recording (the baseline and four isolators).
+    assert!(err.contains("5 row(s) failed"), "{err}");
     assert!(stdout.contains("bad.csv") && stdout.contains("line 5"), "{stdout}");
     let rows = stillsky::batch::read_sweep_csv(&out).unwrap();
-    assert_eq!(rows.len(), 6);
-    assert!(rows[0].is_error() && rows[1..].iter().all(|r| !r.is_error()));
+    assert_eq!(rows.len(), 10);
+    assert!(rows[..5].iter().all(|r| r.is_error()) && rows[5..].iter().all(|r| !r.is_error()));
 }
 
 #[test]

@@ -72,3 +72,8 @@ __all__ = [
     "StillskyIOError",
     "__version__",
 ]
+
+# The isolator sweep (stillsky.distributed, on Dask, is imported on its own: it needs dask).
+from ._sweep import SweepTable, sweep  # noqa: E402
+
+__all__ += ["sweep", "SweepTable"]

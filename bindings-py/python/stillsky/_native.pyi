@@ -789,3 +789,75 @@ class StaticChecks:
     def cautions(self) -> str:
         """The cautions that go with every report, one per line."""
     def summary(self) -> dict[str, object]: ...
+# --- isolator sweep (stillsky.sweep in _sweep.py is the public entry; these are its parts) ---
+
+def sweep_rows(
+    model_text: str,
+    model_name: str,
+    catalogue_text: str,
+    catalogue_name: str,
+    spectra: list[str],
+    wind: list[str],
+    *,
+    labels: list[str] | None = None,
+    f_min_hz: float | None = None,
+    f_max_hz: float | None = None,
+    n_freq: int | None = None,
+    pad_prefix: str | None = None,
+    ground_scale: list[float] | None = None,
+    fs_hz: float | None = None,
+    threads: int | None = None,
+) -> list[dict[str, object]]:
+    """Rows of an isolator sweep (catalogue × spectra × wind cases), GIL released.
+
+    Args:
+        model_text, model_name: model file TOML (a rig with [tripod] or a generic layer with
+            pad springs) and the name used in messages.
+        catalogue_text, catalogue_name: isolator catalogue TOML and its name.
+        spectra: recording / PSD file paths, or ``nlnm`` / ``nhnm``.
+        wind: wind cases, ``calm`` or ``SPEED[:HEIGHT[:SPECTRUM[:INTENSITY]]]``; empty: calm.
+        labels: ground labels (one per spectrum, unique) instead of the file stems.
+        f_min_hz, f_max_hz, n_freq: log analysis grid (defaults 0.5, 90, 300).
+        pad_prefix: prefix of the pad springs in a generic model (default ``pad``).
+        ground_scale: per-axis factor on PSD files and reference models.
+        fs_hz: sample rate of text recordings without a time column or ``# fs_hz=`` line.
+        threads: threads of the sweep's own pool (default: all cores).
+
+    Returns:
+        one dict per row with the keys of ``sweep_columns()``; NaN where the CSV is empty,
+        ``worse_than_none``/``overloaded`` bool or None, ``error`` None on a good row. A
+        recording that cannot be read gives an error row per combination naming file and line.
+    """
+
+def sweep_plan(
+    model_text: str,
+    model_name: str,
+    catalogue_text: str,
+    catalogue_name: str,
+    spectra: list[str],
+    wind: list[str],
+    *,
+    f_min_hz: float | None = None,
+    f_max_hz: float | None = None,
+    n_freq: int | None = None,
+    pad_prefix: str | None = None,
+    ground_scale: list[float] | None = None,
+    fs_hz: float | None = None,
+    threads: int | None = None,
+) -> dict[str, list[str]]:
+    """Check a sweep without reading any spectrum: ``{"labels", "winds", "specs"}``."""
+
+def catalogue_toml(entries_json: str, source: str) -> str:
+    """Catalogue TOML from a JSON list of isolator entries (validated)."""
+
+def catalogue_parts(text: str, name: str, per_part: int) -> list[str]:
+    """The catalogue's entries in parts of at most ``per_part``, each as catalogue TOML."""
+
+def sweep_csv(rows: list[dict[str, object]]) -> str:
+    """The command-line sweep's CSV text for these rows (six significant digits)."""
+
+def sweep_error_row(spec: str, spectrum: str, wind: str, reason: str) -> dict[str, object]:
+    """An error row for one combination."""
+
+def sweep_columns() -> list[str]:
+    """The sweep table's column names, in order."""

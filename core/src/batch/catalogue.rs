@@ -262,18 +262,58 @@ impl Catalogue {
                 reason: "no [[isolator]] entries".into(),
             });
         }
+        Self::from_isolators(parsed.isolator, file)
+    }
+
+    /// A catalogue from entries (validated as the file's; `none` entries are dropped, the
+    /// baseline goes first); `source` names them in errors.
+    pub fn from_isolators(entries: Vec<Isolator>, source: &str) -> Result<Catalogue> {
         let mut isolators = vec![Isolator::none()];
-        for iso in parsed.isolator {
-            iso.validate(file)?;
+        for iso in entries {
+            iso.validate(source)?;
             if iso.is_none() {
                 continue; // the baseline is always first
             }
             if isolators.iter().any(|i| i.name == iso.name) {
-                return Err(Error::invalid(format!("{file}: isolator '{}'", iso.name), "is listed twice"));
+                return Err(Error::invalid(format!("{source}: isolator '{}'", iso.name), "is listed twice"));
             }
             isolators.push(iso);
         }
-        Ok(Catalogue { isolators, source: file.into() })
+        Ok(Catalogue { isolators, source: source.into() })
+    }
+
+    /// The catalogue as file text, the baseline included (as `name = "none"`); [`parse`] gives
+    /// it back exactly (numbers are written in shortest round-trip form).
+    ///
+    /// [`parse`]: Catalogue::parse
+    pub fn to_toml(&self) -> Result<String> {
+        #[derive(Serialize)]
+        struct Out<'a> {
+            isolator: &'a [Isolator],
+        }
+        toml::to_string(&Out { isolator: &self.isolators })
+            .map_err(|e| Error::invalid(format!("catalogue {}", self.source), e.to_string()))
+    }
+
+    /// The entries in consecutive parts of at most `per_part` isolators, each a catalogue of its
+    /// own (with the baseline first, as every catalogue); the parts' entries after their
+    /// baselines, in order, are this catalogue's. A catalogue of the baseline alone is one part.
+    pub fn split(&self, per_part: usize) -> Result<Vec<Catalogue>> {
+        if per_part == 0 {
+            return Err(Error::invalid("isolators per part", "must be at least 1"));
+        }
+        let entries: Vec<Isolator> = self.isolators.iter().filter(|i| !i.is_none()).cloned().collect();
+        if entries.is_empty() {
+            return Ok(vec![self.clone()]);
+        }
+        Ok(entries
+            .chunks(per_part)
+            .map(|c| {
+                let mut isolators = vec![Isolator::none()];
+                isolators.extend(c.iter().cloned());
+                Catalogue { isolators, source: self.source.clone() }
+            })
+            .collect())
     }
 
     /// Read a catalogue file.
@@ -457,5 +497,27 @@ tau_s = 0.005
         assert!(e.to_string().contains("reserved"), "{e}");
         let e = Catalogue::parse("", "c.toml").unwrap_err();
         assert!(e.to_string().contains("no [[isolator]]"), "{e}");
+    }
+
+    #[test]
+    fn catalogue_text_round_trips_and_splits_in_order() {
+        let mut c = Catalogue::parse(CAT, "cat.toml").unwrap();
+        // A value with no short decimal form must survive the text exactly.
+        c.isolators[1].loss_factor = Some(0.1 + 0.2);
+        let back = Catalogue::parse(&c.to_toml().unwrap(), "cat.toml").unwrap();
+        assert_eq!(back, c);
+        let parts = c.split(2).unwrap();
+        assert_eq!(parts.len(), 2);
+        let names: Vec<Vec<&str>> =
+            parts.iter().map(|p| p.isolators.iter().map(|i| i.name.as_str()).collect()).collect();
+        assert_eq!(names, [vec!["none", "soft", "gel"], vec!["none", "cork"]]);
+        assert!(c.split(0).is_err());
+        let alone = Catalogue::from_isolators(Vec::new(), "empty").unwrap();
+        let parts = alone.split(5).unwrap();
+        assert_eq!(parts.len(), 1);
+        assert_eq!(parts[0], alone);
+        let e = Catalogue::from_isolators(vec![c.isolators[1].clone(), c.isolators[1].clone()], "list")
+            .unwrap_err();
+        assert!(e.to_string().contains("listed twice"), "{e}");
     }
 }

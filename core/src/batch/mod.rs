@@ -9,9 +9,12 @@
 //! - `key` = `spec|spectrum|wind`, the unit of `--resume`;
 //! - `ratio_to_none` = RMS image motion / that of the baseline for the same spectrum and wind;
 //!   `worse_than_none` when the ratio exceeds 1;
-//! - a recording that cannot be read gives one `error` row (spec and wind `*`, the message naming
-//!   file and line) and the other inputs finish; a spec whose model cannot be built gives error
-//!   rows for its combinations;
+//! - a recording that cannot be read gives an `error` row for each of its combinations (the
+//!   message naming file and line), so the table keeps every key, and the other inputs finish;
+//!   a spec whose model cannot be built gives error rows for its combinations;
+//! - [`sweep_rows`] returns the rows in memory at full precision; [`sweep_rows_labelled`] lets
+//!   a sweep split into parts (specs × grounds) label its grounds as the whole would, so the
+//!   parts' rows are the whole's rows;
 //! - rows are computed in parallel (rayon) and handed to an [`AtomicCsvWriter`] in order as soon
 //!   as the prefix is complete; `resume` keeps the complete rows of an interrupted run and
 //!   computes only the missing keys (error rows count as complete: delete the output to retry).
@@ -116,6 +119,9 @@ pub struct SweepConfig {
     pub ground_scale: [f64; 3],
     /// Options of the recording readers.
     pub series: SeriesOptions,
+    /// Threads of the sweep's own rayon pool; None: the global pool (all cores). The rows do
+    /// not depend on it.
+    pub threads: Option<usize>,
 }
 
 impl SweepConfig {
@@ -126,6 +132,7 @@ impl SweepConfig {
             pad_prefix: DEFAULT_PAD_PREFIX.into(),
             ground_scale: [1.0; 3],
             series: SeriesOptions::default(),
+            threads: None,
         })
     }
     /// Replace the grid.
@@ -141,6 +148,11 @@ impl SweepConfig {
     /// Replace the ground scale.
     pub fn with_ground_scale(mut self, s: [f64; 3]) -> Self {
         self.ground_scale = s;
+        self
+    }
+    /// Run on a pool of `n` threads (at least 1) instead of the global pool.
+    pub fn with_threads(mut self, n: usize) -> Self {
+        self.threads = Some(n);
         self
     }
 }
@@ -215,7 +227,8 @@ impl SweepRow {
         format!("{spec}|{spectrum}|{wind}")
     }
 
-    fn failed(spec: &str, spectrum: &str, wind: &str, reason: String) -> SweepRow {
+    /// An error row for one combination (line breaks in `reason` become spaces).
+    pub fn failed(spec: &str, spectrum: &str, wind: &str, reason: String) -> SweepRow {
         SweepRow {
             key: Self::key_of(spec, spectrum, wind),
             spec: spec.into(),
@@ -542,24 +555,50 @@ pub struct SweepInputs<'a> {
     pub winds: &'a [WindCase],
 }
 
-/// Run a sweep of catalogue × grounds × winds, writing `out` (see the module docs); with
-/// `resume`, continue an interrupted output. `progress` is called after every finished row.
-pub fn run_sweep(
-    inputs: &SweepInputs<'_>,
-    cfg: &SweepConfig,
-    out: &Path,
-    resume: bool,
-    progress: &(dyn Fn(SweepProgress) + Sync),
-) -> Result<SweepOutcome> {
-    let SweepInputs { model, catalogue, grounds, winds } = *inputs;
-    if grounds.is_empty() {
+/// The labels of ground sources in rows and keys: the file stem (or the reference model's name),
+/// or the whole path where stems collide. Refuses labels with `|` or line breaks and an input
+/// given twice.
+pub fn ground_labels(grounds: &[GroundSource]) -> Result<Vec<String>> {
+    let stems: Vec<String> = grounds.iter().map(GroundSource::label).collect();
+    // Collisions are counted on the stems, so one input given twice stays a duplicate.
+    let labels: Vec<String> = stems
+        .iter()
+        .zip(grounds)
+        .map(|(s, g)| match g.path() {
+            Some(p) if stems.iter().filter(|x| *x == s).count() > 1 => p.display().to_string(),
+            _ => s.clone(),
+        })
+        .collect();
+    check_labels(&labels, grounds.len())?;
+    Ok(labels)
+}
+
+fn check_labels(labels: &[String], n_grounds: usize) -> Result<()> {
+    if labels.len() != n_grounds {
+        return Err(Error::shape("ground labels", n_grounds, labels.len()));
+    }
+    if let Some(l) = labels.iter().find(|l| l.contains('|') || l.contains(['\n', '\r'])) {
+        return Err(Error::invalid(format!("ground '{l}'"), "names may not contain '|' or line breaks"));
+    }
+    if labels.iter().collect::<HashSet<_>>().len() != labels.len() {
+        return Err(Error::invalid("ground", "the same input is given twice"));
+    }
+    Ok(())
+}
+
+/// Check what a sweep needs before any ground is read: the pad mechanism of the model, a
+/// `[wind]` section when a wind case blows, no wind case twice. Returns the mechanism and the
+/// wind cases (one calm case when none is given).
+fn prepare(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<(PadMechanism, Vec<WindCase>)> {
+    if inputs.grounds.is_empty() {
         return Err(Error::invalid(
             "ground",
             "give at least one ground spectrum (recording, PSD file, nlnm, nhnm)",
         ));
     }
-    let winds: Vec<WindCase> = if winds.is_empty() { vec![WindCase::calm()] } else { winds.to_vec() };
-    let mech = PadMechanism::for_file(model, &cfg.pad_prefix)?;
+    let winds: Vec<WindCase> =
+        if inputs.winds.is_empty() { vec![WindCase::calm()] } else { inputs.winds.to_vec() };
+    let mech = PadMechanism::for_file(inputs.model, &cfg.pad_prefix)?;
     if winds.iter().any(|w| w.wind.is_some()) && !mech.has_wind() {
         return Err(Error::invalid(
             "wind",
@@ -572,114 +611,132 @@ pub fn run_sweep(
             return Err(Error::invalid(format!("wind case '{}'", w.label), "is given twice"));
         }
     }
-    // Unique spectrum labels: the file stem, or the whole path when stems collide.
-    let mut labels: Vec<String> = grounds.iter().map(GroundSource::label).collect();
-    for i in 0..labels.len() {
-        if labels.iter().filter(|l| **l == labels[i]).count() > 1 {
-            labels[i] =
-                grounds[i].path().map(|p| p.display().to_string()).unwrap_or_else(|| labels[i].clone());
-        }
+    if cfg.threads == Some(0) {
+        return Err(Error::invalid("threads", "must be at least 1"));
     }
-    if let Some(l) = labels.iter().find(|l| l.contains('|') || l.contains(['\n', '\r'])) {
-        return Err(Error::invalid(format!("ground '{l}'"), "names may not contain '|' or line breaks"));
-    }
-    if labels.iter().collect::<HashSet<_>>().len() != labels.len() {
-        return Err(Error::invalid("ground", "the same input is given twice"));
-    }
-    let done_keys = if resume { completed_keys(out, "key")? } else { HashSet::new() };
+    Ok((mech, winds))
+}
 
-    let built: Vec<BuiltSpec> = catalogue.isolators.par_iter().map(|iso| build_spec(&mech, iso)).collect();
-    let spectra: Vec<std::result::Result<GroundSpectrum, String>> = grounds
-        .par_iter()
-        .zip(labels.par_iter())
-        .map(|(g, l)| {
-            g.load(&cfg.grid, cfg.ground_scale, &cfg.series)
-                .map(|mut s| {
-                    s.label = l.clone();
-                    s
-                })
-                .map_err(|e| e.to_string())
-        })
-        .collect();
+/// Check a sweep's inputs without reading any ground or building any model: what
+/// [`sweep_rows`] refuses before it starts (a recording that cannot be read is an error row,
+/// not an error).
+pub fn check_sweep(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<()> {
+    prepare(inputs, cfg)?;
+    ground_labels(inputs.grounds).map(|_| ())
+}
 
-    // Rows in their fixed order; a failed spectrum is one row.
-    let mut jobs: Vec<Option<Job>> = Vec::new();
-    let mut fixed: BTreeMap<usize, SweepRow> = BTreeMap::new();
-    for (gi, s) in spectra.iter().enumerate() {
-        match s {
-            Err(e) => {
-                fixed.insert(jobs.len(), SweepRow::failed("*", &labels[gi], "*", e.clone()));
-                jobs.push(None);
-            }
-            Ok(_) => {
-                for wi in 0..winds.len() {
-                    for (si, iso) in catalogue.isolators.iter().enumerate() {
-                        let key = SweepRow::key_of(&iso.name, &labels[gi], &winds[wi].label);
-                        jobs.push(Some(Job { ground: gi, wind: wi, spec: si, key }));
-                    }
+/// Everything the rows of a sweep are made from, computed once; row `i` is then independent.
+struct SweepPlan<'a> {
+    catalogue: &'a Catalogue,
+    winds: Vec<WindCase>,
+    labels: Vec<String>,
+    grid: &'a FreqGrid,
+    built: Vec<BuiltSpec>,
+    spectra: Vec<std::result::Result<GroundSpectrum, String>>,
+    /// Rows in their fixed order: ground, then wind, then isolator.
+    jobs: Vec<Job>,
+    base_idx: usize,
+    baselines: BTreeMap<(usize, usize), Evaluated>,
+    gusts: BTreeMap<(usize, usize), (f64, f64)>,
+}
+
+impl<'a> SweepPlan<'a> {
+    fn new(inputs: &SweepInputs<'a>, labels: &[String], cfg: &'a SweepConfig) -> Result<SweepPlan<'a>> {
+        let (mech, winds) = prepare(inputs, cfg)?;
+        check_labels(labels, inputs.grounds.len())?;
+        let catalogue = inputs.catalogue;
+        let built: Vec<BuiltSpec> =
+            catalogue.isolators.par_iter().map(|iso| build_spec(&mech, iso)).collect();
+        let spectra: Vec<std::result::Result<GroundSpectrum, String>> = inputs
+            .grounds
+            .par_iter()
+            .zip(labels.par_iter())
+            .map(|(g, l)| {
+                g.load(&cfg.grid, cfg.ground_scale, &cfg.series)
+                    .map(|mut s| {
+                        s.label = l.clone();
+                        s
+                    })
+                    .map_err(|e| e.to_string())
+            })
+            .collect();
+        let mut jobs = Vec::new();
+        for (gi, label) in labels.iter().enumerate() {
+            for (wi, w) in winds.iter().enumerate() {
+                for (si, iso) in catalogue.isolators.iter().enumerate() {
+                    let key = SweepRow::key_of(&iso.name, label, &w.label);
+                    jobs.push(Job { ground: gi, wind: wi, spec: si, key });
                 }
             }
         }
+        // Baselines (always computed: every row needs them for the ratio).
+        let base_idx = catalogue.isolators.iter().position(Isolator::is_none).unwrap_or(0);
+        let baselines: BTreeMap<(usize, usize), Evaluated> = spectra
+            .iter()
+            .enumerate()
+            .filter_map(|(gi, s)| s.as_ref().ok().map(|s| (gi, s)))
+            .flat_map(|(gi, s)| (0..winds.len()).map(move |wi| (gi, wi, s)))
+            .collect::<Vec<_>>()
+            .into_par_iter()
+            .map(|(gi, wi, s)| {
+                let iso = &catalogue.isolators[base_idx];
+                ((gi, wi), evaluate(&built[base_idx], iso, s, &winds[wi], &cfg.grid))
+            })
+            .collect();
+        // Design gusts per (isolator, wind case): they do not depend on the ground.
+        let gust_jobs: Vec<(usize, usize)> = (0..catalogue.isolators.len())
+            .flat_map(|si| (0..winds.len()).map(move |wi| (si, wi)))
+            .filter(|&(_, wi)| winds[wi].wind.is_some())
+            .collect();
+        let gusts: BTreeMap<(usize, usize), (f64, f64)> = gust_jobs
+            .into_par_iter()
+            .filter_map(|(si, wi)| {
+                let m = built[si].model.as_ref().ok()?;
+                let w = winds[wi].wind.as_ref()?;
+                design_gust(m, w).ok().map(|g| ((si, wi), g))
+            })
+            .collect();
+        Ok(SweepPlan {
+            catalogue,
+            winds,
+            labels: labels.to_vec(),
+            grid: &cfg.grid,
+            built,
+            spectra,
+            jobs,
+            base_idx,
+            baselines,
+            gusts,
+        })
     }
-    let total = jobs.len();
-    let key_at = |i: usize| -> String {
-        match &jobs[i] {
-            Some(j) => j.key.clone(),
-            None => fixed.get(&i).map(|r| r.key.clone()).unwrap_or_default(),
-        }
-    };
-    let skip: Vec<bool> = (0..total).map(|i| done_keys.contains(&key_at(i))).collect();
-    // Baselines (always computed: later rows need them for the ratio).
-    let base_idx = catalogue.isolators.iter().position(Isolator::is_none).unwrap_or(0);
-    let baselines: BTreeMap<(usize, usize), Evaluated> = spectra
-        .iter()
-        .enumerate()
-        .filter_map(|(gi, s)| s.as_ref().ok().map(|s| (gi, s)))
-        .flat_map(|(gi, s)| (0..winds.len()).map(move |wi| (gi, wi, s)))
-        .collect::<Vec<_>>()
-        .into_par_iter()
-        .map(|(gi, wi, s)| {
-            ((gi, wi), evaluate(&built[base_idx], &catalogue.isolators[base_idx], s, &winds[wi], &cfg.grid))
-        })
-        .collect();
 
-    // Design gusts per (isolator, wind case): they do not depend on the ground.
-    let gust_jobs: Vec<(usize, usize)> = (0..catalogue.isolators.len())
-        .flat_map(|si| (0..winds.len()).map(move |wi| (si, wi)))
-        .filter(|&(_, wi)| winds[wi].wind.is_some())
-        .collect();
-    let gusts: BTreeMap<(usize, usize), (f64, f64)> = gust_jobs
-        .into_par_iter()
-        .filter_map(|(si, wi)| {
-            let m = built[si].model.as_ref().ok()?;
-            let w = winds[wi].wind.as_ref()?;
-            design_gust(m, w).ok().map(|g| ((si, wi), g))
-        })
-        .collect();
+    fn len(&self) -> usize {
+        self.jobs.len()
+    }
 
-    let make_row = |i: usize| -> SweepRow {
-        if let Some(r) = fixed.get(&i) {
-            return r.clone();
-        }
-        let Some(j) = &jobs[i] else {
+    fn row(&self, i: usize) -> SweepRow {
+        let Some(j) = self.jobs.get(i) else {
             return SweepRow::failed("*", "*", "*", "internal: missing job".into());
         };
-        let iso = &catalogue.isolators[j.spec];
-        let (spec_l, spec_s, wind_l) = (&iso.name, &labels[j.ground], &winds[j.wind].label);
-        let Ok(ground) = &spectra[j.ground] else {
-            return SweepRow::failed(spec_l, spec_s, wind_l, "ground spectrum failed".into());
+        let iso = &self.catalogue.isolators[j.spec];
+        let (spec_l, spec_s, wind_l) = (&iso.name, &self.labels[j.ground], &self.winds[j.wind].label);
+        let ground = match &self.spectra[j.ground] {
+            Ok(g) => g,
+            Err(e) => return SweepRow::failed(spec_l, spec_s, wind_l, e.clone()),
         };
-        let b = &built[j.spec];
-        let res = if j.spec == base_idx {
-            baselines.get(&(j.ground, j.wind)).cloned().unwrap_or_else(|| Err("baseline missing".into()))
+        let b = &self.built[j.spec];
+        let key = (j.ground, j.wind);
+        let res = if j.spec == self.base_idx {
+            self.baselines.get(&key).cloned().unwrap_or_else(|| Err("baseline missing".into()))
         } else {
-            evaluate(b, iso, ground, &winds[j.wind], &cfg.grid)
+            evaluate(b, iso, ground, &self.winds[j.wind], self.grid)
         };
         match res {
             Err(e) => SweepRow::failed(spec_l, spec_s, wind_l, e),
             Ok((rms_arcsec, rms_px, p)) => {
-                let base = baselines.get(&(j.ground, j.wind)).and_then(|r| r.as_ref().ok()).map(|r| r.0);
+                let base = self.baselines.get(&key).and_then(|r| r.as_ref().ok()).map(|r| r.0);
                 let ratio = base.map_or(f64::NAN, |b0| if b0 > 0.0 { rms_arcsec / b0 } else { f64::NAN });
+                let gust = self.gusts.get(&(j.spec, j.wind));
                 SweepRow {
                     key: j.key.clone(),
                     spec: spec_l.clone(),
@@ -698,54 +755,117 @@ pub fn run_sweep(
                         .rated_load_n
                         .filter(|_| b.pad_load_n.is_finite())
                         .map(|r| b.pad_load_n > r),
-                    gust_peak_px: gusts.get(&(j.spec, j.wind)).map_or(f64::NAN, |g| g.0),
-                    gust_settle_s: gusts.get(&(j.spec, j.wind)).map_or(f64::NAN, |g| g.1),
+                    gust_peak_px: gust.map_or(f64::NAN, |g| g.0),
+                    gust_settle_s: gust.map_or(f64::NAN, |g| g.1),
                 }
             }
         }
-    };
-
-    let header: Vec<&str> = SWEEP_COLUMNS.to_vec();
-    let mut writer =
-        if resume { AtomicCsvWriter::resume(out, &header)? } else { AtomicCsvWriter::create(out, &header)? };
-    let kept = writer.rows();
-    let todo: Vec<usize> = (0..total).filter(|&i| !skip[i]).collect();
-    let mut done = total - todo.len();
-    progress(SweepProgress { done, total });
-    let (tx, rx) = std::sync::mpsc::channel::<(usize, SweepRow)>();
-    let mut write_err: Option<Error> = None;
-    std::thread::scope(|scope| {
-        let todo = &todo;
-        let make_row = &make_row;
-        scope.spawn(move || {
-            todo.par_iter().for_each_with(tx, |tx, &i| {
-                let _ = tx.send((i, make_row(i)));
-            });
-        });
-        let mut pending: BTreeMap<usize, SweepRow> = BTreeMap::new();
-        let mut next = 0usize; // position in `todo`
-        for (i, row) in rx {
-            pending.insert(i, row);
-            while next < todo.len() {
-                let Some(row) = pending.remove(&todo[next]) else { break };
-                if write_err.is_none()
-                    && let Err(e) = writer.write_row(&row.fields())
-                {
-                    write_err = Some(e);
-                }
-                next += 1;
-                done += 1;
-                progress(SweepProgress { done, total });
-            }
-        }
-    });
-    if let Some(e) = write_err {
-        return Err(e);
     }
-    let path = writer.finish()?;
-    let rows = read_sweep_csv(&path)?;
-    let summary = summarize(&rows);
-    Ok(SweepOutcome { path, computed: todo.len(), kept, rows, summary })
+}
+
+/// Run `f` on a rayon pool of `threads` threads, or on the global pool.
+fn in_pool<T: Send>(threads: Option<usize>, f: impl FnOnce() -> Result<T> + Send) -> Result<T> {
+    match threads {
+        None => f(),
+        Some(n) => rayon::ThreadPoolBuilder::new()
+            .num_threads(n)
+            .build()
+            .map_err(|e| Error::invalid("threads", format!("cannot start {n} threads: {e}")))?
+            .install(f),
+    }
+}
+
+/// The rows of a sweep of catalogue × grounds × winds, in memory and at full precision, in the
+/// order of the module docs; the same rows [`run_sweep`] writes (its file rounds numbers to six
+/// significant digits). Labels come from [`ground_labels`].
+pub fn sweep_rows(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<Vec<SweepRow>> {
+    let labels = ground_labels(inputs.grounds)?;
+    sweep_rows_labelled(inputs, &labels, cfg)
+}
+
+/// [`sweep_rows`] with the ground labels given (one per ground, unique): a sweep split into
+/// parts (e.g. over machines) labels every part's grounds as the whole sweep would.
+pub fn sweep_rows_labelled(
+    inputs: &SweepInputs<'_>,
+    labels: &[String],
+    cfg: &SweepConfig,
+) -> Result<Vec<SweepRow>> {
+    in_pool(cfg.threads, || {
+        let plan = SweepPlan::new(inputs, labels, cfg)?;
+        Ok((0..plan.len()).into_par_iter().map(|i| plan.row(i)).collect())
+    })
+}
+
+/// A sweep table as the CSV text [`run_sweep`] writes (header and rows, `\n` line ends).
+pub fn sweep_csv_text(rows: &[SweepRow]) -> Result<String> {
+    let what = Path::new("sweep table");
+    let mut out = crate::io::atomic::encode_row(&SWEEP_COLUMNS, what)?;
+    for r in rows {
+        out.extend(crate::io::atomic::encode_row(&r.fields(), what)?);
+    }
+    String::from_utf8(out).map_err(|e| Error::invalid("sweep table", e.to_string()))
+}
+
+/// Run a sweep of catalogue × grounds × winds, writing `out` (see the module docs); with
+/// `resume`, continue an interrupted output. `progress` is called after every finished row.
+pub fn run_sweep(
+    inputs: &SweepInputs<'_>,
+    cfg: &SweepConfig,
+    out: &Path,
+    resume: bool,
+    progress: &(dyn Fn(SweepProgress) + Sync),
+) -> Result<SweepOutcome> {
+    let labels = ground_labels(inputs.grounds)?;
+    prepare(inputs, cfg)?;
+    let done_keys = if resume { completed_keys(out, "key")? } else { HashSet::new() };
+    in_pool(cfg.threads, || {
+        let plan = SweepPlan::new(inputs, &labels, cfg)?;
+        let total = plan.len();
+        let header: Vec<&str> = SWEEP_COLUMNS.to_vec();
+        let mut writer = if resume {
+            AtomicCsvWriter::resume(out, &header)?
+        } else {
+            AtomicCsvWriter::create(out, &header)?
+        };
+        let kept = writer.rows();
+        let todo: Vec<usize> = (0..total).filter(|&i| !done_keys.contains(&plan.jobs[i].key)).collect();
+        let mut done = total - todo.len();
+        progress(SweepProgress { done, total });
+        let (tx, rx) = std::sync::mpsc::channel::<(usize, SweepRow)>();
+        let mut write_err: Option<Error> = None;
+        std::thread::scope(|scope| {
+            let todo = &todo;
+            let plan = &plan;
+            scope.spawn(move || {
+                todo.par_iter().for_each_with(tx, |tx, &i| {
+                    let _ = tx.send((i, plan.row(i)));
+                });
+            });
+            let mut pending: BTreeMap<usize, SweepRow> = BTreeMap::new();
+            let mut next = 0usize; // position in `todo`
+            for (i, row) in rx {
+                pending.insert(i, row);
+                while next < todo.len() {
+                    let Some(row) = pending.remove(&todo[next]) else { break };
+                    if write_err.is_none()
+                        && let Err(e) = writer.write_row(&row.fields())
+                    {
+                        write_err = Some(e);
+                    }
+                    next += 1;
+                    done += 1;
+                    progress(SweepProgress { done, total });
+                }
+            }
+        });
+        if let Some(e) = write_err {
+            return Err(e);
+        }
+        let path = writer.finish()?;
+        let rows = read_sweep_csv(&path)?;
+        let summary = summarize(&rows);
+        Ok(SweepOutcome { path, computed: todo.len(), kept, rows, summary })
+    })
 }
 
 /// One isolator's standing in a summary table.
@@ -958,13 +1078,79 @@ mod tests {
         let grounds = [GroundSource::Recording(bad), GroundSource::PsdFile(g)];
         let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &[] };
         let r = run_sweep(&inputs, &SweepConfig::new().unwrap(), &dir.join("o.csv"), false, &|_| {}).unwrap();
-        assert_eq!(r.rows.len(), 1 + cat.isolators.len());
-        let e = &r.rows[0];
-        assert!(e.is_error());
-        let msg = e.error.as_ref().unwrap();
-        assert!(msg.contains("broken.csv") && msg.contains("line 5"), "{msg}");
-        assert_eq!(r.failures().len(), 1);
-        assert!(r.rows[1..].iter().all(|x| !x.is_error()));
+        let n = cat.isolators.len();
+        assert_eq!(r.rows.len(), 2 * n);
+        // One error row per spec of the bad recording, each with its key.
+        for (e, iso) in r.rows[..n].iter().zip(&cat.isolators) {
+            assert!(e.is_error());
+            assert_eq!(e.key, format!("{}|broken|calm", iso.name));
+            let msg = e.error.as_ref().unwrap();
+            assert!(msg.contains("broken.csv") && msg.contains("line 5"), "{msg}");
+        }
+        assert_eq!(r.failures().len(), n);
+        assert!(r.rows[n..].iter().all(|x| !x.is_error()));
+    }
+
+    #[test]
+    fn rows_in_memory_and_in_parts_are_the_file_rows() {
+        let dir = tmpdir("parts");
+        let g = flat_psd_file(&dir, 1e-9);
+        let bad = dir.join("broken.csv");
+        std::fs::write(&bad, "# fs_hz=100\nz_m_s2\n0.1\nabc\n").unwrap();
+        let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
+        let s = file();
+        let winds = [WindCase::calm(), WindCase::parse("4").unwrap()];
+        let grounds = [
+            GroundSource::PsdFile(g),
+            GroundSource::Recording(bad),
+            GroundSource::Reference(crate::spectrum::ReferenceGround::Nhnm),
+        ];
+        let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &winds };
+        let cfg = SweepConfig::new().unwrap().with_grid(FreqGrid::log(1.0, 60.0, 60).unwrap());
+        let whole = sweep_rows(&inputs, &cfg).unwrap();
+        // The file holds the same rows, to six significant digits.
+        let out = dir.join("file.csv");
+        let r = run_sweep(&inputs, &cfg, &out, false, &|_| {}).unwrap();
+        assert_eq!(sweep_csv_text(&whole).unwrap(), std::fs::read_to_string(&out).unwrap());
+        assert_eq!(r.rows.len(), whole.len());
+        // Parts (specs in twos × one ground each, on one thread) give the whole's rows, bit for
+        // bit: every row is computed from its own spec, ground and wind only.
+        let labels = ground_labels(&grounds).unwrap();
+        let one = cfg.clone().with_threads(1);
+        let mut by_key = std::collections::HashMap::new();
+        for part in cat.split(2).unwrap() {
+            for (gi, gr) in grounds.iter().enumerate() {
+                let gs = std::slice::from_ref(gr);
+                let inp = SweepInputs { model: &s, catalogue: &part, grounds: gs, winds: &winds };
+                for row in sweep_rows_labelled(&inp, &labels[gi..=gi], &one).unwrap() {
+                    by_key.insert(row.key.clone(), row);
+                }
+            }
+        }
+        assert_eq!(by_key.len(), whole.len());
+        for w in &whole {
+            let p = &by_key[&w.key];
+            assert_eq!(format!("{p:?}"), format!("{w:?}"), "{}", w.key);
+            assert_eq!(p.rms_arcsec.to_bits(), w.rms_arcsec.to_bits());
+        }
+        assert!(whole.iter().filter(|r| r.spectrum == "broken").all(SweepRow::is_error));
+        assert!(whole.iter().filter(|r| r.spectrum != "broken").all(|r| !r.is_error()));
+        // Inputs refused before anything is read.
+        let e = check_sweep(&SweepInputs { grounds: &[], ..inputs }, &cfg).unwrap_err();
+        assert!(e.to_string().contains("at least one ground"), "{e}");
+        let twice = [grounds[2].clone(), grounds[2].clone()];
+        assert!(check_sweep(&SweepInputs { grounds: &twice, ..inputs }, &cfg).is_err());
+        let twice = [grounds[1].clone(), grounds[1].clone()];
+        let e = check_sweep(&SweepInputs { grounds: &twice, ..inputs }, &cfg).unwrap_err();
+        assert!(e.to_string().contains("given twice"), "{e}");
+        let same_stem = [grounds[1].clone(), GroundSource::Recording(dir.join("sub").join("broken.csv"))];
+        let l = ground_labels(&same_stem).unwrap();
+        assert!(l[0].ends_with("broken.csv") && l[1].ends_with("sub/broken.csv"), "{l:?}");
+        let e = sweep_rows_labelled(&inputs, &labels[..1], &cfg).unwrap_err();
+        assert!(e.to_string().contains("ground labels"), "{e}");
+        let mut zero = cfg.clone();
+        zero.threads = Some(0);
+        assert!(check_sweep(&inputs, &zero).unwrap_err().to_string().contains("threads"));
     }
 
     #[test]
