@@ -53,11 +53,18 @@
 //! f_n = |s|/2π; from the spectral peak f_n = f_peak/√(1 − 2ζ²) (the peak of the displacement
 //! receptance, which |X|² of a free decay follows; from memory: verify).
 
+mod calibrate;
 mod compare;
 mod dsp;
+mod frf_fit;
 mod pencil;
 
+pub use calibrate::{
+    Calibration, CalibrationOptions, CalibrationParameter, ModalTarget, TargetResidual, calibrate,
+    get_parameter, numeric_paths, set_parameter,
+};
 pub use compare::{CompareOptions, RingdownComparison, RingdownMetrics, SettleThreshold, compare_ringdowns};
+pub use frf_fit::{FrfMode, FrfModeOptions, fit_frf_band, frf_modes};
 
 use crate::Complex64;
 use crate::error::{Error, Result, require_positive};

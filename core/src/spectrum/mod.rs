@@ -34,12 +34,14 @@ pub mod interval;
 pub mod psd;
 pub mod psd_file;
 pub mod reference;
+pub mod transfer;
 pub mod welch;
 pub mod window;
 
 pub use interval::{BandRmsStats, IntervalStream, band_rms_distribution, interval_psds, percentile_linear};
 pub use psd::{BandLevels, BandWidth, Extrapolate, Psd, Quantity};
 pub use reference::{CriterionCurve, CriterionResult, ReferenceGround};
+pub use transfer::{TransferEstimate, transfer_estimate};
 pub use welch::{
     Average, Coherence, CrossSpectrum, Detrend, WelchConfig, WelchPsd, WelchStream, coherence, csd, welch,
 };
