@@ -63,3 +63,22 @@ fn shape_str(s: &[usize]) -> String {
         _ => format!("({})", s.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", ")),
     }
 }
+
+/// A 1-D complex argument as complex128, via `numpy.asarray(x, dtype=complex128)` (no copy when
+/// it already is complex128; real arrays are widened, one copy).
+pub fn c128_1d<'py>(
+    obj: &Bound<'py, PyAny>,
+    name: &str,
+) -> PyResult<PyReadonlyArray1<'py, num_complex::Complex64>> {
+    let py = obj.py();
+    let arr =
+        py.import("numpy")?.call_method1("asarray", (obj, "complex128"))?.cast_into::<PyUntypedArray>()?;
+    if arr.ndim() != 1 {
+        return Err(to_pyerr(Error::invalid(
+            name,
+            format!("must be a 1-D array, got {}-D with shape {}", arr.ndim(), shape_str(arr.shape())),
+        )));
+    }
+    let typed = arr.cast_into::<PyArray1<num_complex::Complex64>>()?;
+    typed.try_readonly().map_err(|e| to_pyerr(Error::invalid(name, format!("cannot borrow the array: {e}"))))
+}

@@ -1,7 +1,7 @@
 //! Ring-down identification (`identify_ringdown`) and the before/after comparison
 //! (`compare_ringdowns`) as result objects. Physics in `stillsky::identify`.
 
-use crate::convert::{f64_1d, slice_or_copy};
+use crate::convert::{c128_1d, f64_1d, slice_or_copy};
 use crate::errors::{IntoPyResult, to_pyerr};
 use crate::image::to_dict;
 use numpy::{IntoPyArray, PyArray1};
@@ -9,8 +9,9 @@ use pyo3::prelude::*;
 use pyo3::types::PyDict;
 use stillsky::Error;
 use stillsky::identify::{
-    self as core_id, CompareOptions, EstimateSource, RingdownComparison, RingdownId, RingdownMetrics,
-    RingdownOptions, SettleThreshold,
+    self as core_id, CalibrationOptions, CalibrationParameter, CompareOptions, EstimateSource,
+    FrfModeOptions, ModalTarget, RingdownComparison, RingdownId, RingdownMetrics, RingdownOptions,
+    SettleThreshold,
 };
 
 fn ringdown_options(
@@ -222,10 +223,140 @@ pub fn compare_ringdowns(
     Ok(PyRingdownComparison { inner })
 }
 
+/// Modes of a measured FRF (e.g. `transfer_estimate(...)["h1"]`): list of dicts with
+/// `frequency_hz`, `damping_ratio`, `residue` (complex, units of H × rad/s), `band_hz` and
+/// `fit_error`. Bins whose `coherence` is below `min_coherence` are left out.
+#[pyfunction]
+#[pyo3(signature = (freq_hz, h, coherence = None, *, min_coherence = 0.9, min_peak_fraction = 0.01,
+                    band_half_width = 0.5, min_prominence = 1.5, max_modes_per_band = 4))]
+#[allow(clippy::too_many_arguments)]
+pub fn frf_modes<'py>(
+    py: Python<'py>,
+    freq_hz: &Bound<'py, PyAny>,
+    h: &Bound<'py, PyAny>,
+    coherence: Option<&Bound<'py, PyAny>>,
+    min_coherence: f64,
+    min_peak_fraction: f64,
+    band_half_width: f64,
+    min_prominence: f64,
+    max_modes_per_band: usize,
+) -> PyResult<Vec<Bound<'py, PyDict>>> {
+    let f = f64_1d(freq_hz, "freq_hz")?;
+    let h = c128_1d(h, "h")?;
+    let c = coherence.map(|c| f64_1d(c, "coherence")).transpose()?;
+    let (f, c) = (slice_or_copy(&f), c.as_ref().map(slice_or_copy));
+    let h = h.as_slice().map(|s| s.to_vec()).unwrap_or_else(|_| h.as_array().to_vec());
+    let mut opts = FrfModeOptions::default();
+    opts.min_coherence = min_coherence;
+    opts.min_peak_fraction = min_peak_fraction;
+    opts.band_half_width = band_half_width;
+    opts.min_prominence = min_prominence;
+    opts.max_modes_per_band = max_modes_per_band;
+    let modes = py.detach(|| core_id::frf_modes(&f, &h, c.as_deref(), &opts)).py_err()?;
+    modes
+        .iter()
+        .map(|m| {
+            let d = PyDict::new(py);
+            d.set_item("frequency_hz", m.frequency_hz)?;
+            d.set_item("damping_ratio", m.damping_ratio)?;
+            d.set_item("residue", pyo3::types::PyComplex::from_doubles(py, m.residue.re, m.residue.im))?;
+            d.set_item("band_hz", m.band_hz)?;
+            d.set_item("fit_error", m.fit_error)?;
+            Ok(d)
+        })
+        .collect()
+}
+
+/// Adjust model-file numbers (dotted paths) so the model's modes match measured ones.
+/// `parameters`: mapping path → (lower, upper); `targets`: frequencies (Hz) or dicts with
+/// `frequency_hz` and optional `damping_ratio`, `mode`, `weight`. Returns a dict (values,
+/// residuals, costs, convergence) with the fitted `model`.
+#[pyfunction]
+#[pyo3(signature = (model, parameters, targets, *, max_iterations = 60, damping_weight = 1.0))]
+pub fn calibrate<'py>(
+    py: Python<'py>,
+    model: PyRef<'py, crate::model::PyModel>,
+    parameters: &Bound<'py, PyDict>,
+    targets: &Bound<'py, PyAny>,
+    max_iterations: usize,
+    damping_weight: f64,
+) -> PyResult<Bound<'py, PyDict>> {
+    let Some(src) = model.source.clone() else {
+        return Err(to_pyerr(Error::unsupported(
+            "calibrate needs a Model built from a model file (Model.from_toml or from_toml_str)",
+        )));
+    };
+    let mut params = Vec::new();
+    for (k, v) in parameters.iter() {
+        let path: String = k.extract()?;
+        let (lower, upper): (f64, f64) = v.extract().map_err(|_| {
+            to_pyerr(Error::invalid(&path, "bounds must be a (lower, upper) pair of numbers"))
+        })?;
+        params.push(CalibrationParameter { path, lower, upper });
+    }
+    let mut tgts = Vec::new();
+    for (i, t) in targets.try_iter()?.enumerate() {
+        let t = t?;
+        if let Ok(f) = t.extract::<f64>() {
+            tgts.push(ModalTarget::frequency(f));
+            continue;
+        }
+        let d = t.cast::<PyDict>().map_err(|_| {
+            to_pyerr(Error::invalid(format!("targets[{i}]"), "must be a frequency (Hz) or a dict"))
+        })?;
+        let get = |key: &str| d.get_item(key);
+        let f: f64 = match get("frequency_hz")? {
+            Some(v) => v.extract()?,
+            None => return Err(to_pyerr(Error::invalid(format!("targets[{i}]"), "has no frequency_hz"))),
+        };
+        let mut mt = ModalTarget::frequency(f);
+        if let Some(v) = get("damping_ratio")? {
+            mt.damping_ratio = v.extract()?;
+        }
+        if let Some(v) = get("mode")? {
+            mt.mode = v.extract()?;
+        }
+        if let Some(v) = get("weight")? {
+            mt.weight = v.extract()?;
+        }
+        for (key, _) in d.iter() {
+            let key: String = key.extract()?;
+            if !["frequency_hz", "damping_ratio", "mode", "weight"].contains(&key.as_str()) {
+                return Err(to_pyerr(Error::invalid(
+                    format!("targets[{i}]"),
+                    format!("unknown key `{key}`"),
+                )));
+            }
+        }
+        tgts.push(mt);
+    }
+    let mut opts = CalibrationOptions::default();
+    opts.max_iterations = max_iterations;
+    opts.damping_weight = damping_weight;
+    let c = py.detach(|| core_id::calibrate(&src.text, &src.label, &params, &tgts, &opts)).py_err()?;
+    let fitted =
+        crate::persist::model_from_text(py, c.model_toml.clone(), format!("{} (calibrated)", src.label))?;
+    let d = to_dict(py, &c)?;
+    d.set_item("model", Py::new(py, fitted)?)?;
+    Ok(d)
+}
+
+/// Every numeric path of a model's file that `calibrate` can adjust.
+#[pyfunction]
+pub fn model_parameters(model: PyRef<'_, crate::model::PyModel>) -> PyResult<Vec<String>> {
+    let Some(src) = model.source.clone() else {
+        return Err(to_pyerr(Error::unsupported("this Model was not built from a model file")));
+    };
+    core_id::numeric_paths(&src.text).py_err()
+}
+
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyRingdownId>()?;
     m.add_class::<PyRingdownComparison>()?;
     m.add_function(wrap_pyfunction!(identify_ringdown, m)?)?;
     m.add_function(wrap_pyfunction!(compare_ringdowns, m)?)?;
+    m.add_function(wrap_pyfunction!(frf_modes, m)?)?;
+    m.add_function(wrap_pyfunction!(calibrate, m)?)?;
+    m.add_function(wrap_pyfunction!(model_parameters, m)?)?;
     Ok(())
 }

@@ -209,6 +209,35 @@ pub fn csd<'py>(
     Ok((r.freq_hz.into_pyarray(py), r.values.into_pyarray(py)))
 }
 
+/// Two-channel transfer estimates from input `x` to output `y`: dict with `freq_hz` (Welch
+/// bins above 0 Hz), `h1` = Pxy/Pxx, `h2` = Pyy/Pyx (complex), `coherence` and `n_segments`.
+#[pyfunction]
+#[pyo3(signature = (x, y, fs, *, nperseg = 256, noverlap = None, window = None, detrend = None))]
+#[allow(clippy::too_many_arguments)]
+pub fn transfer_estimate<'py>(
+    py: Python<'py>,
+    x: &Bound<'py, PyAny>,
+    y: &Bound<'py, PyAny>,
+    fs: f64,
+    nperseg: usize,
+    noverlap: Option<usize>,
+    window: Option<&Bound<'py, PyAny>>,
+    detrend: Option<&Bound<'py, PyAny>>,
+) -> PyResult<Bound<'py, pyo3::types::PyDict>> {
+    let cfg =
+        welch_config(nperseg, noverlap, &defaults(py, window, "hann"), &defaults(py, detrend, "constant"))?;
+    let (x, y) = (f64_1d(x, "x")?, f64_1d(y, "y")?);
+    let (x, y) = (slice_or_copy(&x), slice_or_copy(&y));
+    let r = py.detach(|| spectrum::transfer_estimate(&x, &y, fs, &cfg)).py_err()?;
+    let d = pyo3::types::PyDict::new(py);
+    d.set_item("freq_hz", r.freq_hz.into_pyarray(py))?;
+    d.set_item("h1", r.h1.into_pyarray(py))?;
+    d.set_item("h2", r.h2.into_pyarray(py))?;
+    d.set_item("coherence", r.coherence.into_pyarray(py))?;
+    d.set_item("n_segments", r.n_segments)?;
+    Ok(d)
+}
+
 #[pyfunction]
 #[pyo3(signature = (x, y, fs, *, nperseg = 256, noverlap = None, window = None, detrend = None))]
 #[allow(clippy::too_many_arguments)]
@@ -281,6 +310,7 @@ pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(welch, m)?)?;
     m.add_function(wrap_pyfunction!(csd, m)?)?;
     m.add_function(wrap_pyfunction!(coherence, m)?)?;
+    m.add_function(wrap_pyfunction!(transfer_estimate, m)?)?;
     m.add_function(wrap_pyfunction!(reference_ground, m)?)?;
     m.add_function(wrap_pyfunction!(criterion_curve, m)?)?;
     m.add_function(wrap_pyfunction!(wind_spectrum, m)?)?;

@@ -473,6 +473,76 @@ def coherence(
 ) -> tuple[_F64, _F64]:
     """Magnitude-squared coherence |Pxy|²/(Pxx Pyy) (meaning of ``scipy.signal.coherence``)."""
 
+def transfer_estimate(
+    x: _F64In,
+    y: _F64In,
+    fs: float,
+    *,
+    nperseg: int = 256,
+    noverlap: int | None = None,
+    window: str | _F64In = "hann",
+    detrend: Literal["constant", "linear", "none", False] = "constant",
+) -> dict[str, object]:
+    """Two-channel FRF estimates from input ``x`` (e.g. hammer force, N, or ground motion) to
+    output ``y`` (e.g. payload acceleration), both sampled at ``fs`` (Hz), Welch arguments as
+    in ``scipy.signal.welch``.
+
+    Returns a dict: ``freq_hz`` (Welch bins above 0 Hz), ``h1`` = Pxy/Pxx (unbiased by noise on
+    y), ``h2`` = Pyy/Pyx (unbiased by noise on x), complex, units of y per unit of x;
+    ``coherence`` = |Pxy|²/(Pxx Pyy) = |H1/H2|; ``n_segments``. GIL released.
+    """
+
+def frf_modes(
+    freq_hz: _F64In,
+    h: object,
+    coherence: _F64In | None = None,
+    *,
+    min_coherence: float = 0.9,
+    min_peak_fraction: float = 0.01,
+    band_half_width: float = 0.5,
+    min_prominence: float = 1.5,
+    max_modes_per_band: int = 4,
+) -> list[dict[str, object]]:
+    """Natural frequencies and damping from a measured FRF ``h`` (complex, on ``freq_hz`` in Hz).
+
+    Peaks of |h| (among bins with ``coherence`` ≥ ``min_coherence``, at least
+    ``min_peak_fraction`` of the largest and ``min_prominence`` times above their band's
+    valleys) get bands [f/(1+b), f(1+b)], b = ``band_half_width``; overlapping bands merge and
+    each band is fitted by a rational function (Levy's method with Sanathanan–Koerner
+    reweighting), one mode per peak. Returns dicts with ``frequency_hz``, ``damping_ratio``,
+    ``residue`` (complex, units of h × rad/s), ``band_hz`` and ``fit_error`` (RMS misfit /
+    band's max |h|), ascending in frequency.
+    """
+
+def calibrate(
+    model: Model,
+    parameters: dict[str, tuple[float, float]],
+    targets: Sequence[float | dict[str, float]],
+    *,
+    max_iterations: int = 60,
+    damping_weight: float = 1.0,
+) -> dict[str, object]:
+    """Adjust numbers in the model's file so its modes match measured ones.
+
+    Args:
+        model: a ``Model`` built from a model file.
+        parameters: dotted path → (lower, upper) bounds in the file's units, e.g.
+            ``{"mount.tilt_stiffness_nm_per_rad": (5e3, 1e5)}``; arrays by index or by a
+            table's ``name``: ``"spring[pad].stiffness_n_per_m"``. See ``model_parameters``.
+        targets: measured natural frequencies (Hz), or dicts with ``frequency_hz`` and optional
+            ``damping_ratio``, ``mode`` (model mode index, ascending) and ``weight``. Untied
+            targets go to the nearest model mode at the starting values.
+        max_iterations: Levenberg–Marquardt iterations; damping_weight: weight of damping
+            residuals relative to frequency residuals.
+
+    Returns a dict: ``paths``, ``initial``, ``values``, ``at_bound``, ``residuals`` (per target:
+    mode, target/model frequency and damping, relative errors), ``initial_cost``, ``cost``,
+    ``iterations``, ``converged``, ``model_toml`` and the fitted ``model``. GIL released.
+    """
+
+def model_parameters(model: Model) -> list[str]:
+    """Every numeric dotted path in the model's file (what ``calibrate`` can adjust)."""
+
 def reference_ground(name: Literal["nlnm", "nhnm"], freq_hz: _F64In) -> Psd:
     """Peterson (1993) low / high noise model as a ground acceleration PSD ((m/s²)²/Hz) on
     ``freq_hz`` (Hz, inside the model's defined period range)."""

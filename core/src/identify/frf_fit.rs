@@ -29,7 +29,7 @@ use std::f64::consts::PI;
 pub struct FrfModeOptions {
     /// Bins with a lower coherence are left out of peak search and fit (default 0.9).
     pub min_coherence: f64,
-    /// A peak must reach this fraction of the largest |H| (default 0.05).
+    /// A peak must reach this fraction of the largest |H| (default 0.01).
     pub min_peak_fraction: f64,
     /// Band around each peak: [f/(1 + b), f(1 + b)] (default 0.5). Wider bands merge
     /// neighbouring modes into one fit, which then models them exactly instead of as residuals.
@@ -47,7 +47,7 @@ impl Default for FrfModeOptions {
     fn default() -> Self {
         Self {
             min_coherence: 0.9,
-            min_peak_fraction: 0.05,
+            min_peak_fraction: 0.01,
             band_half_width: 0.5,
             min_prominence: 1.5,
             max_modes_per_band: 4,
