@@ -4,6 +4,7 @@
 use rand::{SeedableRng, rngs::StdRng};
 use rand_distr::{Distribution, Normal};
 use std::f64::consts::PI;
+use stillsky::Error;
 use stillsky::identify::{
     CalibrationOptions, CalibrationParameter, FrfModeOptions, ModalTarget, RingdownOptions, calibrate,
     frf_modes, get_parameter, identify_ringdown, set_parameter,
@@ -172,4 +173,67 @@ fn calibration_fits_stiffness_and_damping_together() {
     let c = calibrate(&start, "start", &p, &targets, &CalibrationOptions::default()).unwrap();
     assert!((c.values[0] / 2.6e4 - 1.0).abs() < 0.01, "{c:?}");
     assert!((c.values[1] / 30.0 - 1.0).abs() < 0.01, "{c:?}");
+}
+
+#[test]
+fn calibration_paths_read_and_write_numbers() {
+    let two = chain2(4.0e4, 2.0e4, 2e-4);
+    let two = two.as_str();
+    assert_eq!(get_parameter(two, "spring[pad].stiffness_n_per_m").unwrap(), 40000.0);
+    assert_eq!(get_parameter(two, "spring[1].stiffness_n_per_m").unwrap(), 20000.0);
+    assert_eq!(get_parameter(two, "body[b].mass_kg").unwrap(), 1.0);
+    assert_eq!(get_parameter(two, "body[0].cg_m[0]").unwrap(), 1.0);
+    let t = set_parameter(two, "spring[column].stiffness_n_per_m", 1.5e4).unwrap();
+    assert_eq!(get_parameter(&t, "spring[1].stiffness_n_per_m").unwrap(), 1.5e4);
+    let e = get_parameter(two, "spring[pad].stifness_n_per_m").unwrap_err();
+    assert!(
+        matches!(e, Error::UnknownName { ref name, ref known, .. }
+        if name == "spring[pad].stifness_n_per_m" && known.contains("spring[pad].stiffness_n_per_m")),
+        "{e}"
+    );
+    let e = get_parameter(two, "spring[pad].name").unwrap_err();
+    assert!(e.to_string().contains("not a number"), "{e}");
+    assert!(get_parameter(two, "spring[pad").is_err());
+    assert!(get_parameter(two, "").is_err());
+}
+
+#[test]
+fn calibration_recovers_a_stiffness_from_exact_frequencies() {
+    let two = chain2(4.0e4, 2.0e4, 2e-4);
+    let two = two.as_str();
+    // Synthesise: the same model with the pad at 55 000 N/m; its two modes are the data.
+    let truth = set_parameter(two, "spring[pad].stiffness_n_per_m", 55_000.0).unwrap();
+    let m = Model::from_toml_str(&truth, "truth").unwrap().modes().unwrap();
+    let targets: Vec<ModalTarget> = m.frequency_hz.iter().map(|&f| ModalTarget::frequency(f)).collect();
+    let p = [CalibrationParameter { path: "spring[pad].stiffness_n_per_m".into(), lower: 1e3, upper: 1e6 }];
+    let c = calibrate(two, "two", &p, &targets, &CalibrationOptions::default()).unwrap();
+    assert!((c.values[0] / 55_000.0 - 1.0).abs() < 1e-6, "{c:?}");
+    assert!(c.converged && c.cost < 1e-14 && !c.at_bound[0]);
+    assert_eq!(get_parameter(&c.model_toml, "spring[pad].stiffness_n_per_m").unwrap(), c.values[0]);
+}
+
+#[test]
+fn bad_calibration_inputs_are_named() {
+    let two = chain2(4.0e4, 2.0e4, 2e-4);
+    let two = two.as_str();
+    let t = [ModalTarget::frequency(10.0)];
+    let p =
+        |path: &str, lo: f64, hi: f64| vec![CalibrationParameter { path: path.into(), lower: lo, upper: hi }];
+    let o = CalibrationOptions::default();
+    assert!(matches!(
+        calibrate(two, "two", &p("spring[x].stiffness_n_per_m", 1.0, 1e6), &t, &o),
+        Err(Error::UnknownName { .. })
+    ));
+    assert!(matches!(
+        calibrate(two, "two", &p("spring[pad].stiffness_n_per_m", 1e5, 1e6), &t, &o),
+        Err(Error::OutOfRange { .. })
+    ));
+    assert!(calibrate(two, "two", &p("spring[pad].stiffness_n_per_m", 1e6, 1e3), &t, &o).is_err());
+    let two_p =
+        [p("spring[pad].stiffness_n_per_m", 1e3, 1e6), p("spring[column].stiffness_n_per_m", 1e3, 1e6)]
+            .concat();
+    let e = calibrate(two, "two", &two_p, &t, &o).unwrap_err();
+    assert!(e.to_string().contains("underdetermined"), "{e}");
+    let three = [ModalTarget::frequency(5.0), ModalTarget::frequency(10.0), ModalTarget::frequency(20.0)];
+    assert!(calibrate(two, "two", &p("spring[pad].stiffness_n_per_m", 1e3, 1e6), &three, &o).is_err());
 }
