@@ -94,6 +94,7 @@ fn c_programs_pass_and_match_core() {
     let smoke = compile("smoke");
     let errors = compile("errors");
     let monitor = compile("monitor");
+    let matrix = compile("errors_matrix");
 
     // Happy path: the C program checks the closed form itself; here the numbers it wrote are
     // compared with the core crate called directly.
@@ -117,6 +118,22 @@ fn c_programs_pass_and_match_core() {
         let d = ((r[1] - h.re).powi(2) + (r[2] - h.im).powi(2)).sqrt() / h.norm();
         assert!(d <= 1e-12, "C {r:?} vs core {h}: {d:e}");
     }
+
+    // docs/errors.md: every row whose C cell is not "n/a" is printed as "row ID ok".
+    let printed = run(Command::new(&matrix).current_dir(out_dir()), "errors_matrix");
+    let doc = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/errors.md"))
+        .expect("docs/errors.md");
+    let mut rows = 0;
+    let matrix_rows = doc.split("<!-- matrix -->").nth(1).and_then(|t| t.split("\n## ").next()).unwrap_or("");
+    for line in matrix_rows.lines().filter(|l| l.starts_with("| `")) {
+        let cells: Vec<&str> = line.split('|').map(str::trim).collect();
+        let id = cells[1].trim_matches('`');
+        if !cells[6].starts_with("n/a") {
+            assert!(printed.contains(&format!("row {id} ok")), "C case for row {id} did not pass");
+            rows += 1;
+        }
+    }
+    assert!(rows >= 20, "only {rows} C rows in docs/errors.md");
 
     let mut seen = reached(&run(&mut Command::new(&errors), "errors"));
     let mon = run(&mut Command::new(&monitor), "monitor");
@@ -143,9 +160,12 @@ fn c_programs_pass_and_match_core() {
     match Command::new("valgrind").arg("--version").output() {
         Ok(o) if o.status.success() => {
             let quick = std::ffi::OsString::from("--quick");
-            for (exe, arg) in
-                [(&smoke, Some(file.clone().into_os_string())), (&errors, None), (&monitor, Some(quick))]
-            {
+            for (exe, arg) in [
+                (&smoke, Some(file.clone().into_os_string())),
+                (&errors, None),
+                (&monitor, Some(quick)),
+                (&matrix, None),
+            ] {
                 let mut c = Command::new("valgrind");
                 c.args([
                     "--error-exitcode=1",
@@ -158,7 +178,7 @@ fn c_programs_pass_and_match_core() {
                     "--suppressions={}",
                     Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/valgrind.supp").display()
                 ));
-                c.arg(exe);
+                c.arg(exe).current_dir(out_dir());
                 if let Some(a) = arg {
                     c.arg(a);
                 }

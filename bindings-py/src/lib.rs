@@ -4,12 +4,18 @@
 //! (with the interpreter released for anything heavier than O(n)), maps the error and converts
 //! the result. Docstrings for Python users live in `python/stillsky/_native.pyi`.
 
+mod checks;
 mod convert;
 mod errors;
+mod identify;
+mod image;
 mod model;
-mod results;
+mod persist;
+mod response;
 mod series;
 mod spectrum;
+mod sweep;
+mod transient;
 
 use pyo3::prelude::*;
 
@@ -19,8 +25,16 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     errors::register(m)?;
     m.add_class::<model::PyModel>()?;
     m.add_class::<model::PyModes>()?;
+    m.add_class::<image::PyWind>()?;
+    m.add_class::<image::PyImageMotion>()?;
+    m.add_class::<series::PySeries>()?;
     spectrum::register(m)?;
     m.add_function(wrap_pyfunction!(series::read_series, m)?)?;
-    m.add_function(wrap_pyfunction!(results::identify_ringdown, m)?)?;
+    identify::register(m)?;
+    transient::register(m)?;
+    m.add_class::<checks::PyStaticChecks>()?;
+    m.add_function(wrap_pyfunction!(checks::static_checks, m)?)?;
+    m.add_function(wrap_pyfunction!(persist::_model_from_toml, m)?)?;
+    sweep::register(m)?;
     Ok(())
 }

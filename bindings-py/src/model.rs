@@ -12,21 +12,134 @@ use stillsky::model::Model;
 #[pyclass(name = "Model", module = "stillsky._native", frozen)]
 pub struct PyModel {
     pub inner: Model,
+    /// The model-file text it was built from (for pickling and `static_checks`), if any.
+    pub source: Option<std::sync::Arc<crate::persist::ModelSource>>,
 }
 
 #[pymethods]
 impl PyModel {
     #[staticmethod]
     fn from_toml(py: Python<'_>, path: PathBuf) -> PyResult<Self> {
-        let inner = py.detach(|| Model::from_toml_path(&path)).py_err()?;
-        Ok(PyModel { inner })
+        crate::persist::model_from_path(py, &path)
     }
 
     #[staticmethod]
-    #[pyo3(signature = (text, label = "<string>"))]
-    fn from_toml_str(py: Python<'_>, text: &str, label: &str) -> PyResult<Self> {
-        let inner = py.detach(|| Model::from_toml_str(text, label)).py_err()?;
-        Ok(PyModel { inner })
+    #[pyo3(signature = (text, label = String::from("<string>")))]
+    fn from_toml_str(py: Python<'_>, text: String, label: String) -> PyResult<Self> {
+        crate::persist::model_from_text(py, text, label)
+    }
+
+    fn __reduce__<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, pyo3::types::PyTuple>> {
+        crate::persist::reduce_model(self, py)
+    }
+
+    #[pyo3(signature = (freq_hz, *, ground = None, wind = None, loads = None, output))]
+    fn response<'py>(
+        &self,
+        py: Python<'py>,
+        freq_hz: &Bound<'py, PyAny>,
+        ground: Option<&Bound<'py, PyAny>>,
+        wind: Option<PyRef<'py, crate::image::PyWind>>,
+        loads: Option<&Bound<'py, PyAny>>,
+        output: &Bound<'py, PyAny>,
+    ) -> PyResult<Bound<'py, PyAny>> {
+        crate::response::response(&self.inner, py, freq_hz, ground, wind, loads, output)
+    }
+
+    #[pyo3(signature = (input, history, fs, *, outputs = None, ground = "displacement",
+                        decay_tolerance = 1e-6, radius_px = 0.5))]
+    #[allow(clippy::too_many_arguments)]
+    fn transient<'py>(
+        &self,
+        py: Python<'py>,
+        input: &str,
+        history: &Bound<'py, PyAny>,
+        fs: f64,
+        outputs: Option<&Bound<'py, PyAny>>,
+        ground: &str,
+        decay_tolerance: f64,
+        radius_px: f64,
+    ) -> PyResult<crate::transient::PyTransient> {
+        let default = pyo3::types::PyTuple::new(py, ["image_x", "image_y"])?.into_any();
+        let outputs = outputs.unwrap_or(&default);
+        crate::transient::transient(
+            &self.inner,
+            py,
+            input,
+            history,
+            fs,
+            outputs,
+            ground,
+            decay_tolerance,
+            radius_px,
+        )
+    }
+
+    #[pyo3(signature = (input, history, fs, *, outputs, ground = "displacement"))]
+    fn newmark<'py>(
+        &self,
+        py: Python<'py>,
+        input: &str,
+        history: &Bound<'py, PyAny>,
+        fs: f64,
+        outputs: &Bound<'py, PyAny>,
+        ground: &str,
+    ) -> PyResult<crate::transient::PyTransient> {
+        crate::transient::newmark(&self.inner, py, input, history, fs, outputs, ground)
+    }
+
+    #[pyo3(signature = (input, history, fs, *, ground = "displacement", decay_tolerance = 1e-6,
+                        radius_px = 0.5))]
+    #[allow(clippy::too_many_arguments)]
+    fn image_response(
+        &self,
+        py: Python<'_>,
+        input: &str,
+        history: &Bound<'_, PyAny>,
+        fs: f64,
+        ground: &str,
+        decay_tolerance: f64,
+        radius_px: f64,
+    ) -> PyResult<crate::transient::PyImageTransient> {
+        crate::transient::image_response(
+            &self.inner,
+            py,
+            input,
+            history,
+            fs,
+            ground,
+            decay_tolerance,
+            radius_px,
+        )
+    }
+
+    #[pyo3(signature = (gust, *, mean_speed_m_s, fs, duration_s, air_density_kg_m3 = 1.225,
+                        drag_law = "quadratic", decay_tolerance = 1e-6, radius_px = 0.5))]
+    #[allow(clippy::too_many_arguments)]
+    fn gust_response(
+        &self,
+        py: Python<'_>,
+        gust: PyRef<'_, crate::transient::PyGust>,
+        mean_speed_m_s: f64,
+        fs: f64,
+        duration_s: f64,
+        air_density_kg_m3: f64,
+        drag_law: &str,
+        decay_tolerance: f64,
+        radius_px: f64,
+    ) -> PyResult<crate::transient::PyImageTransient> {
+        crate::transient::gust_response(
+            &self.inner,
+            py,
+            &gust,
+            mean_speed_m_s,
+            fs,
+            duration_s,
+            air_density_kg_m3,
+            drag_law,
+            decay_tolerance,
+            radius_px,
+        )
     }
 
     #[getter]
@@ -123,32 +236,31 @@ impl PyModel {
         Ok(self.inner.output_vector(name).py_err()?.into_pyarray(py))
     }
 
-    #[pyo3(signature = (freq_hz, *, ground = None, loads = None, exposure_s = None,
-                        guide_cadence_s = None, guide_gain = 0.5, radius_px = None,
-                        seeing_fwhm_arcsec = None, mode_shares = true))]
+    #[pyo3(signature = (freq_hz, *, ground = None, wind = None, loads = None, exposure_s = None,
+                        guide = None, radius_px = None, seeing_fwhm_arcsec = None, mode_shares = true))]
     #[allow(clippy::too_many_arguments)]
     fn image_motion<'py>(
         &self,
         py: Python<'py>,
         freq_hz: &Bound<'py, PyAny>,
         ground: Option<&Bound<'py, PyAny>>,
-        loads: Option<Vec<(String, PyRef<'py, crate::spectrum::PyPsd>)>>,
+        wind: Option<PyRef<'py, crate::image::PyWind>>,
+        loads: Option<&Bound<'py, PyAny>>,
         exposure_s: Option<f64>,
-        guide_cadence_s: Option<f64>,
-        guide_gain: f64,
+        guide: Option<&Bound<'py, PyAny>>,
         radius_px: Option<f64>,
         seeing_fwhm_arcsec: Option<f64>,
         mode_shares: bool,
-    ) -> PyResult<Bound<'py, PyDict>> {
-        crate::results::image_motion(
+    ) -> PyResult<crate::image::PyImageMotion> {
+        crate::image::image_motion(
             &self.inner,
             py,
             freq_hz,
             ground,
+            wind,
             loads,
             exposure_s,
-            guide_cadence_s,
-            guide_gain,
+            guide,
             radius_px,
             seeing_fwhm_arcsec,
             mode_shares,

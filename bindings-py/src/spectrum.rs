@@ -9,7 +9,6 @@ use std::path::PathBuf;
 use stillsky::spectrum::{
     self, CriterionCurve, Detrend, Extrapolate, Psd, Quantity, ReferenceGround, WelchConfig, Window,
 };
-use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 use stillsky::{Error, FreqGrid};
 
 type F64Array<'py> = Bound<'py, PyArray1<f64>>;
@@ -114,6 +113,18 @@ impl PyPsd {
 
     fn __len__(&self) -> usize {
         self.inner.len()
+    }
+
+    /// Pickle as (Psd, (freq_hz, values, quantity)): the arrays round-trip bit for bit.
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<Bound<'py, pyo3::types::PyTuple>> {
+        let py = slf.py();
+        let p = &slf.get().inner;
+        let args = (
+            p.freq_hz().to_vec().into_pyarray(py),
+            p.values().to_vec().into_pyarray(py),
+            p.quantity().name(),
+        );
+        pyo3::types::PyTuple::new(py, [slf.get_type().into_any(), args.into_pyobject(py)?.into_any()])
     }
 
     fn __repr__(&self) -> String {
@@ -252,18 +263,15 @@ pub fn wind_spectrum(
     roughness_length_m: Option<f64>,
     shelter_factor: f64,
 ) -> PyResult<PyPsd> {
-    let turbulence = match (turbulence_intensity, roughness_length_m) {
-        (Some(i), None) => Turbulence::Intensity(i),
-        (None, Some(z0_m)) => Turbulence::RoughnessLength { z0_m },
-        _ => {
-            return Err(to_pyerr(Error::invalid(
-                "turbulence",
-                "give exactly one of turbulence_intensity or roughness_length_m",
-            )));
-        }
-    };
-    let spec = WindSpec::new(WindSpectrum::from_name(kind).py_err()?, mean_speed_m_s, height_m, turbulence)
-        .with_shelter_factor(shelter_factor);
+    let spec = crate::image::wind_spec(
+        kind,
+        mean_speed_m_s,
+        height_m,
+        turbulence_intensity,
+        roughness_length_m,
+        shelter_factor,
+        None,
+    )?;
     let g = grid(freq_hz, "freq_hz")?;
     Ok(PyPsd { inner: spec.velocity_psd(&g).py_err()? })
 }

@@ -23,17 +23,60 @@ def test_image_rms_equals_numpy_from_frf(model):
     f = np.geomspace(0.5, 100.0, 600)
     s_disp = 1e-16 * (f / 5.0) ** -4  # invented ground displacement PSD, m²/Hz
     ground = stillsky.Psd(f, s_disp, "displacement")
-    r = model.image_motion(f, ground=ground, mode_shares=False)
+    r = model.image_motion(freq_hz=f, ground={"x": ground, "y": ground, "z": ground}, mode_shares=False)
     h = model.frf(f, ["ground_x", "ground_y", "ground_z"], ["image_x", "image_y"])
     s_img = (np.abs(h) ** 2 * s_disp[:, None, None]).sum(axis=2) * ARCSEC_PER_RAD**2
     per_axis = np.sqrt(np.trapezoid(s_img, f, axis=0))
-    np.testing.assert_allclose(r["per_axis_arcsec"], per_axis, rtol=1e-12)
-    assert r["rms_arcsec"] == pytest.approx(np.hypot(*per_axis), rel=1e-12)
-    np.testing.assert_allclose(r["psd_arcsec2"], s_img.T, rtol=1e-12)
-    assert r["psd_arcsec2"].shape == (2, f.size) and r["cumulative_rms_arcsec"].shape == (2, f.size)
+    np.testing.assert_allclose(r.per_axis_arcsec, per_axis, rtol=1e-12)
+    assert r.rms_arcsec == pytest.approx(np.hypot(*per_axis), rel=1e-12)
+    np.testing.assert_allclose(r.psd, s_img.T, rtol=1e-12)
+    assert r.psd.shape == (2, f.size) and r.cumulative_rms_arcsec.shape == (2, f.size)
     # Plate scale ″/px = (648000/π)·1e-3 × pixel_um / f_mm (DESIGN conventions): 3.76 µm at 2800 mm.
-    assert r["plate_scale_arcsec_per_px"] == pytest.approx(ARCSEC_PER_RAD * 1e-3 * 3.76 / 2800, rel=1e-12)
-    assert r["rms_px"] == pytest.approx(r["rms_arcsec"] / r["plate_scale_arcsec_per_px"], rel=1e-9)
+    assert r.plate_scale_arcsec_per_px == pytest.approx(ARCSEC_PER_RAD * 1e-3 * 3.76 / 2800, rel=1e-12)
+    assert r.rms_px == pytest.approx(r.rms_arcsec / r.plate_scale_arcsec_per_px, rel=1e-9)
+
+
+def test_one_psd_means_all_three_axes_and_summary(model):
+    f = np.geomspace(0.5, 100.0, 200)
+    g = stillsky.Psd(f, 1e-16 * (f / 5.0) ** -4, "displacement")
+    a = model.image_motion(f, ground=g)
+    b = model.image_motion(f, ground={"x": g, "y": g, "z": g})
+    np.testing.assert_array_equal(a.psd, b.psd)
+    s = a.summary()
+    assert s["rms_arcsec"] == a.rms_arcsec and "psd_arcsec2" not in s
+    assert sum(m["share"] for m in a.mode_share) == pytest.approx(1.0, abs=1e-9)
+    assert sum(a.input_share.values()) == pytest.approx(1.0, abs=1e-9)
+    assert a.p_outside() == s["p_outside"]
+    # Rayleigh tail for an isotropic Gaussian is the upper bound check only when σx ≠ σy; here
+    # check monotonicity and the limits (a probability), computed by the core per radius.
+    p = [a.p_outside(r) for r in (0.0, 0.25, 0.5, 1.0, 4.0)]
+    assert p[0] == pytest.approx(1.0) and all(x >= y for x, y in zip(p, p[1:])) and p[-1] < p[0]
+
+
+def test_wind_equals_numpy_linearised_drag(model):
+    # Quasi-steady linearised drag (REFERENCES.md §6.6; e.g. Simiu & Scanlan, Wind Effects on
+    # Structures): S_F = (ρ C_d A U)² S_u, with ρ = 1.225 kg/m³ and the model's [wind] area and
+    # drag coefficient (tripod-lawn.toml: A = 0.2 m², C_d = 1.2); S_img = |H_wind→image|² S_F.
+    f = np.geomspace(0.2, 100.0, 400)
+    wind = stillsky.Wind("kaimal", 4.0, 2.0, turbulence_intensity=0.2)
+    r = model.image_motion(f, wind=wind, mode_shares=False)
+    su = wind.spectrum(f).values
+    np.testing.assert_array_equal(su, stillsky.wind_spectrum("kaimal", f, 4.0, 2.0, turbulence_intensity=0.2).values)
+    s_force = (1.225 * 1.2 * 0.2 * 4.0) ** 2 * su
+    h = model.frf(f, "wind", ["image_x", "image_y"])[:, :, 0]
+    s_img = (np.abs(h) ** 2 * s_force[:, None]).T * ARCSEC_PER_RAD**2
+    np.testing.assert_allclose(r.psd, s_img, rtol=1e-10)
+    assert r.input_share == {"wind": pytest.approx(1.0)}
+
+
+def test_loads_mapping_and_pairs_agree(model):
+    f = np.geomspace(0.5, 100.0, 300)
+    force = stillsky.Psd(f, np.full(f.size, 1e-4), "force")
+    a = model.image_motion(f, loads={"force:payload:x": force})
+    b = model.image_motion(f, loads=[("force:payload:x", force)])
+    np.testing.assert_array_equal(a.psd, b.psd)
+    h = model.frf(f, "force:payload:x", ["image_x", "image_y"])[:, :, 0]
+    np.testing.assert_allclose(a.psd, (np.abs(h) ** 2 * 1e-4).T * ARCSEC_PER_RAD**2, rtol=1e-10)
 
 
 def test_image_motion_needs_valid_ground(model):
@@ -42,3 +85,9 @@ def test_image_motion_needs_valid_ground(model):
         model.image_motion(f, ground=[None, None])
     with pytest.raises(stillsky.InvalidInputError):
         model.image_motion(np.array([2.0, 1.0]))
+    with pytest.raises(stillsky.InvalidInputError, match="ground axis"):
+        model.image_motion(f, ground={"w": stillsky.Psd(f, np.ones(f.size), "displacement")})
+    with pytest.raises(stillsky.InvalidInputError, match="radius_px"):
+        model.image_motion(f, ground=stillsky.Psd(f, np.ones(f.size), "displacement")).p_outside(-1.0)
+    with pytest.raises(stillsky.InvalidInputError, match="turbulence"):
+        stillsky.Wind("kaimal", 4.0, 2.0)

@@ -137,11 +137,12 @@ def test_identify_ringdown_two_mode_decay():
     modes = [(11.0, 0.02, 1.0), (37.0, 0.015, 0.4)]
     x = sum(a * np.exp(-z * 2 * np.pi * f * t) * np.cos(2 * np.pi * f * np.sqrt(1 - z * z) * t) for f, z, a in modes)
     r = stillsky.identify_ringdown(x, fs)
-    assert isinstance(r["frequency_hz"], np.ndarray)
+    assert isinstance(r.frequency_hz, np.ndarray)
     for f, z, _ in modes:
-        k = int(np.argmin(np.abs(r["frequency_hz"] - f)))
-        assert r["frequency_hz"][k] == pytest.approx(f, rel=1e-3)
-        assert r["damping_ratio"][k] == pytest.approx(z, rel=0.03)
-    assert not r["clipped"]
+        k = int(np.argmin(np.abs(r.frequency_hz - f)))
+        assert r.frequency_hz[k] == pytest.approx(f, rel=1e-3)
+        assert r.damping_ratio[k] == pytest.approx(z, rel=0.03)
+    assert not r.clipped
+    assert r.summary()["clipped"] is False
     with pytest.raises(stillsky.InvalidInputError, match="fs"):
         stillsky.identify_ringdown(x, 0.0)

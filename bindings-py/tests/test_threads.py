@@ -36,7 +36,7 @@ def test_four_threads_image_motion_identical_to_serial():
     m = stillsky.Model.from_toml(path)
     f = np.geomspace(0.5, 100.0, 300)
     psds = [stillsky.Psd(f, 1e-16 * (1 + k) * (f / 5.0) ** -4, "displacement") for k in range(8)]
-    run = lambda p: m.image_motion(f, ground=p)["psd_arcsec2"]  # noqa: E731
+    run = lambda p: m.image_motion(f, ground=p).psd  # noqa: E731
     serial = [run(p) for p in psds]
     with ThreadPoolExecutor(max_workers=4) as ex:
         threaded = list(ex.map(run, psds))

@@ -1,1 +1,452 @@
-fn main() {}
+//! `stillsky`: command-line front end. Parses arguments, calls the core library, prints and
+//! plots; all computation lives in the `stillsky` crate.
+
+mod plots;
+mod print;
+
+use clap::{Args, Parser, Subcommand};
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig, SweepInputs, WindCase};
+use stillsky::image::Guiding;
+use stillsky::io::model_file::ModelFile;
+use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
+use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+
+#[derive(Parser)]
+#[command(name = "stillsky", version, about = "Does the rig hold the star inside one pixel?")]
+struct Cli {
+    #[command(subcommand)]
+    cmd: Cmd,
+}
+
+#[derive(Subcommand)]
+enum Cmd {
+    /// Report on one model: modes, image motion, blur, ground spectrum; optional plots and JSON.
+    Report(ReportArgs),
+    /// Sweep an isolator catalogue over ground spectra and wind cases into a CSV.
+    Sweep(SweepArgs),
+    /// Print the generic-layer TOML a model file expands to.
+    Expand {
+        /// Model file (TOML).
+        model: PathBuf,
+    },
+    /// Run report and sweep on the bundled demo scenario (docs/examples).
+    Demo {
+        /// Output folder for plots, JSON and CSV.
+        #[arg(long, default_value = "out/demo")]
+        out: PathBuf,
+    },
+    /// Static safety checks of a rig file: leg stress and buckling, tipping in wind, pier.
+    Check {
+        /// Model file (TOML with a [tripod] or [pier] rig section).
+        model: PathBuf,
+        /// Design mean wind speed (m/s).
+        #[arg(long, default_value_t = 10.0)]
+        design_wind_m_s: f64,
+        /// Factor on the mean drag for gusts.
+        #[arg(long, default_value_t = 2.0)]
+        gust_factor: f64,
+    },
+    /// Identify frequency and damping from a tap-test ring-down recording.
+    Tap {
+        /// Recording (CSV/text/WAV/miniSEED).
+        file: PathBuf,
+        /// Sample rate (Hz) for text files without a time column or `# fs_hz=` line.
+        #[arg(long)]
+        fs: Option<f64>,
+        /// Axis (column) to analyse; default the first.
+        #[arg(long)]
+        axis: Option<String>,
+    },
+}
+
+#[derive(Args, Clone)]
+struct WindArgs {
+    /// Mean wind speed at the given height (m/s).
+    #[arg(long)]
+    wind_speed: Option<f64>,
+    /// Height of the wind speed (m).
+    #[arg(long, default_value_t = 2.0)]
+    wind_height: f64,
+    /// Along-wind spectrum: kaimal, kaimal-iec, von-karman, davenport.
+    #[arg(long, default_value = "kaimal")]
+    wind_spectrum: String,
+    /// Turbulence intensity σ_u / U.
+    #[arg(long, default_value_t = 0.2)]
+    turbulence: f64,
+}
+
+#[derive(Args)]
+struct ReportArgs {
+    /// Model file (TOML: rig or generic layer).
+    model: PathBuf,
+    /// Ground spectrum: a recording, a PSD file, nlnm or nhnm (default nhnm), or `none`.
+    #[arg(long)]
+    ground: Option<String>,
+    /// Per-axis factor on the ground spectrum, x,y,z.
+    #[arg(long, value_parser = parse_triple)]
+    ground_scale: Option<[f64; 3]>,
+    /// Sample rate (Hz) of text recordings without a time column or `# fs_hz=` line.
+    #[arg(long)]
+    fs: Option<f64>,
+    /// miniSEED recordings: counts per unit, as COUNTS:UNIT (e.g. 6.0e8:m_s); units m_s2, g,
+    /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
+    #[arg(long, value_parser = parse_sensitivity)]
+    sensitivity: Option<Sensitivity>,
+    #[command(flatten)]
+    wind: WindArgs,
+    #[arg(long)]
+    focal_length_mm: Option<f64>,
+    #[arg(long)]
+    pixel_um: Option<f64>,
+    #[arg(long)]
+    altitude_deg: Option<f64>,
+    #[arg(long)]
+    azimuth_deg: Option<f64>,
+    /// Exposure length (s): splits the motion into centroid wander and smear.
+    #[arg(long)]
+    exposure_s: Option<f64>,
+    /// Guide camera cadence (s); needs --guide-gain.
+    #[arg(long, requires = "guide_gain")]
+    guide_cadence_s: Option<f64>,
+    /// Guider integrator gain in (0, 2).
+    #[arg(long, requires = "guide_cadence_s")]
+    guide_gain: Option<f64>,
+    /// Seeing FWHM (arcsec), overrides the model's.
+    #[arg(long)]
+    seeing_arcsec: Option<f64>,
+    /// Write SVG plots into this folder.
+    #[arg(long)]
+    plots: Option<PathBuf>,
+    /// Write the full result as JSON.
+    #[arg(long)]
+    json: Option<PathBuf>,
+}
+
+#[derive(Args)]
+struct SweepArgs {
+    /// Model file: a rig with [tripod] (pads under the feet), or a generic layer with pad springs.
+    #[arg(long)]
+    model: PathBuf,
+    /// Isolator catalogue (TOML).
+    #[arg(long)]
+    catalogue: PathBuf,
+    /// Ground spectra: recordings, PSD files, folders of them, nlnm, nhnm.
+    #[arg(long, num_args = 1.., required = true)]
+    ground: Vec<String>,
+    /// Wind cases: calm, or SPEED[:HEIGHT[:SPECTRUM[:INTENSITY]]] (default: calm).
+    #[arg(long, num_args = 1..)]
+    wind: Vec<String>,
+    /// Output CSV.
+    #[arg(long)]
+    out: PathBuf,
+    /// Continue an interrupted run, keeping its complete rows.
+    #[arg(long)]
+    resume: bool,
+    /// Per-axis factor on PSD files and reference models, x,y,z.
+    #[arg(long, value_parser = parse_triple)]
+    ground_scale: Option<[f64; 3]>,
+    /// Prefix of the pad springs in a generic-layer model.
+    #[arg(long, default_value = batch::DEFAULT_PAD_PREFIX)]
+    pad_prefix: String,
+    /// Sample rate (Hz) of text recordings without a time column or `# fs_hz=` line.
+    #[arg(long)]
+    fs: Option<f64>,
+    /// miniSEED recordings: counts per unit, as COUNTS:UNIT (e.g. 6.0e8:m_s); units m_s2, g,
+    /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
+    #[arg(long, value_parser = parse_sensitivity)]
+    sensitivity: Option<Sensitivity>,
+}
+
+fn parse_triple(s: &str) -> Result<[f64; 3], String> {
+    let v: Vec<f64> = s
+        .split(',')
+        .map(|x| x.trim().parse::<f64>().map_err(|_| format!("'{x}' is not a number")))
+        .collect::<Result<_, _>>()?;
+    <[f64; 3]>::try_from(v).map_err(|v| format!("need three values x,y,z, got {}", v.len()))
+}
+
+/// A failure with the exit code to return.
+struct Failure {
+    code: u8,
+    message: String,
+}
+
+impl From<stillsky::Error> for Failure {
+    fn from(e: stillsky::Error) -> Self {
+        Failure { code: 2, message: e.to_string() }
+    }
+}
+
+impl Failure {
+    fn io(what: &str, e: impl std::fmt::Display) -> Self {
+        Failure { code: 2, message: format!("{what}: {e}") }
+    }
+}
+
+type CliResult = Result<(), Failure>;
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let r = match cli.cmd {
+        Cmd::Report(a) => report(&a),
+        Cmd::Sweep(a) => sweep(&a),
+        Cmd::Expand { model } => expand(&model),
+        Cmd::Demo { out } => demo(&out),
+        Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
+        Cmd::Check { model, design_wind_m_s, gust_factor } => check(&model, design_wind_m_s, gust_factor),
+    };
+    match r {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(f) => {
+            eprintln!("error: {}", f.message);
+            ExitCode::from(f.code)
+        }
+    }
+}
+
+fn series_options(fs: Option<f64>, sensitivity: Option<Sensitivity>) -> SeriesOptions {
+    let mut o = SeriesOptions::default();
+    if let Some(f) = fs {
+        o = o.with_fs_hz(f);
+    }
+    if let Some(s) = sensitivity {
+        o = o.with_sensitivity(s);
+    }
+    o
+}
+
+fn parse_sensitivity(s: &str) -> Result<Sensitivity, String> {
+    let (c, u) =
+        s.split_once(':').ok_or_else(|| format!("expected COUNTS:UNIT (e.g. 6.0e8:m_s), got '{s}'"))?;
+    let counts: f64 = c.trim().parse().map_err(|_| format!("counts per unit '{c}' is not a number"))?;
+    if !counts.is_finite() || counts == 0.0 {
+        return Err(format!("counts per unit must be finite and non-zero, got {counts}"));
+    }
+    let unit = Unit::parse(u).map_err(|e| e.to_string())?;
+    Ok(Sensitivity::new(counts, unit))
+}
+
+fn wind_spec(w: &WindArgs) -> Result<Option<WindSpec>, Failure> {
+    let Some(u) = w.wind_speed else { return Ok(None) };
+    let kind = WindSpectrum::from_name(&w.wind_spectrum)?;
+    let spec = WindSpec::new(kind, u, w.wind_height, Turbulence::Intensity(w.turbulence));
+    spec.validate()?;
+    Ok(Some(spec))
+}
+
+fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
+    let mut o = ReportOptions::new()?;
+    match a.ground.as_deref() {
+        Some("none") => o.ground_off = true,
+        Some(g) => o.ground = Some(GroundSource::parse(g)),
+        None => {}
+    }
+    if let Some(s) = a.ground_scale {
+        o.ground_scale = s;
+    }
+    o.series = series_options(a.fs, a.sensitivity);
+    o.wind = wind_spec(&a.wind)?;
+    o.focal_length_mm = a.focal_length_mm;
+    o.pixel_um = a.pixel_um;
+    o.altitude_deg = a.altitude_deg;
+    o.azimuth_deg = a.azimuth_deg;
+    o.seeing_fwhm_arcsec = a.seeing_arcsec;
+    o.exposure_s = a.exposure_s;
+    if let (Some(cadence_s), Some(gain)) = (a.guide_cadence_s, a.guide_gain) {
+        o.guide = Some(Guiding { cadence_s, gain });
+    }
+    Ok(o)
+}
+
+fn run_report(model: &Path, o: &ReportOptions, plots: Option<&Path>, json: Option<&Path>) -> CliResult {
+    let file = ModelFile::read(model)?;
+    let spec = file.expanded()?;
+    let r = batch::build_report(&spec, o)?;
+    print!("{}", print::report_text(&model.display().to_string(), &r));
+    if file.tripod.is_some() || file.pier.is_some() {
+        let c = stillsky::checks::rig_checks(&file, &stillsky::checks::StaticWind::default())?;
+        print!("{}", print::checks_text(&stillsky::checks::StaticWind::default(), &c));
+    }
+    if let Some(dir) = plots {
+        std::fs::create_dir_all(dir).map_err(|e| Failure::io(&dir.display().to_string(), e))?;
+        let written = plots::report_plots(&r, dir).map_err(|e| Failure::io("plots", e))?;
+        for p in written {
+            println!("plot: {}", p.display());
+        }
+    }
+    if let Some(j) = json {
+        let text = serde_json::to_string_pretty(&r).map_err(|e| Failure::io("json", e))?;
+        stillsky::io::atomic::write_atomic(j, text.as_bytes())?;
+        println!("json: {}", j.display());
+    }
+    Ok(())
+}
+
+fn report(a: &ReportArgs) -> CliResult {
+    let o = report_options(a)?;
+    run_report(&a.model, &o, a.plots.as_deref(), a.json.as_deref())
+}
+
+/// Expand folders into their files (sorted), keep other arguments.
+fn ground_sources(args: &[String]) -> Result<Vec<GroundSource>, Failure> {
+    let mut out = Vec::new();
+    for a in args {
+        let p = Path::new(a);
+        if p.is_dir() {
+            let mut files: Vec<PathBuf> = std::fs::read_dir(p)
+                .map_err(|e| Failure::io(a, e))?
+                .filter_map(|e| e.ok().map(|e| e.path()))
+                .filter(|f| f.is_file())
+                .collect();
+            files.sort();
+            if files.is_empty() {
+                return Err(Failure { code: 2, message: format!("{a}: the folder holds no files") });
+            }
+            out.extend(files.iter().map(|f| GroundSource::parse(&f.display().to_string())));
+        } else {
+            out.push(GroundSource::parse(a));
+        }
+    }
+    Ok(out)
+}
+
+struct SweepRun<'a> {
+    model: &'a Path,
+    catalogue: &'a Path,
+    grounds: Vec<GroundSource>,
+    winds: Vec<WindCase>,
+    out: &'a Path,
+    resume: bool,
+    cfg: SweepConfig,
+}
+
+fn run_sweep(s: &SweepRun) -> CliResult {
+    let file = ModelFile::read(s.model)?;
+    let cat = Catalogue::read(s.catalogue)?;
+    let inputs = SweepInputs { model: &file, catalogue: &cat, grounds: &s.grounds, winds: &s.winds };
+    let tty = std::io::stderr().is_terminal();
+    let bar = if tty {
+        let b = indicatif::ProgressBar::new(0);
+        b.set_style(
+            indicatif::ProgressStyle::with_template("{bar:40} {pos}/{len} rows  {elapsed}")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        b
+    } else {
+        indicatif::ProgressBar::hidden()
+    };
+    let progress = |p: batch::SweepProgress| {
+        bar.set_length(p.total as u64);
+        bar.set_position(p.done as u64);
+    };
+    let outcome = batch::run_sweep(&inputs, &s.cfg, s.out, s.resume, &progress)?;
+    bar.finish_and_clear();
+    print!("{}", print::sweep_text(&outcome));
+    let failures = outcome.failures();
+    if !failures.is_empty() {
+        return Err(Failure {
+            code: 1,
+            message: format!(
+                "{} row(s) failed; see the error rows in {}",
+                failures.len(),
+                outcome.path.display()
+            ),
+        });
+    }
+    Ok(())
+}
+
+fn sweep(a: &SweepArgs) -> CliResult {
+    let mut cfg = SweepConfig::new()?.with_pad_prefix(a.pad_prefix.clone());
+    if let Some(s) = a.ground_scale {
+        cfg = cfg.with_ground_scale(s);
+    }
+    cfg.series = series_options(a.fs, a.sensitivity);
+    let winds = a.wind.iter().map(|w| WindCase::parse(w)).collect::<Result<Vec<_>, _>>()?;
+    run_sweep(&SweepRun {
+        model: &a.model,
+        catalogue: &a.catalogue,
+        grounds: ground_sources(&a.ground)?,
+        winds,
+        out: &a.out,
+        resume: a.resume,
+        cfg,
+    })
+}
+
+fn expand(model: &Path) -> CliResult {
+    let file = ModelFile::read(model)?;
+    print!("{}", stillsky::io::spec_to_toml(&file.expanded()?)?);
+    Ok(())
+}
+
+/// The bundled demo folder.
+fn examples_dir() -> PathBuf {
+    if let Some(d) = std::env::var_os("STILLSKY_EXAMPLES") {
+        return PathBuf::from(d);
+    }
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("..").join("docs").join("examples")
+}
+
+fn demo(out: &Path) -> CliResult {
+    let ex = examples_dir();
+    let rec = |n: &str| ex.join("recordings").join(n);
+    std::fs::create_dir_all(out).map_err(|e| Failure::io(&out.display().to_string(), e))?;
+    let model = ex.join("tripod-paver.toml");
+    println!("== report: {} on the quiet-night recording, 4 m/s wind ==", model.display());
+    let mut o = ReportOptions::new()?;
+    o.ground = Some(GroundSource::Recording(rec("quiet-night.csv")));
+    o.wind = Some(WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2)));
+    o.exposure_s = Some(2.0);
+    run_report(&model, &o, Some(&out.join("plots")), Some(&out.join("report.json")))?;
+    println!();
+    println!("== sweep: isolators × three recordings × (calm, 4 m/s) ==");
+    let grounds = ["quiet-night.csv", "road-nearby.csv", "footsteps.csv"]
+        .iter()
+        .map(|n| GroundSource::Recording(rec(n)))
+        .collect();
+    run_sweep(&SweepRun {
+        model: &model,
+        catalogue: &ex.join("isolators.toml"),
+        grounds,
+        winds: vec![WindCase::calm(), WindCase::parse("4")?],
+        out: &out.join("sweep.csv"),
+        resume: false,
+        cfg: SweepConfig::new()?,
+    })?;
+    println!("sweep: {}", out.join("sweep.csv").display());
+    Ok(())
+}
+
+fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
+    let s = read_series(file, &series_options(fs, None))?;
+    let (name, x) = match axis {
+        Some(a) => (
+            a.to_string(),
+            s.axis_by_name(a).ok_or_else(|| Failure {
+                code: 2,
+                message: format!("{}: no axis '{a}'; the file has {:?}", file.display(), s.axis_names),
+            })?,
+        ),
+        None => (s.axis_names.first().cloned().unwrap_or_default(), s.axis(0).unwrap_or_default()),
+    };
+    let id =
+        stillsky::identify::identify_ringdown(x, s.fs_hz, &stillsky::identify::RingdownOptions::default())?;
+    print!("{}", print::tap_text(&file.display().to_string(), &name, s.fs_hz, &id));
+    Ok(())
+}
+
+fn check(model: &Path, speed_m_s: f64, gust_factor: f64) -> CliResult {
+    let file = ModelFile::read(model)?;
+    let wind = stillsky::checks::StaticWind { speed_m_s, gust_factor, ..Default::default() };
+    let c = stillsky::checks::rig_checks(&file, &wind)?;
+    println!("== static checks: {} ==", model.display());
+    print!("{}", print::checks_text(&wind, &c));
+    if c.verdict() == stillsky::checks::Verdict::Fail {
+        return Err(Failure { code: 1, message: "at least one static check fails".into() });
+    }
+    Ok(())
+}

@@ -878,3 +878,132 @@ mod tests {
         assert!(CAUTIONS.iter().any(|s| s.contains("licensed engineer")));
     }
 }
+
+// ---------------------------------------------------------------------------------------------
+// Checks of a whole rig file
+// ---------------------------------------------------------------------------------------------
+
+/// The steady wind for [`rig_checks`].
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct StaticWind {
+    /// Mean wind speed (m/s).
+    pub speed_m_s: f64,
+    /// Factor on the mean drag for gusts (see [`wind_force_n`]).
+    pub gust_factor: f64,
+    /// Air density (kg/m³).
+    pub air_density_kg_m3: f64,
+}
+
+impl Default for StaticWind {
+    /// 10 m/s with a gust factor of 2 and ISA sea-level air (a stiff breeze with gusts: common
+    /// practice, no source; give your site's design wind).
+    fn default() -> Self {
+        StaticWind { speed_m_s: 10.0, gust_factor: 2.0, air_density_kg_m3: 1.225 }
+    }
+}
+
+/// Total mass of a generic model (bodies, nodes, beams with added mass) (kg).
+pub fn total_mass_kg(spec: &crate::assembly::ModelSpec) -> Result<f64> {
+    let mut m: f64 = spec.bodies.iter().map(|b| b.mass_kg).sum::<f64>()
+        + spec.nodes.iter().map(|n| n.mass_kg).sum::<f64>();
+    for b in &spec.beams {
+        let l = (0..3).map(|i| (b.to_at_m[i] - b.from_at_m[i]).powi(2)).sum::<f64>().sqrt();
+        m += (b.material()?.density_kg_m3 * b.section.area_m2() + b.added_mass_kg_per_m) * l;
+    }
+    Ok(m)
+}
+
+/// Static checks of a rig-layer model file: tripod legs (axial stress, Euler/Johnson buckling
+/// with pinned–pinned K = 1 over the leg length, since legs are hinged at the head and rest on
+/// their feet) and tipping in the steady wind about the line through two feet (all wind
+/// directions, worst reported), or a pier (base stress, top deflection, fixed-free buckling)
+/// under the wind load at its top. The wind's area, drag coefficient and centre-of-pressure
+/// height come from the model's `[wind]` section; without it the wind checks are skipped.
+/// Print [`CAUTIONS`] with the result.
+pub fn rig_checks(file: &crate::io::ModelFile, wind: &StaticWind) -> Result<CheckReport> {
+    require_non_negative("wind speed_m_s", wind.speed_m_s)?;
+    require_positive("wind gust_factor", wind.gust_factor)?;
+    require_positive("air_density_kg_m3", wind.air_density_kg_m3)?;
+    let spec = file.expanded()?;
+    let total = total_mass_kg(&spec)?;
+    let weight = total * STANDARD_GRAVITY;
+    let load = spec.wind.as_ref();
+    let wind_force = match load {
+        Some(w) => wind_force_n(
+            wind.air_density_kg_m3,
+            w.drag_coefficient,
+            w.area_m2,
+            wind.speed_m_s,
+            wind.gust_factor,
+        )?,
+        None => 0.0,
+    };
+    let mut checks = Vec::new();
+    if let Some(t) = &file.tripod {
+        let g = t.geometry()?;
+        let n = t.legs.unwrap_or(3);
+        let section = t
+            .leg_section
+            .clone()
+            .ok_or_else(|| Error::invalid("tripod.leg_section", "is required for static checks"))?;
+        let material = match (&t.leg_material, &t.leg_material_properties) {
+            (Some(name), None) => Material::preset(name)?,
+            (None, Some(m)) => m.clone(),
+            _ => {
+                return Err(Error::invalid(
+                    "tripod.leg_material",
+                    "give a preset name or leg_material_properties",
+                ));
+            }
+        };
+        let leg_n = leg_axial_load_n(weight, n, g.splay_rad)?;
+        let st = axial_stress(leg_n, &section, &material)?;
+        checks.push(Check::new("leg axial stress", st.stress_pa, material.yield_strength_pa, "Pa"));
+        let b =
+            buckling(&section, &material, g.leg_length_m, EndCondition::PinnedPinned.k_theoretical(), leg_n)?;
+        checks.push(b.check("leg buckling (pinned-pinned, K = 1)"));
+        if let Some(w) = load {
+            let input = TippingInput {
+                n_feet: n,
+                foot_radius_m: g.foot_radius_m,
+                first_foot_azimuth_deg: t.first_leg_azimuth_deg.unwrap_or(0.0),
+                weight_n: weight,
+                cg_offset_m: [0.0, 0.0],
+                pressure_height_m: w.centre_of_pressure_m[2].max(1e-3),
+                drag_coefficient: w.drag_coefficient,
+                area_m2: w.area_m2,
+                air_density_kg_m3: wind.air_density_kg_m3,
+                gust_factor: wind.gust_factor,
+            };
+            let tip = tipping_worst_direction(&input, wind.speed_m_s)?;
+            checks.push(tip.check(&format!(
+                "tipping at {:.1} m/s × gust {:.2} (tips at {:.1} m/s mean)",
+                wind.speed_m_s, wind.gust_factor, tip.tipping_wind_speed_m_s
+            )));
+        }
+    }
+    if let Some(p) = &file.pier {
+        let section = p.section.clone().ok_or_else(|| Error::invalid("pier.section", "is required"))?;
+        let material = match (&p.material, &p.material_properties) {
+            (Some(name), None) => Material::preset(name)?,
+            (None, Some(m)) => m.clone(),
+            _ => return Err(Error::invalid("pier.material", "give a preset name or material_properties")),
+        };
+        let h = p.height_m.ok_or_else(|| Error::invalid("pier.height_m", "is required"))?;
+        // Everything but the pier column and its footing sits on top.
+        let pier_mass =
+            (material.density_kg_m3 * section.area_m2() + p.added_mass_kg_per_m.unwrap_or(0.0)) * h;
+        let footing_mass: f64 =
+            spec.bodies.iter().filter(|b| b.name.contains("footing")).map(|b| b.mass_kg).sum();
+        let top = (total - pier_mass - footing_mass).max(0.0);
+        let r = pier(&section, &material, h, top, wind_force)?;
+        checks.extend(r.report(&material, None).checks);
+    }
+    if checks.is_empty() {
+        return Err(Error::invalid(
+            "model",
+            "static checks need a [tripod] or [pier] section in the rig layer",
+        ));
+    }
+    Ok(CheckReport { checks })
+}

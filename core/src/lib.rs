@@ -41,10 +41,12 @@
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
 //! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
 //! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
+//! - [`batch`]: isolator catalogues, the isolator sweep, ground sources and the one-model report.
 #![forbid(unsafe_code)]
 #![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
 
 pub mod assembly;
+pub mod batch;
 pub mod checks;
 pub mod error;
 pub mod frf;

@@ -349,3 +349,23 @@ fn options_are_validated() {
     let mut r = SeriesReader::open(&p, &opts().with_fs_hz(1.0)).unwrap();
     assert!(matches!(r.next_chunk(0, &mut SeriesChunk::new()), Err(Error::InvalidArgument { .. })));
 }
+
+#[test]
+fn in_memory_text_reads_like_the_same_file() {
+    // Regular and timestamped (resampled) recordings, CSV and whitespace: same samples, header
+    // and timing as the file reader; errors name the label and line.
+    let cases = [
+        ("a.csv", "# fs_hz=50\nz_mm_s,x_um_s\n1,2\n3,4\n5,6\n"),
+        ("b.txt", "# start_time=2024-05-01T21:00:00Z\ntime_s z_m_s2\n0.0 1\n0.1 2\n0.2 3\n0.31 4\n0.4 5\n"),
+    ];
+    for (file, text) in cases {
+        let p = write("in_memory", file, text);
+        let from_file = read_series(&p, &opts()).unwrap();
+        let from_text = read_series_text(text, &p.display().to_string(), &opts()).unwrap();
+        assert_eq!(from_file, from_text, "{file}");
+    }
+    let (file, location, reason) = parse_err(read_series_text("# fs_hz=10\nz_g\n1\nx\n", "mem.csv", &opts()));
+    assert_eq!((file.as_str(), location.as_str()), ("mem.csv", "line 4, column 1"), "{reason}");
+    let e = SeriesReader::from_text("z_g\n1\n", "m", &opts().with_format(SeriesFormat::Wav)).err().unwrap();
+    assert!(matches!(e, Error::InvalidArgument { .. }), "{e}");
+}

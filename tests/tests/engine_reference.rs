@@ -332,3 +332,23 @@ fn frf_equals_independent_dense_solve() {
     let t = model.frf(&[1e-4], &["ground_x"], &["tip:x"]).unwrap().data[[0, 0, 0]];
     assert_relative_eq!(t.re, 1.0, max_relative = 1e-6);
 }
+
+#[test]
+fn demo_rigs_pass_static_checks_and_tip_only_in_strong_wind() {
+    // Static checks of the invented demo rigs: leg stress far below yield (a ~20 kg payload on
+    // steel legs), and the tripod tips only in a wind far above the default 10 m/s.
+    use stillsky::checks::{StaticWind, Verdict, rig_checks};
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/examples");
+    for name in ["tripod-lawn.toml", "pier.toml"] {
+        let f = stillsky::io::ModelFile::read(&dir.join(name)).unwrap();
+        let r = rig_checks(&f, &StaticWind::default()).unwrap();
+        assert!(!r.checks.is_empty());
+        assert!(r.checks[0].margin > 5.0, "{name}: {:?}", r.checks[0]);
+        assert!(r.verdict() != Verdict::Fail, "{name}: {r:?}");
+    }
+    // Hurricane wind tips the tripod (a check that can fail).
+    let f = stillsky::io::ModelFile::read(&dir.join("tripod-lawn.toml")).unwrap();
+    let storm = StaticWind { speed_m_s: 80.0, gust_factor: 2.0, air_density_kg_m3: 1.225 };
+    let r = rig_checks(&f, &storm).unwrap();
+    assert_eq!(r.verdict(), Verdict::Fail, "{r:?}");
+}

@@ -10,7 +10,7 @@ release the GIL: do not modify an input array from another thread during a call.
 """
 
 from os import PathLike
-from typing import Literal, Sequence, overload
+from typing import Literal, Mapping, Sequence, overload
 
 import numpy as np
 import numpy.typing as npt
@@ -165,41 +165,221 @@ class Model:
         self,
         freq_hz: _F64In,
         *,
-        ground: Psd | Sequence[Psd | None] | None = None,
-        loads: Sequence[tuple[str, Psd]] | None = None,
+        ground: Psd | Mapping[str, Psd | None] | Sequence[Psd | None] | None = None,
+        wind: Wind | None = None,
+        loads: Mapping[str, Psd] | Sequence[tuple[str, Psd]] | None = None,
         exposure_s: float | None = None,
-        guide_cadence_s: float | None = None,
-        guide_gain: float = 0.5,
+        guide: float | tuple[float, float] | None = None,
         radius_px: float | None = None,
         seeing_fwhm_arcsec: float | None = None,
         mode_shares: bool = True,
-    ) -> dict[str, object]:
+    ) -> ImageMotion:
         """Image motion on the sky and sensor under uncorrelated disturbances (needs [optics]).
 
         Args:
             freq_hz: evaluation grid (Hz), 1-D float64, strictly increasing, > 0.
-            ground: ground-motion PSD (displacement, velocity or acceleration), one ``Psd`` for
-                all three axes or one per axis x, y, z (``None`` = no motion on that axis).
-                Spectra are resampled log–log onto ``freq_hz`` and taken as zero outside their
-                own range (reported in ``notes``).
-            loads: (input name, force PSD N²/Hz or moment PSD (N·m)²/Hz) pairs, e.g.
-                ``("force:payload:x", psd)``.
+            ground: ground-motion PSD (displacement, velocity or acceleration) per axis, as
+                ``{"x": psd, "y": psd, "z": psd}`` (missing axes = no motion), one ``Psd`` for
+                all three axes, or a sequence of three ``Psd | None``. Spectra are resampled
+                log–log onto ``freq_hz`` and taken as zero outside their own range (reported in
+                ``summary()["notes"]``).
+            wind: mean wind and turbulence (``Wind``) acting at the model's ``[wind]`` load
+                point through the linearised drag S_F = (ρ C_d A U)² S_u.
+            loads: {input name: force PSD N²/Hz or moment PSD (N·m)²/Hz}, e.g.
+                ``{"force:payload:x": psd}`` (or a sequence of such pairs); uncorrelated.
             exposure_s: split the motion into centroid wander and smear for exposures of this
                 length (s).
-            guide_cadence_s: guider exposure cadence (s); with ``guide_gain`` (integrator gain
-                in (0, 2)) applies the guider's rejection.
-            radius_px: radius (pixels) for the probability of leaving it (default ½ pixel).
+            guide: guider cadence (s), or ``(cadence_s, gain)`` with the integrator gain in
+                (0, 2) (default gain 0.5); applies the guider's rejection.
+            radius_px: radius (pixels) for ``p_outside()`` (default ½ pixel).
             seeing_fwhm_arcsec: seeing FWHM (arcsec); default from the model's optics.
             mode_shares: compute each mode's share of the mean square.
 
         Returns:
-            dict with ``rms_arcsec``, ``rms_um``, ``rms_px``, ``per_axis_arcsec``,
-            ``p_outside``, ``radius_px``, ``plate_scale_arcsec_per_px``, ``blur_fwhm_arcsec``,
-            ``total_fwhm_arcsec``, ``covariance_arcsec2``, ``mode_share``, ``input_share``,
-            ``exposure``, ``dominant_band_hz``, ``dominant_band_share``, ``notes`` and the arrays
-            ``freq_hz`` (F,), ``psd_arcsec2`` (2, F) for image_x / image_y (arcsec²/Hz),
-            ``co_psd_arcsec2`` (F,), ``cumulative_rms_arcsec`` (2, F). GIL released.
+            ``ImageMotion`` (RMS in arcsec, µm and px, PSDs, cumulative RMS, shares,
+            ``p_outside()``, ``summary()``). GIL released.
         """
+
+    def response(
+        self,
+        freq_hz: _F64In,
+        *,
+        ground: Psd | Mapping[str, Psd | None] | Sequence[Psd | None] | None = None,
+        wind: Wind | None = None,
+        loads: Mapping[str, Psd] | Sequence[tuple[str, Psd]] | None = None,
+        output: str | Sequence[str],
+    ) -> Psd | dict[str, Psd]:
+        """Response PSD of an output under uncorrelated disturbances: S_y = Σ_i |H_yi|² S_i.
+
+        Args:
+            freq_hz: evaluation grid (Hz), 1-D float64, strictly increasing, > 0.
+            ground, wind, loads: as in ``image_motion`` (ground motion PSD per axis x/y/z in
+                any motion quantity; ``Wind`` at the ``[wind]`` load point; {input name: force
+                PSD N²/Hz or moment PSD (N·m)²/Hz}).
+            output: an output name (``"BODY:x|y|z|rx|ry|rz"``, ``"image_x"``, ``"image_y"``), or
+                a sequence of names.
+
+        Returns:
+            a ``Psd`` on ``freq_hz`` (displacement m²/Hz, or angle rad²/Hz for rotations and
+            image axes), or {name: Psd} for a sequence of names. GIL released.
+        """
+    def transient(
+        self,
+        input: str,
+        history: _F64In,
+        fs: float,
+        *,
+        outputs: str | Sequence[str] | None = None,
+        ground: Literal["displacement", "acceleration"] = "displacement",
+        decay_tolerance: float = 1e-6,
+        radius_px: float = 0.5,
+    ) -> Transient:
+        """Response to a time history of one input, from rest, by FFT convolution.
+
+        Args:
+            input: input name (``"force:BODY:x"`` N, ``"moment:BODY:y"`` N·m, ``"wind"`` N,
+                ``"ground_z"`` m, or m/s² with ``ground="acceleration"``).
+            history: input samples from t = 0 (unit of the input), 1-D float64. A jump on a
+                sample should carry the mid value (see the core's transient docs).
+            fs: sample rate (Hz).
+            outputs: output names (default ``("image_x", "image_y")``); results in m or rad.
+            ground: meaning of a ground-input history.
+            decay_tolerance: the zero padding lasts until the slowest mode's envelope has
+                fallen by this factor (wrap-around below about this fraction).
+            radius_px: radius (pixels) for the settle time and fraction outside (image outputs).
+
+        Returns:
+            ``Transient`` (``time_s``, ``values`` (n_out, n), and image metrics when both image
+            axes are among the outputs and the model has optics). GIL released. Constant
+            hysteretic damping is not causal (a small precursor); prefer Kelvin–Voigt, Zener
+            or fractional models for time histories.
+        """
+    def newmark(
+        self,
+        input: str,
+        history: _F64In,
+        fs: float,
+        *,
+        outputs: str | Sequence[str],
+        ground: Literal["displacement", "acceleration"] = "displacement",
+    ) -> Transient:
+        """Average-acceleration Newmark integration (γ = ½, β = ¼) of a history of ``input``
+        (unit as in ``transient``) at time step 1/``fs`` (Hz), from rest: an independent check
+        of ``transient`` for viscously damped, frequency-independent models (others raise
+        ``UnsupportedModelError``). The load is linear between samples. Outputs in m or rad;
+        ``fft_len`` is 0. GIL released."""
+    def image_response(
+        self,
+        input: str,
+        history: _F64In,
+        fs: float,
+        *,
+        ground: Literal["displacement", "acceleration"] = "displacement",
+        decay_tolerance: float = 1e-6,
+        radius_px: float = 0.5,
+    ) -> ImageTransient:
+        """Sensor-plane response (arcsec) to a history of ``input`` (unit as in ``transient``),
+        sampled at ``fs`` (Hz); needs ``[optics]``. Metrics use ``radius_px`` (pixels).
+        GIL released."""
+    def gust_response(
+        self,
+        gust: Gust,
+        *,
+        mean_speed_m_s: float,
+        fs: float,
+        duration_s: float,
+        air_density_kg_m3: float = 1.225,
+        drag_law: Literal["quadratic", "linearised"] = "quadratic",
+        decay_tolerance: float = 1e-6,
+        radius_px: float = 0.5,
+    ) -> ImageTransient:
+        """Image response to a gust on the model's ``wind`` input (needs ``[wind]`` and ``[optics]``).
+
+        Args:
+            gust: the wind-speed fluctuation u′(t) (``Gust``).
+            mean_speed_m_s: mean wind speed U (m/s).
+            fs: sample rate (Hz); duration_s: length of the history (s), n = round(duration·fs).
+            air_density_kg_m3: ρ (kg/m³).
+            drag_law: ``"quadratic"`` F′ = ½ρC_dA[(U+u′)|U+u′| − U²] or ``"linearised"``
+                F′ = ρC_dA U u′; area and C_d from ``[wind]``.
+            decay_tolerance, radius_px: as in ``transient``.
+
+        Returns:
+            ``ImageTransient``; ``input_history`` is the drag fluctuation (N). The mean drag's
+            static deflection is not included. GIL released.
+        """
+    def __reduce__(self) -> tuple[object, tuple[str, str]]:
+        """Pickle as the model-file text it was built from (bit-identical results after loading)."""
+
+class Wind:
+    """Mean wind and its turbulence at a height (a ``wind=`` disturbance)."""
+
+    def __init__(
+        self,
+        kind: Literal["kaimal", "kaimal-iec", "von-karman", "davenport"] | str,
+        mean_speed_m_s: float,
+        height_m: float,
+        *,
+        turbulence_intensity: float | None = None,
+        roughness_length_m: float | None = None,
+        shelter_factor: float = 1.0,
+        air_density_kg_m3: float | None = None,
+    ) -> None:
+        """Args:
+        kind: along-wind spectrum shape (see ``wind_spectrum``).
+        mean_speed_m_s: mean speed U at ``height_m`` (m/s), > 0.
+        height_m: height above ground (m), > 0.
+        turbulence_intensity: σ_u / U; give this or ``roughness_length_m`` (m), not both.
+        shelter_factor: factor in (0, 1] on the mean speed for a sheltered site.
+        air_density_kg_m3: ρ (kg/m³), default 1.225 (ISA sea level).
+        """
+    @property
+    def mean_speed_m_s(self) -> float: ...
+    @property
+    def height_m(self) -> float: ...
+    def spectrum(self, freq_hz: _F64In) -> Psd:
+        """Along-wind velocity PSD ((m/s)²/Hz) on ``freq_hz``."""
+
+class ImageMotion:
+    """Image motion on the sky (arcsec) and sensor (µm, px): the result of ``Model.image_motion``."""
+
+    @property
+    def rms_arcsec(self) -> float:
+        """Radial RMS √(σx² + σy²) on the sky (arcsec)."""
+    @property
+    def rms_um(self) -> float:
+        """Radial RMS in the sensor plane (µm)."""
+    @property
+    def rms_px(self) -> float:
+        """Radial RMS in pixels."""
+    @property
+    def plate_scale_arcsec_per_px(self) -> float: ...
+    @property
+    def per_axis_arcsec(self) -> _F64:
+        """RMS of image_x (azimuth) and image_y (altitude), arcsec, shape (2,)."""
+    @property
+    def freq_hz(self) -> _F64: ...
+    @property
+    def psd(self) -> _F64:
+        """PSD of image_x and image_y (arcsec²/Hz), shape (2, F)."""
+    @property
+    def co_psd(self) -> _F64:
+        """Co-spectrum of image_x with image_y (arcsec²/Hz), shape (F,)."""
+    @property
+    def cumulative_rms_arcsec(self) -> _F64:
+        """Cumulative RMS from the lowest frequency per axis (arcsec), shape (2, F)."""
+    @property
+    def mode_share(self) -> list[dict[str, object]]:
+        """Share of the radial mean square per mode: ``{"label", "frequency_hz", "share"}``."""
+    @property
+    def input_share(self) -> dict[str, float]:
+        """Share of the mean square per disturbance input (e.g. ``"ground_z"``, ``"wind"``)."""
+    def p_outside(self, radius_px: float | None = None) -> float:
+        """Probability the image is outside ``radius_px`` (px) at a random instant (default: the
+        radius given to ``image_motion``, ½ px)."""
+    def summary(self) -> dict[str, object]:
+        """All scalars and small results (RMS, blur vs seeing, covariance, shares, exposure split,
+        dominant band, notes) as a dict; no per-frequency arrays."""
 
 _Quantity = Literal["displacement", "velocity", "acceleration", "force", "moment", "angle"]
 
@@ -324,16 +504,57 @@ def wind_spectrum(
         shelter_factor: factor in (0, 1] on the mean speed.
     """
 
-def read_series(path: str | PathLike[str], *, fs_hz: float | None = None) -> dict[str, object]:
-    """Read a recording (CSV/whitespace text, WAV, miniSEED).
+_UnitToken = Literal["m_s2", "g", "m_s", "mm_s", "um_s", "m", "mm", "um"]
+
+class Series:
+    """A recording: samples in SI units (or counts), sample rate and timing report."""
+
+    @property
+    def samples(self) -> _F64:
+        """Samples, shape (n_frames, n_axes), float64 (a transposed view, no copy)."""
+    @property
+    def axes(self) -> list[str]:
+        """Axis (channel) names."""
+    @property
+    def fs(self) -> float:
+        """Sample rate (Hz): nominal, or the real mean rate when resampled from timestamps."""
+    @property
+    def unit(self) -> str:
+        """SI unit of the samples ("m/s^2", "m/s", "m") or "counts"."""
+    @property
+    def start_time(self) -> str | None: ...
+    @property
+    def timing(self) -> dict[str, object]:
+        """Timing of the input: ``source`` ("nominal", "time column", "records"), ``fs_hz_mean``,
+        ``median_interval_s``, ``jitter_std_s``, ``jitter_max_s`` and their fractions,
+        ``n_gaps``, ``gaps`` [(time_s, interval_s)], ``resampled``."""
+    def __len__(self) -> int: ...
+
+def read_series(
+    path: str | PathLike[str],
+    *,
+    fs_hz: float | None = None,
+    unit: _UnitToken | None = None,
+    wav_full_scale: tuple[float, _UnitToken] | None = None,
+    sensitivity: tuple[float, _UnitToken] | None = None,
+    channel: str | None = None,
+    max_jitter_fraction: float | None = None,
+) -> Series:
+    """Read a recording (CSV/whitespace text, WAV, miniSEED); large files are refused above the
+    core's sample limit rather than exhausting memory. GIL released.
 
     Args:
-        path: file path.
+        path: file path; format from the extension or sniffed from the first bytes.
         fs_hz: sample rate (Hz) for text files without a time column.
-
-    Returns:
-        ``{"samples": (n_axes, n_frames) float64 in SI units, "axis_names": list[str],
-        "fs_hz": float, "unit": str, "start_time": str | None}``.
+        unit: unit of text columns whose name has no unit suffix.
+        wav_full_scale: physical value of digital full scale ±1.0, e.g. ``(2.0, "g")``;
+            required for WAV (it carries no unit).
+        sensitivity: miniSEED counts per unit, e.g. ``(1500.0, "mm_s")``; without it samples
+            stay in counts.
+        channel: miniSEED channel (``NET.STA.LOC.CHA`` or ``CHA``) when a file holds several.
+        max_jitter_fraction: timestamped text: largest |interval − median| / median that is
+            still resampled onto a uniform grid (default 0.10); beyond it the reader refuses
+            with the measured rate, jitter and gaps.
     """
 
 def identify_ringdown(
@@ -343,7 +564,7 @@ def identify_ringdown(
     min_frequency_hz: float | None = None,
     max_frequency_hz: float | None = None,
     max_modes: int = 8,
-) -> dict[str, object]:
+) -> RingdownId:
     """Natural frequencies and damping ratios from a free-decay (tap test) record.
 
     Args:
@@ -353,8 +574,290 @@ def identify_ringdown(
         max_modes: most modes kept from the matrix-pencil fit.
 
     Returns:
-        dict with arrays ``frequency_hz``, ``damping_ratio``, ``amplitude`` (units of x),
-        ``dominant`` (index), ``methods`` (single-mode estimates: log decrement, envelope fit,
-        half power), ``clipped``, ``close_modes``, ``warnings`` and more diagnostics.
+        ``RingdownId``: ``frequency_hz`` (Hz) and ``damping_ratio`` arrays over the modes
+        found, per-method values of the dominant mode (``log_decrement``, ``envelope_fit``,
+        ``half_power``, ``spread``, ``methods``), and ``summary()`` (every field as a dict).
         GIL released.
     """
+
+class RingdownId:
+    """Result of ``identify_ringdown``."""
+    @property
+    def frequency_hz(self) -> _F64:
+        """Best natural frequency per mode (Hz)."""
+    @property
+    def damping_ratio(self) -> _F64:
+        """Best damping ratio per mode (dimensionless)."""
+    @property
+    def amplitude(self) -> _F64:
+        """Amplitude per mode (units of x)."""
+    @property
+    def dominant(self) -> int:
+        """Index of the dominant mode in the arrays."""
+    @property
+    def dominant_source(self) -> Literal["single_mode", "matrix_pencil"]: ...
+    @property
+    def dominant_frequency_hz(self) -> float:
+        """Dominant spectral peak (Hz), interpolated."""
+    @property
+    def log_decrement(self) -> float | None:
+        """Damping ratio of the dominant mode by logarithmic decrement."""
+    @property
+    def log_decrement_cycles(self) -> int: ...
+    @property
+    def envelope_fit(self) -> float | None:
+        """Damping ratio by an exponential fit to the Hilbert envelope."""
+    @property
+    def half_power(self) -> float | None:
+        """Damping ratio by half-power bandwidth of the PSD."""
+    @property
+    def spread(self) -> float:
+        """Spread of the single-mode damping estimates."""
+    @property
+    def methods(self) -> dict[str, object]:
+        """All per-method values of the dominant mode."""
+    @property
+    def pencil(self) -> list[dict[str, object]]:
+        """Matrix-pencil modes (frequency_hz, damped_frequency_hz, damping_ratio, amplitude, phase_rad)."""
+    @property
+    def close_modes(self) -> bool: ...
+    @property
+    def clipped(self) -> bool: ...
+    @property
+    def warnings(self) -> list[str]: ...
+    def summary(self) -> dict[str, object]:
+        """Every field as a dict (NaN and ±inf as None)."""
+
+def compare_ringdowns(
+    before: _F64In,
+    after: _F64In,
+    fs: float,
+    *,
+    settle_fraction: float | None = None,
+    settle_level: float | None = None,
+    min_frequency_hz: float | None = None,
+    max_frequency_hz: float | None = None,
+    max_modes: int = 8,
+) -> RingdownComparison:
+    """Two ring-downs (e.g. without and with pads) side by side.
+
+    Args:
+        before, after: the records (same unit), 1-D float64, sampled at ``fs`` (Hz).
+        settle_fraction: settle threshold as a fraction of the first excursion (default 0.1),
+            or settle_level: an absolute threshold (units of x); give at most one.
+        min_frequency_hz, max_frequency_hz, max_modes: as in ``identify_ringdown``.
+
+    Returns:
+        ``RingdownComparison``: ``before``/``after`` dicts (first_excursion,
+        first_excursion_time_s, decay_time_s, settle_time_s, settle_threshold, frequency_hz,
+        damping_ratio) and after/before ratios. GIL released.
+    """
+
+class RingdownComparison:
+    @property
+    def before(self) -> dict[str, object]: ...
+    @property
+    def after(self) -> dict[str, object]: ...
+    @property
+    def excursion_ratio(self) -> float: ...
+    @property
+    def decay_time_ratio(self) -> float | None: ...
+    @property
+    def settle_time_ratio(self) -> float | None: ...
+    def summary(self) -> dict[str, object]: ...
+
+class Transient:
+    """Output histories of ``Model.transient`` (SI: m or rad)."""
+    @property
+    def time_s(self) -> _F64:
+        """Sample times (s), shape (n,)."""
+    @property
+    def outputs(self) -> list[str]: ...
+    @property
+    def values(self) -> _F64:
+        """Histories, shape (n_out, n), m or rad."""
+    @property
+    def fft_len(self) -> int:
+        """Padded FFT length used."""
+    @property
+    def peak_arcsec(self) -> float | None:
+        """Largest radial image excursion (arcsec); None without image outputs/optics."""
+    @property
+    def peak_px(self) -> float | None: ...
+    @property
+    def peak_time_s(self) -> float | None: ...
+    @property
+    def radius_px(self) -> float | None: ...
+    @property
+    def settle_time_s(self) -> float | None:
+        """First time (s) from which the image stays within ``radius_px``; None if it ends outside."""
+    @property
+    def fraction_outside(self) -> float | None: ...
+    def __getitem__(self, name: str) -> _F64:
+        """One output's history (m or rad)."""
+    def summary(self) -> dict[str, object]: ...
+
+class ImageTransient:
+    """Sensor-plane history of ``Model.image_response`` / ``Model.gust_response``."""
+    @property
+    def time_s(self) -> _F64: ...
+    @property
+    def image_x_arcsec(self) -> _F64: ...
+    @property
+    def image_y_arcsec(self) -> _F64: ...
+    @property
+    def input_history(self) -> _F64:
+        """The history that drove the model (a gust: drag fluctuation, N)."""
+    @property
+    def plate_scale_arcsec_per_px(self) -> float: ...
+    @property
+    def peak_arcsec(self) -> float: ...
+    @property
+    def peak_px(self) -> float: ...
+    @property
+    def peak_time_s(self) -> float: ...
+    @property
+    def radius_px(self) -> float: ...
+    @property
+    def settle_time_s(self) -> float | None: ...
+    @property
+    def fraction_outside(self) -> float: ...
+    def summary(self) -> dict[str, object]: ...
+
+class Gust:
+    """A wind-speed fluctuation history u′(t) (m/s) about the mean speed."""
+    @staticmethod
+    def step(amplitude_m_s: float, *, start_s: float = 0.0) -> Gust:
+        """u′ = amplitude (m/s) from ``start_s`` (s) on."""
+    @staticmethod
+    def one_minus_cosine(
+        amplitude_m_s: float,
+        *,
+        gradient_distance_m: float | None = None,
+        duration_s: float | None = None,
+        start_s: float = 0.0,
+    ) -> Gust:
+        """The discrete "1-cosine" gust (A/2)(1 − cos(2π(t − t₀)/T)); give the gust gradient
+        distance H (m, T = 2H/U) or the duration T (s)."""
+    @staticmethod
+    def measured(speed_m_s: _F64In, fs: float) -> Gust:
+        """A measured total wind speed (m/s) sampled at ``fs`` (Hz); u′ = speed − mean speed."""
+    @staticmethod
+    def random(psd: Psd, *, seed: int) -> Gust:
+        """A random realisation (random phases, ``seed``) of a velocity ``Psd`` ((m/s)²/Hz)."""
+    def velocity_history(self, mean_speed_m_s: float, fs: float, n: int) -> _F64:
+        """u′ (m/s) at n samples of ``fs`` (Hz) from t = 0."""
+
+def random_realisation(psd: Psd, fs: float, n: int, *, seed: int) -> _F64:
+    """n samples at ``fs`` (Hz) of a zero-mean random realisation of a one-sided PSD (unit²/Hz):
+    random phases from ``seed``; variance = Σ S(f_j) Δf over the FFT bins."""
+
+def static_checks(
+    model_or_path: Model | str | PathLike[str],
+    *,
+    design_wind_m_s: float = 10.0,
+    gust_factor: float = 2.0,
+    air_density_kg_m3: float = 1.225,
+) -> StaticChecks:
+    """Static checks of a rig: leg axial stress and buckling (pinned–pinned, K = 1), tipping in
+    the steady wind about the line through two feet, pier stress and buckling.
+
+    Args:
+        model_or_path: a rig model file (path) or a ``Model`` built from one.
+        design_wind_m_s: mean design wind speed (m/s).
+        gust_factor: factor on the mean drag for gusts (dimensionless).
+        air_density_kg_m3: ρ (kg/m³).
+
+    Returns:
+        ``StaticChecks``: a sequence of dicts (name, value = demand, limit = capacity, unit,
+        factor_of_safety, verdict "pass" | "marginal" | "fail") and ``cautions``. Estimates
+        only: heavy rigs and piers can injure; follow local building codes and a licensed
+        engineer for piers, footings and observatory structures.
+    """
+
+class StaticChecks:
+    def __len__(self) -> int: ...
+    def __getitem__(self, i: int) -> dict[str, object]: ...
+    @property
+    def checks(self) -> list[dict[str, object]]: ...
+    @property
+    def verdict(self) -> Literal["pass", "marginal", "fail"]:
+        """The worst verdict."""
+    @property
+    def min_factor_of_safety(self) -> float: ...
+    @property
+    def cautions(self) -> str:
+        """The cautions that go with every report, one per line."""
+    def summary(self) -> dict[str, object]: ...
+# --- isolator sweep (stillsky.sweep in _sweep.py is the public entry; these are its parts) ---
+
+def sweep_rows(
+    model_text: str,
+    model_name: str,
+    catalogue_text: str,
+    catalogue_name: str,
+    spectra: list[str],
+    wind: list[str],
+    *,
+    labels: list[str] | None = None,
+    f_min_hz: float | None = None,
+    f_max_hz: float | None = None,
+    n_freq: int | None = None,
+    pad_prefix: str | None = None,
+    ground_scale: list[float] | None = None,
+    fs_hz: float | None = None,
+    threads: int | None = None,
+) -> list[dict[str, object]]:
+    """Rows of an isolator sweep (catalogue × spectra × wind cases), GIL released.
+
+    Args:
+        model_text, model_name: model file TOML (a rig with [tripod] or a generic layer with
+            pad springs) and the name used in messages.
+        catalogue_text, catalogue_name: isolator catalogue TOML and its name.
+        spectra: recording / PSD file paths, or ``nlnm`` / ``nhnm``.
+        wind: wind cases, ``calm`` or ``SPEED[:HEIGHT[:SPECTRUM[:INTENSITY]]]``; empty: calm.
+        labels: ground labels (one per spectrum, unique) instead of the file stems.
+        f_min_hz, f_max_hz, n_freq: log analysis grid (defaults 0.5, 90, 300).
+        pad_prefix: prefix of the pad springs in a generic model (default ``pad``).
+        ground_scale: per-axis factor on PSD files and reference models.
+        fs_hz: sample rate of text recordings without a time column or ``# fs_hz=`` line.
+        threads: threads of the sweep's own pool (default: all cores).
+
+    Returns:
+        one dict per row with the keys of ``sweep_columns()``; NaN where the CSV is empty,
+        ``worse_than_none``/``overloaded`` bool or None, ``error`` None on a good row. A
+        recording that cannot be read gives an error row per combination naming file and line.
+    """
+
+def sweep_plan(
+    model_text: str,
+    model_name: str,
+    catalogue_text: str,
+    catalogue_name: str,
+    spectra: list[str],
+    wind: list[str],
+    *,
+    f_min_hz: float | None = None,
+    f_max_hz: float | None = None,
+    n_freq: int | None = None,
+    pad_prefix: str | None = None,
+    ground_scale: list[float] | None = None,
+    fs_hz: float | None = None,
+    threads: int | None = None,
+) -> dict[str, list[str]]:
+    """Check a sweep without reading any spectrum: ``{"labels", "winds", "specs"}``."""
+
+def catalogue_toml(entries_json: str, source: str) -> str:
+    """Catalogue TOML from a JSON list of isolator entries (validated)."""
+
+def catalogue_parts(text: str, name: str, per_part: int) -> list[str]:
+    """The catalogue's entries in parts of at most ``per_part``, each as catalogue TOML."""
+
+def sweep_csv(rows: list[dict[str, object]]) -> str:
+    """The command-line sweep's CSV text for these rows (six significant digits)."""
+
+def sweep_error_row(spec: str, spectrum: str, wind: str, reason: str) -> dict[str, object]:
+    """An error row for one combination."""
+
+def sweep_columns() -> list[str]:
+    """The sweep table's column names, in order."""

@@ -79,7 +79,7 @@ pub fn partial_path(path: impl AsRef<Path>) -> PathBuf {
     PathBuf::from(s)
 }
 
-fn encode_row<S: AsRef<str>>(fields: &[S], what: &Path) -> Result<Vec<u8>> {
+pub(crate) fn encode_row<S: AsRef<str>>(fields: &[S], what: &Path) -> Result<Vec<u8>> {
     for (i, f) in fields.iter().enumerate() {
         if f.as_ref().contains(['\n', '\r']) {
             return Err(Error::invalid(

@@ -1,7 +1,8 @@
 //! Ground-vibration recordings (accelerometer or seismometer time series) → [`Series`] in SI.
 //!
 //! One parsing path: [`SeriesReader`] streams chunks of at most N frames; [`read_series`]
-//! collects them (up to [`SeriesOptions::max_samples`]).
+//! collects them (up to [`SeriesOptions::max_samples`]). Text recordings can also come from
+//! memory ([`SeriesReader::from_text`], [`read_series_text`]) through the same parser.
 //!
 //! # Layout of the samples
 //! Per axis ("planar"): [`Series::samples`] holds axis 0's frames, then axis 1's, then axis 2's;
@@ -331,7 +332,7 @@ impl SeriesReader {
         };
         let (header, backend) = match format {
             SeriesFormat::Csv | SeriesFormat::Whitespace => {
-                let (h, b) = text::open(path, format, opts)?;
+                let (h, b) = text::open(&text::TextSource::File(path.to_path_buf()), format, opts)?;
                 (h, Backend::Text(Box::new(b)))
             }
             SeriesFormat::Wav => {
@@ -344,6 +345,31 @@ impl SeriesReader {
             }
         };
         Ok(SeriesReader { header, backend, frames_read: 0 })
+    }
+
+    /// A reader over a text recording held in memory (CSV or whitespace-separated, as in the
+    /// module docs); `label` names it in errors. The format is `opts.format` if set to a text
+    /// format, else sniffed like a file without extension (a comma in the first non-comment
+    /// line means CSV). WAV and miniSEED need a file: forcing them here is an error.
+    pub fn from_text(text: &str, label: &str, opts: &SeriesOptions) -> Result<SeriesReader> {
+        opts.validate()?;
+        let format = match opts.format {
+            Some(f @ (SeriesFormat::Csv | SeriesFormat::Whitespace)) => f,
+            Some(f) => {
+                return Err(Error::invalid("format", format!("{f:?} cannot be read from text; use a file")));
+            }
+            None => {
+                let first = text.lines().map(str::trim).find(|l| !l.is_empty() && !l.starts_with('#'));
+                if first.is_some_and(|l| l.contains(',')) {
+                    SeriesFormat::Csv
+                } else {
+                    SeriesFormat::Whitespace
+                }
+            }
+        };
+        let src = text::TextSource::Memory { label: label.to_string(), bytes: text.as_bytes().into() };
+        let (header, b) = text::open(&src, format, opts)?;
+        Ok(SeriesReader { header, backend: Backend::Text(Box::new(b)), frames_read: 0 })
     }
 
     /// Metadata of the recording.
@@ -411,7 +437,16 @@ impl Series {
 /// Read a whole recording (built on [`SeriesReader`]); refuses more than
 /// [`SeriesOptions::max_samples`] samples with [`Error::TooLarge`].
 pub fn read_series(path: impl AsRef<Path>, opts: &SeriesOptions) -> Result<Series> {
-    let mut rdr = SeriesReader::open(path, opts)?;
+    collect(SeriesReader::open(path, opts)?, opts)
+}
+
+/// Read a whole text recording held in memory ([`SeriesReader::from_text`]); limits and errors
+/// as [`read_series`].
+pub fn read_series_text(text: &str, label: &str, opts: &SeriesOptions) -> Result<Series> {
+    collect(SeriesReader::from_text(text, label, opts)?, opts)
+}
+
+fn collect(mut rdr: SeriesReader, opts: &SeriesOptions) -> Result<Series> {
     let h = rdr.header().clone();
     let too_large = |value: usize| Error::TooLarge {
         what: format!("samples in {} (use SeriesReader to stream long recordings)", h.path),

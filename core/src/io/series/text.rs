@@ -1,8 +1,9 @@
 //! CSV and whitespace-separated text recordings (format described in [`super`]).
 
 use std::fs::File;
-use std::io::{BufRead, BufReader};
-use std::path::Path;
+use std::io::{BufRead, BufReader, Cursor};
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
 
 use super::timing::{GapFinder, TimingAccumulator, TimingReport, TimingSource};
 use super::units::{SeriesQuantity, Unit};
@@ -35,10 +36,35 @@ enum Delim {
     Whitespace,
 }
 
+/// Where text comes from: a file, or bytes in memory (read twice for timestamped files, like
+/// a file, so both take one path through the parser).
+#[derive(Debug, Clone)]
+pub(crate) enum TextSource {
+    File(PathBuf),
+    Memory { label: String, bytes: Arc<[u8]> },
+}
+
+type LineReader = Box<dyn BufRead + Send>;
+
+impl TextSource {
+    fn label(&self) -> String {
+        match self {
+            TextSource::File(p) => p.display().to_string(),
+            TextSource::Memory { label, .. } => label.clone(),
+        }
+    }
+    fn open(&self) -> Result<LineReader> {
+        Ok(match self {
+            TextSource::File(p) => Box::new(BufReader::new(open_file(p)?)),
+            TextSource::Memory { bytes, .. } => Box::new(Cursor::new(Arc::clone(bytes))),
+        })
+    }
+}
+
 /// Rows of numbers after the header line, with their line numbers.
 struct Rows {
     file: String,
-    rdr: BufReader<File>,
+    rdr: LineReader,
     delim: Delim,
     buf: String,
     line: usize,
@@ -53,7 +79,7 @@ fn csv_field(s: &str) -> &str {
 }
 
 /// `read_line` with text errors (invalid UTF-8) reported as a parse error at `line`.
-fn read_line(rdr: &mut BufReader<File>, buf: &mut String, file: &str, line: usize) -> Result<usize> {
+fn read_line(rdr: &mut LineReader, buf: &mut String, file: &str, line: usize) -> Result<usize> {
     rdr.read_line(buf).map_err(|e| match e.kind() {
         std::io::ErrorKind::InvalidData => parse_err(file, format!("line {line}"), "not UTF-8 text"),
         _ => io_err(file, e),
@@ -128,9 +154,9 @@ fn open_file(path: &Path) -> Result<File> {
 }
 
 /// Read the preamble and header line, classify the columns, and return the rows after it.
-fn open_rows(path: &Path, format: SeriesFormat, opts: &SeriesOptions) -> Result<(Layout, Rows)> {
-    let file = path.display().to_string();
-    let mut rdr = BufReader::new(open_file(path)?);
+fn open_rows(src: &TextSource, format: SeriesFormat, opts: &SeriesOptions) -> Result<(Layout, Rows)> {
+    let file = src.label();
+    let mut rdr = src.open()?;
     let mut fs_hz = None;
     let mut start_time = None;
     let mut line_no = 0usize;
@@ -323,8 +349,8 @@ pub(crate) struct TextBackend {
 }
 
 /// Run the timing pass over the time column (and a second one if there are gaps).
-fn timing_pass(path: &Path, format: SeriesFormat, opts: &SeriesOptions) -> Result<TimingReport> {
-    let (layout, mut rows) = open_rows(path, format, opts)?;
+fn timing_pass(src: &TextSource, format: SeriesFormat, opts: &SeriesOptions) -> Result<TimingReport> {
+    let (layout, mut rows) = open_rows(src, format, opts)?;
     let Some(tc) = layout.time_col else {
         return Err(Error::invalid("time column", format!("{} has no time column", rows.file)));
     };
@@ -334,7 +360,7 @@ fn timing_pass(path: &Path, format: SeriesFormat, opts: &SeriesOptions) -> Resul
     }
     let mut report = acc.finish(&rows.file, opts.max_jitter_fraction)?;
     if report.n_gaps > 0 {
-        let (_, mut rows) = open_rows(path, format, opts)?;
+        let (_, mut rows) = open_rows(src, format, opts)?;
         let mut gf = GapFinder::new(report.median_interval_s);
         while rows.next(Some(tc))?.is_some() {
             gf.push(rows.row[tc]);
@@ -346,20 +372,20 @@ fn timing_pass(path: &Path, format: SeriesFormat, opts: &SeriesOptions) -> Resul
 
 /// Timing report of a text file with a time column, without refusing irregular sampling.
 pub(crate) fn inspect(path: &Path, format: SeriesFormat, opts: &SeriesOptions) -> Result<TimingReport> {
-    timing_pass(path, format, opts)
+    timing_pass(&TextSource::File(path.to_path_buf()), format, opts)
 }
 
 pub(crate) fn open(
-    path: &Path,
+    src: &TextSource,
     format: SeriesFormat,
     opts: &SeriesOptions,
 ) -> Result<(SeriesHeader, TextBackend)> {
-    let (layout, rows) = open_rows(path, format, opts)?;
+    let (layout, rows) = open_rows(src, format, opts)?;
     let file = rows.file.clone();
     let given_fs = opts.fs_hz.or(layout.fs_hz);
     let (fs_hz, report, resampler, n_frames) = match layout.time_col {
         Some(_) => {
-            let mut report = timing_pass(path, format, opts)?;
+            let mut report = timing_pass(src, format, opts)?;
             if !report.is_acceptable() {
                 return Err(Error::invalid(
                     format!("sample times of {file}"),

@@ -1,0 +1,325 @@
+//! `Wind` (a wind disturbance spec) and `ImageMotion` (the result of `Model.image_motion`).
+
+use crate::convert::{f64_1d, slice_or_copy};
+use crate::errors::{IntoPyResult, to_pyerr};
+use crate::spectrum::PyPsd;
+use numpy::{IntoPyArray, PyArray1, PyArray2};
+use pyo3::prelude::*;
+use pyo3::types::{PyDict, PyMapping};
+use stillsky::image::{Guiding, ImageMotion, ImageOptions};
+use stillsky::response::Disturbances;
+use stillsky::spectrum::Psd;
+use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+use stillsky::{Error, FreqGrid};
+
+/// Mean wind and its turbulence at a height: the `wind=` disturbance of `Model.image_motion`.
+#[pyclass(name = "Wind", module = "stillsky._native", frozen)]
+#[derive(Clone)]
+pub struct PyWind {
+    pub inner: WindSpec,
+}
+
+#[pymethods]
+impl PyWind {
+    #[new]
+    #[pyo3(signature = (kind, mean_speed_m_s, height_m, *, turbulence_intensity = None,
+                        roughness_length_m = None, shelter_factor = 1.0, air_density_kg_m3 = None))]
+    fn new(
+        kind: &str,
+        mean_speed_m_s: f64,
+        height_m: f64,
+        turbulence_intensity: Option<f64>,
+        roughness_length_m: Option<f64>,
+        shelter_factor: f64,
+        air_density_kg_m3: Option<f64>,
+    ) -> PyResult<Self> {
+        let inner = wind_spec(
+            kind,
+            mean_speed_m_s,
+            height_m,
+            turbulence_intensity,
+            roughness_length_m,
+            shelter_factor,
+            air_density_kg_m3,
+        )?;
+        Ok(Self { inner })
+    }
+
+    /// Along-wind velocity PSD ((m/s)²/Hz) on `freq_hz`.
+    fn spectrum(&self, freq_hz: &Bound<'_, PyAny>) -> PyResult<PyPsd> {
+        let a = f64_1d(freq_hz, "freq_hz")?;
+        let g = FreqGrid::new(slice_or_copy(&a).into_owned()).py_err()?;
+        Ok(PyPsd { inner: self.inner.velocity_psd(&g).py_err()? })
+    }
+
+    #[getter]
+    fn mean_speed_m_s(&self) -> f64 {
+        self.inner.mean_speed_m_s
+    }
+
+    #[getter]
+    fn height_m(&self) -> f64 {
+        self.inner.height_m
+    }
+
+    fn __repr__(&self) -> String {
+        format!(
+            "Wind({:?}, mean_speed_m_s={}, height_m={}, turbulence={:?}, shelter_factor={})",
+            self.inner.kind,
+            self.inner.mean_speed_m_s,
+            self.inner.height_m,
+            self.inner.turbulence,
+            self.inner.shelter_factor
+        )
+    }
+}
+
+/// A validated wind spec from the Python arguments (shared by `Wind` and `wind_spectrum`).
+pub fn wind_spec(
+    kind: &str,
+    mean_speed_m_s: f64,
+    height_m: f64,
+    turbulence_intensity: Option<f64>,
+    roughness_length_m: Option<f64>,
+    shelter_factor: f64,
+    air_density_kg_m3: Option<f64>,
+) -> PyResult<WindSpec> {
+    let turbulence = match (turbulence_intensity, roughness_length_m) {
+        (Some(i), None) => Turbulence::Intensity(i),
+        (None, Some(z0_m)) => Turbulence::RoughnessLength { z0_m },
+        _ => {
+            return Err(to_pyerr(Error::invalid(
+                "turbulence",
+                "give exactly one of turbulence_intensity or roughness_length_m",
+            )));
+        }
+    };
+    let mut spec =
+        WindSpec::new(WindSpectrum::from_name(kind).py_err()?, mean_speed_m_s, height_m, turbulence)
+            .with_shelter_factor(shelter_factor);
+    if let Some(rho) = air_density_kg_m3 {
+        spec = spec.with_air_density(rho);
+    }
+    spec.validate().py_err()?;
+    Ok(spec)
+}
+
+/// Ground PSD per axis: a mapping {"x"|"y"|"z": Psd}, one `Psd` for all three axes, or a
+/// sequence of three `Psd | None`.
+fn ground(obj: Option<&Bound<'_, PyAny>>) -> PyResult<[Option<Psd>; 3]> {
+    let Some(obj) = obj else { return Ok([None, None, None]) };
+    if obj.is_none() {
+        return Ok([None, None, None]);
+    }
+    if let Ok(p) = obj.cast::<PyPsd>() {
+        let p = p.get().inner.clone();
+        return Ok([Some(p.clone()), Some(p.clone()), Some(p)]);
+    }
+    if let Ok(map) = obj.cast::<PyMapping>() {
+        let mut out = [None, None, None];
+        for item in map.items()?.iter() {
+            let (key, psd): (String, Option<Bound<'_, PyPsd>>) = item.extract()?;
+            let k = match key.as_str() {
+                "x" => 0,
+                "y" => 1,
+                "z" => 2,
+                _ => {
+                    return Err(to_pyerr(Error::UnknownName {
+                        kind: "ground axis".into(),
+                        name: key,
+                        known: "x, y, z".into(),
+                    }));
+                }
+            };
+            out[k] = psd.map(|p| p.get().inner.clone());
+        }
+        return Ok(out);
+    }
+    let v: Vec<Option<Bound<'_, PyPsd>>> = obj.extract()?;
+    let v: [Option<Bound<'_, PyPsd>>; 3] = v
+        .try_into()
+        .map_err(|v: Vec<_>| to_pyerr(Error::shape("ground (one Psd per axis x, y, z)", 3, v.len())))?;
+    Ok(v.map(|p| p.map(|p| p.get().inner.clone())))
+}
+
+/// Further loads: a mapping {input name: Psd} or a sequence of (name, Psd) pairs.
+fn loads(obj: Option<&Bound<'_, PyAny>>) -> PyResult<Vec<(String, Psd)>> {
+    let Some(obj) = obj else { return Ok(Vec::new()) };
+    if obj.is_none() {
+        return Ok(Vec::new());
+    }
+    let pairs: Vec<(String, Bound<'_, PyPsd>)> = match obj.cast::<PyMapping>() {
+        Ok(map) => map.items()?.extract()?,
+        Err(_) => obj.extract()?,
+    };
+    Ok(pairs.into_iter().map(|(n, p)| (n, p.get().inner.clone())).collect())
+}
+
+/// Guiding: a cadence in seconds (gain 0.5) or a (cadence_s, gain) pair.
+fn guide(obj: Option<&Bound<'_, PyAny>>) -> PyResult<Option<Guiding>> {
+    let Some(obj) = obj else { return Ok(None) };
+    if obj.is_none() {
+        return Ok(None);
+    }
+    if let Ok(cadence_s) = obj.extract::<f64>() {
+        return Ok(Some(Guiding { cadence_s, gain: 0.5 }));
+    }
+    let (cadence_s, gain): (f64, f64) = obj.extract().map_err(|_| {
+        to_pyerr(Error::invalid("guide", "give a cadence in seconds or a (cadence_s, gain) pair"))
+    })?;
+    Ok(Some(Guiding { cadence_s, gain }))
+}
+
+/// The disturbances of `Model.image_motion` / `Model.response` from their keyword arguments.
+pub fn disturbances(
+    ground_obj: Option<&Bound<'_, PyAny>>,
+    wind: Option<PyRef<'_, PyWind>>,
+    loads_obj: Option<&Bound<'_, PyAny>>,
+) -> PyResult<Disturbances> {
+    Ok(Disturbances {
+        ground: ground(ground_obj)?,
+        wind: wind.map(|w| w.inner.clone()),
+        loads: loads(loads_obj)?,
+    })
+}
+
+/// `Model.image_motion`.
+#[allow(clippy::too_many_arguments)]
+pub fn image_motion(
+    m: &stillsky::model::Model,
+    py: Python<'_>,
+    freq_hz: &Bound<'_, PyAny>,
+    ground_obj: Option<&Bound<'_, PyAny>>,
+    wind: Option<PyRef<'_, PyWind>>,
+    loads_obj: Option<&Bound<'_, PyAny>>,
+    exposure_s: Option<f64>,
+    guide_obj: Option<&Bound<'_, PyAny>>,
+    radius_px: Option<f64>,
+    seeing_fwhm_arcsec: Option<f64>,
+    mode_shares: bool,
+) -> PyResult<PyImageMotion> {
+    let f = f64_1d(freq_hz, "freq_hz")?;
+    let grid = FreqGrid::new(slice_or_copy(&f).into_owned()).py_err()?;
+    let dist = disturbances(ground_obj, wind, loads_obj)?;
+    let mut opts = ImageOptions::default();
+    opts.exposure_s = exposure_s;
+    opts.guide = guide(guide_obj)?;
+    opts.radius_px = radius_px;
+    opts.seeing_fwhm_arcsec = seeing_fwhm_arcsec;
+    opts.skip_mode_shares = !mode_shares;
+    let inner = py.detach(|| m.image_motion(&grid, &dist, &opts)).py_err()?;
+    Ok(PyImageMotion { inner })
+}
+
+/// Image motion on the sky and on the sensor (the result of `Model.image_motion`).
+#[pyclass(name = "ImageMotion", module = "stillsky._native", frozen)]
+pub struct PyImageMotion {
+    pub inner: ImageMotion,
+}
+
+fn rows2<'py>(py: Python<'py>, a: &[f64], b: &[f64]) -> PyResult<Bound<'py, PyArray2<f64>>> {
+    let n = a.len();
+    let v: Vec<f64> = a.iter().chain(b).copied().collect();
+    let arr = ndarray::Array2::from_shape_vec((2, n), v)
+        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: (2, n) layout: {e}")))?;
+    Ok(arr.into_pyarray(py))
+}
+
+/// A serialisable core result as a Python dict (via JSON; NaN and ±inf arrive as None).
+pub fn to_dict<'py, T: serde::Serialize>(py: Python<'py>, v: &T) -> PyResult<Bound<'py, PyDict>> {
+    let text = serde_json::to_string(v)
+        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: result to dict: {e}")))?;
+    Ok(py.import("json")?.call_method1("loads", (text,))?.cast_into::<PyDict>()?)
+}
+
+#[pymethods]
+impl PyImageMotion {
+    /// Radial RMS on the sky √(σx² + σy²) (arcsec).
+    #[getter]
+    fn rms_arcsec(&self) -> f64 {
+        self.inner.rms_arcsec
+    }
+    /// Radial RMS in the sensor plane (µm).
+    #[getter]
+    fn rms_um(&self) -> f64 {
+        self.inner.rms_um
+    }
+    /// Radial RMS in pixels.
+    #[getter]
+    fn rms_px(&self) -> f64 {
+        self.inner.rms_px
+    }
+    #[getter]
+    fn plate_scale_arcsec_per_px(&self) -> f64 {
+        self.inner.plate_scale_arcsec_per_px
+    }
+    /// RMS of image_x and image_y (arcsec), shape (2,).
+    #[getter]
+    fn per_axis_arcsec<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.per_axis_arcsec.to_vec().into_pyarray(py)
+    }
+    #[getter]
+    fn freq_hz<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.freq_hz.clone().into_pyarray(py)
+    }
+    /// PSD of image_x and image_y (arcsec²/Hz), shape (2, F).
+    #[getter]
+    fn psd<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let [x, y] = &self.inner.psd_arcsec2;
+        rows2(py, x, y)
+    }
+    /// Co-spectrum of image_x with image_y (arcsec²/Hz), shape (F,).
+    #[getter]
+    fn co_psd<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.co_psd_arcsec2.clone().into_pyarray(py)
+    }
+    /// Cumulative RMS from the lowest frequency, per axis (arcsec), shape (2, F).
+    #[getter]
+    fn cumulative_rms_arcsec<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let [x, y] = &self.inner.cumulative_rms_arcsec;
+        rows2(py, x, y)
+    }
+    /// Share of the radial mean square per mode: list of {label, frequency_hz, share}.
+    #[getter]
+    fn mode_share<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyAny>> {
+        py.import("json")?.call_method1("loads", (to_json(&self.inner.mode_share)?,))
+    }
+    /// Share of the mean square per disturbance input: {input name: share}.
+    #[getter]
+    fn input_share<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyDict>> {
+        let d = PyDict::new(py);
+        for (name, share) in &self.inner.input_share {
+            d.set_item(name, share)?;
+        }
+        Ok(d)
+    }
+    /// Probability that the image is outside `radius_px` at a random instant (default: the
+    /// radius the result was computed for, ½ px unless given).
+    #[pyo3(signature = (radius_px = None))]
+    fn p_outside(&self, radius_px: Option<f64>) -> PyResult<f64> {
+        match radius_px {
+            None => Ok(self.inner.p_outside),
+            Some(r) if r.is_finite() && r >= 0.0 => Ok(self.inner.p_outside_px(r)),
+            Some(r) => Err(to_pyerr(Error::invalid("radius_px", format!("must be finite and ≥ 0, got {r}")))),
+        }
+    }
+    /// Every scalar and small result as a dict (no per-frequency arrays).
+    fn summary<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyDict>> {
+        let d = to_dict(py, &self.inner)?;
+        for key in ["freq_hz", "psd_arcsec2", "co_psd_arcsec2", "cumulative_rms_arcsec"] {
+            d.del_item(key)?;
+        }
+        Ok(d)
+    }
+    fn __repr__(&self) -> String {
+        format!(
+            "ImageMotion(rms_arcsec={:.4}, rms_px={:.4}, p_outside({} px)={:.3e})",
+            self.inner.rms_arcsec, self.inner.rms_px, self.inner.radius_px, self.inner.p_outside
+        )
+    }
+}
+
+fn to_json<T: serde::Serialize>(v: &T) -> PyResult<String> {
+    serde_json::to_string(v)
+        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: result to JSON: {e}")))
+}

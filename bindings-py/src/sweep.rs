@@ -1,0 +1,279 @@
+//! The isolator sweep: rows in memory (interpreter released), their CSV text, and the helpers
+//! `stillsky.distributed` uses to split a sweep into tasks that exchange only text.
+//!
+//! Rows are dicts with the keys of `SWEEP_COLUMNS`, in that order: strings for key, spec,
+//! spectrum, wind, status (`ok`/`error`) and error (None on a good row), floats (NaN where the
+//! CSV is empty), and `worse_than_none`/`overloaded` as bool or None.
+
+use crate::errors::{IntoPyResult, to_pyerr};
+use pyo3::prelude::*;
+use pyo3::types::{PyDict, PyList};
+use stillsky::Error;
+use stillsky::batch::{
+    self, Catalogue, GroundSource, Isolator, SWEEP_COLUMNS, SweepConfig, SweepInputs, SweepRow, WindCase,
+};
+use stillsky::grid::FreqGrid;
+use stillsky::io::ModelFile;
+
+/// The parsed, text-only inputs of a sweep.
+struct Parsed {
+    model: ModelFile,
+    catalogue: Catalogue,
+    grounds: Vec<GroundSource>,
+    winds: Vec<WindCase>,
+    cfg: SweepConfig,
+}
+
+impl Parsed {
+    fn inputs(&self) -> SweepInputs<'_> {
+        SweepInputs {
+            model: &self.model,
+            catalogue: &self.catalogue,
+            grounds: &self.grounds,
+            winds: &self.winds,
+        }
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn parse(
+    model: (&str, &str),
+    catalogue: (&str, &str),
+    spectra: &[String],
+    wind: &[String],
+    grid: (Option<f64>, Option<f64>, Option<usize>),
+    pad_prefix: Option<String>,
+    ground_scale: Option<[f64; 3]>,
+    fs_hz: Option<f64>,
+    threads: Option<usize>,
+) -> stillsky::Result<Parsed> {
+    let mut cfg = SweepConfig::new()?;
+    if grid.0.is_some() || grid.1.is_some() || grid.2.is_some() {
+        let hz = cfg.grid.hz();
+        let (lo, hi, n) = (hz[0], hz[hz.len() - 1], hz.len());
+        cfg = cfg.with_grid(FreqGrid::log(grid.0.unwrap_or(lo), grid.1.unwrap_or(hi), grid.2.unwrap_or(n))?);
+    }
+    if let Some(p) = pad_prefix {
+        cfg = cfg.with_pad_prefix(p);
+    }
+    if let Some(s) = ground_scale {
+        cfg = cfg.with_ground_scale(s);
+    }
+    if let Some(f) = fs_hz {
+        cfg.series = cfg.series.with_fs_hz(f);
+    }
+    if let Some(n) = threads {
+        cfg = cfg.with_threads(n);
+    }
+    Ok(Parsed {
+        model: ModelFile::parse(model.0, model.1)?,
+        catalogue: Catalogue::parse(catalogue.0, catalogue.1)?,
+        grounds: spectra.iter().map(|s| GroundSource::parse(s)).collect(),
+        winds: wind.iter().map(|w| WindCase::parse(w)).collect::<stillsky::Result<_>>()?,
+        cfg,
+    })
+}
+
+fn row_dict<'py>(py: Python<'py>, r: &SweepRow) -> PyResult<Bound<'py, PyDict>> {
+    let d = PyDict::new(py);
+    let bad = r.is_error();
+    d.set_item("key", &r.key)?;
+    d.set_item("spec", &r.spec)?;
+    d.set_item("spectrum", &r.spectrum)?;
+    d.set_item("wind", &r.wind)?;
+    d.set_item("status", if bad { "error" } else { "ok" })?;
+    d.set_item("rms_arcsec", r.rms_arcsec)?;
+    d.set_item("rms_px", r.rms_px)?;
+    d.set_item("p_outside_half_px", r.p_outside_half_px)?;
+    d.set_item("first_mode_hz", r.first_mode_hz)?;
+    d.set_item("first_mode_zeta", r.first_mode_zeta)?;
+    d.set_item("ratio_to_none", r.ratio_to_none)?;
+    d.set_item("worse_than_none", if bad { None } else { Some(r.worse_than_none) })?;
+    d.set_item("pad_load_n", r.pad_load_n)?;
+    d.set_item("overloaded", r.overloaded)?;
+    d.set_item("gust_peak_px", r.gust_peak_px)?;
+    d.set_item("gust_settle_s", r.gust_settle_s)?;
+    d.set_item("error", r.error.as_deref())?;
+    Ok(d)
+}
+
+fn dict_row(d: &Bound<'_, PyAny>, i: usize) -> PyResult<SweepRow> {
+    let get = |k: &str| -> PyResult<Bound<'_, PyAny>> {
+        d.get_item(k)
+            .map_err(|_| to_pyerr(Error::invalid(format!("sweep row {i}"), format!("has no field '{k}'"))))
+    };
+    let s = |k: &str| -> PyResult<String> { get(k)?.extract() };
+    let x = |k: &str| -> PyResult<f64> { get(k)?.extract() };
+    let error: Option<String> = get("error")?.extract()?;
+    if (s("status")? == "error") != error.is_some() {
+        return Err(to_pyerr(Error::invalid(format!("sweep row {i}"), "status and error disagree")));
+    }
+    Ok(SweepRow {
+        key: s("key")?,
+        spec: s("spec")?,
+        spectrum: s("spectrum")?,
+        wind: s("wind")?,
+        error,
+        rms_arcsec: x("rms_arcsec")?,
+        rms_px: x("rms_px")?,
+        p_outside_half_px: x("p_outside_half_px")?,
+        first_mode_hz: x("first_mode_hz")?,
+        first_mode_zeta: x("first_mode_zeta")?,
+        ratio_to_none: x("ratio_to_none")?,
+        worse_than_none: get("worse_than_none")?.extract::<Option<bool>>()?.unwrap_or(false),
+        pad_load_n: x("pad_load_n")?,
+        overloaded: get("overloaded")?.extract()?,
+        gust_peak_px: x("gust_peak_px")?,
+        gust_settle_s: x("gust_settle_s")?,
+    })
+}
+
+/// Rows of a sweep (see the module docs); `labels` override the ground labels (one each).
+#[pyfunction]
+#[pyo3(signature = (model_text, model_name, catalogue_text, catalogue_name, spectra, wind, *,
+    labels = None, f_min_hz = None, f_max_hz = None, n_freq = None, pad_prefix = None,
+    ground_scale = None, fs_hz = None, threads = None))]
+#[allow(clippy::too_many_arguments)]
+pub fn sweep_rows<'py>(
+    py: Python<'py>,
+    model_text: &str,
+    model_name: &str,
+    catalogue_text: &str,
+    catalogue_name: &str,
+    spectra: Vec<String>,
+    wind: Vec<String>,
+    labels: Option<Vec<String>>,
+    f_min_hz: Option<f64>,
+    f_max_hz: Option<f64>,
+    n_freq: Option<usize>,
+    pad_prefix: Option<String>,
+    ground_scale: Option<[f64; 3]>,
+    fs_hz: Option<f64>,
+    threads: Option<usize>,
+) -> PyResult<Bound<'py, PyList>> {
+    let rows = py
+        .detach(|| {
+            let p = parse(
+                (model_text, model_name),
+                (catalogue_text, catalogue_name),
+                &spectra,
+                &wind,
+                (f_min_hz, f_max_hz, n_freq),
+                pad_prefix,
+                ground_scale,
+                fs_hz,
+                threads,
+            )?;
+            match &labels {
+                Some(l) => batch::sweep_rows_labelled(&p.inputs(), l, &p.cfg),
+                None => batch::sweep_rows(&p.inputs(), &p.cfg),
+            }
+        })
+        .py_err()?;
+    PyList::new(py, rows.iter().map(|r| row_dict(py, r)).collect::<PyResult<Vec<_>>>()?)
+}
+
+/// Check a sweep without reading grounds; returns `{"labels", "winds", "specs"}` (ground
+/// labels, wind labels, isolator names with the baseline first).
+#[pyfunction]
+#[pyo3(signature = (model_text, model_name, catalogue_text, catalogue_name, spectra, wind, *,
+    f_min_hz = None, f_max_hz = None, n_freq = None, pad_prefix = None,
+    ground_scale = None, fs_hz = None, threads = None))]
+#[allow(clippy::too_many_arguments)]
+pub fn sweep_plan<'py>(
+    py: Python<'py>,
+    model_text: &str,
+    model_name: &str,
+    catalogue_text: &str,
+    catalogue_name: &str,
+    spectra: Vec<String>,
+    wind: Vec<String>,
+    f_min_hz: Option<f64>,
+    f_max_hz: Option<f64>,
+    n_freq: Option<usize>,
+    pad_prefix: Option<String>,
+    ground_scale: Option<[f64; 3]>,
+    fs_hz: Option<f64>,
+    threads: Option<usize>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let p = parse(
+        (model_text, model_name),
+        (catalogue_text, catalogue_name),
+        &spectra,
+        &wind,
+        (f_min_hz, f_max_hz, n_freq),
+        pad_prefix,
+        ground_scale,
+        fs_hz,
+        threads,
+    )
+    .py_err()?;
+    batch::check_sweep(&p.inputs(), &p.cfg).py_err()?;
+    let d = PyDict::new(py);
+    d.set_item("labels", batch::ground_labels(&p.grounds).py_err()?)?;
+    let winds: Vec<String> = if p.winds.is_empty() {
+        vec![WindCase::calm().label]
+    } else {
+        p.winds.iter().map(|w| w.label.clone()).collect()
+    };
+    d.set_item("winds", winds)?;
+    d.set_item("specs", p.catalogue.isolators.iter().map(|i| i.name.clone()).collect::<Vec<_>>())?;
+    Ok(d)
+}
+
+/// Catalogue text from a JSON list of isolator entries (the catalogue file's fields).
+#[pyfunction]
+pub fn catalogue_toml(entries_json: &str, source: &str) -> PyResult<String> {
+    let entries: Vec<Isolator> = serde_json::from_str(entries_json).map_err(|e| {
+        to_pyerr(Error::Parse {
+            file: source.into(),
+            location: format!("entry list, column {}", e.column()),
+            reason: e.to_string(),
+        })
+    })?;
+    Catalogue::from_isolators(entries, source).and_then(|c| c.to_toml()).py_err()
+}
+
+/// A catalogue's entries in parts of at most `per_part`, each as catalogue text.
+#[pyfunction]
+pub fn catalogue_parts(text: &str, name: &str, per_part: usize) -> PyResult<Vec<String>> {
+    let c = Catalogue::parse(text, name).py_err()?;
+    c.split(per_part).py_err()?.iter().map(|p| p.to_toml().py_err()).collect()
+}
+
+/// The CSV text the command-line sweep writes for these rows.
+#[pyfunction]
+pub fn sweep_csv(rows: &Bound<'_, PyAny>) -> PyResult<String> {
+    let rows: Vec<SweepRow> =
+        rows.try_iter()?.enumerate().map(|(i, r)| dict_row(&r?, i)).collect::<PyResult<_>>()?;
+    batch::sweep_csv_text(&rows).py_err()
+}
+
+/// An error row for one combination.
+#[pyfunction]
+pub fn sweep_error_row<'py>(
+    py: Python<'py>,
+    spec: &str,
+    spectrum: &str,
+    wind: &str,
+    reason: &str,
+) -> PyResult<Bound<'py, PyDict>> {
+    row_dict(py, &SweepRow::failed(spec, spectrum, wind, reason.to_string()))
+}
+
+/// The column names, in order.
+#[pyfunction]
+pub fn sweep_columns() -> Vec<&'static str> {
+    SWEEP_COLUMNS.to_vec()
+}
+
+pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_function(wrap_pyfunction!(sweep_rows, m)?)?;
+    m.add_function(wrap_pyfunction!(sweep_plan, m)?)?;
+    m.add_function(wrap_pyfunction!(catalogue_toml, m)?)?;
+    m.add_function(wrap_pyfunction!(catalogue_parts, m)?)?;
+    m.add_function(wrap_pyfunction!(sweep_csv, m)?)?;
+    m.add_function(wrap_pyfunction!(sweep_error_row, m)?)?;
+    m.add_function(wrap_pyfunction!(sweep_columns, m)?)?;
+    Ok(())
+}

@@ -1,0 +1,224 @@
+//! Plain-text terminal output (no colour, no escape codes).
+
+use std::fmt::Write;
+use stillsky::batch::{Report, SweepOutcome};
+use stillsky::identify::RingdownId;
+
+pub fn report_text(model: &str, r: &Report) -> String {
+    let mut s = String::new();
+    let im = &r.image;
+    let _ = writeln!(s, "model: {model} ({} DOF, optics on '{}')", r.dof_count, r.optics_body);
+    let _ = writeln!(
+        s,
+        "disturbances: ground {}; wind {}",
+        r.ground_label.as_deref().unwrap_or("none"),
+        r.wind.as_deref().unwrap_or("none")
+    );
+    let _ = writeln!(
+        s,
+        "optics: f = {} mm, pixel {} um, plate scale {:.4} arcsec/px",
+        im.focal_length_mm, im.pixel_um, im.plate_scale_arcsec_per_px
+    );
+    let _ = writeln!(s, "\nmodes (first {} of {}):", r.modes.len().min(12), r.modes.len());
+    let _ = writeln!(
+        s,
+        "  {:>3} {:>10} {:>8}  {:<16} {:>26}",
+        "#", "f (Hz)", "zeta", "dominant DOF", "eff. mass x/y/z (kg)"
+    );
+    for m in r.modes.iter().take(12) {
+        let [a, b, c] = m.effective_mass_kg;
+        let _ = writeln!(
+            s,
+            "  {:>3} {:>10.3} {:>8.4}  {:<16} {:>8.2} {:>8.2} {:>8.2}",
+            m.index, m.frequency_hz, m.damping_ratio, m.dominant_dof, a, b, c
+        );
+    }
+    let um_per_arcsec = im.rms_um / im.rms_arcsec.max(1e-300);
+    let _ = writeln!(s, "\nimage motion (RMS):");
+    let _ = writeln!(s, "  {:<12} {:>12} {:>12} {:>10}", "", "arcsec", "um", "px");
+    for (name, v) in [
+        ("image_x (az)", im.per_axis_arcsec[0]),
+        ("image_y (alt)", im.per_axis_arcsec[1]),
+        ("radial", im.rms_arcsec),
+    ] {
+        let _ = writeln!(
+            s,
+            "  {:<12} {:>12.4} {:>12.4} {:>10.4}",
+            name,
+            v,
+            v * um_per_arcsec,
+            v / im.plate_scale_arcsec_per_px
+        );
+    }
+    let _ = writeln!(s, "  probability outside {} px: {:.3e}", im.radius_px, im.p_outside);
+    let (blur, seeing) = r.blur_vs_seeing();
+    match seeing {
+        Some(sv) => {
+            let [tx, ty] = im.total_fwhm_arcsec.unwrap_or([sv, sv]);
+            let _ = writeln!(
+                s,
+                "  blur FWHM {:.3} arcsec vs seeing {:.2} arcsec: star FWHM {:.3} x {:.3} arcsec ({:+.1} % on seeing)",
+                blur,
+                sv,
+                tx,
+                ty,
+                100.0 * (tx.max(ty) / sv.max(1e-300) - 1.0)
+            );
+        }
+        None => {
+            let _ = writeln!(s, "  blur FWHM {blur:.3} arcsec (no seeing given)");
+        }
+    }
+    if let Some((label, f, share)) = r.dominant_mode() {
+        let _ =
+            writeln!(s, "  dominant mode: {label} at {f:.2} Hz ({:.0} % of the mean square)", 100.0 * share);
+    }
+    let _ = writeln!(
+        s,
+        "  dominant band: third octave at {:.2} Hz ({:.0} %)",
+        im.dominant_band_hz,
+        100.0 * im.dominant_band_share
+    );
+    for (name, share) in &im.input_share {
+        let _ = writeln!(s, "  from {name}: {:.1} %", 100.0 * share);
+    }
+    if let Some(e) = &im.exposure {
+        let _ = writeln!(
+            s,
+            "  exposure {} s: wander {:.4} arcsec, smear {:.4} arcsec RMS",
+            e.exposure_s, e.wander_rms_arcsec, e.smear_rms_arcsec
+        );
+    }
+    if let Some(g) = &im.guide {
+        let _ = writeln!(s, "  guiding: cadence {} s, gain {} (applied)", g.cadence_s, g.gain);
+    }
+    if let Some(g) = &r.gust {
+        let settle = g.settle_s.map_or("not within the record".to_string(), |t| format!("{t:.2} s"));
+        let _ = writeln!(
+            s,
+            "  design gust (1-cosine, {:.2} m/s over 2 s): peak {:.3} px, back inside 1/2 px after {settle}",
+            g.amplitude_m_s, g.peak_px
+        );
+    }
+    if !r.criteria.is_empty() {
+        let _ = writeln!(s, "\nground vs criterion curves (third-octave RMS velocity, worst axis):");
+        for c in &r.criteria {
+            let _ = writeln!(
+                s,
+                "  {:<5} {:>6.2} um/s: worst {:.2e} of the limit at {:.1} Hz ({}) {}",
+                c.curve,
+                c.level_um_s,
+                c.worst_ratio,
+                c.worst_band_hz,
+                c.worst_axis,
+                if c.passes { "pass" } else { "exceeded" }
+            );
+        }
+    }
+    let verdict = if im.p_outside < 0.01 {
+        "holds (outside 1/2 px less than 1 % of the time)"
+    } else if im.p_outside < 0.5 {
+        "marginal (outside 1/2 px 1-50 % of the time)"
+    } else {
+        "does not hold (outside 1/2 px most of the time)"
+    };
+    let _ = writeln!(s, "\nverdict: {verdict}; radial RMS {:.3} px", im.rms_px);
+    if !r.notes.is_empty() {
+        let _ = writeln!(s, "notes:");
+        for n in &r.notes {
+            let _ = writeln!(s, "  - {n}");
+        }
+    }
+    s
+}
+
+pub fn sweep_text(o: &SweepOutcome) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "sweep: {} rows ({} computed, {} kept from an earlier run) -> {}",
+        o.rows.len(),
+        o.computed,
+        o.kept,
+        o.path.display()
+    );
+    let table = |s: &mut String, t: &stillsky::batch::RankTable| {
+        let _ = writeln!(s, "\nranking, {} (mean ratio to no pad; lower is better):", t.scope);
+        let _ = writeln!(
+            s,
+            "  {:>2} {:<20} {:>8} {:>10} {:>12} {:>8}",
+            "", "isolator", "ratio", "rms px", "P(>1/2 px)", "worse"
+        );
+        for (k, e) in t.entries.iter().enumerate() {
+            let mark = if e.worse_than_none { "WORSE THAN NO PAD" } else { "" };
+            let _ = writeln!(
+                s,
+                "  {:>2} {:<20} {:>8.3} {:>10.4} {:>12.3e} {:>4}/{:<3} {}{}",
+                k + 1,
+                e.spec,
+                e.mean_ratio,
+                e.mean_rms_px,
+                e.mean_p_outside_half_px,
+                e.cases_worse,
+                e.cases,
+                mark,
+                if e.overloaded { " (over rated load)" } else { "" }
+            );
+        }
+    };
+    for t in &o.summary.per_spectrum {
+        table(&mut s, t);
+    }
+    table(&mut s, &o.summary.overall);
+    if !o.summary.failures.is_empty() {
+        let _ = writeln!(s, "\nfailed inputs:");
+        for (k, e) in &o.summary.failures {
+            let _ = writeln!(s, "  {k}: {e}");
+        }
+    }
+    s
+}
+
+pub fn tap_text(file: &str, axis: &str, fs: f64, id: &RingdownId) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "tap test: {file}, axis '{axis}', fs {fs} Hz");
+    let _ = writeln!(s, "  {:>3} {:>10} {:>9} {:>12}", "#", "f (Hz)", "zeta", "amplitude");
+    for k in 0..id.frequency_hz.len() {
+        let _ = writeln!(
+            s,
+            "  {:>3} {:>10.3} {:>9.4} {:>12.4e}{}",
+            k + 1,
+            id.frequency_hz[k],
+            id.damping_ratio[k],
+            id.amplitude[k],
+            if k == id.dominant { "  (dominant)" } else { "" }
+        );
+    }
+    for w in &id.warnings {
+        let _ = writeln!(s, "  warning: {w}");
+    }
+    s
+}
+
+/// Static checks with their verdicts and the cautions that always go with them.
+pub fn checks_text(wind: &stillsky::checks::StaticWind, r: &stillsky::checks::CheckReport) -> String {
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        "\nStatic checks (design wind {:.1} m/s, gust factor {:.2}):",
+        wind.speed_m_s, wind.gust_factor
+    );
+    let _ = writeln!(o, "  {:<58} {:>12} {:>12} {:>6} {:>9}", "check", "demand", "capacity", "unit", "FoS");
+    for c in &r.checks {
+        let _ = writeln!(
+            o,
+            "  {:<58} {:>12.4e} {:>12.4e} {:>6} {:>9.2}  {:?}",
+            c.name, c.value, c.limit, c.unit, c.margin, c.verdict
+        );
+    }
+    let _ = writeln!(o, "  overall: {:?}", r.verdict());
+    for line in r.cautions() {
+        let _ = writeln!(o, "  CAUTION: {line}");
+    }
+    o
+}

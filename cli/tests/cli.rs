@@ -1,0 +1,288 @@
+//! The built `stillsky` binary on good and bad inputs.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+const BIN: &str = env!("CARGO_BIN_EXE_stillsky");
+
+fn examples() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("..").join("docs").join("examples")
+}
+
+fn tmp(tag: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("stillsky-cli-{tag}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn run(args: &[&str]) -> Output {
+    Command::new(BIN).args(args).output().unwrap()
+}
+
+fn text(o: &Output) -> (String, String) {
+    (String::from_utf8_lossy(&o.stdout).into_owned(), String::from_utf8_lossy(&o.stderr).into_owned())
+}
+
+fn s(p: &Path) -> &str {
+    p.to_str().unwrap()
+}
+
+/// A flat acceleration PSD file, 0.2–100 Hz.
+fn flat_psd(dir: &Path, level: f64) -> PathBuf {
+    let mut t = String::from("# stillsky psd, quantity=acceleration, unit=(m/s^2)^2/Hz\nfreq_hz,value\n");
+    for k in 0..=60 {
+        let f = 0.2 * (500f64).powf(k as f64 / 60.0);
+        t.push_str(&format!("{f:e},{level:e}\n"));
+    }
+    let p = dir.join("flat.csv");
+    std::fs::write(&p, t).unwrap();
+    p
+}
+
+fn assert_no_escapes(s: &str) {
+    assert!(!s.contains('\u{1b}'), "escape code in output: {s:?}");
+    assert!(!s.contains('\r'), "carriage return in output: {s:?}");
+}
+
+#[test]
+fn report_prints_summary_plots_and_json() {
+    let d = tmp("report");
+    let model = examples().join("tripod-paver.toml");
+    let rec = examples().join("recordings").join("quiet-night.csv");
+    let o = run(&[
+        "report",
+        s(&model),
+        "--ground",
+        s(&rec),
+        "--wind-speed",
+        "3",
+        "--exposure-s",
+        "2",
+        "--plots",
+        s(&d.join("plots")),
+        "--json",
+        s(&d.join("r.json")),
+    ]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    for want in [
+        "modes",
+        "radial",
+        "plate scale 0.2770",
+        "probability outside",
+        "seeing",
+        "dominant mode",
+        "design gust",
+        "verdict",
+    ] {
+        assert!(out.contains(want), "missing '{want}' in\n{out}");
+    }
+    assert_no_escapes(&out);
+    assert_no_escapes(&err);
+    for f in ["transmissibility", "image-per-ground", "image-psd", "cumulative-rms", "ground-psd", "gust"] {
+        let svg = std::fs::read_to_string(d.join("plots").join(format!("{f}.svg"))).unwrap();
+        assert!(svg.starts_with("<svg") && svg.contains("<polyline"), "{f}.svg");
+    }
+    let json = std::fs::read_to_string(d.join("r.json")).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    // Plate scale 206.264806 × 3.76 / 2800 (reference notes §11).
+    let plate = v["image"]["plate_scale_arcsec_per_px"].as_f64().unwrap();
+    assert!((plate - 206.264806 * 3.76 / 2800.0).abs() < 1e-9);
+    let rms_px = v["image"]["rms_px"].as_f64().unwrap();
+    let rms_arcsec = v["image"]["rms_arcsec"].as_f64().unwrap();
+    assert!((rms_px * plate - rms_arcsec).abs() <= 1e-9 * rms_arcsec);
+    assert!(v["modes"].as_array().unwrap().len() > 3);
+}
+
+#[test]
+fn expand_prints_generic_toml() {
+    let o = run(&["expand", s(&examples().join("tripod-lawn.toml"))]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    assert!(out.contains("[[body]]") && out.contains("name = \"payload\""), "{out}");
+}
+
+fn bad_report(dir: &Path, name: &str, content: &str) -> (i32, String) {
+    let p = dir.join(name);
+    std::fs::write(&p, content).unwrap();
+    let o = run(&["report", s(&examples().join("tripod-paver.toml")), "--ground", s(&p)]);
+    let (_, err) = text(&o);
+    (o.status.code().unwrap_or(-1), err)
+}
+
+#[test]
+fn bad_recordings_name_file_and_line_and_fail() {
+    let d = tmp("bad");
+    let cases: [(&str, &str, &[&str]); 6] = [
+        ("header.csv", "# fs_hz=100\nz_m_s2,,\n0.1,0.2,0.3\n", &["header.csv", "line 2"]),
+        ("nan.csv", "# fs_hz=100\nz_m_s2\n0.1\n0.2\nNaN\n", &["nan.csv", "line 5"]),
+        ("time.csv", "time_s,z_m_s2\n0.00,0.1\n0.01,0.2\n0.01,0.3\n0.03,0.1\n", &["time.csv", "line 4"]),
+        ("unit.csv", "# fs_hz=100\nz_furlong\n0.1\n", &["unit.csv", "furlong"]),
+        ("empty.csv", "", &["empty.csv"]),
+        ("short.csv", "# fs_hz=100\nz_m_s2\n0.1\n0.2\n", &["short.csv"]),
+    ];
+    for (name, content, wants) in cases {
+        let (code, err) = bad_report(&d, name, content);
+        assert_ne!(code, 0, "{name}: {err}");
+        assert!(err.starts_with("error: "), "{name}: {err}");
+        for w in wants {
+            assert!(err.contains(w), "{name}: missing '{w}' in {err}");
+        }
+        assert_no_escapes(&err);
+    }
+    let o = run(&["report", s(&d.join("missing.toml"))]);
+    let (_, err) = text(&o);
+    assert_ne!(o.status.code(), Some(0));
+    assert!(err.contains("missing.toml") && err.contains("I/O error"), "{err}");
+    let o = run(&["report", s(&examples().join("tripod-paver.toml")), "--ground", s(&d.join("gone.csv"))]);
+    let (_, err) = text(&o);
+    assert_ne!(o.status.code(), Some(0));
+    assert!(err.contains("gone.csv"), "{err}");
+}
+
+#[test]
+fn bad_model_file_names_line() {
+    let d = tmp("badmodel");
+    let p = d.join("m.toml");
+    std::fs::write(
+        &p,
+        "[[body]]\nname = \"a\"\nmass_kg = 1\ncg_m = [0, 0, 0]\ninertia_kgm2 = [1, 1, 1]\nwobble = 3\n",
+    )
+    .unwrap();
+    let o = run(&["report", s(&p)]);
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(err.contains("m.toml") && err.contains("line 6") && err.contains("wobble"), "{err}");
+}
+
+fn sweep_args<'a>(
+    model: &'a str,
+    cat: &'a str,
+    grounds: &[&'a str],
+    winds: &[&'a str],
+    out: &'a str,
+) -> Vec<&'a str> {
+    let mut a = vec!["sweep", "--model", model, "--catalogue", cat, "--ground"];
+    a.extend_from_slice(grounds);
+    if !winds.is_empty() {
+        a.push("--wind");
+        a.extend_from_slice(winds);
+    }
+    a.extend_from_slice(&["--out", out]);
+    a
+}
+
+#[test]
+fn soft_pad_raises_image_motion_of_a_stiff_tripod_on_a_paver() {
+    // Common practice, no source: a soft spring in series with a stiff support dominates the
+    // stiffness, so a soft pad under a tripod on a hard paver raises the image motion.
+    let d = tmp("series");
+    let g = flat_psd(&d, 1e-9);
+    let model = examples().join("tripod-paver.toml");
+    let cat = examples().join("isolators.toml");
+    let out = d.join("rows.csv");
+    let o = run(&sweep_args(s(&model), s(&cat), &[s(&g)], &[], s(&out)));
+    let (stdout, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    assert!(stdout.contains("WORSE THAN NO PAD"), "{stdout}");
+    let rows = stillsky::batch::read_sweep_csv(&out).unwrap();
+    let get = |n: &str| rows.iter().find(|r| r.spec == n).unwrap();
+    assert!(get("soft-elastomer").rms_arcsec > get("none").rms_arcsec);
+    assert!(get("soft-elastomer").ratio_to_none > 1.0 && get("soft-elastomer").worse_than_none);
+    assert!(get("soft-elastomer").first_mode_hz < get("none").first_mode_hz);
+}
+
+#[test]
+fn resumed_sweep_equals_uninterrupted_run_and_output_is_plain() {
+    let d = tmp("resume");
+    let g = flat_psd(&d, 1e-9);
+    let model = examples().join("tripod-paver.toml");
+    let cat = examples().join("isolators.toml");
+    let full = d.join("full.csv");
+    let o = run(&sweep_args(s(&model), s(&cat), &[s(&g), "nhnm"], &["calm", "3"], s(&full)));
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    // Not a TTY here: no progress bar, no escape codes.
+    assert_no_escapes(&out);
+    assert_no_escapes(&err);
+    let want = std::fs::read_to_string(&full).unwrap();
+    let lines: Vec<&str> = want.lines().collect();
+    assert_eq!(lines.len(), 1 + 2 * 2 * 5);
+    // Interrupted after 6 complete rows, with a torn seventh.
+    let part = d.join("part.csv");
+    let torn = format!("{}\n{}", lines[..7].join("\n"), &lines[7][..lines[7].len() / 3]);
+    std::fs::write(stillsky::io::atomic::partial_path(&part), torn).unwrap();
+    let mut args = sweep_args(s(&model), s(&cat), &[s(&g), "nhnm"], &["calm", "3"], s(&part));
+    args.push("--resume");
+    let o = run(&args);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    assert!(out.contains("14 computed, 6 kept"), "{out}");
+    assert_eq!(std::fs::read_to_string(&part).unwrap(), want);
+    assert!(!stillsky::io::atomic::partial_path(&part).exists());
+}
+
+#[test]
+fn a_bad_recording_is_an_error_row_and_the_exit_code_says_so() {
+    let d = tmp("sweepbad");
+    let g = flat_psd(&d, 1e-9);
+    let bad = d.join("bad.csv");
+    std::fs::write(&bad, "# fs_hz=100\nz_m_s2\n0.1\n0.2\nx\n").unwrap();
+    let out = d.join("rows.csv");
+    let o = run(&sweep_args(
+        s(&examples().join("tripod-paver.toml")),
+        s(&examples().join("isolators.toml")),
+        &[s(&bad), s(&g)],
+        &[],
+        s(&out),
+    ));
+    let (stdout, err) = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    // One error row per spec of the bad recording (the baseline and four isolators).
+    assert!(err.contains("5 row(s) failed"), "{err}");
+    assert!(stdout.contains("bad.csv") && stdout.contains("line 5"), "{stdout}");
+    let rows = stillsky::batch::read_sweep_csv(&out).unwrap();
+    assert_eq!(rows.len(), 10);
+    assert!(rows[..5].iter().all(|r| r.is_error()) && rows[5..].iter().all(|r| !r.is_error()));
+}
+
+#[test]
+fn demo_finishes() {
+    let d = tmp("demo");
+    let o = run(&["demo", "--out", s(&d)]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}\n{out}");
+    assert!(d.join("sweep.csv").exists() && d.join("report.json").exists());
+    assert!(d.join("plots").join("gust.svg").exists());
+    assert!(out.contains("ranking, all spectra"), "{out}");
+}
+
+/// The report on a real seismometer recording: ObsPy's bundled example BW.BGLD..EHE (Steim-1
+/// miniSEED, copied to core/tests/data/mseed). The file holds counts; the sensitivity given
+/// here (6.0e8 counts per m/s) is a placeholder, not that station's response.
+#[test]
+fn report_on_a_real_miniseed_recording_needs_and_uses_the_sensitivity() {
+    let d = tmp("mseed");
+    let rec = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../core/tests/data/mseed/BW.BGLD..EHE.steim1.10rec.mseed");
+    let model = examples().join("tripod-paver.toml");
+    let o = run(&["report", s(&model), "--ground", s(&rec)]);
+    let (_, err) = text(&o);
+    assert_ne!(o.status.code(), Some(0));
+    assert!(err.contains("BW.BGLD..EHE.steim1.10rec.mseed") && err.contains("counts"), "{err}");
+    let rms = |sens: &str, tag: &str| {
+        let json = d.join(format!("{tag}.json"));
+        let o = run(&["report", s(&model), "--ground", s(&rec), "--sensitivity", sens, "--json", s(&json)]);
+        assert_eq!(o.status.code(), Some(0), "{}", text(&o).1);
+        let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+        v["image"]["rms_arcsec"].as_f64().unwrap()
+    };
+    let a = rms("6.0e8:m_s", "a");
+    let b = rms("3.0e8:m_s", "b");
+    assert!(a.is_finite() && a > 0.0);
+    // Linearity: half the counts per unit is twice the ground motion and twice the image RMS.
+    assert!((b / a - 2.0).abs() < 1e-9, "{a} {b}");
+    let o = run(&["report", s(&model), "--ground", s(&rec), "--sensitivity", "6e8:furlongs"]);
+    assert!(text(&o).1.contains("furlongs"), "{}", text(&o).1);
+}

@@ -1,0 +1,361 @@
+//! The one-model report: modes, image motion, transmissibility, ground spectra against the
+//! reference models and criterion curves. Everything the command line prints or plots comes
+//! from [`build_report`].
+
+use super::ground::{GroundSource, GroundSpectrum};
+use crate::assembly::ModelSpec;
+use crate::error::{Error, Result};
+use crate::grid::FreqGrid;
+use crate::image::{ARCSEC_PER_RAD, Guiding, ImageMotion, ImageOptions};
+use crate::io::series::SeriesOptions;
+use crate::model::{GROUND_INPUTS, Model};
+use crate::response::Disturbances;
+use crate::spectrum::{CriterionCurve, Extrapolate, Quantity, ReferenceGround};
+use crate::wind::WindSpec;
+use serde::Serialize;
+
+/// Settings of a report. Optics overrides replace the model's `[optics]` values.
+#[derive(Debug, Clone)]
+#[non_exhaustive]
+pub struct ReportOptions {
+    pub grid: FreqGrid,
+    /// None: Peterson's NHNM (a noisy site) unless wind alone is wanted (`ground_off`).
+    pub ground: Option<GroundSource>,
+    /// No ground motion at all (wind only).
+    pub ground_off: bool,
+    pub ground_scale: [f64; 3],
+    pub series: SeriesOptions,
+    pub wind: Option<WindSpec>,
+    pub focal_length_mm: Option<f64>,
+    pub pixel_um: Option<f64>,
+    pub altitude_deg: Option<f64>,
+    pub azimuth_deg: Option<f64>,
+    pub seeing_fwhm_arcsec: Option<f64>,
+    pub exposure_s: Option<f64>,
+    pub guide: Option<Guiding>,
+}
+
+impl ReportOptions {
+    /// 0.2–100 Hz, 600 log-spaced points, no overrides.
+    pub fn new() -> Result<ReportOptions> {
+        Ok(ReportOptions {
+            grid: FreqGrid::log(0.2, 100.0, 600)?,
+            ground: None,
+            ground_off: false,
+            ground_scale: [1.0; 3],
+            series: SeriesOptions::default(),
+            wind: None,
+            focal_length_mm: None,
+            pixel_um: None,
+            altitude_deg: None,
+            azimuth_deg: None,
+            seeing_fwhm_arcsec: None,
+            exposure_s: None,
+            guide: None,
+        })
+    }
+}
+
+/// One mode of the table.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ModeRow {
+    /// 1-based.
+    pub index: usize,
+    pub frequency_hz: f64,
+    pub damping_ratio: f64,
+    /// The DOF with the largest kinetic-energy share, e.g. `payload:rx`.
+    pub dominant_dof: String,
+    /// Effective modal mass for ground x, y, z (kg).
+    pub effective_mass_kg: [f64; 3],
+}
+
+/// A curve over the report's grid (or its own frequencies).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Curve {
+    pub label: String,
+    pub freq_hz: Vec<f64>,
+    pub values: Vec<f64>,
+}
+
+/// A criterion verdict on the ground spectrum (worst axis).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CriterionVerdict {
+    pub curve: String,
+    pub level_um_s: f64,
+    /// Largest band RMS velocity / limit over the axes and bands.
+    pub worst_ratio: f64,
+    pub worst_band_hz: f64,
+    pub worst_axis: String,
+    pub passes: bool,
+}
+
+/// Everything a report shows.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Report {
+    pub dof_count: usize,
+    pub optics_body: String,
+    pub ground_label: Option<String>,
+    pub wind: Option<String>,
+    pub modes: Vec<ModeRow>,
+    pub image: ImageMotion,
+    /// |payload translation / ground translation| per ground axis (dimensionless).
+    pub transmissibility: Vec<Curve>,
+    /// |image motion / ground displacement| per ground axis and image axis (arcsec/µm).
+    pub image_per_ground_arcsec_per_um: Vec<Curve>,
+    /// Ground acceleration PSD per excited axis ((m/s²)²/Hz), on the analysis grid.
+    pub ground_accel_psd: Vec<Curve>,
+    /// NLNM and NHNM ((m/s²)²/Hz) on the part of the grid up to 10 Hz.
+    pub reference_accel_psd: Vec<Curve>,
+    /// Criterion curves VC-A … VC-E as equivalent acceleration PSDs ((m/s²)²/Hz): the band limit
+    /// v spread over its third-octave band, (2πf)² v² / (0.2316 f) (band width of a base-10
+    /// third octave, 10^(1/20) − 10^(−1/20) = 0.2316 of the centre).
+    pub criterion_accel_psd: Vec<Curve>,
+    pub criteria: Vec<CriterionVerdict>,
+    /// Response to the wind case's design gust (with wind only; see [`super::GUST_START_S`]).
+    pub gust: Option<GustTrace>,
+    pub notes: Vec<String>,
+}
+
+/// The image history under the design gust.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GustTrace {
+    pub time_s: Vec<f64>,
+    pub image_x_px: Vec<f64>,
+    pub image_y_px: Vec<f64>,
+    pub amplitude_m_s: f64,
+    pub start_s: f64,
+    pub peak_px: f64,
+    /// From the gust's start until the image stays within ½ px; None if it never does.
+    pub settle_s: Option<f64>,
+}
+
+impl Report {
+    /// The mode with the largest share of the image mean square, with its frequency.
+    pub fn dominant_mode(&self) -> Option<(String, f64, f64)> {
+        self.image.dominant_mode().map(|m| (m.label.clone(), m.frequency_hz, m.share))
+    }
+
+    /// Blur FWHM of the motion (radial: both axes in quadrature) against seeing, arcsec.
+    pub fn blur_vs_seeing(&self) -> (f64, Option<f64>) {
+        let [bx, by] = self.image.blur_fwhm_arcsec;
+        (bx.hypot(by), self.image.seeing_fwhm_arcsec)
+    }
+}
+
+/// Apply optics overrides to a spec.
+pub fn apply_optics_overrides(spec: &mut ModelSpec, o: &ReportOptions) -> Result<()> {
+    let any = o.focal_length_mm.is_some()
+        || o.pixel_um.is_some()
+        || o.altitude_deg.is_some()
+        || o.azimuth_deg.is_some()
+        || o.seeing_fwhm_arcsec.is_some();
+    let Some(op) = spec.optics.as_mut() else {
+        return Err(Error::invalid(
+            "optics",
+            if any {
+                "the model has no [optics] section to override (it needs the body carrying the optics)"
+            } else {
+                "the model has no [optics] section; image motion needs one"
+            },
+        ));
+    };
+    if let Some(v) = o.focal_length_mm {
+        op.focal_length_mm = v;
+    }
+    if let Some(v) = o.pixel_um {
+        op.pixel_um = v;
+    }
+    if let Some(v) = o.altitude_deg {
+        op.altitude_deg = v;
+    }
+    if let Some(v) = o.azimuth_deg {
+        op.azimuth_deg = v;
+    }
+    if let Some(v) = o.seeing_fwhm_arcsec {
+        op.seeing_fwhm_arcsec = Some(v);
+    }
+    Ok(())
+}
+
+/// Band width of a base-10 third octave as a fraction of its centre.
+const THIRD_OCTAVE_WIDTH: f64 = 0.231_616_2;
+
+/// Build the report of a generic-layer model.
+pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
+    let mut spec = spec.clone();
+    apply_optics_overrides(&mut spec, o)?;
+    let model = Model::from_spec(&spec)?;
+    let optics_body = spec.optics.as_ref().map(|op| op.body.clone()).unwrap_or_default();
+    let grid = &o.grid;
+    let mut notes = Vec::new();
+    let ground: Option<GroundSpectrum> = if o.ground_off {
+        None
+    } else {
+        let src = match &o.ground {
+            Some(g) => g.clone(),
+            None => {
+                notes
+                    .push("no ground spectrum given: Peterson (1993) NHNM (a noisy site) on all axes".into());
+                GroundSource::Reference(ReferenceGround::Nhnm)
+            }
+        };
+        Some(src.load(grid, o.ground_scale, &o.series)?)
+    };
+    if let Some(n) = ground.as_ref().and_then(|g| g.note.clone()) {
+        notes.push(n);
+    }
+    let d = Disturbances {
+        ground: ground.as_ref().map(|g| g.axes.clone()).unwrap_or_default(),
+        wind: o.wind.clone(),
+        loads: Vec::new(),
+    };
+    let io = ImageOptions {
+        exposure_s: o.exposure_s,
+        guide: o.guide,
+        seeing_fwhm_arcsec: o.seeing_fwhm_arcsec,
+        ..ImageOptions::default()
+    };
+    let image = model.image_motion(grid, &d, &io)?;
+    notes.extend(image.notes.iter().cloned());
+
+    let modes = model.modes()?;
+    let dom = modes.dominant_dofs(&model);
+    let mode_rows = (0..modes.frequency_hz.len())
+        .map(|j| ModeRow {
+            index: j + 1,
+            frequency_hz: modes.frequency_hz[j],
+            damping_ratio: modes.damping_ratio[j],
+            dominant_dof: dom[j].clone(),
+            effective_mass_kg: std::array::from_fn(|d| modes.effective_mass_kg[[j, d]]),
+        })
+        .collect();
+
+    // Transmissibility and image per ground motion.
+    let axes = ["x", "y", "z"];
+    let trans_out: Vec<String> = axes.iter().map(|a| format!("{optics_body}:{a}")).collect();
+    let mut outs: Vec<&str> = trans_out.iter().map(String::as_str).collect();
+    outs.extend(["image_x", "image_y"]);
+    let frf = model.frf(grid.hz(), &GROUND_INPUTS, &outs)?;
+    let mut transmissibility = Vec::new();
+    let mut image_per_ground = Vec::new();
+    for (d, gi) in GROUND_INPUTS.iter().enumerate() {
+        let t = frf.series(&trans_out[d], gi)?;
+        transmissibility.push(Curve {
+            label: format!("{} / {gi}", trans_out[d]),
+            freq_hz: grid.hz().to_vec(),
+            values: t.iter().map(|c| c.norm()).collect(),
+        });
+        for im in ["image_x", "image_y"] {
+            let h = frf.series(im, gi)?;
+            image_per_ground.push(Curve {
+                label: format!("{im} / {gi}"),
+                freq_hz: grid.hz().to_vec(),
+                // rad per m → arcsec per µm
+                values: h.iter().map(|c| c.norm() * ARCSEC_PER_RAD * 1e-6).collect(),
+            });
+        }
+    }
+
+    // Ground spectra, references and criteria.
+    let mut ground_accel_psd = Vec::new();
+    let mut criteria: Vec<CriterionVerdict> = Vec::new();
+    if let Some(g) = &ground {
+        for (k, p) in g.axes.iter().enumerate() {
+            let Some(p) = p else { continue };
+            let a = p.to(Quantity::Acceleration)?;
+            let on = a.resample(grid, Extrapolate::Zero)?;
+            ground_accel_psd.push(Curve {
+                label: format!("{} {}", g.label, axes[k]),
+                freq_hz: on.freq_hz().to_vec(),
+                values: on.values().to_vec(),
+            });
+            for c in [
+                CriterionCurve::VcA,
+                CriterionCurve::VcB,
+                CriterionCurve::VcC,
+                CriterionCurve::VcD,
+                CriterionCurve::VcE,
+            ] {
+                let Ok(r) = c.evaluate(p) else { continue };
+                let v = CriterionVerdict {
+                    curve: c.name().to_ascii_uppercase(),
+                    level_um_s: c.level_m_s() * 1e6,
+                    worst_ratio: r.worst_ratio,
+                    worst_band_hz: r.worst_band_hz,
+                    worst_axis: axes[k].into(),
+                    passes: r.passes(),
+                };
+                match criteria.iter_mut().find(|x| x.curve == v.curve) {
+                    Some(x) if x.worst_ratio < v.worst_ratio => *x = v,
+                    Some(_) => {}
+                    None => criteria.push(v),
+                }
+            }
+        }
+    }
+    let ref_hz: Vec<f64> = grid.hz().iter().copied().filter(|f| *f <= 10.0).collect();
+    let mut reference_accel_psd = Vec::new();
+    if ref_hz.len() >= 2 {
+        let rg = FreqGrid::new(ref_hz)?;
+        for (name, r) in [("NLNM", ReferenceGround::Nlnm), ("NHNM", ReferenceGround::Nhnm)] {
+            let p = r.psd(&rg)?;
+            reference_accel_psd.push(Curve {
+                label: name.into(),
+                freq_hz: p.freq_hz().to_vec(),
+                values: p.values().to_vec(),
+            });
+        }
+    }
+    let centres = CriterionCurve::band_centres_hz();
+    let criterion_accel_psd = [CriterionCurve::VcA, CriterionCurve::VcC, CriterionCurve::VcE]
+        .iter()
+        .map(|c| {
+            let v = c.level_m_s();
+            Curve {
+                label: c.name().to_ascii_uppercase(),
+                freq_hz: centres.clone(),
+                values: centres
+                    .iter()
+                    .map(|f| (2.0 * std::f64::consts::PI * f).powi(2) * v * v / (THIRD_OCTAVE_WIDTH * f))
+                    .collect(),
+            }
+        })
+        .collect();
+    let gust = match &o.wind {
+        Some(w) => match super::design_gust_response(&model, w) {
+            Ok(g) => {
+                let px = |v: &[f64]| v.iter().map(|a| a / g.plate_scale_arcsec_per_px).collect();
+                Some(GustTrace {
+                    image_x_px: px(&g.image_x_arcsec),
+                    image_y_px: px(&g.image_y_arcsec),
+                    time_s: g.time_s.clone(),
+                    amplitude_m_s: 3.0 * w.sigma_u_m_s()?,
+                    start_s: super::GUST_START_S,
+                    peak_px: g.metrics.peak_px,
+                    settle_s: g.metrics.settle_time_s.map(|t| (t - super::GUST_START_S).max(0.0)),
+                })
+            }
+            Err(e) => {
+                notes.push(format!("design gust not computed: {e}"));
+                None
+            }
+        },
+        None => None,
+    };
+    Ok(Report {
+        gust,
+        dof_count: model.dof_count(),
+        optics_body,
+        ground_label: ground.as_ref().map(|g| g.label.clone()),
+        wind: o.wind.as_ref().map(|w| format!("{:?} {} m/s at {} m", w.kind, w.mean_speed_m_s, w.height_m)),
+        modes: mode_rows,
+        image,
+        transmissibility,
+        image_per_ground_arcsec_per_um: image_per_ground,
+        ground_accel_psd,
+        reference_accel_psd,
+        criterion_accel_psd,
+        criteria,
+        notes,
+    })
+}
