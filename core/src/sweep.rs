@@ -13,7 +13,7 @@ use crate::frf::FrfPlan;
 use crate::linalg::BandLu;
 use crate::model::{Input, Model};
 use crate::stiffness::StiffnessModel;
-use ndarray::Array4;
+use ndarray::{Array3, Array4};
 use num_complex::Complex64;
 use rayon::prelude::*;
 
@@ -148,6 +148,37 @@ impl<'m> SweepPlan<'m> {
         Ok(a)
     }
 
+    /// FRFs of every variant and the RMS response of each (variant, output, input) pair to an
+    /// input PSD given on `freq_hz`: RMS = sqrt(∫ |H|² S df), trapezoid rule on the grid.
+    /// Shapes: FRF (n_variant, n_freq, n_out, n_in), RMS (n_variant, n_out, n_in).
+    pub fn evaluate_with_rms(
+        &self,
+        freq_hz: &[f64],
+        replacements: &[Vec<StiffnessModel>],
+        input_psd: &[f64],
+    ) -> Result<(Array4<Complex64>, Array3<f64>)> {
+        if input_psd.len() != freq_hz.len() {
+            return Err(Error::shape("input_psd (one value per frequency)", freq_hz.len(), input_psd.len()));
+        }
+        for (i, &v) in input_psd.iter().enumerate() {
+            crate::error::require_non_negative(&format!("input_psd[{i}]"), v)?;
+        }
+        let h = self.evaluate(freq_hz, replacements)?;
+        let (nv, nf, no, ni) = h.dim();
+        let mut rms = Array3::<f64>::zeros((nv, no, ni));
+        for v in 0..nv {
+            for o in 0..no {
+                for j in 0..ni {
+                    let y = |k: usize| h[[v, k, o, j]].norm_sqr() * input_psd[k];
+                    let ms: f64 =
+                        (1..nf).map(|k| 0.5 * (freq_hz[k] - freq_hz[k - 1]) * (y(k) + y(k - 1))).sum();
+                    rms[[v, o, j]] = ms.sqrt();
+                }
+            }
+        }
+        Ok((h, rms))
+    }
+
     /// FRFs of every variant into `out`, laid out (n_variant, n_freq, n_out, n_in) row-major.
     /// `replacements[v][s]` replaces the s-th named spring in variant v.
     pub fn evaluate_into(
@@ -273,6 +304,36 @@ mod tests {
             let e = max_rel_diff(g.as_slice().unwrap(), direct.data.as_slice().unwrap());
             assert!(e < 1e-9, "variant {v}: {e}");
         }
+    }
+
+    #[test]
+    fn rms_matches_direct_path_when_the_spring_is_unchanged() {
+        // Oracle: replacing s0 by its own model must give the direct dense FRF of the base model;
+        // the RMS is then the trapezoid integral of |H|²·S of that direct FRF (DESIGN.md rule).
+        let base = chain(6, &[]);
+        let f: Vec<f64> = (0..300).map(|k| 0.5 + k as f64 * 1.3).collect();
+        let s: Vec<f64> = f.iter().map(|x| 1e-12 / (1.0 + x / 50.0)).collect();
+        let same = vec![vec![StiffnessModel::Zener { k0: 4e5, k_inf: 1.2e6, tau_s: 0.002 }]];
+        let plan = SweepPlan::new(&base, &["s0"], &["ground_z"], &["m5:z"]).unwrap();
+        let (h, rms) = plan.evaluate_with_rms(&f, &same, &s).unwrap();
+        let d = FrfPlan::new(&base, &["ground_z"], &["m5:z"])
+            .unwrap()
+            .with_solver(crate::frf::SolverChoice::Dense)
+            .evaluate(&f)
+            .unwrap();
+        let e = max_rel_diff(h.as_slice().unwrap(), d.data.as_slice().unwrap());
+        assert!(e < 1e-9, "{e}");
+        let ms: f64 = (1..f.len())
+            .map(|k| {
+                0.5 * (f[k] - f[k - 1])
+                    * (d.data[[k, 0, 0]].norm_sqr() * s[k] + d.data[[k - 1, 0, 0]].norm_sqr() * s[k - 1])
+            })
+            .sum();
+        assert!((rms[[0, 0, 0]] - ms.sqrt()).abs() <= 1e-9 * ms.sqrt());
+        assert!(matches!(plan.evaluate_with_rms(&f, &same, &s[1..]), Err(Error::ShapeMismatch { .. })));
+        let mut neg = s.clone();
+        neg[3] = -1.0;
+        assert!(plan.evaluate_with_rms(&f, &same, &neg).is_err());
     }
 
     #[test]
