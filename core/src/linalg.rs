@@ -83,6 +83,73 @@ fn pivot_ratio_check(lo_sq: f64, hi_sq: f64) -> std::result::Result<(), f64> {
     if hi_sq > 0.0 && lo_sq.is_finite() && ratio > SINGULAR_PIVOT_RATIO { Ok(()) } else { Err(ratio) }
 }
 
+/// Solve a small dense k × k complex system A X = B in place by Gaussian elimination with
+/// partial pivoting (|re| + |im| pivot choice, as LAPACK's `izamax`): `a` column-major k × k is
+/// overwritten, `b` column-major k × nrhs receives X. For the handful-sized capacitance systems
+/// of [`crate::sweep`], where a general LU's set-up costs more than the arithmetic. Returns
+/// `Err(ratio)` like [`ComplexLu::solve_in_place`] when A is numerically singular.
+pub fn solve_small_in_place(
+    a: &mut [Complex64],
+    k: usize,
+    b: &mut [Complex64],
+    nrhs: usize,
+) -> std::result::Result<(), f64> {
+    if a.len() != k * k || b.len() != k * nrhs {
+        return Err(0.0);
+    }
+    let cabs1 = |z: Complex64| z.re.abs() + z.im.abs();
+    let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
+    for j in 0..k {
+        let mut p = j;
+        for i in j + 1..k {
+            if cabs1(a[i + j * k]) > cabs1(a[p + j * k]) {
+                p = i;
+            }
+        }
+        if p != j {
+            for c in j..k {
+                a.swap(j + c * k, p + c * k);
+            }
+            for c in 0..nrhs {
+                b.swap(j + c * k, p + c * k);
+            }
+        }
+        let d = a[j + j * k];
+        let dn = d.norm_sqr();
+        lo = lo.min(dn);
+        hi = hi.max(dn);
+        if dn == 0.0 {
+            return Err(0.0);
+        }
+        let inv = d.inv();
+        for i in j + 1..k {
+            let l = a[i + j * k] * inv;
+            if l == Complex64::default() {
+                continue;
+            }
+            for c in j + 1..k {
+                let u = a[j + c * k];
+                a[i + c * k] -= l * u;
+            }
+            for c in 0..nrhs {
+                let u = b[j + c * k];
+                b[i + c * k] -= l * u;
+            }
+        }
+    }
+    pivot_ratio_check(lo, hi)?;
+    for c in 0..nrhs {
+        for j in (0..k).rev() {
+            let mut x = b[j + c * k];
+            for q in j + 1..k {
+                x -= a[j + q * k] * b[q + c * k];
+            }
+            b[j + c * k] = x / a[j + j * k];
+        }
+    }
+    Ok(())
+}
+
 /// A banded partial-pivot LU for n × n complex systems with `kl` sub- and `ku` super-diagonals.
 ///
 /// Storage is LAPACK's band layout, column-major with leading dimension
@@ -394,6 +461,29 @@ mod tests {
                 assert!((p - q).norm() <= 1e-12 * scale, "n={n} kl={kl} ku={ku}: {p} vs {q}");
             }
         }
+    }
+
+    #[test]
+    fn small_solve_matches_faer_dense_lu() {
+        // Oracle: faer's dense partial-pivot LU on the same matrix (weak diagonal forces swaps).
+        for &k in &[1usize, 2, 3, 5, 8] {
+            let a = banded_case(k, k.saturating_sub(1), k.saturating_sub(1), 3 + k as u64);
+            let nrhs = 2;
+            let b0: Vec<Complex64> =
+                (0..k * nrhs).map(|q| Complex64::new((q as f64).cos(), (q as f64 * 0.7).sin())).collect();
+            let (mut ad, mut xd) = (a.clone(), b0.clone());
+            ComplexLu::new(k, nrhs).solve_in_place(&mut ad, &mut xd).unwrap();
+            let (mut asm, mut xs) = (a.clone(), b0.clone());
+            solve_small_in_place(&mut asm, k, &mut xs, nrhs).unwrap();
+            let scale = xd.iter().map(|x| x.norm()).fold(0.0, f64::max);
+            for (p, q) in xs.iter().zip(&xd) {
+                assert!((p - q).norm() <= 1e-12 * scale, "k={k}: {p} vs {q}");
+            }
+        }
+        let mut sing: Vec<Complex64> = [1.0, 2.0, 2.0, 4.0].iter().map(|&v| Complex64::new(v, 0.0)).collect();
+        let mut b = vec![Complex64::new(1.0, 0.0); 2];
+        assert!(solve_small_in_place(&mut sing, 2, &mut b, 1).is_err());
+        assert!(solve_small_in_place(&mut sing, 3, &mut b, 1).is_err());
     }
 
     #[test]

@@ -10,7 +10,7 @@
 
 use crate::error::{Error, Result};
 use crate::frf::FrfPlan;
-use crate::linalg::BandLu;
+use crate::linalg::solve_small_in_place;
 use crate::model::{Input, Model};
 use crate::stiffness::StiffnessModel;
 use ndarray::{Array3, Array4};
@@ -166,15 +166,22 @@ impl<'m> SweepPlan<'m> {
         let h = self.evaluate(freq_hz, replacements)?;
         let (nv, nf, no, ni) = h.dim();
         let mut rms = Array3::<f64>::zeros((nv, no, ni));
-        for v in 0..nv {
-            for o in 0..no {
-                for j in 0..ni {
-                    let y = |k: usize| h[[v, k, o, j]].norm_sqr() * input_psd[k];
-                    let ms: f64 =
-                        (1..nf).map(|k| 0.5 * (freq_hz[k] - freq_hz[k - 1]) * (y(k) + y(k - 1))).sum();
-                    rms[[v, o, j]] = ms.sqrt();
+        let hs = h.as_slice().ok_or_else(|| Error::invalid("sweep output", "not contiguous"))?;
+        let rs = rms.as_slice_mut().ok_or_else(|| Error::invalid("sweep RMS", "not contiguous"))?;
+        let per = no * ni;
+        for (hv, rv) in hs.chunks_exact((nf * per).max(1)).zip(rs.chunks_exact_mut(per.max(1))) {
+            // Trapezoid: Σ ½ (f_k − f_{k−1}) (y_k + y_{k−1}), y = |H|² S.
+            let mut prev = vec![0.0; per];
+            for (kf, hk) in hv.chunks_exact(per).enumerate() {
+                for (p, (x, acc)) in hk.iter().zip(rv.iter_mut()).enumerate() {
+                    let y = x.norm_sqr() * input_psd[kf];
+                    if kf > 0 {
+                        *acc += 0.5 * (freq_hz[kf] - freq_hz[kf - 1]) * (y + prev[p]);
+                    }
+                    prev[p] = y;
                 }
             }
+            rv.iter_mut().for_each(|x| *x = x.sqrt());
         }
         Ok((h, rms))
     }
@@ -201,37 +208,49 @@ impl<'m> SweepPlan<'m> {
                 m.validate(&format!("replacements[{v}][{s}]"))?;
             }
         }
-        let red = self.reduce(self.plan.model(), freq_hz)?;
+        // Per frequency one contiguous record [c·x0 | c·Y | G | g − h | k_old] (cache friendly in
+        // the variant loop below).
+        let (lc, ly, lg, lh) = (no * ni, no * k, k * k, k * ni);
+        let rec = lc + ly + lg + lh + k;
+        let mut flat = Vec::with_capacity(rec * freq_hz.len());
+        for r in self.reduce(self.plan.model(), freq_hz)? {
+            flat.extend_from_slice(&r.cx0);
+            flat.extend_from_slice(&r.cy);
+            flat.extend_from_slice(&r.g);
+            flat.extend(self.gvec.iter().zip(&r.h).map(|(g, h)| g - h));
+            flat.extend_from_slice(&r.k_old);
+        }
         out.par_chunks_mut(per.max(1)).zip(replacements.par_iter()).try_for_each(|(o, rep)| {
-            let mut lu = BandLu::new(k, k - 1, k - 1);
-            let mut a = vec![Complex64::default(); lu.storage_len()];
+            let mut a = vec![Complex64::default(); k * k];
             let mut w = vec![Complex64::default(); k * ni];
             let mut d = vec![Complex64::default(); k];
-            for (fi, (&fh, r)) in freq_hz.iter().zip(&red).enumerate() {
+            for (fi, (&fh, r)) in freq_hz.iter().zip(flat.chunks_exact(rec)).enumerate() {
+                let (cx0, r) = r.split_at(lc);
+                let (cy, r) = r.split_at(ly);
+                let (g, r) = r.split_at(lg);
+                let (gh, k_old) = r.split_at(lh);
                 for s in 0..k {
-                    d[s] = rep[s].at(fh) - r.k_old[s];
+                    d[s] = rep[s].at(fh) - k_old[s];
                 }
-                // A = I + D G in band storage (full band), W = D (g − h).
-                a.iter_mut().for_each(|x| *x = Complex64::default());
+                // A = I + D G, W = D (g − h).
                 for q in 0..k {
                     for p in 0..k {
-                        let id = if p == q { Complex64::new(1.0, 0.0) } else { Complex64::default() };
-                        a[lu.index(p, q)] = id + d[p] * r.g[p + q * k];
+                        a[p + q * k] = d[p] * g[p + q * k];
                     }
+                    a[q + q * k] += 1.0;
                 }
                 for j in 0..ni {
                     for p in 0..k {
-                        w[p + j * k] = d[p] * (self.gvec[p + j * k] - r.h[p + j * k]);
+                        w[p + j * k] = d[p] * gh[p + j * k];
                     }
                 }
-                lu.factor_in_place(&mut a).map_err(|_| Error::Singular { freq_hz: fh })?;
-                lu.solve_in_place(&a, &mut w, ni);
+                solve_small_in_place(&mut a, k, &mut w, ni).map_err(|_| Error::Singular { freq_hz: fh })?;
                 let dst = &mut o[fi * no * ni..(fi + 1) * no * ni];
                 for oi in 0..no {
                     for j in 0..ni {
-                        let mut acc = r.cx0[oi * ni + j];
+                        let mut acc = cx0[oi * ni + j];
                         for q in 0..k {
-                            acc += r.cy[oi * k + q] * w[q + j * k];
+                            acc += cy[oi * k + q] * w[q + j * k];
                         }
                         dst[oi * ni + j] = acc;
                     }
