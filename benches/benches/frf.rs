@@ -1,35 +1,49 @@
-//! FRF benches: direct solve per frequency on chains (n = 6, 12, 48, 200) and piers.
+//! FRF benches: chains (n = 6, 12, 48, 200; F = 1024, 4096) on the automatic solver and on the
+//! dense reference path, piers, modes, and the Woodbury batch sweep.
 use criterion::{BenchmarkId, Criterion, Throughput, criterion_group, criterion_main};
-use stillsky::frf::FrfPlan;
+use num_complex::Complex64;
+use std::time::Duration;
+use stillsky::frf::{FrfPlan, SolverChoice};
 use stillsky::grid::FreqGrid;
 use stillsky::model::Model;
-use stillsky_benches::{chain_toml, pier_toml};
+use stillsky::stiffness::StiffnessModel;
+use stillsky::sweep::SweepPlan;
+use stillsky_benches::{chain_toml, pad_specs, pier_toml};
 
 fn frf(c: &mut Criterion) {
     let mut g = c.benchmark_group("frf_chain");
-    g.sample_size(20).measurement_time(std::time::Duration::from_secs(3));
-    for &(n, nf) in &[(6usize, 4096usize), (12, 1024), (12, 4096), (48, 4096), (200, 1024)] {
-        let m = Model::from_toml_str(&chain_toml(n), "chain").unwrap();
-        let grid = FreqGrid::log(0.5, 500.0, nf).unwrap();
-        let out = format!("m{}:z", n - 1);
-        let plan = FrfPlan::new(&m, &["ground_z"], &[out.as_str()]).unwrap();
-        let mut buf = vec![num_complex::Complex64::default(); nf];
-        g.throughput(Throughput::Elements(nf as u64));
-        g.bench_with_input(BenchmarkId::new("plan", format!("n{n}_f{nf}")), &nf, |b, _| {
-            b.iter(|| plan.evaluate_into(grid.hz(), &mut buf).unwrap())
-        });
-        g.bench_with_input(BenchmarkId::new("convenience", format!("n{n}_f{nf}")), &nf, |b, _| {
-            b.iter(|| m.frf(grid.hz(), &["ground_z"], &[out.as_str()]).unwrap())
-        });
+    g.sample_size(20).measurement_time(Duration::from_secs(2)).warm_up_time(Duration::from_millis(500));
+    for &n in &[6usize, 12, 48, 200] {
+        for &nf in &[1024usize, 4096] {
+            let m = Model::from_toml_str(&chain_toml(n), "chain").unwrap();
+            let grid = FreqGrid::log(0.5, 500.0, nf).unwrap();
+            let out = format!("m{}:z", n - 1);
+            let plan = FrfPlan::new(&m, &["ground_z"], &[out.as_str()]).unwrap();
+            let mut buf = vec![Complex64::default(); nf];
+            g.throughput(Throughput::Elements(nf as u64));
+            let id = format!("n{n}_f{nf}");
+            g.bench_with_input(BenchmarkId::new("plan", &id), &nf, |b, _| {
+                b.iter(|| plan.evaluate_into(grid.hz(), &mut buf).unwrap())
+            });
+            g.bench_with_input(BenchmarkId::new("convenience", &id), &nf, |b, _| {
+                b.iter(|| m.frf(grid.hz(), &["ground_z"], &[out.as_str()]).unwrap())
+            });
+            if n <= 48 || nf == 1024 {
+                let dense = plan.clone().with_solver(SolverChoice::Dense);
+                g.bench_with_input(BenchmarkId::new("dense", &id), &nf, |b, _| {
+                    b.iter(|| dense.evaluate_into(grid.hz(), &mut buf).unwrap())
+                });
+            }
+        }
     }
     g.finish();
     let mut g = c.benchmark_group("frf_pier");
-    g.sample_size(10).measurement_time(std::time::Duration::from_secs(3));
+    g.sample_size(10).measurement_time(Duration::from_secs(2));
     for &el in &[8usize, 33] {
         let m = Model::from_toml_str(&pier_toml(el), "pier").unwrap();
         let grid = FreqGrid::log(0.5, 500.0, 1024).unwrap();
         let plan = FrfPlan::new(&m, &["ground_x"], &["head:rx"]).unwrap();
-        let mut buf = vec![num_complex::Complex64::default(); 1024];
+        let mut buf = vec![Complex64::default(); 1024];
         g.throughput(Throughput::Elements(1024));
         g.bench_with_input(BenchmarkId::new("plan", format!("n{}", m.dof_count())), &el, |b, _| {
             b.iter(|| plan.evaluate_into(grid.hz(), &mut buf).unwrap())
@@ -40,7 +54,7 @@ fn frf(c: &mut Criterion) {
 
 fn modes(c: &mut Criterion) {
     let mut g = c.benchmark_group("modes");
-    g.sample_size(20);
+    g.sample_size(20).measurement_time(Duration::from_secs(2));
     for &n in &[12usize, 48] {
         let m = Model::from_toml_str(&chain_toml(n), "chain").unwrap();
         g.bench_with_input(BenchmarkId::from_parameter(n), &n, |b, _| b.iter(|| m.modes().unwrap()));
@@ -48,5 +62,35 @@ fn modes(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, frf, modes);
+/// 1000 pad specs replacing s0, s1, s2 of the n = 12 chain; 2048 frequencies; FRF and the RMS
+/// response to a flat ground-displacement PSD (1e-12 m²/Hz, invented) per spec.
+fn sweep(c: &mut Criterion) {
+    let mut g = c.benchmark_group("sweep");
+    g.sample_size(10).measurement_time(Duration::from_secs(5));
+    let m = Model::from_toml_str(&chain_toml(12), "chain").unwrap();
+    let grid = FreqGrid::linear(0.5, 500.0, 2048).unwrap();
+    let specs: Vec<Vec<StiffnessModel>> = pad_specs(1000);
+    let plan = SweepPlan::new(&m, &["s0", "s1", "s2"], &["ground_z"], &["m11:z"]).unwrap();
+    let mut buf = vec![Complex64::default(); specs.len() * 2048];
+    let f = grid.hz();
+    g.throughput(Throughput::Elements(specs.len() as u64));
+    g.bench_function("woodbury_1000x2048", |b| {
+        b.iter(|| {
+            plan.evaluate_into(f, &specs, &mut buf).unwrap();
+            let rms: Vec<f64> = buf
+                .chunks_exact(f.len())
+                .map(|h| {
+                    let s: f64 = (1..f.len())
+                        .map(|k| 0.5 * (h[k].norm_sqr() + h[k - 1].norm_sqr()) * (f[k] - f[k - 1]))
+                        .sum();
+                    (1e-12 * s).sqrt()
+                })
+                .collect();
+            std::hint::black_box(rms)
+        })
+    });
+    g.finish();
+}
+
+criterion_group!(benches, frf, modes, sweep);
 criterion_main!(benches);

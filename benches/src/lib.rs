@@ -54,3 +54,91 @@ added_loss_factor = 0.02
 "#
     )
 }
+
+/// `count` pad specs for the sweep bench: three replacement springs each (a Zener pad, a
+/// hysteretic spring, a Kelvin–Voigt spring), parameters spread deterministically (invented).
+pub fn pad_specs(count: usize) -> Vec<Vec<stillsky::stiffness::StiffnessModel>> {
+    use stillsky::stiffness::StiffnessModel as S;
+    (0..count)
+        .map(|v| {
+            let t = v as f64 / count.max(1) as f64;
+            let k = 2e5 + 1.8e6 * t;
+            vec![
+                S::Zener { k0: k, k_inf: 3.0 * k, tau_s: 0.0005 + 0.004 * t },
+                S::Hysteretic { k: 1.5 * k, loss_factor: 0.05 + 0.2 * t },
+                S::KelvinVoigt { k: 0.8 * k, c: 20.0 + 200.0 * t },
+            ]
+        })
+        .collect()
+}
+
+/// Seeded Gaussian-like noise (sum of 4 uniforms, xorshift64; unit-free).
+pub fn noise(n: usize, seed: u64) -> Vec<f64> {
+    let mut s = seed.wrapping_mul(0x9E37_79B9_7F4A_7C15) | 1;
+    let mut u = move || {
+        s ^= s << 13;
+        s ^= s >> 7;
+        s ^= s << 17;
+        (s >> 11) as f64 / (1u64 << 53) as f64
+    };
+    (0..n).map(|_| (u() + u() + u() + u() - 2.0) * 1.732).collect()
+}
+
+/// Write a one-axis text recording (`# fs_hz=…`, header `z_m_s2`) for the streaming benches.
+pub fn write_text_series(path: &std::path::Path, x: &[f64], fs_hz: f64) -> std::io::Result<()> {
+    use std::io::Write;
+    let mut w = std::io::BufWriter::new(std::fs::File::create(path)?);
+    writeln!(w, "# fs_hz={fs_hz}\nz_m_s2")?;
+    for v in x {
+        writeln!(w, "{v:.9e}")?;
+    }
+    w.flush()
+}
+
+/// The monitor bench rig: a 20 kg tube on four horizontal springs with optics (invented).
+pub const MONITOR_RIG_TOML: &str = r#"
+[[body]]
+name = "tube"
+mass_kg = 20
+cg_m = [0, 0, 1]
+inertia_kgm2 = [2, 2, 2]
+dofs = ["x", "y", "rx", "ry"]
+[[spring]]
+name = "xl"
+from = "ground"
+to = "tube"
+at_m = [0, 0, 0.6]
+direction = [1, 0, 0]
+stiffness_n_per_m = 1e5
+loss_factor = 0.1
+[[spring]]
+name = "xh"
+from = "ground"
+to = "tube"
+at_m = [0, 0, 1.2]
+direction = [1, 0, 0]
+stiffness_n_per_m = 5e4
+loss_factor = 0.1
+[[spring]]
+name = "yl"
+from = "ground"
+to = "tube"
+at_m = [0, 0, 0.6]
+direction = [0, 1, 0]
+stiffness_n_per_m = 1.2e5
+loss_factor = 0.1
+[[spring]]
+name = "yh"
+from = "ground"
+to = "tube"
+at_m = [0, 0, 1.2]
+direction = [0, 1, 0]
+stiffness_n_per_m = 4e4
+loss_factor = 0.1
+[optics]
+body = "tube"
+focal_length_mm = 1000
+pixel_um = 3.76
+altitude_deg = 45
+azimuth_deg = 30
+"#;

@@ -267,7 +267,44 @@ pub fn sweep_columns() -> Vec<&'static str> {
     SWEEP_COLUMNS.to_vec()
 }
 
+/// Replace named rank-one springs of `model` by each variant's stiffness models (JSON: a list of
+/// variants, each a list of stiffness tables in the model file's form) and return the FRFs
+/// (n_variant, n_freq, n_out, n_in) and the RMS responses (n_variant, n_out, n_in) to `input_psd`.
+#[pyfunction]
+#[pyo3(signature = (model, springs, replacements_json, freq_hz, input, output, *, input_psd))]
+#[allow(clippy::too_many_arguments, clippy::type_complexity)]
+pub fn spring_sweep<'py>(
+    py: Python<'py>,
+    model: &crate::model::PyModel,
+    springs: Vec<String>,
+    replacements_json: &str,
+    freq_hz: &Bound<'py, PyAny>,
+    input: &Bound<'py, PyAny>,
+    output: &Bound<'py, PyAny>,
+    input_psd: &Bound<'py, PyAny>,
+) -> PyResult<(Bound<'py, numpy::PyArray4<num_complex::Complex64>>, Bound<'py, numpy::PyArray3<f64>>)> {
+    use crate::convert::{f64_1d, names, slice_or_copy};
+    use numpy::IntoPyArray;
+    let reps: Vec<Vec<stillsky::stiffness::StiffnessModel>> = serde_json::from_str(replacements_json)
+        .map_err(|e| to_pyerr(Error::invalid("replacements_json", e.to_string())))?;
+    let (f, s) = (f64_1d(freq_hz, "freq_hz")?, f64_1d(input_psd, "input_psd")?);
+    let (f, s) = (slice_or_copy(&f), slice_or_copy(&s));
+    let (ins, _) = names(input, "input")?;
+    let (outs, _) = names(output, "output")?;
+    let m = &model.inner;
+    let (h, rms) = py
+        .detach(|| {
+            let sp: Vec<&str> = springs.iter().map(String::as_str).collect();
+            let i: Vec<&str> = ins.iter().map(String::as_str).collect();
+            let o: Vec<&str> = outs.iter().map(String::as_str).collect();
+            stillsky::sweep::SweepPlan::new(m, &sp, &i, &o)?.evaluate_with_rms(&f, &reps, &s)
+        })
+        .py_err()?;
+    Ok((h.into_pyarray(py), rms.into_pyarray(py)))
+}
+
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_function(wrap_pyfunction!(spring_sweep, m)?)?;
     m.add_function(wrap_pyfunction!(sweep_rows, m)?)?;
     m.add_function(wrap_pyfunction!(sweep_plan, m)?)?;
     m.add_function(wrap_pyfunction!(catalogue_toml, m)?)?;

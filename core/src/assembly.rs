@@ -568,6 +568,9 @@ pub(crate) struct Assembled {
     pub(crate) k_const: Vec<Complex64>,
     /// Frequency-dependent springs.
     pub(crate) terms: Vec<RankOneTerm>,
+    /// Every rank-one spring (also those folded into `k_const` and `damping`), by name, so that
+    /// sweeps can replace them.
+    pub(crate) springs: Vec<RankOneTerm>,
     pub(crate) carriers: BTreeMap<String, Carrier>,
 }
 
@@ -633,6 +636,7 @@ struct Builder {
     damping: Vec<f64>,
     k_const: Vec<Complex64>,
     terms: Vec<RankOneTerm>,
+    springs: Vec<RankOneTerm>,
 }
 
 impl Builder {
@@ -834,6 +838,7 @@ pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
         damping: vec![0.0; nfull * nfull],
         k_const: vec![Complex64::default(); nfull * nfull],
         terms: Vec::new(),
+        springs: Vec::new(),
     };
     // Body and node mass.
     for body in &spec.bodies {
@@ -1024,12 +1029,16 @@ pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
         damping: b.damping,
         k_const: b.k_const,
         terms: b.terms,
+        springs: b.springs,
         carriers,
     })
 }
 
 fn add_rank_one(b: &mut Builder, name: &str, model: StiffnessModel, bvec: &[f64]) {
     let nfull = b.nfull;
+    let sparse: Vec<(usize, f64)> =
+        bvec.iter().enumerate().filter(|(_, v)| **v != 0.0).map(|(i, v)| (i, *v)).collect();
+    b.springs.push(RankOneTerm { name: name.to_string(), model: model.clone(), b: sparse.clone() });
     let c = model.viscous_part();
     if c != 0.0 {
         for (i, &bi) in bvec.iter().enumerate() {
@@ -1048,7 +1057,6 @@ fn add_rank_one(b: &mut Builder, name: &str, model: StiffnessModel, bvec: &[f64]
             }
         }
     } else {
-        let sparse = bvec.iter().enumerate().filter(|(_, v)| **v != 0.0).map(|(i, v)| (i, *v)).collect();
         b.terms.push(RankOneTerm { name: name.to_string(), model, b: sparse });
     }
 }

@@ -6,7 +6,7 @@
 //! parallel over frequency blocks (rayon) when the work is large enough to pay.
 
 use crate::error::{Error, Result};
-use crate::linalg::ComplexLu;
+use crate::linalg::{BandLu, ComplexLu};
 use crate::model::{Input, Model};
 use ndarray::Array3;
 use num_complex::Complex64;
@@ -40,7 +40,240 @@ impl Frf {
     }
 }
 
+/// Which linear solver an [`FrfPlan`] uses per frequency.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[non_exhaustive]
+pub enum SolverChoice {
+    /// Pick by the rule in [`FrfPlan::solver`]'s docs (default).
+    #[default]
+    Auto,
+    /// faer's dense partial-pivot LU on the natural order (the reference path).
+    Dense,
+    /// The banded LU of [`crate::linalg::BandLu`] after the better of the natural and the
+    /// reverse Cuthill–McKee orderings.
+    Banded,
+}
+
+/// The solver an [`FrfPlan`] settled on.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SolverKind {
+    /// Dense LU (faer).
+    Dense,
+    /// Banded LU with `kl` sub- and `ku` super-diagonals after reordering.
+    Banded { kl: usize, ku: usize },
+}
+
+/// One structurally non-zero entry of Z in solver storage: Z = k + iωc − ω²m there.
+#[derive(Debug, Clone, Copy)]
+struct Entry {
+    pos: usize,
+    k: Complex64,
+    c: f64,
+    m: f64,
+}
+
+/// A resolved input in solver order: constants of −Z_fg e_d (or a fixed load), plus the
+/// contributions of frequency-dependent terms `(term, row, b_i·b_g)`.
+#[derive(Debug, Clone)]
+struct RhsPlan {
+    entries: Vec<(usize, Complex64, f64, f64)>,
+    terms: Vec<(usize, usize, f64)>,
+}
+
+/// Frequency-independent structure of Z(ω), computed once per plan.
+#[derive(Debug, Clone)]
+struct Layout {
+    kind: SolverKind,
+    /// Storage length of the Z buffer.
+    len: usize,
+    entries: Vec<Entry>,
+    /// Per term: (storage position, b_i·b_j).
+    terms: Vec<Vec<(usize, f64)>>,
+    rhs: Vec<RhsPlan>,
+    /// Output rows as sparse (solver index, weight).
+    rows: Vec<Vec<(usize, f64)>>,
+    /// `pos[model DOF] = solver index`.
+    pos: Vec<usize>,
+}
+
+/// Reverse Cuthill–McKee ordering of a symmetric pattern (George & Liu, Computer Solution of
+/// Large Sparse Positive Definite Systems, 1981, §4.3): returns `order[new] = old`.
+fn reverse_cuthill_mckee(adj: &[Vec<usize>]) -> Vec<usize> {
+    let n = adj.len();
+    let mut seen = vec![false; n];
+    let mut order = Vec::with_capacity(n);
+    while order.len() < n {
+        // Start each component at a node of least degree.
+        let start = (0..n).filter(|&i| !seen[i]).min_by_key(|&i| adj[i].len()).unwrap_or(0);
+        seen[start] = true;
+        let mut head = order.len();
+        order.push(start);
+        while head < order.len() {
+            let v = order[head];
+            head += 1;
+            let mut nb: Vec<usize> = adj[v].iter().copied().filter(|&u| !seen[u]).collect();
+            nb.sort_by_key(|&u| adj[u].len());
+            for u in nb {
+                seen[u] = true;
+                order.push(u);
+            }
+        }
+    }
+    order.reverse();
+    order
+}
+
+/// (kl, ku) of a pattern under `pos[old] = new`.
+fn bandwidths(adj: &[Vec<usize>], pos: &[usize]) -> (usize, usize) {
+    let (mut kl, mut ku) = (0, 0);
+    for (i, nb) in adj.iter().enumerate() {
+        for &j in nb {
+            let (a, b) = (pos[i], pos[j]);
+            if a > b { kl = kl.max(a - b) } else { ku = ku.max(b - a) }
+        }
+    }
+    (kl, ku)
+}
+
+impl Layout {
+    fn new(model: &Model, inputs: &[Input], rows: &[f64], choice: SolverChoice) -> Layout {
+        let n = model.dof_count();
+        let nz =
+            |k: usize| model.k_ff[k] != Complex64::default() || model.c_ff[k] != 0.0 || model.m_ff[k] != 0.0;
+        let mut pattern = vec![false; n * n];
+        for (k, p) in pattern.iter_mut().enumerate() {
+            *p = nz(k);
+        }
+        for t in &model.terms {
+            for &(i, _) in &t.bf {
+                for &(j, _) in &t.bf {
+                    pattern[i + j * n] = true;
+                }
+            }
+        }
+        let mut adj = vec![Vec::new(); n];
+        for j in 0..n {
+            for i in 0..n {
+                if i != j && (pattern[i + j * n] || pattern[j + i * n]) {
+                    adj[i].push(j);
+                }
+            }
+        }
+        let natural: Vec<usize> = (0..n).collect();
+        let rcm = reverse_cuthill_mckee(&adj);
+        let mut rcm_pos = vec![0; n];
+        for (new, &old) in rcm.iter().enumerate() {
+            rcm_pos[old] = new;
+        }
+        let (nat_b, rcm_b) = (bandwidths(&adj, &natural), bandwidths(&adj, &rcm_pos));
+        let (pos, (kl, ku)) =
+            if rcm_b.0 + rcm_b.1 < nat_b.0 + nat_b.1 { (rcm_pos, rcm_b) } else { (natural.clone(), nat_b) };
+        // Rule: banded when its elimination count n·kl·(kl + ku + 1) is below a sixth of the
+        // dense n³ (dense LU ≈ n³/3 complex multiply–adds, so a ≥ 2× margin before the banded
+        // kernel's plain loops compete with faer's SIMD kernels).
+        let banded_cost = (n * kl * (kl + ku + 1)) as f64;
+        let dense_cost = (n as f64).powi(3);
+        let use_band = match choice {
+            SolverChoice::Dense => false,
+            SolverChoice::Banded => true,
+            SolverChoice::Auto => n > 0 && 6.0 * banded_cost < dense_cost,
+        };
+        let (kind, pos, len, ld) = if use_band {
+            let ld = 2 * kl + ku + 1;
+            (SolverKind::Banded { kl, ku }, pos, ld * n, ld)
+        } else {
+            (SolverKind::Dense, natural, n * n, n)
+        };
+        let at = |i: usize, j: usize| -> usize {
+            let (a, b) = (pos[i], pos[j]);
+            match kind {
+                SolverKind::Dense => a + b * n,
+                SolverKind::Banded { kl, ku } => kl + ku + a - b + b * ld,
+            }
+        };
+        let mut entries = Vec::new();
+        for j in 0..n {
+            for i in 0..n {
+                let k = i + j * n;
+                if nz(k) {
+                    entries.push(Entry {
+                        pos: at(i, j),
+                        k: model.k_ff[k],
+                        c: model.c_ff[k],
+                        m: model.m_ff[k],
+                    });
+                }
+            }
+        }
+        let terms = model
+            .terms
+            .iter()
+            .map(|t| {
+                let mut v = Vec::with_capacity(t.bf.len() * t.bf.len());
+                for &(j, bj) in &t.bf {
+                    for &(i, bi) in &t.bf {
+                        v.push((at(i, j), bi * bj));
+                    }
+                }
+                v
+            })
+            .collect();
+        let rhs = inputs
+            .iter()
+            .map(|inp| match inp {
+                Input::Load(v) => RhsPlan {
+                    entries: (0..n)
+                        .filter(|&i| v[i] != 0.0)
+                        .map(|i| (pos[i], Complex64::new(-v[i], 0.0), 0.0, 0.0))
+                        .collect(),
+                    terms: Vec::new(),
+                },
+                Input::Ground(d) => {
+                    let mut e = Vec::new();
+                    for i in 0..n {
+                        let k = i + d * n;
+                        if model.k_fg[k] != Complex64::default()
+                            || model.c_fg[k] != 0.0
+                            || model.m_fg[k] != 0.0
+                        {
+                            e.push((pos[i], model.k_fg[k], model.c_fg[k], model.m_fg[k]));
+                        }
+                    }
+                    let mut terms = Vec::new();
+                    for (ti, t) in model.terms.iter().enumerate() {
+                        if t.bg[*d] != 0.0 {
+                            for &(i, bi) in &t.bf {
+                                terms.push((ti, pos[i], bi * t.bg[*d]));
+                            }
+                        }
+                    }
+                    RhsPlan { entries: e, terms }
+                }
+            })
+            .collect();
+        let rows = rows
+            .chunks_exact(n.max(1))
+            .map(|r| (0..n).filter(|&i| r[i] != 0.0).map(|i| (pos[i], r[i])).collect())
+            .collect();
+        Layout { kind, len, entries, terms, rhs, rows, pos }
+    }
+
+    /// Per-frequency cost estimate (multiply–adds) used for the parallel threshold.
+    fn cost(&self, n: usize, nrhs: usize) -> f64 {
+        match self.kind {
+            SolverKind::Dense => (n as f64).powi(3) / 3.0 + (n * n * nrhs) as f64,
+            SolverKind::Banded { kl, ku } => {
+                (n * (kl + 1) * (kl + ku + 1) + n * nrhs * (2 * kl + ku + 1)) as f64
+            }
+        }
+    }
+}
+
 /// A reusable FRF evaluation for fixed inputs and outputs of one model.
+///
+/// At construction the plan fixes the sparsity pattern of Z(ω) and picks a solver
+/// ([`FrfPlan::solver`]); per frequency it only fills the structurally non-zero entries, factors
+/// and solves all inputs at once.
 #[derive(Debug, Clone)]
 pub struct FrfPlan<'m> {
     model: &'m Model,
@@ -49,13 +282,21 @@ pub struct FrfPlan<'m> {
     inputs: Vec<Input>,
     /// Output rows, row-major n_out × n.
     rows: Vec<f64>,
+    choice: SolverChoice,
+    layout: Layout,
+}
+
+enum Factor {
+    Dense(ComplexLu),
+    Banded(BandLu),
 }
 
 /// Scratch for one thread of an [`FrfPlan`].
-struct Scratch {
+pub(crate) struct Scratch {
     z: Vec<Complex64>,
-    b: Vec<Complex64>,
-    lu: ComplexLu,
+    pub(crate) b: Vec<Complex64>,
+    kv: Vec<Complex64>,
+    lu: Factor,
 }
 
 impl<'m> FrfPlan<'m> {
@@ -69,12 +310,15 @@ impl<'m> FrfPlan<'m> {
         for o in outputs {
             rows.extend(model.output(o)?);
         }
+        let layout = Layout::new(model, &ins, &rows, SolverChoice::Auto);
         Ok(FrfPlan {
             model,
             input_names: inputs.iter().map(|s| s.to_string()).collect(),
             output_names: outputs.iter().map(|s| s.to_string()).collect(),
             inputs: ins,
             rows,
+            choice: SolverChoice::Auto,
+            layout,
         })
     }
 
@@ -88,16 +332,45 @@ impl<'m> FrfPlan<'m> {
         let mut plan = FrfPlan::new(model, inputs, &[])?;
         plan.output_names = names;
         plan.rows = rows;
+        plan.layout = Layout::new(model, &plan.inputs, &plan.rows, plan.choice);
         Ok(plan)
     }
 
-    fn scratch(&self) -> Scratch {
+    /// The same plan with a forced solver choice (for checks and benchmarks; results agree to
+    /// round-off).
+    pub fn with_solver(mut self, choice: SolverChoice) -> Self {
+        self.choice = choice;
+        self.layout = Layout::new(self.model, &self.inputs, &self.rows, choice);
+        self
+    }
+
+    /// The solver in use. Rule for [`SolverChoice::Auto`]: take the smaller bandwidth of the
+    /// natural and the reverse Cuthill–McKee order of Z's pattern (union of M, C, K and all
+    /// frequency-dependent terms); use the banded LU when n·kl·(kl + ku + 1) < n³/6, otherwise
+    /// faer's dense LU.
+    pub fn solver(&self) -> SolverKind {
+        self.layout.kind
+    }
+
+    pub(crate) fn model(&self) -> &'m Model {
+        self.model
+    }
+
+    pub(crate) fn n_inputs(&self) -> usize {
+        self.inputs.len()
+    }
+
+    pub(crate) fn scratch_with(&self, extra_rhs: usize) -> Scratch {
         let n = self.model.dof_count();
-        let m = self.inputs.len();
+        let m = self.inputs.len() + extra_rhs;
         Scratch {
-            z: vec![Complex64::default(); n * n],
+            z: vec![Complex64::default(); self.layout.len],
             b: vec![Complex64::default(); n * m],
-            lu: ComplexLu::new(n, m),
+            kv: vec![Complex64::default(); self.model.terms.len()],
+            lu: match self.layout.kind {
+                SolverKind::Dense => Factor::Dense(ComplexLu::new(n, m)),
+                SolverKind::Banded { kl, ku } => Factor::Banded(BandLu::new(n, kl, ku)),
+            },
         }
     }
 
@@ -129,45 +402,97 @@ impl<'m> FrfPlan<'m> {
             return Err(Error::shape("FRF output buffer", freq_hz.len() * per, out.len()));
         }
         let n = self.model.dof_count();
-        // Parallel blocks when the total work is worth a thread hop.
-        let work = freq_hz.len() as f64 * (n as f64).powi(3);
-        let block = if work > 2e6 {
-            (freq_hz.len() / (4 * rayon::current_num_threads())).max(16)
-        } else {
-            freq_hz.len()
-        };
+        let block = self.block_len(freq_hz.len(), self.layout.cost(n, self.inputs.len()));
         out.par_chunks_mut(block * per).zip(freq_hz.par_chunks(block)).try_for_each(|(o, f)| {
-            let mut s = self.scratch();
+            let mut s = self.scratch_with(0);
             for (k, &fh) in f.iter().enumerate() {
-                self.solve_one(&mut s, fh, &mut o[k * per..(k + 1) * per])?;
+                self.solve_at(&mut s, fh, &[])?;
+                self.project(&s, &mut o[k * per..(k + 1) * per]);
             }
             Ok(())
         })
     }
 
-    fn solve_one(&self, s: &mut Scratch, f_hz: f64, out: &mut [Complex64]) -> Result<()> {
+    /// Frequencies per parallel block: one block (sequential) below ~2·10⁵ multiply–adds in
+    /// total, where a thread hop costs more than it saves (tuned on the chain benches).
+    pub(crate) fn block_len(&self, n_freq: usize, cost_per_freq: f64) -> usize {
+        if n_freq as f64 * cost_per_freq > 2e5 && rayon::current_num_threads() > 1 {
+            (n_freq / (4 * rayon::current_num_threads())).max(16)
+        } else {
+            n_freq.max(1)
+        }
+    }
+
+    /// Fill Z(ω) and the right-hand sides (the plan's inputs, then `extra` fixed real columns
+    /// given in model order as sparse (index, value)), factor and solve: afterwards `s.b` holds
+    /// the solutions in solver order, column-major n × (n_in + extra.len()).
+    pub(crate) fn solve_at(&self, s: &mut Scratch, f_hz: f64, extra: &[Vec<(usize, f64)>]) -> Result<()> {
         let m = self.model;
         let n = m.dof_count();
         let w = 2.0 * PI * f_hz;
-        build_dynamic_stiffness(m, f_hz, &mut s.z);
-        for (j, inp) in self.inputs.iter().enumerate() {
-            m.fill_input(inp, w, &mut s.b[j * n..(j + 1) * n]);
+        let w2 = w * w;
+        let lay = &self.layout;
+        s.z.iter_mut().for_each(|z| *z = Complex64::default());
+        for e in &lay.entries {
+            s.z[e.pos] = Complex64::new(e.k.re - w2 * e.m, e.k.im + w * e.c);
         }
-        s.lu.solve_in_place(&mut s.z, &mut s.b).map_err(|_| Error::Singular { freq_hz: f_hz })?;
-        let ni = self.inputs.len();
-        for (o, row) in self.rows.chunks_exact(n.max(1)).enumerate() {
-            for j in 0..ni {
-                let x = &s.b[j * n..(j + 1) * n];
-                let mut acc = Complex64::default();
-                for (r, xv) in row.iter().zip(x) {
-                    if *r != 0.0 {
-                        acc += xv * *r;
-                    }
-                }
-                out[o * ni + j] = acc;
+        for ((t, kv), pos) in m.terms.iter().zip(s.kv.iter_mut()).zip(&lay.terms) {
+            *kv = t.model.elastic_at(f_hz);
+            for &(p, bb) in pos {
+                s.z[p] += *kv * bb;
             }
         }
-        Ok(())
+        s.b.iter_mut().for_each(|x| *x = Complex64::default());
+        for (j, r) in lay.rhs.iter().enumerate() {
+            let col = &mut s.b[j * n..(j + 1) * n];
+            for &(i, k, c, mm) in &r.entries {
+                col[i] = -Complex64::new(k.re - w2 * mm, k.im + w * c);
+            }
+            for &(t, i, bb) in &r.terms {
+                col[i] -= s.kv[t] * bb;
+            }
+        }
+        let ni = self.inputs.len();
+        for (j, e) in extra.iter().enumerate() {
+            let col = &mut s.b[(ni + j) * n..(ni + j + 1) * n];
+            for &(i, v) in e {
+                col[self.solver_index(i)] = Complex64::new(v, 0.0);
+            }
+        }
+        let nrhs = ni + extra.len();
+        let res = match &mut s.lu {
+            Factor::Dense(lu) => lu.solve_in_place(&mut s.z, &mut s.b),
+            Factor::Banded(lu) => {
+                let r = lu.factor_in_place(&mut s.z);
+                if r.is_ok() {
+                    lu.solve_in_place(&s.z, &mut s.b, nrhs);
+                }
+                r
+            }
+        };
+        res.map_err(|_| Error::Singular { freq_hz: f_hz })
+    }
+
+    /// Solver-order index of model DOF `i`.
+    pub(crate) fn solver_index(&self, i: usize) -> usize {
+        self.layout.pos[i]
+    }
+
+    /// Output rows dotted with the solved input columns into `out` (n_out × n_in).
+    pub(crate) fn project(&self, s: &Scratch, out: &mut [Complex64]) {
+        let n = self.model.dof_count();
+        let ni = self.inputs.len();
+        for (o, row) in self.layout.rows.iter().enumerate() {
+            for j in 0..ni {
+                let x = &s.b[j * n..(j + 1) * n];
+                out[o * ni + j] = row.iter().map(|&(i, r)| x[i] * r).sum();
+            }
+        }
+    }
+
+    /// Output rows (sparse, solver order).
+    pub(crate) fn sparse_rows(&self) -> &[Vec<(usize, f64)>] {
+        &self.layout.rows
     }
 }
 
@@ -193,5 +518,118 @@ impl Model {
     /// FRF of every `outputs` × `inputs` pair on `freq_hz` (see [`crate::model`] for names).
     pub fn frf(&self, freq_hz: &[f64], inputs: &[&str], outputs: &[&str]) -> Result<Frf> {
         FrfPlan::new(self, inputs, outputs)?.evaluate(freq_hz)
+    }
+}
+
+#[cfg(test)]
+pub(crate) mod tests {
+    use super::*;
+
+    /// A chain ground–s0–m0–s1–m1–… with mixed spring models (as the bench generator). `pads`
+    /// overrides the stiffness lines of the first springs.
+    pub(crate) fn chain(n: usize, pads: &[&str]) -> Model {
+        let mut s = String::new();
+        for i in 0..n {
+            s.push_str(&format!(
+                "[[body]]\nname = \"m{i}\"\nmass_kg = {}\ncg_m = [0, 0, {}]\ninertia_kgm2 = [1, 1, 1]\ndofs = [\"z\"]\n\n",
+                2.0 + (i % 5) as f64,
+                i as f64 * 0.1
+            ));
+        }
+        for i in 0..n {
+            let from = if i == 0 { "ground".to_string() } else { format!("m{}", i - 1) };
+            let k = 1.0e6 * (1.0 + 0.3 * ((i * 7) % 11) as f64);
+            let stiff = if let Some(p) = pads.get(i) {
+                p.to_string()
+            } else if i == 0 {
+                "zener = { k0 = 4e5, k_inf = 1.2e6, tau_s = 0.002 }".to_string()
+            } else if i % 3 == 0 {
+                format!("stiffness_n_per_m = {k}\ndamping_ns_per_m = 40.0")
+            } else {
+                format!("stiffness_n_per_m = {k}\nloss_factor = 0.02")
+            };
+            s.push_str(&format!(
+                "[[spring]]\nname = \"s{i}\"\nfrom = \"{from}\"\nto = \"m{i}\"\nat_m = [0, 0, {}]\ndirection = [0, 0, 1]\n{stiff}\n\n",
+                i as f64 * 0.1
+            ));
+        }
+        Model::from_toml_str(&s, "chain").unwrap()
+    }
+
+    pub(crate) fn pier(elements: usize) -> Model {
+        let s = format!(
+            "[[body]]\nname = \"head\"\nmass_kg = 30\ncg_m = [0, 0, 1.5]\ninertia_kgm2 = [0.6, 0.6, 0.4]\n\n\
+             [[beam]]\nname = \"pier\"\nfrom = \"ground\"\nto = \"head\"\nfrom_at_m = [0, 0, 0]\nto_at_m = [0, 0, 1.5]\n\
+             section = {{ shape = \"tube\", outer_diameter_m = 0.2, wall_m = 0.006 }}\nmaterial = \"steel-s235\"\n\
+             elements = {elements}\nadded_mass_kg_per_m = 40\nadded_loss_factor = 0.02\n"
+        );
+        Model::from_toml_str(&s, "pier").unwrap()
+    }
+
+    pub(crate) fn max_rel_diff(a: &[Complex64], b: &[Complex64]) -> f64 {
+        let scale = b.iter().map(|x| x.norm()).fold(0.0, f64::max);
+        a.iter().zip(b).map(|(x, y)| (x - y).norm()).fold(0.0, f64::max) / scale
+    }
+
+    fn grid(nf: usize) -> Vec<f64> {
+        (0..nf).map(|k| 0.5 * (1000.0f64).powf(k as f64 / (nf - 1) as f64)).collect()
+    }
+
+    #[test]
+    fn rcm_finds_the_band_of_a_shuffled_path() {
+        // Path 0–1–…–9 relabelled by i ↦ 3i mod 10: natural bandwidth is large, RCM gives 1.
+        let n = 10;
+        let mut adj = vec![Vec::new(); n];
+        for i in 0..n - 1 {
+            let (a, b) = ((3 * i) % n, (3 * (i + 1)) % n);
+            adj[a].push(b);
+            adj[b].push(a);
+        }
+        let order = reverse_cuthill_mckee(&adj);
+        let mut pos = vec![0; n];
+        for (new, &old) in order.iter().enumerate() {
+            pos[old] = new;
+        }
+        assert_eq!(bandwidths(&adj, &pos), (1, 1));
+        let natural: Vec<usize> = (0..n).collect();
+        assert!(bandwidths(&adj, &natural).0 > 1);
+    }
+
+    #[test]
+    fn banded_path_matches_dense_path() {
+        // Oracle: the dense faer LU path on the natural order (the original direct solve).
+        for (m, ins, outs) in [
+            (chain(6, &[]), vec!["ground_z", "force:m2:z"], vec!["m5:z", "m0:z"]),
+            (chain(12, &[]), vec!["ground_z"], vec!["m11:z"]),
+            (chain(48, &[]), vec!["ground_z", "force:m30:z"], vec!["m47:z", "m10:z"]),
+            (pier(8), vec!["ground_x", "ground_z", "force:head:y"], vec!["head:rx", "head:x", "head:z"]),
+        ] {
+            let f = grid(300);
+            let auto = FrfPlan::new(&m, &ins, &outs).unwrap();
+            assert!(matches!(auto.solver(), SolverKind::Banded { .. }), "{:?}", auto.solver());
+            if ins[0] == "ground_z" {
+                // A chain is tridiagonal in a suitable order, whatever order assembly numbers it.
+                assert_eq!(auto.solver(), SolverKind::Banded { kl: 1, ku: 1 });
+            }
+            let dense = FrfPlan::new(&m, &ins, &outs).unwrap().with_solver(SolverChoice::Dense);
+            assert_eq!(dense.solver(), SolverKind::Dense);
+            let a = auto.evaluate(&f).unwrap();
+            let d = dense.evaluate(&f).unwrap();
+            let e = max_rel_diff(a.data.as_slice().unwrap(), d.data.as_slice().unwrap());
+            assert!(e < 1e-9, "n = {}: {e}", m.dof_count());
+        }
+    }
+
+    #[test]
+    fn dense_path_matches_formula_for_one_dof() {
+        // Receptance of a 1-DOF hysteretic oscillator: 1/(k(1+iη) − ω²m) (closed form).
+        let m = chain(1, &["stiffness_n_per_m = 1e6\nloss_factor = 0.05"]);
+        let f = grid(50);
+        let r = FrfPlan::new(&m, &["force:m0:z"], &["m0:z"]).unwrap().evaluate(&f).unwrap();
+        for (k, &fh) in f.iter().enumerate() {
+            let w = 2.0 * PI * fh;
+            let h = 1.0 / Complex64::new(1e6 - w * w * 2.0, 1e6 * 0.05);
+            assert!((r.data[[k, 0, 0]] - h).norm() <= 1e-12 * h.norm());
+        }
     }
 }

@@ -65,6 +65,7 @@ pub mod section;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;
+pub mod sweep;
 pub mod transient;
 pub mod wind;
 

@@ -34,7 +34,6 @@ pub(crate) enum Input {
 #[derive(Debug, Clone)]
 pub(crate) struct Term {
     /// The connector's name (for sweeps that replace a spring).
-    #[allow(dead_code)]
     pub(crate) name: String,
     pub(crate) model: crate::stiffness::StiffnessModel,
     pub(crate) bf: Vec<(usize, f64)>,
@@ -55,6 +54,9 @@ pub struct Model {
     pub(crate) c_fg: Vec<f64>,
     pub(crate) k_fg: Vec<Complex64>,
     pub(crate) terms: Vec<Term>,
+    /// Every rank-one spring by name, with its full stiffness model (viscous part included);
+    /// used by [`crate::sweep::SweepPlan`]. Z(ω) already contains `model.at(f)·b bᵀ` for each.
+    pub(crate) springs: Vec<Term>,
     carriers: std::collections::BTreeMap<String, assembly::Carrier>,
 }
 
@@ -105,18 +107,16 @@ impl Model {
         let (c_ff, c_fg) = block(&a.damping);
         let k_ff = (0..n * n).map(|k| a.k_const[(k % n) + (k / n) * nf]).collect();
         let k_fg = (0..n * 3).map(|k| a.k_const[(k % n) + (n + k / n) * nf]).collect();
-        let terms = a
-            .terms
-            .into_iter()
-            .map(|t| {
-                let mut bg = [0.0; 3];
-                let mut bf = Vec::new();
-                for (i, v) in t.b {
-                    if i < n { bf.push((i, v)) } else { bg[i - n] = v }
-                }
-                Term { name: t.name, model: t.model, bf, bg }
-            })
-            .collect();
+        let split = |t: assembly::RankOneTerm| {
+            let mut bg = [0.0; 3];
+            let mut bf = Vec::new();
+            for (i, v) in t.b {
+                if i < n { bf.push((i, v)) } else { bg[i - n] = v }
+            }
+            Term { name: t.name, model: t.model, bf, bg }
+        };
+        let terms = a.terms.into_iter().map(split).collect();
+        let springs = a.springs.into_iter().map(split).collect();
         Ok(Model {
             spec,
             n,
@@ -128,6 +128,7 @@ impl Model {
             c_fg,
             k_fg,
             terms,
+            springs,
             carriers: a.carriers,
         })
     }

@@ -859,6 +859,31 @@ class StaticChecks:
     def cautions(self) -> str:
         """The cautions that go with every report, one per line."""
     def summary(self) -> dict[str, object]: ...
+def spring_sweep(
+    model: Model,
+    springs: list[str],
+    replacements_json: str,
+    freq_hz: npt.ArrayLike,
+    input: str | list[str],
+    output: str | list[str],
+    *,
+    input_psd: npt.ArrayLike,
+) -> tuple[npt.NDArray[np.complex128], npt.NDArray[np.float64]]:
+    """Replace named rank-one springs by each variant's stiffness models (rank-k update).
+
+    Args:
+        model: the base model; `springs` names its rank-one springs to replace.
+        replacements_json: JSON list of variants, each a list (one per spring) of stiffness
+            tables as in the model file, e.g. ``[[{"hysteretic": {"k": 1e6, "loss_factor": 0.1}}]]``.
+        freq_hz: the grid (Hz, strictly increasing, > 0).
+        input, output: input and output names (one or a list each).
+        input_psd: one-sided input PSD on `freq_hz` for the RMS (unit²/Hz, ≥ 0).
+
+    Returns:
+        FRFs, shape (n_variant, n_freq, n_out, n_in), and RMS responses sqrt(∫|H|²S df)
+        (trapezoid rule), shape (n_variant, n_out, n_in). The GIL is released.
+    """
+
 # --- isolator sweep (stillsky.sweep in _sweep.py is the public entry; these are its parts) ---
 
 def sweep_rows(
