@@ -49,6 +49,8 @@ enum Cmd {
         #[arg(long, default_value_t = 2.0)]
         gust_factor: f64,
     },
+    /// Fit model-file numbers (dotted paths) to measured modes; writes the fitted model file.
+    Calibrate(CalibrateArgs),
     /// Identify frequency and damping from a tap-test ring-down recording.
     Tap {
         /// Recording (CSV/text/WAV/miniSEED).
@@ -160,6 +162,50 @@ struct SweepArgs {
     sensitivity: Option<Sensitivity>,
 }
 
+#[derive(Args)]
+struct CalibrateArgs {
+    /// Model file (TOML).
+    model: PathBuf,
+    /// A number to fit, as PATH=LOWER:UPPER (e.g. mount.tilt_stiffness_nm_per_rad=5e3:1e5,
+    /// spring[pad].stiffness_n_per_m=1e4:1e6). Repeatable.
+    #[arg(long = "param", required = true, value_parser = parse_param)]
+    params: Vec<stillsky::identify::CalibrationParameter>,
+    /// A measured mode, as FREQ_HZ or FREQ_HZ:DAMPING_RATIO. Repeatable.
+    #[arg(long = "target", value_parser = parse_target)]
+    targets: Vec<stillsky::identify::ModalTarget>,
+    /// A tap-test recording whose identified modes become targets (with the given ones).
+    #[arg(long)]
+    tap: Option<PathBuf>,
+    /// Sample rate (Hz) of a text tap recording without a time column or `# fs_hz=` line.
+    #[arg(long)]
+    fs: Option<f64>,
+    /// Axis (column) of the tap recording; default the first.
+    #[arg(long)]
+    axis: Option<String>,
+    /// Write the fitted model file here (atomically).
+    #[arg(long)]
+    out: Option<PathBuf>,
+}
+
+fn parse_param(s: &str) -> Result<stillsky::identify::CalibrationParameter, String> {
+    let (path, range) = s.split_once('=').ok_or("expected PATH=LOWER:UPPER")?;
+    let (lo, hi) = range.split_once(':').ok_or("expected PATH=LOWER:UPPER")?;
+    let num = |x: &str| x.trim().parse::<f64>().map_err(|_| format!("'{x}' is not a number"));
+    Ok(stillsky::identify::CalibrationParameter {
+        path: path.trim().to_string(),
+        lower: num(lo)?,
+        upper: num(hi)?,
+    })
+}
+
+fn parse_target(s: &str) -> Result<stillsky::identify::ModalTarget, String> {
+    let num = |x: &str| x.trim().parse::<f64>().map_err(|_| format!("'{x}' is not a number"));
+    Ok(match s.split_once(':') {
+        Some((f, z)) => stillsky::identify::ModalTarget::frequency(num(f)?).with_damping(num(z)?),
+        None => stillsky::identify::ModalTarget::frequency(num(s)?),
+    })
+}
+
 fn parse_triple(s: &str) -> Result<[f64; 3], String> {
     let v: Vec<f64> = s
         .split(',')
@@ -195,6 +241,7 @@ fn main() -> ExitCode {
         Cmd::Sweep(a) => sweep(&a),
         Cmd::Expand { model } => expand(&model),
         Cmd::Demo { out } => demo(&out),
+        Cmd::Calibrate(a) => calibrate(&a),
         Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
         Cmd::Check { model, design_wind_m_s, gust_factor } => check(&model, design_wind_m_s, gust_factor),
     };
@@ -421,7 +468,12 @@ fn demo(out: &Path) -> CliResult {
     Ok(())
 }
 
-fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
+/// The chosen axis of a recording (default the first).
+fn recording_axis(
+    file: &Path,
+    fs: Option<f64>,
+    axis: Option<&str>,
+) -> Result<(String, Vec<f64>, f64), Failure> {
     let s = read_series(file, &series_options(fs, None))?;
     let (name, x) = match axis {
         Some(a) => (
@@ -433,9 +485,46 @@ fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
         ),
         None => (s.axis_names.first().cloned().unwrap_or_default(), s.axis(0).unwrap_or_default()),
     };
+    Ok((name, x.to_vec(), s.fs_hz))
+}
+
+fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
+    let (name, x, fs_hz) = recording_axis(file, fs, axis)?;
     let id =
-        stillsky::identify::identify_ringdown(x, s.fs_hz, &stillsky::identify::RingdownOptions::default())?;
-    print!("{}", print::tap_text(&file.display().to_string(), &name, s.fs_hz, &id));
+        stillsky::identify::identify_ringdown(&x, fs_hz, &stillsky::identify::RingdownOptions::default())?;
+    print!("{}", print::tap_text(&file.display().to_string(), &name, fs_hz, &id));
+    Ok(())
+}
+
+fn calibrate(a: &CalibrateArgs) -> CliResult {
+    use stillsky::identify::{CalibrationOptions, ModalTarget, RingdownOptions, identify_ringdown};
+    let label = a.model.display().to_string();
+    let text = std::fs::read_to_string(&a.model).map_err(|e| Failure::io(&label, e))?;
+    let mut targets = a.targets.clone();
+    if let Some(tap) = &a.tap {
+        let (name, x, fs_hz) = recording_axis(tap, a.fs, a.axis.as_deref())?;
+        let id = identify_ringdown(&x, fs_hz, &RingdownOptions::default())?;
+        print!("{}", print::tap_text(&tap.display().to_string(), &name, fs_hz, &id));
+        targets.extend(id.frequency_hz.iter().map(|&f| ModalTarget::frequency(f)));
+    }
+    if targets.is_empty() {
+        return Err(Failure {
+            code: 2,
+            message: "no targets: give --target FREQ_HZ[:ZETA] or --tap FILE".into(),
+        });
+    }
+    let c =
+        stillsky::identify::calibrate(&text, &label, &a.params, &targets, &CalibrationOptions::default())?;
+    print!("{}", print::calibration_text(&label, &c));
+    if let Some(out) = &a.out {
+        let body = format!(
+            "# Calibrated from {label} by `stillsky calibrate` ({} value(s) fitted to measured modes).\n{}",
+            c.paths.len(),
+            c.model_toml
+        );
+        stillsky::io::atomic::write_atomic(out, body.as_bytes())?;
+        println!("fitted model written to {}", out.display());
+    }
     Ok(())
 }
 

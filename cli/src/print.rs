@@ -222,3 +222,38 @@ pub fn checks_text(wind: &stillsky::checks::StaticWind, r: &stillsky::checks::Ch
     }
     o
 }
+
+/// The calibration result: parameters, per-target residuals and the caution.
+pub fn calibration_text(model: &str, c: &stillsky::identify::Calibration) -> String {
+    let mut t = format!("== calibration: {model} ==\n");
+    t.push_str(&format!("{:<44} {:>14} {:>14}  note\n", "parameter", "start", "fitted"));
+    for j in 0..c.paths.len() {
+        let note = if c.at_bound[j] { "at a bound" } else { "" };
+        t.push_str(&format!("{:<44} {:>14.6e} {:>14.6e}  {note}\n", c.paths[j], c.initial[j], c.values[j]));
+    }
+    t.push_str(&format!(
+        "{:>5} {:>12} {:>12} {:>9} {:>10} {:>10}\n",
+        "mode", "target Hz", "model Hz", "error", "target ζ", "model ζ"
+    ));
+    for r in &c.residuals {
+        let zt = r.target_damping_ratio.map_or("-".to_string(), |z| format!("{z:.4}"));
+        t.push_str(&format!(
+            "{:>5} {:>12.4} {:>12.4} {:>8.3}% {:>10} {:>10.4}\n",
+            r.mode + 1,
+            r.target_frequency_hz,
+            r.model_frequency_hz,
+            100.0 * r.frequency_error,
+            zt,
+            r.model_damping_ratio
+        ));
+    }
+    t.push_str(&format!(
+        "cost {:.3e} -> {:.3e} in {} iterations ({})\n",
+        c.initial_cost,
+        c.cost,
+        c.iterations,
+        if c.converged { "converged" } else { "iteration limit reached" }
+    ));
+    t.push_str("Each target is tied to the model mode nearest to it at the start; check the ties above.\n");
+    t
+}

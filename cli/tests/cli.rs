@@ -286,3 +286,56 @@ fn report_on_a_real_miniseed_recording_needs_and_uses_the_sensitivity() {
     let o = run(&["report", s(&model), "--ground", s(&rec), "--sensitivity", "6e8:furlongs"]);
     assert!(text(&o).1.contains("furlongs"), "{}", text(&o).1);
 }
+
+#[test]
+fn calibrate_fits_the_tilt_stiffness_and_writes_the_model() {
+    // Targets synthesised from the demo rig with the mount's tilt stiffness at 2.6e4 N·m/rad
+    // (the file says 2.0e4): the fitted file must carry 2.6e4 within 1 %.
+    let d = tmp("calibrate");
+    let model = examples().join("tripod-lawn.toml");
+    let source = std::fs::read_to_string(&model).unwrap();
+    let truth = stillsky::identify::set_parameter(&source, "mount.tilt_stiffness_nm_per_rad", 2.6e4).unwrap();
+    let modes = stillsky::model::Model::from_toml_str(&truth, "truth").unwrap().modes().unwrap();
+    let out = d.join("fitted.toml");
+    let mut args = vec![
+        "calibrate".to_string(),
+        s(&model).to_string(),
+        "--param".into(),
+        "mount.tilt_stiffness_nm_per_rad=5e3:1e5".into(),
+        "--out".into(),
+        s(&out).to_string(),
+    ];
+    for f in &modes.frequency_hz[..3] {
+        args.push("--target".into());
+        args.push(format!("{f}"));
+    }
+    let argv: Vec<&str> = args.iter().map(String::as_str).collect();
+    let o = run(&argv);
+    let (stdout, stderr) = text(&o);
+    assert!(o.status.success(), "{stdout}\n{stderr}");
+    assert!(stdout.contains("mount.tilt_stiffness_nm_per_rad") && stdout.contains("converged"), "{stdout}");
+    let fitted = std::fs::read_to_string(&out).unwrap();
+    let k = stillsky::identify::get_parameter(&fitted, "mount.tilt_stiffness_nm_per_rad").unwrap();
+    assert!((k / 2.6e4 - 1.0).abs() < 0.01, "fitted {k}");
+    stillsky::model::Model::from_toml_str(&fitted, "fitted").unwrap();
+
+    // A path the file does not have: exit 2, the path named, nothing written.
+    let out2 = d.join("never.toml");
+    let o = run(&[
+        "calibrate",
+        s(&model),
+        "--param",
+        "mount.tilt_stifness=1:2",
+        "--target",
+        "10",
+        "--out",
+        s(&out2),
+    ]);
+    let (_, stderr) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("mount.tilt_stifness"), "{stderr}");
+    assert!(!out2.exists());
+    let o =
+        run(&["calibrate", s(&model), "--param", "mount.tilt_stiffness_nm_per_rad=oops", "--target", "10"]);
+    assert_eq!(o.status.code(), Some(2));
+}
