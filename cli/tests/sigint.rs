@@ -13,15 +13,16 @@ fn sigint_during_a_sweep_leaves_only_complete_rows() {
     let d = std::env::temp_dir().join(format!("stillsky-cli-sigint-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&d);
     std::fs::create_dir_all(&d).unwrap();
-    // A large job: 60 flat PSDs × 3 wind cases × the catalogue's isolators.
+    // A large job (so it cannot finish between the first rows and the signal): 600 flat PSDs ×
+    // 3 wind cases × the catalogue's isolators.
     let mut grounds = Vec::new();
-    for i in 0..60 {
+    for i in 0..600 {
         let level = 1e-10 * (1.0 + i as f64 / 10.0);
         let mut t = String::from("# stillsky psd, quantity=acceleration, unit=(m/s^2)^2/Hz\nfreq_hz,value\n");
         for k in 0..=60 {
             t.push_str(&format!("{:e},{level:e}\n", 0.2 * 500f64.powf(k as f64 / 60.0)));
         }
-        let p = d.join(format!("g{i:02}.csv"));
+        let p = d.join(format!("g{i:03}.csv"));
         std::fs::write(&p, t).unwrap();
         grounds.push(p.display().to_string());
     }
@@ -69,7 +70,7 @@ fn sigint_during_a_sweep_leaves_only_complete_rows() {
     let header: Vec<&str> = lines.next().unwrap().split(',').collect();
     assert_eq!(header, stillsky::batch::SWEEP_COLUMNS.to_vec());
     let rows: Vec<&str> = lines.collect();
-    assert!(rows.len() >= 5 && rows.len() < 60 * 3 * 5, "{} rows", rows.len());
+    assert!(rows.len() >= 5 && rows.len() < 600 * 3 * 5, "{} rows", rows.len());
     for r in &rows {
         assert_eq!(r.split(',').count(), header.len(), "incomplete row {r}");
     }
@@ -77,6 +78,6 @@ fn sigint_during_a_sweep_leaves_only_complete_rows() {
     assert_eq!(stillsky::batch::read_sweep_csv(&partial).unwrap().len(), rows.len());
     let keys = stillsky::io::atomic::completed_keys(&out, "key").unwrap();
     assert_eq!(keys.len(), rows.len());
-    println!("interrupted after {} of {} rows; every row complete", rows.len(), 60 * 3 * 5);
+    println!("interrupted after {} of {} rows; every row complete", rows.len(), 600 * 3 * 5);
     let _ = std::fs::remove_dir_all(&d);
 }
