@@ -28,7 +28,20 @@ fn sigint_during_a_sweep_leaves_only_complete_rows() {
     }
     let out = d.join("sweep.csv");
     let partial = stillsky::io::atomic::partial_path(&out);
-    let mut child = Command::new(BIN)
+    let mut cmd = Command::new(BIN);
+    // A job started in the background by a non-interactive shell inherits SIGINT as ignored;
+    // give the child the default action so the test sees what a user's Ctrl-C does.
+    {
+        use std::os::unix::process::CommandExt;
+        // SAFETY: only async-signal-safe `signal` between fork and exec.
+        unsafe {
+            cmd.pre_exec(|| {
+                libc::signal(libc::SIGINT, libc::SIG_DFL);
+                Ok(())
+            });
+        }
+    }
+    let mut child = cmd
         .args(["sweep", "--model"])
         .arg(ex.join("tripod-paver.toml"))
         .arg("--catalogue")
