@@ -232,17 +232,25 @@ fn lookup<'t>(
 /// The number at `path` in a model file (module docs for the syntax).
 pub fn get_parameter(model_toml: &str, path: &str) -> Result<f64> {
     let mut t = parse_table(model_toml, "model")?;
-    let all = || numeric_paths(model_toml).map(|p| p.join(", ")).unwrap_or_default();
-    let v = lookup(&mut t, path, &all)?;
+    as_number(lookup(&mut t, path, &|| known_paths(model_toml))?, path)
+}
+
+/// The value as a number; the error names `path`.
+fn as_number(v: &toml::Value, path: &str) -> Result<f64> {
     v.as_float()
         .or_else(|| v.as_integer().map(|i| i as f64))
         .ok_or_else(|| Error::invalid(path, format!("is a {}, not a number", v.type_str())))
 }
 
+/// The numeric paths of a model file, for an unknown-path error.
+fn known_paths(model_toml: &str) -> String {
+    numeric_paths(model_toml).map(|p| p.join(", ")).unwrap_or_default()
+}
+
 /// A copy of the model file with the number at `path` replaced by `value`.
 pub fn set_parameter(model_toml: &str, path: &str, value: f64) -> Result<String> {
     let mut t = parse_table(model_toml, "model")?;
-    set_in(&mut t, path, value, &|| numeric_paths(model_toml).map(|p| p.join(", ")).unwrap_or_default())?;
+    set_in(&mut t, path, value, &|| known_paths(model_toml))?;
     toml::to_string(&t).map_err(|e| Error::invalid("model", format!("could not be written back: {e}")))
 }
 
@@ -251,9 +259,7 @@ fn set_in(t: &mut toml::Table, path: &str, value: f64, all: &dyn Fn() -> String)
         return Err(Error::invalid(path, format!("value must be finite, got {value}")));
     }
     let v = lookup(t, path, all)?;
-    if !(v.is_float() || v.is_integer()) {
-        return Err(Error::invalid(path, format!("is a {}, not a number", v.type_str())));
-    }
+    as_number(v, path)?;
     *v = toml::Value::Float(value);
     Ok(())
 }
@@ -309,7 +315,7 @@ pub fn calibrate(
         }
     }
     let mut table = parse_table(model_toml, file)?;
-    let all = || numeric_paths(model_toml).map(|p| p.join(", ")).unwrap_or_default();
+    let all = || known_paths(model_toml);
     let mut initial = Vec::with_capacity(params.len());
     for p in params {
         if !(p.lower.is_finite() && p.upper.is_finite() && p.lower < p.upper) {
@@ -318,11 +324,7 @@ pub fn calibrate(
                 format!("bounds need lower < upper, got [{}, {}]", p.lower, p.upper),
             ));
         }
-        let v = lookup(&mut table, &p.path, &all)?;
-        let x = v
-            .as_float()
-            .or_else(|| v.as_integer().map(|i| i as f64))
-            .ok_or_else(|| Error::invalid(&p.path, format!("is a {}, not a number", v.type_str())))?;
+        let x = as_number(lookup(&mut table, &p.path, &all)?, &p.path)?;
         if x < p.lower || x > p.upper {
             return Err(Error::OutOfRange {
                 what: format!("starting value of {}", p.path),
