@@ -6,6 +6,7 @@
 //! parallel over frequency blocks (rayon) when the work is large enough to pay.
 
 use crate::error::{Error, Result};
+use crate::linalg::lanes::{BandLanes, CLane, LANES, Lane, LaneMask, with_best_simd};
 use crate::linalg::{BandLu, ComplexLu};
 use crate::model::{Input, Model};
 use ndarray::Array3;
@@ -80,10 +81,26 @@ struct RhsPlan {
     terms: Vec<(usize, usize, f64)>,
 }
 
+/// Storage of the lane kernel ([`crate::linalg::lanes`]): the same solver order as the scalar
+/// path, band (kl, ku) of that order, positions in the lane band storage.
+#[derive(Debug, Clone)]
+struct LaneLayout {
+    kl: usize,
+    ku: usize,
+    entries: Vec<Entry>,
+    terms: Vec<Vec<(usize, f64)>>,
+}
+
+/// Largest lane band storage n·(kl + ku + 1) the lane kernel takes (512 KiB of lanes, so one
+/// thread's factor stays in L2); larger or denser models use the scalar kernels.
+const LANE_STORAGE_MAX: usize = 4096;
+
 /// Frequency-independent structure of Z(ω), computed once per plan.
 #[derive(Debug, Clone)]
 struct Layout {
     kind: SolverKind,
+    /// The lane kernel, when the model is small or narrow enough (see [`FrfPlan::lanes`]).
+    lanes: Option<LaneLayout>,
     /// Storage length of the Z buffer.
     len: usize,
     entries: Vec<Entry>,
@@ -191,33 +208,51 @@ impl Layout {
                 SolverKind::Banded { kl, ku } => kl + ku + a - b + b * ld,
             }
         };
-        let mut entries = Vec::new();
-        for j in 0..n {
-            for i in 0..n {
-                let k = i + j * n;
-                if nz(k) {
-                    entries.push(Entry {
-                        pos: at(i, j),
-                        k: model.k_ff[k],
-                        c: model.c_ff[k],
-                        m: model.m_ff[k],
-                    });
-                }
-            }
-        }
-        let terms = model
-            .terms
-            .iter()
-            .map(|t| {
-                let mut v = Vec::with_capacity(t.bf.len() * t.bf.len());
-                for &(j, bj) in &t.bf {
-                    for &(i, bi) in &t.bf {
-                        v.push((at(i, j), bi * bj));
+        let place = |at: &dyn Fn(usize, usize) -> usize| {
+            let mut entries = Vec::new();
+            for j in 0..n {
+                for i in 0..n {
+                    let k = i + j * n;
+                    if nz(k) {
+                        entries.push(Entry {
+                            pos: at(i, j),
+                            k: model.k_ff[k],
+                            c: model.c_ff[k],
+                            m: model.m_ff[k],
+                        });
                     }
                 }
-                v
-            })
-            .collect();
+            }
+            let terms: Vec<Vec<(usize, f64)>> = model
+                .terms
+                .iter()
+                .map(|t| {
+                    let mut v = Vec::with_capacity(t.bf.len() * t.bf.len());
+                    for &(j, bj) in &t.bf {
+                        for &(i, bi) in &t.bf {
+                            v.push((at(i, j), bi * bj));
+                        }
+                    }
+                    v
+                })
+                .collect();
+            (entries, terms)
+        };
+        let (entries, terms) = place(&at);
+        // The lane kernel works in the scalar path's order (a lane it cannot take is redone by the
+        // scalar path, whose solution must land in the same places).
+        let (lkl, lku) = match kind {
+            SolverKind::Banded { kl, ku } => (kl, ku),
+            SolverKind::Dense => nat_b,
+        };
+        let lanes = (matches!(choice, SolverChoice::Auto)
+            && n > 0
+            && n * (lkl + lku + 1) <= LANE_STORAGE_MAX)
+            .then(|| {
+                let lu = BandLanes::new(n, lkl, lku);
+                let (entries, terms) = place(&|i, j| lu.index(pos[i], pos[j]));
+                LaneLayout { kl: lkl, ku: lku, entries, terms }
+            });
         let rhs = inputs
             .iter()
             .map(|inp| match inp {
@@ -255,7 +290,7 @@ impl Layout {
             .chunks_exact(n.max(1))
             .map(|r| (0..n).filter(|&i| r[i] != 0.0).map(|i| (pos[i], r[i])).collect())
             .collect();
-        Layout { kind, len, entries, terms, rhs, rows, pos }
+        Layout { kind, lanes, len, entries, terms, rhs, rows, pos }
     }
 
     /// Per-frequency cost estimate (multiply–adds) used for the parallel threshold.
@@ -297,6 +332,20 @@ pub(crate) struct Scratch {
     pub(crate) b: Vec<Complex64>,
     kv: Vec<Complex64>,
     lu: Factor,
+}
+
+/// Scratch for one thread solving [`LANES`] frequencies at a time: the lane kernel when the plan
+/// has one, and a scalar [`Scratch`] for the lanes it hands back (or for every lane otherwise).
+pub(crate) struct LaneScratch {
+    lu: Option<BandLanes>,
+    z: Vec<CLane>,
+    /// Solutions in solver order, column-major n × (n_in + extra), one lane per frequency.
+    pub(crate) b: Vec<CLane>,
+    kv: Vec<CLane>,
+    /// Z and right-hand sides before elimination (for the backward-error check).
+    z0: Vec<CLane>,
+    b0: Vec<CLane>,
+    scalar: Scratch,
 }
 
 impl<'m> FrfPlan<'m> {
@@ -374,6 +423,149 @@ impl<'m> FrfPlan<'m> {
         }
     }
 
+    /// Band (kl, ku) of the lane kernel, when this plan uses it.
+    ///
+    /// Rule for [`SolverChoice::Auto`]: when the band storage n·(kl + ku + 1) of the scalar
+    /// kernel's order is at most 4096 entries (a dense model counts with its natural band), eight
+    /// frequencies are eliminated at once, one per SIMD lane, without row exchanges; a frequency
+    /// where partial pivoting would exchange rows, or a pivot looks singular, is redone by the
+    /// scalar kernel. [`SolverChoice::Dense`] and [`SolverChoice::Banded`] use only the scalar
+    /// kernels (the reference paths).
+    pub fn lanes(&self) -> Option<(usize, usize)> {
+        self.layout.lanes.as_ref().map(|l| (l.kl, l.ku))
+    }
+
+    pub(crate) fn lane_scratch_with(&self, extra_rhs: usize) -> LaneScratch {
+        let n = self.model.dof_count();
+        let lu = self.layout.lanes.as_ref().map(|ll| BandLanes::new(n, ll.kl, ll.ku));
+        let len = lu.as_ref().map_or(0, |l| l.storage_len());
+        LaneScratch {
+            z: vec![CLane::ZERO; len],
+            b: vec![CLane::ZERO; n * (self.inputs.len() + extra_rhs)],
+            kv: vec![CLane::ZERO; self.model.terms.len()],
+            z0: vec![CLane::ZERO; len],
+            b0: vec![CLane::ZERO; n * (self.inputs.len() + extra_rhs)],
+            lu,
+            scalar: self.scratch_with(extra_rhs),
+        }
+    }
+
+    /// [`FrfPlan::solve_at`] for up to [`LANES`] frequencies `f_hz` at once: afterwards lane l of
+    /// `s.b` holds the solutions at `f_hz[l]` (lanes past `f_hz.len()` are unspecified). Uses the
+    /// lane kernel where the plan has one and the scalar kernel for the lanes it hands back; call
+    /// inside [`with_best_simd`].
+    #[inline(always)]
+    pub(crate) fn solve_lanes(
+        &self,
+        s: &mut LaneScratch,
+        f_hz: &[f64],
+        extra: &[Vec<(usize, f64)>],
+    ) -> Result<()> {
+        let bad = match (self.layout.lanes.as_ref(), s.lu.take()) {
+            (Some(ll), Some(mut lu)) => {
+                let bad = self.lane_kernel(ll, &mut lu, s, f_hz, extra);
+                s.lu = Some(lu);
+                bad
+            }
+            _ => LaneMask::MAX,
+        };
+        if bad != 0 {
+            for (l, &fh) in f_hz.iter().enumerate().take(LANES) {
+                if bad & (1 << l) != 0 {
+                    self.solve_at(&mut s.scalar, fh, extra)?;
+                    for (x, y) in s.b.iter_mut().zip(&s.scalar.b) {
+                        x.set(l, *y);
+                    }
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// Fill, factor, solve and check the lanes; returns the lanes to redo.
+    #[inline(always)]
+    fn lane_kernel(
+        &self,
+        ll: &LaneLayout,
+        lu: &mut BandLanes,
+        s: &mut LaneScratch,
+        f_hz: &[f64],
+        extra: &[Vec<(usize, f64)>],
+    ) -> LaneMask {
+        let m = self.model;
+        let n = m.dof_count();
+        let Some(&last) = f_hz.last() else { return 0 };
+        let mut fl: Lane = [last; LANES];
+        fl[..f_hz.len()].copy_from_slice(&f_hz[..f_hz.len().min(LANES)]);
+        let mut w: Lane = [0.0; LANES];
+        let mut w2: Lane = [0.0; LANES];
+        for l in 0..LANES {
+            w[l] = 2.0 * PI * fl[l];
+            w2[l] = w[l] * w[l];
+        }
+        s.z.iter_mut().for_each(|z| *z = CLane::ZERO);
+        for e in &ll.entries {
+            let z = &mut s.z[e.pos];
+            for l in 0..LANES {
+                z.re[l] = e.k.re - w2[l] * e.m;
+                z.im[l] = e.k.im + w[l] * e.c;
+            }
+        }
+        for ((t, kv), pos) in m.terms.iter().zip(s.kv.iter_mut()).zip(&ll.terms) {
+            *kv = t.model.elastic_at_lanes(&fl);
+            for &(p, bb) in pos {
+                s.z[p] = s.z[p].add(kv.scale(bb));
+            }
+        }
+        s.b.iter_mut().for_each(|x| *x = CLane::ZERO);
+        for (j, r) in self.layout.rhs.iter().enumerate() {
+            let col = &mut s.b[j * n..(j + 1) * n];
+            for &(i, k, c, mm) in &r.entries {
+                for l in 0..LANES {
+                    col[i].re[l] = w2[l] * mm - k.re;
+                    col[i].im[l] = -(k.im + w[l] * c);
+                }
+            }
+            for &(t, i, bb) in &r.terms {
+                col[i] = col[i].add(s.kv[t].scale(-bb));
+            }
+        }
+        let ni = self.inputs.len();
+        for (j, e) in extra.iter().enumerate() {
+            let col = &mut s.b[(ni + j) * n..(ni + j + 1) * n];
+            for &(i, v) in e {
+                col[self.solver_index(i)] = CLane::splat(Complex64::new(v, 0.0));
+            }
+        }
+        let nrhs = ni + extra.len();
+        s.z0.copy_from_slice(&s.z);
+        s.b0.copy_from_slice(&s.b);
+        let bad = lu.factor_in_place(&mut s.z);
+        lu.solve_in_place(&s.z, &mut s.b, nrhs);
+        bad | lu.backward_error_mask(&s.z0, &s.b0, &s.b, nrhs)
+    }
+
+    /// Output rows dotted with the solved input columns of lane `s.b`, scattered into `out`
+    /// (per frequency n_out × n_in, for the first `count` lanes).
+    #[inline(always)]
+    fn project_lanes(&self, s: &LaneScratch, count: usize, out: &mut [Complex64]) {
+        let n = self.model.dof_count();
+        let ni = self.inputs.len();
+        let per = self.output_names.len() * ni;
+        for (o, row) in self.layout.rows.iter().enumerate() {
+            for j in 0..ni {
+                let x = &s.b[j * n..(j + 1) * n];
+                let mut acc = CLane::ZERO;
+                for &(i, r) in row {
+                    acc = acc.add(x[i].scale(r));
+                }
+                for l in 0..count {
+                    out[l * per + o * ni + j] = acc.get(l);
+                }
+            }
+        }
+    }
+
     /// Evaluate on a validated grid.
     pub fn evaluate(&self, freq_hz: &[f64]) -> Result<Frf> {
         crate::grid::validate_freqs("freq_hz", freq_hz)?;
@@ -404,12 +596,17 @@ impl<'m> FrfPlan<'m> {
         let n = self.model.dof_count();
         let block = self.block_len(freq_hz.len(), self.layout.cost(n, self.inputs.len()));
         out.par_chunks_mut(block * per).zip(freq_hz.par_chunks(block)).try_for_each(|(o, f)| {
-            let mut s = self.scratch_with(0);
-            for (k, &fh) in f.iter().enumerate() {
-                self.solve_at(&mut s, fh, &[])?;
-                self.project(&s, &mut o[k * per..(k + 1) * per]);
-            }
-            Ok(())
+            let mut ls = self.lane_scratch_with(0);
+            with_best_simd(
+                #[inline(always)]
+                || {
+                    for (ob, fb) in o.chunks_mut(LANES * per).zip(f.chunks(LANES)) {
+                        self.solve_lanes(&mut ls, fb, &[])?;
+                        self.project_lanes(&ls, fb.len(), ob);
+                    }
+                    Ok(())
+                },
+            )
         })
     }
 
@@ -417,7 +614,7 @@ impl<'m> FrfPlan<'m> {
     /// total, where a thread hop costs more than it saves (tuned on the chain benches).
     pub(crate) fn block_len(&self, n_freq: usize, cost_per_freq: f64) -> usize {
         if n_freq as f64 * cost_per_freq > 2e5 && rayon::current_num_threads() > 1 {
-            (n_freq / (4 * rayon::current_num_threads())).max(16)
+            (n_freq / (4 * rayon::current_num_threads())).max(16).next_multiple_of(LANES)
         } else {
             n_freq.max(1)
         }
@@ -476,18 +673,6 @@ impl<'m> FrfPlan<'m> {
     /// Solver-order index of model DOF `i`.
     pub(crate) fn solver_index(&self, i: usize) -> usize {
         self.layout.pos[i]
-    }
-
-    /// Output rows dotted with the solved input columns into `out` (n_out × n_in).
-    pub(crate) fn project(&self, s: &Scratch, out: &mut [Complex64]) {
-        let n = self.model.dof_count();
-        let ni = self.inputs.len();
-        for (o, row) in self.layout.rows.iter().enumerate() {
-            for j in 0..ni {
-                let x = &s.b[j * n..(j + 1) * n];
-                out[o * ni + j] = row.iter().map(|&(i, r)| x[i] * r).sum();
-            }
-        }
     }
 
     /// Output rows (sparse, solver order).

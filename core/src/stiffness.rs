@@ -15,6 +15,7 @@
 //! - [`StiffnessModel::Series`], [`StiffnessModel::Parallel`]: 1/k* = Σ 1/k*ᵢ and k* = Σ k*ᵢ.
 
 use crate::error::{Error, Result, require_non_negative, require_positive};
+use crate::linalg::lanes::{CLane, LANES, Lane};
 use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 use std::f64::consts::PI;
@@ -112,6 +113,52 @@ impl StiffnessModel {
             StiffnessModel::Parallel(p) => p.iter().map(|m| m.viscous_part()).sum(),
             _ => 0.0,
         }
+    }
+
+    /// [`at`](Self::at) for [`LANES`] frequencies at once (closed forms per lane for the hysteretic,
+    /// Kelvin–Voigt and Zener models; the others lane by lane).
+    #[inline(always)]
+    pub fn at_lanes(&self, f_hz: &Lane) -> CLane {
+        let mut r = CLane::ZERO;
+        match self {
+            StiffnessModel::Hysteretic { k, loss_factor } => {
+                r = CLane::splat(Complex64::new(*k, k * loss_factor))
+            }
+            StiffnessModel::KelvinVoigt { k, c } => {
+                for l in 0..LANES {
+                    r.re[l] = *k;
+                    r.im[l] = 2.0 * PI * f_hz[l] * c;
+                }
+            }
+            StiffnessModel::Zener { k0, k_inf, tau_s } => {
+                // (k₀ + k∞·ix)/(1 + ix) = (k₀ + k∞x² + i(k∞ − k₀)x)/(1 + x²).
+                for l in 0..LANES {
+                    let x = 2.0 * PI * f_hz[l] * tau_s;
+                    let d = 1.0 / (1.0 + x * x);
+                    r.re[l] = (k0 + k_inf * x * x) * d;
+                    r.im[l] = (k_inf - k0) * x * d;
+                }
+            }
+            _ => {
+                for l in 0..LANES {
+                    r.set(l, self.at(f_hz[l]));
+                }
+            }
+        }
+        r
+    }
+
+    /// [`elastic_at`](Self::elastic_at) for [`LANES`] frequencies at once.
+    #[inline(always)]
+    pub fn elastic_at_lanes(&self, f_hz: &Lane) -> CLane {
+        let mut r = self.at_lanes(f_hz);
+        let c = self.viscous_part();
+        if c != 0.0 {
+            for l in 0..LANES {
+                r.im[l] -= 2.0 * PI * f_hz[l] * c;
+            }
+        }
+        r
     }
 
     /// k*(f) without the [`viscous_part`](Self::viscous_part).

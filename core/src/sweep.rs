@@ -7,29 +7,24 @@
 //! variant only the k × k capacitance system (I + D U_fᵀ Z⁻¹ U_f) w = D (g − U_fᵀ x_0) is solved
 //! (Woodbury identity; Hager, SIAM Review 31, 1989), and x = x_0 + Z⁻¹U_f w. Any stiffness model
 //! works, replaced and replacing alike.
+//!
+//! Both stages run eight frequencies at once, one per SIMD lane ([`crate::linalg::lanes`]): the
+//! reference solves through [`FrfPlan`]'s lane kernel, the capacitance systems through the same
+//! banded kernel with kl = ku = k − 1, each lane checked by its backward error and redone by the
+//! pivoted scalar solver when the check fails. The RMS integral is accumulated in the same pass.
 
 use crate::error::{Error, Result};
 use crate::frf::FrfPlan;
+use crate::linalg::lanes::{
+    BandLanes, CLane, LANES, Lane, LaneMask, dense_backward_error_mask, dense_factor, dense_solve,
+    with_best_simd,
+};
 use crate::linalg::solve_small_in_place;
 use crate::model::{Input, Model};
 use crate::stiffness::StiffnessModel;
 use ndarray::{Array3, Array4};
 use num_complex::Complex64;
 use rayon::prelude::*;
-
-/// Reference solutions at one frequency, reduced to what each variant needs.
-struct Reduced {
-    /// c·x0: n_out × n_in.
-    cx0: Vec<Complex64>,
-    /// c·Y: n_out × k (Y = Z⁻¹U_f).
-    cy: Vec<Complex64>,
-    /// G = U_fᵀ Y: k × k, column-major.
-    g: Vec<Complex64>,
-    /// U_fᵀ x0: k × n_in, column-major.
-    h: Vec<Complex64>,
-    /// k_old,s(f).
-    k_old: Vec<Complex64>,
-}
 
 /// A sweep over replacement stiffness models for named springs of one model.
 #[derive(Debug, Clone)]
@@ -84,55 +79,66 @@ impl<'m> SweepPlan<'m> {
         self.springs.len()
     }
 
-    fn reduce(&self, model: &Model, f: &[f64]) -> Result<Vec<Reduced>> {
-        let n = model.dof_count();
+    /// Per-frequency record length: [c·x0 | c·Y | G | g − h | k_old] (complex entries).
+    fn rec_len(&self) -> usize {
         let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
-        let cost = (n * n) as f64;
-        let block = self.plan.block_len(f.len(), cost);
-        let parts: Vec<Vec<Reduced>> = f
-            .par_chunks(block)
-            .map(|fb| {
-                let mut s = self.plan.scratch_with(k);
-                let uf: Vec<Vec<(usize, f64)>> = self.u.clone();
-                let upos: Vec<Vec<(usize, f64)>> = uf
-                    .iter()
-                    .map(|c| c.iter().map(|&(i, v)| (self.plan.solver_index(i), v)).collect())
-                    .collect();
-                let mut v = Vec::with_capacity(fb.len());
-                for &fh in fb {
-                    self.plan.solve_at(&mut s, fh, &uf)?;
-                    let col = |j: usize| &s.b[j * n..(j + 1) * n];
-                    let dot = |row: &[(usize, f64)], x: &[Complex64]| -> Complex64 {
-                        row.iter().map(|&(i, r)| x[i] * r).sum()
-                    };
-                    let rows = self.plan.sparse_rows();
-                    let mut cx0 = vec![Complex64::default(); no * ni];
-                    let mut cy = vec![Complex64::default(); no * k];
-                    for (o, row) in rows.iter().enumerate() {
-                        for j in 0..ni {
-                            cx0[o * ni + j] = dot(row, col(j));
+        no * ni + no * k + k * k + k * ni + k
+    }
+
+    /// Reference solutions reduced to what each variant needs, one record of
+    /// [`SweepPlan::rec_len`] lanes per block of [`LANES`] frequencies.
+    fn reduce(&self, f: &[f64]) -> Result<Vec<CLane>> {
+        let model = self.plan.model();
+        let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
+        let n = model.dof_count();
+        let rec = self.rec_len();
+        let mut out = vec![CLane::ZERO; f.len().div_ceil(LANES) * rec];
+        let block = self.plan.block_len(f.len(), (n * n) as f64).next_multiple_of(LANES);
+        let upos: Vec<Vec<(usize, f64)>> =
+            self.u.iter().map(|c| c.iter().map(|&(i, v)| (self.plan.solver_index(i), v)).collect()).collect();
+        out.par_chunks_mut(block / LANES * rec).zip(f.par_chunks(block)).try_for_each(|(ob, fb)| {
+            let mut s = self.plan.lane_scratch_with(k);
+            with_best_simd(
+                #[inline(always)]
+                || {
+                    for (r, fl) in ob.chunks_exact_mut(rec).zip(fb.chunks(LANES)) {
+                        self.plan.solve_lanes(&mut s, fl, &self.u)?;
+                        let col = |j: usize| &s.b[j * n..(j + 1) * n];
+                        let dot = |row: &[(usize, f64)], x: &[CLane]| {
+                            row.iter().fold(CLane::ZERO, |acc, &(i, v)| acc.add(x[i].scale(v)))
+                        };
+                        let (cx0, r) = r.split_at_mut(no * ni);
+                        let (cy, r) = r.split_at_mut(no * k);
+                        let (g, r) = r.split_at_mut(k * k);
+                        let (gh, k_old) = r.split_at_mut(k * ni);
+                        for (o, row) in self.plan.sparse_rows().iter().enumerate() {
+                            for j in 0..ni {
+                                cx0[o * ni + j] = dot(row, col(j));
+                            }
+                            for q in 0..k {
+                                cy[o * k + q] = dot(row, col(ni + q));
+                            }
                         }
-                        for q in 0..k {
-                            cy[o * k + q] = dot(row, col(ni + q));
+                        for (p, up) in upos.iter().enumerate() {
+                            for q in 0..k {
+                                g[p + q * k] = dot(up, col(ni + q));
+                            }
+                            for j in 0..ni {
+                                gh[p + j * k] =
+                                    CLane::splat(self.gvec[p + k * j]).add(dot(up, col(j)).scale(-1.0));
+                            }
+                        }
+                        let mut fl8: Lane = [fl[fl.len() - 1]; LANES];
+                        fl8[..fl.len()].copy_from_slice(fl);
+                        for (ko, &i) in k_old.iter_mut().zip(&self.springs) {
+                            *ko = model.springs[i].model.at_lanes(&fl8);
                         }
                     }
-                    let mut g = vec![Complex64::default(); k * k];
-                    let mut h = vec![Complex64::default(); k * ni];
-                    for (p, up) in upos.iter().enumerate() {
-                        for q in 0..k {
-                            g[p + q * k] = dot(up, col(ni + q));
-                        }
-                        for j in 0..ni {
-                            h[p + j * k] = dot(up, col(j));
-                        }
-                    }
-                    let k_old = self.springs.iter().map(|&i| model.springs[i].model.at(fh)).collect();
-                    v.push(Reduced { cx0, cy, g, h, k_old });
-                }
-                Ok(v)
-            })
-            .collect::<Result<_>>()?;
-        Ok(parts.into_iter().flatten().collect())
+                    Ok(())
+                },
+            )
+        })?;
+        Ok(out)
     }
 
     /// FRFs of every variant, shape (n_variant, n_freq, n_out, n_in).
@@ -157,32 +163,12 @@ impl<'m> SweepPlan<'m> {
         replacements: &[Vec<StiffnessModel>],
         input_psd: &[f64],
     ) -> Result<(Array4<Complex64>, Array3<f64>)> {
-        if input_psd.len() != freq_hz.len() {
-            return Err(Error::shape("input_psd (one value per frequency)", freq_hz.len(), input_psd.len()));
-        }
-        for (i, &v) in input_psd.iter().enumerate() {
-            crate::error::require_non_negative(&format!("input_psd[{i}]"), v)?;
-        }
-        let h = self.evaluate(freq_hz, replacements)?;
-        let (nv, nf, no, ni) = h.dim();
-        let mut rms = Array3::<f64>::zeros((nv, no, ni));
-        let hs = h.as_slice().ok_or_else(|| Error::invalid("sweep output", "not contiguous"))?;
+        let (ni, no) = (self.plan.n_inputs(), self.n_out);
+        let mut h = Array4::zeros((replacements.len(), freq_hz.len(), no, ni));
+        let mut rms = Array3::<f64>::zeros((replacements.len(), no, ni));
+        let hs = h.as_slice_mut().ok_or_else(|| Error::invalid("sweep output", "not contiguous"))?;
         let rs = rms.as_slice_mut().ok_or_else(|| Error::invalid("sweep RMS", "not contiguous"))?;
-        let per = no * ni;
-        for (hv, rv) in hs.chunks_exact((nf * per).max(1)).zip(rs.chunks_exact_mut(per.max(1))) {
-            // Trapezoid: Σ ½ (f_k − f_{k−1}) (y_k + y_{k−1}), y = |H|² S.
-            let mut prev = vec![0.0; per];
-            for (kf, hk) in hv.chunks_exact(per).enumerate() {
-                for (p, (x, acc)) in hk.iter().zip(rv.iter_mut()).enumerate() {
-                    let y = x.norm_sqr() * input_psd[kf];
-                    if kf > 0 {
-                        *acc += 0.5 * (freq_hz[kf] - freq_hz[kf - 1]) * (y + prev[p]);
-                    }
-                    prev[p] = y;
-                }
-            }
-            rv.iter_mut().for_each(|x| *x = x.sqrt());
-        }
+        self.run(freq_hz, replacements, hs, Some((input_psd, rs)))?;
         Ok((h, rms))
     }
 
@@ -194,11 +180,23 @@ impl<'m> SweepPlan<'m> {
         replacements: &[Vec<StiffnessModel>],
         out: &mut [Complex64],
     ) -> Result<()> {
+        self.run(freq_hz, replacements, out, None)
+    }
+
+    /// FRFs into `out` and, given (input PSD, RMS buffer (n_variant, n_out, n_in)), the RMS.
+    fn run(
+        &self,
+        freq_hz: &[f64],
+        replacements: &[Vec<StiffnessModel>],
+        out: &mut [Complex64],
+        rms: Option<(&[f64], &mut [f64])>,
+    ) -> Result<()> {
         crate::grid::validate_freqs("freq_hz", freq_hz)?;
         let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
-        let per = ni * no * freq_hz.len();
-        if out.len() != per * replacements.len() {
-            return Err(Error::shape("sweep output buffer", per * replacements.len(), out.len()));
+        let nf = freq_hz.len();
+        let per_v = ni * no * nf;
+        if out.len() != per_v * replacements.len() {
+            return Err(Error::shape("sweep output buffer", per_v * replacements.len(), out.len()));
         }
         for (v, r) in replacements.iter().enumerate() {
             if r.len() != k {
@@ -208,56 +206,241 @@ impl<'m> SweepPlan<'m> {
                 m.validate(&format!("replacements[{v}][{s}]"))?;
             }
         }
-        // Per frequency one contiguous record [c·x0 | c·Y | G | g − h | k_old] (cache friendly in
-        // the variant loop below).
-        let (lc, ly, lg, lh) = (no * ni, no * k, k * k, k * ni);
-        let rec = lc + ly + lg + lh + k;
-        let mut flat = Vec::with_capacity(rec * freq_hz.len());
-        for r in self.reduce(self.plan.model(), freq_hz)? {
-            flat.extend_from_slice(&r.cx0);
-            flat.extend_from_slice(&r.cy);
-            flat.extend_from_slice(&r.g);
-            flat.extend(self.gvec.iter().zip(&r.h).map(|(g, h)| g - h));
-            flat.extend_from_slice(&r.k_old);
+        // Trapezoid weights times the PSD: Σ_k w_k |H_k|² equals Σ ½ (f_k − f_{k−1}) (y_k + y_{k−1}).
+        let mut wts = vec![0.0; nf.next_multiple_of(LANES)];
+        let mut rms_out = None;
+        if let Some((psd, r)) = rms {
+            if psd.len() != nf {
+                return Err(Error::shape("input_psd (one value per frequency)", nf, psd.len()));
+            }
+            for (i, &v) in psd.iter().enumerate() {
+                crate::error::require_non_negative(&format!("input_psd[{i}]"), v)?;
+            }
+            if r.len() != replacements.len() * no * ni {
+                return Err(Error::shape("sweep RMS buffer", replacements.len() * no * ni, r.len()));
+            }
+            for i in 1..nf {
+                let h = 0.5 * (freq_hz[i] - freq_hz[i - 1]);
+                wts[i - 1] += h * psd[i - 1];
+                wts[i] += h * psd[i];
+            }
+            rms_out = Some(r);
         }
-        out.par_chunks_mut(per.max(1)).zip(replacements.par_iter()).try_for_each(|(o, rep)| {
-            let mut a = vec![Complex64::default(); k * k];
-            let mut w = vec![Complex64::default(); k * ni];
-            let mut d = vec![Complex64::default(); k];
-            for (fi, (&fh, r)) in freq_hz.iter().zip(flat.chunks_exact(rec)).enumerate() {
-                let (cx0, r) = r.split_at(lc);
-                let (cy, r) = r.split_at(ly);
-                let (g, r) = r.split_at(lg);
-                let (gh, k_old) = r.split_at(lh);
-                for s in 0..k {
-                    d[s] = rep[s].at(fh) - k_old[s];
-                }
-                // A = I + D G, W = D (g − h).
-                for q in 0..k {
-                    for p in 0..k {
-                        a[p + q * k] = d[p] * g[p + q * k];
-                    }
-                    a[q + q * k] += 1.0;
-                }
-                for j in 0..ni {
-                    for p in 0..k {
-                        w[p + j * k] = d[p] * gh[p + j * k];
-                    }
-                }
-                solve_small_in_place(&mut a, k, &mut w, ni).map_err(|_| Error::Singular { freq_hz: fh })?;
-                let dst = &mut o[fi * no * ni..(fi + 1) * no * ni];
-                for oi in 0..no {
-                    for j in 0..ni {
-                        let mut acc = cx0[oi * ni + j];
-                        for q in 0..k {
-                            acc += cy[oi * k + q] * w[q + j * k];
+        let recs = self.reduce(freq_hz)?;
+        let rec = self.rec_len();
+        // Variants in chunks (parallel); within a chunk, blocks of frequencies outermost so a
+        // block's record stays in L1 while every variant of the chunk uses it.
+        let chunk = replacements.len().div_ceil(4 * rayon::current_num_threads()).clamp(1, 64);
+        let mut rms_buf = vec![0.0; replacements.len() * no * ni];
+        out.par_chunks_mut(chunk * per_v)
+            .zip(replacements.par_chunks(chunk))
+            .zip(rms_buf.par_chunks_mut(chunk * no * ni))
+            .try_for_each(|((o, reps), racc)| {
+                let mut ws = VariantScratch::new(k, ni, no, reps.len());
+                with_best_simd(
+                    #[inline(always)]
+                    || {
+                        for (b, (r, fb)) in recs.chunks_exact(rec).zip(freq_hz.chunks(LANES)).enumerate() {
+                            let mut fl: Lane = [fb[fb.len() - 1]; LANES];
+                            fl[..fb.len()].copy_from_slice(fb);
+                            let mut wl: Lane = [0.0; LANES];
+                            wl.copy_from_slice(&wts[b * LANES..(b + 1) * LANES]);
+                            for (v, rep) in reps.iter().enumerate() {
+                                let dst = &mut o[v * per_v + b * LANES * no * ni..];
+                                // Capacitance systems unrolled for the usual few springs.
+                                match k {
+                                    1 => self.capacitance_small::<1>(&mut ws, r, rep, &fl),
+                                    2 => self.capacitance_small::<2>(&mut ws, r, rep, &fl),
+                                    3 => self.capacitance_small::<3>(&mut ws, r, rep, &fl),
+                                    4 => self.capacitance_small::<4>(&mut ws, r, rep, &fl),
+                                    _ => self.capacitance_band(&mut ws, r, rep, &fl),
+                                }
+                                self.finish_block(&mut ws, r, fb, dst, v, &wl)?;
+                            }
                         }
-                        dst[oi * ni + j] = acc;
+                        Ok::<(), Error>(())
+                    },
+                )?;
+                for (a, acc) in racc.iter_mut().zip(&ws.acc) {
+                    *a = acc.iter().sum::<f64>().sqrt();
+                }
+                Ok::<(), Error>(())
+            })?;
+        if let Some(r) = rms_out {
+            r.copy_from_slice(&rms_buf);
+        }
+        Ok(())
+    }
+
+    /// The record of a block split into (c·x0, c·Y, G, g − h, k_old).
+    #[inline(always)]
+    fn split<'r>(&self, r: &'r [CLane]) -> [&'r [CLane]; 5] {
+        let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
+        let (cx0, r) = r.split_at(no * ni);
+        let (cy, r) = r.split_at(no * k);
+        let (g, r) = r.split_at(k * k);
+        let (gh, k_old) = r.split_at(k * ni);
+        [cx0, cy, g, gh, k_old]
+    }
+
+    /// D = k_new − k_old per lane into `ws.d`.
+    #[inline(always)]
+    fn stiffness_change(&self, ws: &mut VariantScratch, k_old: &[CLane], rep: &[StiffnessModel], fl: &Lane) {
+        for (s, d) in ws.d.iter_mut().enumerate() {
+            *d = rep[s].at_lanes(fl).add(k_old[s].scale(-1.0));
+        }
+    }
+
+    /// Capacitance systems (I + D G) w = D (g − h) for k = K springs, unrolled: `ws.w` gets w,
+    /// `ws.a0`/`ws.w0` the systems (column-major k × k, k × n_in), `ws.bad` the lanes to redo.
+    #[inline(always)]
+    fn capacitance_small<const K: usize>(
+        &self,
+        ws: &mut VariantScratch,
+        r: &[CLane],
+        rep: &[StiffnessModel],
+        fl: &Lane,
+    ) {
+        let [_, _, g, gh, k_old] = self.split(r);
+        self.stiffness_change(ws, k_old, rep, fl);
+        let mut a = [[CLane::ZERO; K]; K];
+        for q in 0..K {
+            for p in 0..K {
+                a[p][q] = ws.d[p].mul(g[p + q * K]);
+                ws.a0[p + q * K] = a[p][q];
+            }
+            for l in 0..LANES {
+                a[q][q].re[l] += 1.0;
+            }
+            ws.a0[q + q * K] = a[q][q];
+        }
+        let a0 = a;
+        let mut bad = dense_factor(&mut a);
+        for j in 0..self.plan.n_inputs() {
+            let mut x = [CLane::ZERO; K];
+            for p in 0..K {
+                x[p] = ws.d[p].mul(gh[p + j * K]);
+            }
+            let x0 = x;
+            dense_solve(&a, &mut x);
+            bad |= dense_backward_error_mask(&a0, &x0, &x);
+            ws.w0[j * K..(j + 1) * K].copy_from_slice(&x0);
+            ws.w[j * K..(j + 1) * K].copy_from_slice(&x);
+        }
+        ws.bad = bad;
+    }
+
+    /// [`SweepPlan::capacitance_small`] for any k (banded kernel with kl = ku = k − 1).
+    #[inline(always)]
+    fn capacitance_band(&self, ws: &mut VariantScratch, r: &[CLane], rep: &[StiffnessModel], fl: &Lane) {
+        let k = self.springs.len();
+        let ni = self.plan.n_inputs();
+        let [_, _, g, gh, k_old] = self.split(r);
+        self.stiffness_change(ws, k_old, rep, fl);
+        for q in 0..k {
+            for p in 0..k {
+                let mut x = ws.d[p].mul(g[p + q * k]);
+                if p == q {
+                    x = x.add(CLane::splat(Complex64::new(1.0, 0.0)));
+                }
+                ws.a0[p + q * k] = x;
+                ws.band[ws.lu.index(p, q)] = x;
+            }
+        }
+        for j in 0..ni {
+            for p in 0..k {
+                ws.w0[p + j * k] = ws.d[p].mul(gh[p + j * k]);
+            }
+        }
+        ws.band0.copy_from_slice(&ws.band);
+        ws.w.copy_from_slice(&ws.w0);
+        let mut bad = ws.lu.factor_in_place(&mut ws.band);
+        ws.lu.solve_in_place(&ws.band, &mut ws.w, ni);
+        bad |= ws.lu.backward_error_mask(&ws.band0, &ws.w0, &ws.w, ni);
+        ws.bad = bad;
+    }
+
+    /// Redo the flagged lanes with the pivoted scalar solver, then write the block's FRFs for
+    /// the valid lanes into `dst` and add w·|H|² to the variant's RMS sums.
+    #[inline(always)]
+    fn finish_block(
+        &self,
+        ws: &mut VariantScratch,
+        r: &[CLane],
+        fb: &[f64],
+        dst: &mut [Complex64],
+        v: usize,
+        wl: &Lane,
+    ) -> Result<()> {
+        let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
+        let [cx0, cy, ..] = self.split(r);
+        if ws.bad != 0 {
+            for (l, &fh) in fb.iter().enumerate() {
+                if ws.bad & (1 << l) != 0 {
+                    let mut a: Vec<Complex64> = ws.a0.iter().map(|x| x.get(l)).collect();
+                    let mut w: Vec<Complex64> = ws.w0.iter().map(|x| x.get(l)).collect();
+                    solve_small_in_place(&mut a, k, &mut w, ni)
+                        .map_err(|_| Error::Singular { freq_hz: fh })?;
+                    for (x, y) in ws.w.iter_mut().zip(&w) {
+                        x.set(l, *y);
                     }
                 }
             }
-            Ok(())
-        })
+        }
+        let count = fb.len();
+        for o in 0..no {
+            for j in 0..ni {
+                let mut y = cx0[o * ni + j];
+                for q in 0..k {
+                    y = y.add_mul(cy[o * k + q], ws.w[q + j * k]);
+                }
+                for l in 0..count {
+                    dst[l * no * ni + o * ni + j] = y.get(l);
+                }
+                let acc = &mut ws.acc[v * no * ni + o * ni + j];
+                let m2 = y.norm_sqr();
+                // Only the valid lanes: a padding lane may hold an unchecked value.
+                for l in 0..count {
+                    acc[l] += wl[l] * m2[l];
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+/// Per-task scratch of the variant loop.
+struct VariantScratch {
+    lu: BandLanes,
+    d: Vec<CLane>,
+    /// The capacitance matrix, column-major k × k, and in band storage (general k).
+    a0: Vec<CLane>,
+    band: Vec<CLane>,
+    band0: Vec<CLane>,
+    /// Right-hand sides and solutions, column-major k × n_in.
+    w: Vec<CLane>,
+    w0: Vec<CLane>,
+    /// Lanes the scalar solver must redo.
+    bad: LaneMask,
+    /// RMS sums per (variant of the chunk, output, input), per lane.
+    acc: Vec<Lane>,
+}
+
+impl VariantScratch {
+    fn new(k: usize, ni: usize, no: usize, nv: usize) -> Self {
+        let lu = BandLanes::new(k, k - 1, k - 1);
+        let len = lu.storage_len();
+        VariantScratch {
+            lu,
+            d: vec![CLane::ZERO; k],
+            a0: vec![CLane::ZERO; k * k],
+            band: vec![CLane::ZERO; len],
+            band0: vec![CLane::ZERO; len],
+            bad: 0,
+            w: vec![CLane::ZERO; k * ni],
+            w0: vec![CLane::ZERO; k * ni],
+            acc: vec![[0.0; LANES]; nv * no * ni],
+        }
     }
 }
 
@@ -353,6 +536,53 @@ mod tests {
         let mut neg = s.clone();
         neg[3] = -1.0;
         assert!(plan.evaluate_with_rms(&f, &same, &neg).is_err());
+    }
+
+    #[test]
+    fn general_k_path_matches_direct_models() {
+        // Five replaced springs take the banded capacitance kernel (k > 4), and the lanes of a
+        // 13-point grid include padding. Oracle: rebuilt models solved by the dense direct path.
+        let base = chain(8, &[]);
+        let f: Vec<f64> = (0..13).map(|k| 1.0 + k as f64 * 37.0).collect();
+        let names = ["s0", "s1", "s2", "s3", "s4"];
+        let reps: Vec<Vec<StiffnessModel>> = (0..3)
+            .map(|v| {
+                (0..5)
+                    .map(|i| StiffnessModel::Hysteretic {
+                        k: 3e5 * (1.0 + (v + i) as f64),
+                        loss_factor: 0.05,
+                    })
+                    .collect()
+            })
+            .collect();
+        let plan = SweepPlan::new(&base, &names, &["ground_z"], &["m7:z"]).unwrap();
+        let psd = vec![1e-12; f.len()];
+        let (got, rms) = plan.evaluate_with_rms(&f, &reps, &psd).unwrap();
+        for (v, rep) in reps.iter().enumerate() {
+            let pads: Vec<String> = rep
+                .iter()
+                .map(|m| match m {
+                    StiffnessModel::Hysteretic { k, loss_factor } => {
+                        format!("stiffness_n_per_m = {k}\nloss_factor = {loss_factor}")
+                    }
+                    _ => unreachable!(),
+                })
+                .collect();
+            let pr: Vec<&str> = pads.iter().map(|s| s.as_str()).collect();
+            let direct = FrfPlan::new(&chain(8, &pr), &["ground_z"], &["m7:z"])
+                .unwrap()
+                .with_solver(crate::frf::SolverChoice::Dense)
+                .evaluate(&f)
+                .unwrap();
+            let g = got.index_axis(ndarray::Axis(0), v).to_owned();
+            let d = direct.data.as_slice().unwrap();
+            assert!(max_rel_diff(g.as_slice().unwrap(), d) < 1e-9, "variant {v}");
+            // Trapezoid rule of |H|² S on the grid (DESIGN.md).
+            let ms: f64 = (1..f.len())
+                .map(|k| 0.5 * (f[k] - f[k - 1]) * 1e-12 * (d[k].norm_sqr() + d[k - 1].norm_sqr()))
+                .sum();
+            assert!((rms[[v, 0, 0]] - ms.sqrt()).abs() <= 1e-9 * ms.sqrt());
+        }
     }
 
     #[test]

@@ -7,6 +7,10 @@
 //!   per-call cost far above a tridiagonal elimination, so this is the one hand-written
 //!   factorisation in the crate; it is tested against faer's dense LU (tests below).
 //! - [`sym_generalized_eigen`]: K φ = λ M φ for symmetric K and positive-definite M.
+//! - [`lanes`]: banded and small dense eliminations of eight systems at once (one per SIMD
+//!   lane), for FRF grids and sweeps.
+
+pub mod lanes;
 
 use crate::error::{Error, Result};
 use faer::dyn_stack::{MemBuffer, MemStack};
