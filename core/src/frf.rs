@@ -514,7 +514,7 @@ impl<'m> FrfPlan<'m> {
         for ((t, kv), pos) in m.terms.iter().zip(s.kv.iter_mut()).zip(&ll.terms) {
             *kv = t.model.elastic_at_lanes(&fl);
             for &(p, bb) in pos {
-                s.z[p] = s.z[p].add(kv.scale(bb));
+                s.z[p] = s.z[p] + kv.scale(bb);
             }
         }
         s.b.iter_mut().for_each(|x| *x = CLane::ZERO);
@@ -527,7 +527,7 @@ impl<'m> FrfPlan<'m> {
                 }
             }
             for &(t, i, bb) in &r.terms {
-                col[i] = col[i].add(s.kv[t].scale(-bb));
+                col[i] = col[i] + s.kv[t].scale(-bb);
             }
         }
         let ni = self.inputs.len();
@@ -557,7 +557,7 @@ impl<'m> FrfPlan<'m> {
                 let x = &s.b[j * n..(j + 1) * n];
                 let mut acc = CLane::ZERO;
                 for &(i, r) in row {
-                    acc = acc.add(x[i].scale(r));
+                    acc = acc + x[i].scale(r);
                 }
                 for l in 0..count {
                     out[l * per + o * ni + j] = acc.get(l);

@@ -105,7 +105,7 @@ impl<'m> SweepPlan<'m> {
                         self.plan.solve_lanes(&mut s, fl, &self.u)?;
                         let col = |j: usize| &s.b[j * n..(j + 1) * n];
                         let dot = |row: &[(usize, f64)], x: &[CLane]| {
-                            row.iter().fold(CLane::ZERO, |acc, &(i, v)| acc.add(x[i].scale(v)))
+                            row.iter().fold(CLane::ZERO, |acc, &(i, v)| acc + x[i].scale(v))
                         };
                         let (cx0, r) = r.split_at_mut(no * ni);
                         let (cy, r) = r.split_at_mut(no * k);
@@ -125,7 +125,7 @@ impl<'m> SweepPlan<'m> {
                             }
                             for j in 0..ni {
                                 gh[p + j * k] =
-                                    CLane::splat(self.gvec[p + k * j]).add(dot(up, col(j)).scale(-1.0));
+                                    CLane::splat(self.gvec[p + k * j]) + dot(up, col(j)).scale(-1.0);
                             }
                         }
                         let mut fl8: Lane = [fl[fl.len() - 1]; LANES];
@@ -287,7 +287,7 @@ impl<'m> SweepPlan<'m> {
     #[inline(always)]
     fn stiffness_change(&self, ws: &mut VariantScratch, k_old: &[CLane], rep: &[StiffnessModel], fl: &Lane) {
         for (s, d) in ws.d.iter_mut().enumerate() {
-            *d = rep[s].at_lanes(fl).add(k_old[s].scale(-1.0));
+            *d = rep[s].at_lanes(fl) + k_old[s].scale(-1.0);
         }
     }
 
@@ -306,7 +306,7 @@ impl<'m> SweepPlan<'m> {
         let mut a = [[CLane::ZERO; K]; K];
         for q in 0..K {
             for p in 0..K {
-                a[p][q] = ws.d[p].mul(g[p + q * K]);
+                a[p][q] = ws.d[p] * g[p + q * K];
                 ws.a0[p + q * K] = a[p][q];
             }
             for l in 0..LANES {
@@ -319,7 +319,7 @@ impl<'m> SweepPlan<'m> {
         for j in 0..self.plan.n_inputs() {
             let mut x = [CLane::ZERO; K];
             for p in 0..K {
-                x[p] = ws.d[p].mul(gh[p + j * K]);
+                x[p] = ws.d[p] * gh[p + j * K];
             }
             let x0 = x;
             dense_solve(&a, &mut x);
@@ -339,9 +339,9 @@ impl<'m> SweepPlan<'m> {
         self.stiffness_change(ws, k_old, rep, fl);
         for q in 0..k {
             for p in 0..k {
-                let mut x = ws.d[p].mul(g[p + q * k]);
+                let mut x = ws.d[p] * g[p + q * k];
                 if p == q {
-                    x = x.add(CLane::splat(Complex64::new(1.0, 0.0)));
+                    x = x + CLane::splat(Complex64::new(1.0, 0.0));
                 }
                 ws.a0[p + q * k] = x;
                 ws.band[ws.lu.index(p, q)] = x;
@@ -349,7 +349,7 @@ impl<'m> SweepPlan<'m> {
         }
         for j in 0..ni {
             for p in 0..k {
-                ws.w0[p + j * k] = ws.d[p].mul(gh[p + j * k]);
+                ws.w0[p + j * k] = ws.d[p] * gh[p + j * k];
             }
         }
         ws.band0.copy_from_slice(&ws.band);

@@ -56,26 +56,6 @@ impl CLane {
         self.im[l] = z.im;
     }
 
-    #[inline(always)]
-    pub fn add(self, o: CLane) -> CLane {
-        let mut r = CLane::ZERO;
-        for l in 0..LANES {
-            r.re[l] = self.re[l] + o.re[l];
-            r.im[l] = self.im[l] + o.im[l];
-        }
-        r
-    }
-
-    #[inline(always)]
-    pub fn mul(self, o: CLane) -> CLane {
-        let mut r = CLane::ZERO;
-        for l in 0..LANES {
-            r.re[l] = self.re[l] * o.re[l] - self.im[l] * o.im[l];
-            r.im[l] = self.re[l] * o.im[l] + self.im[l] * o.re[l];
-        }
-        r
-    }
-
     /// Times a real number.
     #[inline(always)]
     pub fn scale(self, s: f64) -> CLane {
@@ -137,6 +117,32 @@ impl CLane {
         let mut r = [0.0; LANES];
         for l in 0..LANES {
             r[l] = self.re[l] * self.re[l] + self.im[l] * self.im[l];
+        }
+        r
+    }
+}
+
+impl std::ops::Add for CLane {
+    type Output = CLane;
+    #[inline(always)]
+    fn add(self, o: CLane) -> CLane {
+        let mut r = CLane::ZERO;
+        for l in 0..LANES {
+            r.re[l] = self.re[l] + o.re[l];
+            r.im[l] = self.im[l] + o.im[l];
+        }
+        r
+    }
+}
+
+impl std::ops::Mul for CLane {
+    type Output = CLane;
+    #[inline(always)]
+    fn mul(self, o: CLane) -> CLane {
+        let mut r = CLane::ZERO;
+        for l in 0..LANES {
+            r.re[l] = self.re[l] * o.re[l] - self.im[l] * o.im[l];
+            r.im[l] = self.re[l] * o.im[l] + self.im[l] * o.re[l];
         }
         r
     }
@@ -214,7 +220,7 @@ impl BandLanes {
             let inv = d.inv();
             self.inv_diag[j] = inv;
             for p in 1..=km {
-                ab[col + p] = ab[col + p].mul(inv);
+                ab[col + p] = ab[col + p] * inv;
             }
             for c in j + 1..=(j + ku).min(n - 1) {
                 // A(j, c) and the column below it.
@@ -300,7 +306,7 @@ impl BandLanes {
                 }
             }
             for j in (0..n).rev() {
-                let xj = x[j].mul(self.inv_diag[j]);
+                let xj = x[j] * self.inv_diag[j];
                 x[j] = xj;
                 let base = j * ld + ku - j;
                 for i in j.saturating_sub(ku)..j {
@@ -328,7 +334,7 @@ pub fn dense_factor<const K: usize>(a: &mut [[CLane; K]; K]) -> LaneMask {
         let inv = d.inv();
         a[j][j] = inv;
         for i in j + 1..K {
-            a[i][j] = a[i][j].mul(inv);
+            a[i][j] = a[i][j] * inv;
         }
         for i in j + 1..K {
             for c in j + 1..K {
@@ -353,7 +359,7 @@ pub fn dense_solve<const K: usize>(lu: &[[CLane; K]; K], x: &mut [CLane; K]) {
         }
     }
     for j in (0..K).rev() {
-        x[j] = x[j].mul(lu[j][j]);
+        x[j] = x[j] * lu[j][j];
         for i in 0..j {
             x[i] = x[i].sub_mul(lu[i][j], x[j]);
         }
