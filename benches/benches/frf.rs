@@ -8,7 +8,7 @@ use stillsky::grid::FreqGrid;
 use stillsky::model::Model;
 use stillsky::stiffness::StiffnessModel;
 use stillsky::sweep::SweepPlan;
-use stillsky_benches::{chain_toml, pad_specs, pier_toml};
+use stillsky_benches::{chain_toml, chain_uniform_loss_toml, pad_specs, pier_toml};
 
 fn frf(c: &mut Criterion) {
     let mut g = c.benchmark_group("frf_chain");
@@ -53,6 +53,19 @@ fn frf(c: &mut Criterion) {
 }
 
 fn modes(c: &mut Criterion) {
+    // Modal superposition path (uniform loss factor): plan (eigen-solution) + 4096 frequencies.
+    let mut g = c.benchmark_group("frf_modal");
+    g.sample_size(20).measurement_time(Duration::from_secs(2));
+    for &n in &[12usize, 48] {
+        let m = Model::from_toml_str(&chain_uniform_loss_toml(n), "chain").unwrap();
+        let grid = FreqGrid::log(0.5, 500.0, 4096).unwrap();
+        let out = format!("m{}:z", n - 1);
+        assert!(FrfPlan::new(&m, &["ground_z"], &[out.as_str()]).unwrap().is_modal());
+        g.bench_with_input(BenchmarkId::new("plan_and_eval", format!("n{n}_f4096")), &n, |b, _| {
+            b.iter(|| m.frf(grid.hz(), &["ground_z"], &[out.as_str()]).unwrap())
+        });
+    }
+    g.finish();
     let mut g = c.benchmark_group("modes");
     g.sample_size(20).measurement_time(Duration::from_secs(2));
     for &n in &[12usize, 48] {

@@ -26,8 +26,8 @@ import scipy.signal  # noqa: E402
 import stillsky  # noqa: E402
 
 
-def chain_toml(n):
-    """Same text as benches/src/lib.rs chain_toml(n)."""
+def chain_toml(n, uniform=False):
+    """Same text as benches/src/lib.rs chain_toml(n), or chain_uniform_loss_toml(n) when uniform."""
     s = []
     for i in range(n):
         s.append(
@@ -37,7 +37,9 @@ def chain_toml(n):
     for i in range(n):
         frm = "ground" if i == 0 else f"m{i - 1}"
         k = 1.0e6 * (1.0 + 0.3 * ((i * 7) % 11))
-        if i == 0:
+        if uniform:
+            stiff = f"stiffness_n_per_m = {k!r}\nloss_factor = 0.02"
+        elif i == 0:
             stiff = "zener = { k0 = 4e5, k_inf = 1.2e6, tau_s = 0.002 }"
         elif i % 3 == 0:
             stiff = f"stiffness_n_per_m = {k!r}\ndamping_ns_per_m = 40.0"
@@ -103,6 +105,39 @@ def frf_case(n, nf, repeat, banded):
     med = {k: statistics.median(v) for k, v in res.items() if v}
     errs = {k: rel(np.asarray(h["ours"]).ravel(), np.asarray(v).ravel()) for k, v in h.items() if k != "ours"}
     return med, errs
+
+
+def modal_case(n, nf, repeat):
+    """Proportionally damped chain (one loss factor): numpy's modal superposition (scipy eigh of
+    (K', M), then the sum over modes on the grid) against ours (FrfPlan's modal path), each
+    including its eigen-solution."""
+    m = stillsky.Model.from_toml_str(chain_toml(n, uniform=True), "chain")
+    f = np.geomspace(0.5, 500.0, nf)
+    w = 2 * np.pi * f
+    out = f"m{n - 1}:z"
+    d = m.matrices(1.0)
+    M, K = d["mass"], d["stiffness"]
+    eta = float(np.sum(K.imag * K.real) / np.sum(K.real * K.real))
+    b = np.stack([m.input_vector("ground_z", fh) for fh in f])
+    row = m.output_vector(out)
+
+    def numpy_modal():
+        lam, phi = scipy.linalg.eigh(K.real, M)
+        q = b @ phi
+        den = lam[None, :] * (1 + 1j * eta) - (w * w)[:, None]
+        return (q / den) @ (row @ phi)
+
+    def ours():
+        return m.frf(f, "ground_z", out)
+
+    res = {"numpy": [], "ours": []}
+    h = {}
+    for _ in range(repeat):
+        for name, fn in (("numpy", numpy_modal), ("ours", ours)):
+            t, h[name] = timed(fn, 1)
+            res[name].append(t)
+    med = {k: statistics.median(v) for k, v in res.items()}
+    return med, rel(np.asarray(h["ours"]).ravel(), np.asarray(h["numpy"]).ravel())
 
 
 def pad_specs(count):
@@ -306,9 +341,9 @@ def main():
     ap.add_argument("--welch-size", type=int, action="append", default=None,
                     help="in-memory Welch sizes (default 720000; 86400000 is the 24 h case)")
     ap.add_argument("--skip-full", action="store_true", help="skip the full-solve sweep (about 5 s)")
-    ap.add_argument("--only", choices=("frf", "sweep", "welch"), action="append", default=None)
+    ap.add_argument("--only", choices=("frf", "modal", "sweep", "welch"), action="append", default=None)
     a = ap.parse_args()
-    only = set(a.only or ("frf", "sweep", "welch"))
+    only = set(a.only or ("frf", "modal", "sweep", "welch"))
     print(f"threads: RAYON={os.environ['RAYON_NUM_THREADS']} OMP={os.environ['OMP_NUM_THREADS']}; "
           f"numpy {np.__version__}, scipy {scipy.__version__}, repeat {a.repeat}")
     if "frf" in only:
@@ -322,6 +357,14 @@ def main():
                 flush=True,
             )
             assert max(err.values()) < 1e-9, err
+    if "modal" in only:
+        print("\n| modal superposition, uniform loss | numpy eigh + sum (s) | ours (s) | numpy/ours | max rel diff |")
+        print("|---|---|---|---|---|")
+        for n, nf in ((12, 4096), (48, 4096)):
+            med, err = modal_case(n, nf, a.repeat)
+            print(f"| n={n} F={nf} | {med['numpy']:.4g} | {med['ours']:.4g} | {med['numpy'] / med['ours']:.1f} | {err:.1e} |",
+                  flush=True)
+            assert err < 1e-9, err
     if "sweep" in only:
         med, err = sweep_case(1000, 2048, max(1, min(a.repeat, 3)), full=not a.skip_full)
         print("\n| sweep 1000 specs x 2048 freq, n = 12, 3 springs | time (s) | ratio to ours | max rel diff |")

@@ -29,6 +29,28 @@ pub fn chain_toml(n: usize) -> String {
     s
 }
 
+/// The same chain with one loss factor (0.02) on every spring and no dashpots or pads: a
+/// proportionally damped model, which takes the modal path.
+pub fn chain_uniform_loss_toml(n: usize) -> String {
+    let mut s = String::new();
+    for i in 0..n {
+        s.push_str(&format!(
+            "[[body]]\nname = \"m{i}\"\nmass_kg = {}\ncg_m = [0, 0, {}]\ninertia_kgm2 = [1, 1, 1]\ndofs = [\"z\"]\n\n",
+            2.0 + (i % 5) as f64,
+            i as f64 * 0.1
+        ));
+    }
+    for i in 0..n {
+        let from = if i == 0 { "ground".to_string() } else { format!("m{}", i - 1) };
+        let k = 1.0e6 * (1.0 + 0.3 * ((i * 7) % 11) as f64);
+        s.push_str(&format!(
+            "[[spring]]\nname = \"s{i}\"\nfrom = \"{from}\"\nto = \"m{i}\"\nat_m = [0, 0, {}]\ndirection = [0, 0, 1]\nstiffness_n_per_m = {k}\nloss_factor = 0.02\n\n",
+            i as f64 * 0.1
+        ));
+    }
+    s
+}
+
 /// A vertical steel pier (3-D beam elements, 6 DOF per node) clamped to the ground with a head
 /// body on top: 6·elements DOFs, banded.
 pub fn pier_toml(elements: usize) -> String {

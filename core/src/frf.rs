@@ -91,6 +91,141 @@ struct LaneLayout {
     terms: Vec<Vec<(usize, f64)>>,
 }
 
+/// Modal superposition for proportionally damped models: K* = K′(1 + iη) with one loss factor
+/// η, C = αM + βK′, and no frequency-dependent terms. With K′φ = λMφ, φᵀMφ = I, every FRF is
+/// Σ_r (c·φ_r)(φ_rᵀb(ω)) / (λ_r(1 + iη) + iω(α + βλ_r) − ω²), exact with all n modes
+/// (Clough & Penzien, Dynamics of Structures, 2nd ed., 1993, §12-3 and §13-2).
+#[derive(Debug, Clone)]
+struct ModalLayout {
+    eta: f64,
+    alpha: f64,
+    beta: f64,
+    lambda: Vec<f64>,
+    /// Output rows times mode shapes: `rows[o][r]`.
+    rows: Vec<Vec<f64>>,
+    /// Per input and mode: φᵀb(ω) = q0 + iω·q1 − ω²·q2 (loads: q0 only).
+    inputs: Vec<Vec<(Complex64, f64, f64)>>,
+}
+
+/// Largest model the modal path takes: its eigen-solution (≈ 10n³ flops, once per plan) must
+/// not outweigh the direct path's per-frequency savings on a typical grid.
+const MODAL_DOFS_MAX: usize = 64;
+
+impl ModalLayout {
+    /// The modal path, when `model` is proportionally damped to round-off (relative 1e-12 in the
+    /// Frobenius norm) and small enough.
+    fn try_new(model: &Model, inputs: &[Input], rows: &[f64]) -> Option<ModalLayout> {
+        let n = model.dof_count();
+        if n == 0 || n > MODAL_DOFS_MAX || !model.terms.is_empty() {
+            return None;
+        }
+        let dot = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(x, y)| x * y).sum::<f64>();
+        let kr: Vec<f64> = model.k_ff.iter().map(|z| z.re).collect();
+        let ki: Vec<f64> = model.k_ff.iter().map(|z| z.im).collect();
+        let kk = dot(&kr, &kr);
+        if kk == 0.0 {
+            return None;
+        }
+        let eta = dot(&ki, &kr) / kk;
+        let tol = 1e-12;
+        let resid = |a: &[f64], f: &dyn Fn(usize) -> f64| {
+            a.iter().enumerate().map(|(i, x)| (x - f(i)).powi(2)).sum::<f64>()
+        };
+        if resid(&ki, &|i| eta * kr[i]) > tol * tol * kk {
+            return None;
+        }
+        // C ≈ αM + βK′ by least squares on the Frobenius inner product.
+        let (m, c) = (&model.m_ff, &model.c_ff);
+        let (mm, mk, cm, ck) = (dot(m, m), dot(m, &kr), dot(c, m), dot(c, &kr));
+        let det = mm * kk - mk * mk;
+        let (alpha, beta) = if det.abs() > 1e-12 * mm * kk {
+            ((cm * kk - ck * mk) / det, (ck * mm - cm * mk) / det)
+        } else {
+            // M ∥ K′: all of C on M.
+            (cm / mm, 0.0)
+        };
+        let cc = dot(c, c);
+        if resid(c, &|i| alpha * m[i] + beta * kr[i]) > tol * tol * cc.max(f64::MIN_POSITIVE) && cc > 0.0 {
+            return None;
+        }
+        let (lambda, phi) = crate::linalg::sym_generalized_eigen(&kr, m, n).ok()?;
+        let mode = |r: usize| &phi[r * n..(r + 1) * n];
+        let rows = rows.chunks_exact(n).map(|row| (0..n).map(|r| dot(row, mode(r))).collect()).collect();
+        let col = |v: &[f64], d: usize| v[d * n..(d + 1) * n].to_vec();
+        let inputs = inputs
+            .iter()
+            .map(|inp| {
+                (0..n)
+                    .map(|r| match inp {
+                        Input::Load(v) => (Complex64::new(dot(v, mode(r)), 0.0), 0.0, 0.0),
+                        Input::Ground(d) => {
+                            // b = −(K*_fg + iωC_fg − ω²M_fg) e_d.
+                            let kre = col(&model.k_fg.iter().map(|z| z.re).collect::<Vec<_>>(), *d);
+                            let kim = col(&model.k_fg.iter().map(|z| z.im).collect::<Vec<_>>(), *d);
+                            (
+                                -Complex64::new(dot(&kre, mode(r)), dot(&kim, mode(r))),
+                                -dot(&col(&model.c_fg, *d), mode(r)),
+                                -dot(&col(&model.m_fg, *d), mode(r)),
+                            )
+                        }
+                    })
+                    .collect()
+            })
+            .collect();
+        Some(ModalLayout { eta, alpha, beta, lambda, rows, inputs })
+    }
+
+    /// FRFs at up to [`LANES`] frequencies `f_hz` into `out` (per frequency n_out × n_in);
+    /// call inside [`with_best_simd`]. Returns the lanes where a modal denominator is below
+    /// [`crate::linalg::SINGULAR_PIVOT_RATIO`] of λ_r + ω² (Z numerically singular there, as the
+    /// direct path's pivot test would report).
+    #[inline(always)]
+    fn evaluate_lanes(&self, f_hz: &[f64], acc: &mut [CLane], out: &mut [Complex64]) -> LaneMask {
+        let mut w: Lane = [f_hz[f_hz.len() - 1]; LANES];
+        w[..f_hz.len()].copy_from_slice(f_hz);
+        let mut w2: Lane = [0.0; LANES];
+        for l in 0..LANES {
+            w[l] *= 2.0 * PI;
+            w2[l] = w[l] * w[l];
+        }
+        let ni = self.inputs.len();
+        let mut bad: LaneMask = 0;
+        acc.iter_mut().for_each(|x| *x = CLane::ZERO);
+        for (r, &lam) in self.lambda.iter().enumerate() {
+            let mut den = CLane::ZERO;
+            for l in 0..LANES {
+                den.re[l] = lam - w2[l];
+                den.im[l] = lam * self.eta + w[l] * (self.alpha + self.beta * lam);
+            }
+            let dn = den.norm_sqr();
+            for l in 0..LANES {
+                let scale = crate::linalg::SINGULAR_PIVOT_RATIO * (lam.abs() + w2[l]);
+                bad |= (!(dn[l] > scale * scale) as LaneMask) << l;
+            }
+            let inv = den.inv();
+            for (j, q) in self.inputs.iter().enumerate() {
+                let (q0, q1, q2) = q[r];
+                let mut qr = CLane::ZERO;
+                for l in 0..LANES {
+                    qr.re[l] = q0.re - w2[l] * q2;
+                    qr.im[l] = q0.im + w[l] * q1;
+                }
+                let qr = qr * inv;
+                for (o, row) in self.rows.iter().enumerate() {
+                    acc[o * ni + j] = acc[o * ni + j] + qr.scale(row[r]);
+                }
+            }
+        }
+        let per = acc.len();
+        for (l, o) in out.chunks_exact_mut(per).take(f_hz.len()).enumerate() {
+            for (x, a) in o.iter_mut().zip(acc.iter()) {
+                *x = a.get(l);
+            }
+        }
+        bad
+    }
+}
+
 /// Largest lane band storage n·(kl + ku + 1) the lane kernel takes (512 KiB of lanes, so one
 /// thread's factor stays in L2); larger or denser models use the scalar kernels.
 const LANE_STORAGE_MAX: usize = 4096;
@@ -101,6 +236,8 @@ struct Layout {
     kind: SolverKind,
     /// The lane kernel, when the model is small or narrow enough (see [`FrfPlan::lanes`]).
     lanes: Option<LaneLayout>,
+    /// Modal superposition, when the model is proportionally damped (see [`FrfPlan::is_modal`]).
+    modal: Option<ModalLayout>,
     /// Storage length of the Z buffer.
     len: usize,
     entries: Vec<Entry>,
@@ -286,11 +423,16 @@ impl Layout {
                 }
             })
             .collect();
+        let modal = if matches!(choice, SolverChoice::Auto) {
+            ModalLayout::try_new(model, inputs, rows)
+        } else {
+            None
+        };
         let rows = rows
             .chunks_exact(n.max(1))
             .map(|r| (0..n).filter(|&i| r[i] != 0.0).map(|i| (pos[i], r[i])).collect())
             .collect();
-        Layout { kind, lanes, len, entries, terms, rhs, rows, pos }
+        Layout { kind, lanes, modal, len, entries, terms, rhs, rows, pos }
     }
 
     /// Per-frequency cost estimate (multiply–adds) used for the parallel threshold.
@@ -428,11 +570,18 @@ impl<'m> FrfPlan<'m> {
     /// Rule for [`SolverChoice::Auto`]: when the band storage n·(kl + ku + 1) of the scalar
     /// kernel's order is at most 4096 entries (a dense model counts with its natural band), eight
     /// frequencies are eliminated at once, one per SIMD lane, without row exchanges; a frequency
-    /// where partial pivoting would exchange rows, or a pivot looks singular, is redone by the
-    /// scalar kernel. [`SolverChoice::Dense`] and [`SolverChoice::Banded`] use only the scalar
+    /// whose solution has a backward error above 1e-14, or whose pivots look singular, is redone
+    /// by the scalar kernel. [`SolverChoice::Dense`] and [`SolverChoice::Banded`] use only the scalar
     /// kernels (the reference paths).
     pub fn lanes(&self) -> Option<(usize, usize)> {
         self.layout.lanes.as_ref().map(|l| (l.kl, l.ku))
+    }
+
+    /// True when [`FrfPlan::evaluate`] sums modes instead of solving. Rule for
+    /// [`SolverChoice::Auto`]: at most 64 DOFs, no frequency-dependent stiffness, one loss factor
+    /// η with K* = K′(1 + iη) and C = αM + βK′ (Rayleigh damping), each to a relative 1e-12.
+    pub fn is_modal(&self) -> bool {
+        self.layout.modal.is_some()
     }
 
     pub(crate) fn lane_scratch_with(&self, extra_rhs: usize) -> LaneScratch {
@@ -594,6 +743,23 @@ impl<'m> FrfPlan<'m> {
             return Err(Error::shape("FRF output buffer", freq_hz.len() * per, out.len()));
         }
         let n = self.model.dof_count();
+        if let Some(ml) = &self.layout.modal {
+            let mut acc = vec![CLane::ZERO; per];
+            return with_best_simd(
+                #[inline(always)]
+                || {
+                    for (o, f) in out.chunks_mut(LANES * per).zip(freq_hz.chunks(LANES)) {
+                        let bad = ml.evaluate_lanes(f, &mut acc, o);
+                        if let Some(&fh) =
+                            f.iter().enumerate().find(|(l, _)| bad & (1 << l) != 0).map(|(_, fh)| fh)
+                        {
+                            return Err(Error::Singular { freq_hz: fh });
+                        }
+                    }
+                    Ok(())
+                },
+            );
+        }
         let block = self.block_len(freq_hz.len(), self.layout.cost(n, self.inputs.len()));
         out.par_chunks_mut(block * per).zip(freq_hz.par_chunks(block)).try_for_each(|(o, f)| {
             let mut ls = self.lane_scratch_with(0);
@@ -803,6 +969,37 @@ pub(crate) mod tests {
             let e = max_rel_diff(a.data.as_slice().unwrap(), d.data.as_slice().unwrap());
             assert!(e < 1e-9, "n = {}: {e}", m.dof_count());
         }
+    }
+
+    #[test]
+    fn modal_path_matches_dense_path_for_proportional_damping() {
+        // Oracle: the dense direct solve. (a) one loss factor, no dashpots; (b) dashpots c = βk
+        // on every spring (C = βK′, Rayleigh with α = 0).
+        let springs = |i: usize| 1.0e6 * (1.0 + 0.3 * ((i * 7) % 11) as f64);
+        let uniform: Vec<String> =
+            (0..10).map(|i| format!("stiffness_n_per_m = {}\nloss_factor = 0.03", springs(i))).collect();
+        let rayleigh: Vec<String> = (0..10)
+            .map(|i| format!("stiffness_n_per_m = {}\ndamping_ns_per_m = {}", springs(i), 2e-4 * springs(i)))
+            .collect();
+        for pads in [&uniform, &rayleigh] {
+            let pr: Vec<&str> = pads.iter().map(|s| s.as_str()).collect();
+            let m = chain(10, &pr);
+            let (ins, outs) = (["ground_z", "force:m4:z"], ["m9:z", "m0:z"]);
+            let plan = FrfPlan::new(&m, &ins, &outs).unwrap();
+            assert!(plan.is_modal());
+            let dense = FrfPlan::new(&m, &ins, &outs).unwrap().with_solver(SolverChoice::Dense);
+            assert!(!dense.is_modal());
+            let f = grid(500);
+            let (a, d) = (plan.evaluate(&f).unwrap(), dense.evaluate(&f).unwrap());
+            let e = max_rel_diff(a.data.as_slice().unwrap(), d.data.as_slice().unwrap());
+            assert!(e < 1e-9, "{e}");
+        }
+        // Not proportional: a Zener pad (frequency dependent), or two loss factors.
+        assert!(!FrfPlan::new(&chain(10, &[]), &["ground_z"], &["m9:z"]).unwrap().is_modal());
+        let mut mixed = uniform.clone();
+        mixed[3] = format!("stiffness_n_per_m = {}\nloss_factor = 0.05", springs(3));
+        let pr: Vec<&str> = mixed.iter().map(|s| s.as_str()).collect();
+        assert!(!FrfPlan::new(&chain(10, &pr), &["ground_z"], &["m9:z"]).unwrap().is_modal());
     }
 
     #[test]

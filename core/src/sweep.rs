@@ -307,12 +307,10 @@ impl<'m> SweepPlan<'m> {
         for q in 0..K {
             for p in 0..K {
                 a[p][q] = ws.d[p] * g[p + q * K];
-                ws.a0[p + q * K] = a[p][q];
             }
             for l in 0..LANES {
                 a[q][q].re[l] += 1.0;
             }
-            ws.a0[q + q * K] = a[q][q];
         }
         let a0 = a;
         let mut bad = dense_factor(&mut a);
@@ -324,8 +322,18 @@ impl<'m> SweepPlan<'m> {
             let x0 = x;
             dense_solve(&a, &mut x);
             bad |= dense_backward_error_mask(&a0, &x0, &x);
-            ws.w0[j * K..(j + 1) * K].copy_from_slice(&x0);
-            ws.w[j * K..(j + 1) * K].copy_from_slice(&x);
+            for p in 0..K {
+                ws.w[j * K + p] = x[p];
+                ws.w0[j * K + p] = x0[p];
+            }
+        }
+        if bad != 0 {
+            // Only the lanes to redo need the system again (see finish_block).
+            for q in 0..K {
+                for p in 0..K {
+                    ws.a0[p + q * K] = a0[p][q];
+                }
+            }
         }
         ws.bad = bad;
     }

@@ -232,7 +232,10 @@ impl BandLanes {
             }
         }
         for l in 0..LANES {
-            let ok = hi[l] > 0.0 && lo[l].is_finite() && (lo[l] / hi[l]).sqrt() > SINGULAR_PIVOT_RATIO;
+            // sqrt(lo/hi) > ratio without a division or root per lane.
+            let ok = hi[l] > 0.0
+                && lo[l].is_finite()
+                && lo[l] > SINGULAR_PIVOT_RATIO * SINGULAR_PIVOT_RATIO * hi[l];
             bad |= (!ok as LaneMask) << l;
         }
         bad
@@ -344,7 +347,9 @@ pub fn dense_factor<const K: usize>(a: &mut [[CLane; K]; K]) -> LaneMask {
     }
     let mut bad: LaneMask = 0;
     for l in 0..LANES {
-        let ok = hi[l] > 0.0 && lo[l].is_finite() && (lo[l] / hi[l]).sqrt() > SINGULAR_PIVOT_RATIO;
+        // sqrt(lo/hi) > ratio without a division or root per lane.
+        let ok =
+            hi[l] > 0.0 && lo[l].is_finite() && lo[l] > SINGULAR_PIVOT_RATIO * SINGULAR_PIVOT_RATIO * hi[l];
         bad |= (!ok as LaneMask) << l;
     }
     bad
