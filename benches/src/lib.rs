@@ -3,6 +3,16 @@
 /// A chain ground–k–m1–k–m2–…–mn of single-DOF (vertical) masses with hysteretic springs, a
 /// dashpot on every third spring, and a Zener pad on the first: n DOFs, banded (tridiagonal).
 pub fn chain_toml(n: usize) -> String {
+    chain_with(n, false)
+}
+
+/// The same chain with one loss factor (0.02) on every spring and no dashpots or pads: a
+/// proportionally damped model, which takes the modal path.
+pub fn chain_uniform_loss_toml(n: usize) -> String {
+    chain_with(n, true)
+}
+
+fn chain_with(n: usize, uniform: bool) -> String {
     let mut s = String::new();
     for i in 0..n {
         s.push_str(&format!(
@@ -14,7 +24,9 @@ pub fn chain_toml(n: usize) -> String {
     for i in 0..n {
         let from = if i == 0 { "ground".to_string() } else { format!("m{}", i - 1) };
         let k = 1.0e6 * (1.0 + 0.3 * ((i * 7) % 11) as f64);
-        let stiff = if i == 0 {
+        let stiff = if uniform {
+            format!("stiffness_n_per_m = {k}\nloss_factor = 0.02")
+        } else if i == 0 {
             "zener = { k0 = 4e5, k_inf = 1.2e6, tau_s = 0.002 }".to_string()
         } else if i % 3 == 0 {
             format!("stiffness_n_per_m = {k}\ndamping_ns_per_m = 40.0")
@@ -23,28 +35,6 @@ pub fn chain_toml(n: usize) -> String {
         };
         s.push_str(&format!(
             "[[spring]]\nname = \"s{i}\"\nfrom = \"{from}\"\nto = \"m{i}\"\nat_m = [0, 0, {}]\ndirection = [0, 0, 1]\n{stiff}\n\n",
-            i as f64 * 0.1
-        ));
-    }
-    s
-}
-
-/// The same chain with one loss factor (0.02) on every spring and no dashpots or pads: a
-/// proportionally damped model, which takes the modal path.
-pub fn chain_uniform_loss_toml(n: usize) -> String {
-    let mut s = String::new();
-    for i in 0..n {
-        s.push_str(&format!(
-            "[[body]]\nname = \"m{i}\"\nmass_kg = {}\ncg_m = [0, 0, {}]\ninertia_kgm2 = [1, 1, 1]\ndofs = [\"z\"]\n\n",
-            2.0 + (i % 5) as f64,
-            i as f64 * 0.1
-        ));
-    }
-    for i in 0..n {
-        let from = if i == 0 { "ground".to_string() } else { format!("m{}", i - 1) };
-        let k = 1.0e6 * (1.0 + 0.3 * ((i * 7) % 11) as f64);
-        s.push_str(&format!(
-            "[[spring]]\nname = \"s{i}\"\nfrom = \"{from}\"\nto = \"m{i}\"\nat_m = [0, 0, {}]\ndirection = [0, 0, 1]\nstiffness_n_per_m = {k}\nloss_factor = 0.02\n\n",
             i as f64 * 0.1
         ));
     }
