@@ -200,7 +200,9 @@ impl ModalLayout {
             let dn = den.norm_sqr();
             for l in 0..LANES {
                 let scale = crate::linalg::SINGULAR_PIVOT_RATIO * (lam.abs() + w2[l]);
-                bad |= (!(dn[l] > scale * scale) as LaneMask) << l;
+                // NaN compares false: a NaN denominator is flagged too.
+                let ok = dn[l] > scale * scale;
+                bad |= (!ok as LaneMask) << l;
             }
             let inv = den.inv();
             for (j, q) in self.inputs.iter().enumerate() {
