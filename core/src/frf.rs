@@ -6,7 +6,7 @@
 //! parallel over frequency blocks (rayon) when the work is large enough to pay.
 
 use crate::error::{Error, Result};
-use crate::linalg::lanes::{BandLanes, CLane, LANES, Lane, LaneMask, with_best_simd};
+use crate::linalg::lanes::{BandLanes, CLane, LANES, Lane, LaneMask, pad_block, with_best_simd};
 use crate::linalg::{BandLu, ComplexLu};
 use crate::model::{Input, Model};
 use ndarray::Array3;
@@ -151,25 +151,26 @@ impl ModalLayout {
         let (lambda, phi) = crate::linalg::sym_generalized_eigen(&kr, m, n).ok()?;
         let mode = |r: usize| &phi[r * n..(r + 1) * n];
         let rows = rows.chunks_exact(n).map(|row| (0..n).map(|r| dot(row, mode(r))).collect()).collect();
-        let col = |v: &[f64], d: usize| v[d * n..(d + 1) * n].to_vec();
         let inputs = inputs
             .iter()
-            .map(|inp| {
-                (0..n)
-                    .map(|r| match inp {
-                        Input::Load(v) => (Complex64::new(dot(v, mode(r)), 0.0), 0.0, 0.0),
-                        Input::Ground(d) => {
-                            // b = −(K*_fg + iωC_fg − ω²M_fg) e_d.
-                            let kre = col(&model.k_fg.iter().map(|z| z.re).collect::<Vec<_>>(), *d);
-                            let kim = col(&model.k_fg.iter().map(|z| z.im).collect::<Vec<_>>(), *d);
+            .map(|inp| match inp {
+                Input::Load(v) => (0..n).map(|r| (Complex64::new(dot(v, mode(r)), 0.0), 0.0, 0.0)).collect(),
+                Input::Ground(d) => {
+                    // b = −(K*_fg + iωC_fg − ω²M_fg) e_d, its columns taken once per input.
+                    let cols = d * n..(d + 1) * n;
+                    let kre: Vec<f64> = model.k_fg[cols.clone()].iter().map(|z| z.re).collect();
+                    let kim: Vec<f64> = model.k_fg[cols.clone()].iter().map(|z| z.im).collect();
+                    let (c, m) = (&model.c_fg[cols.clone()], &model.m_fg[cols]);
+                    (0..n)
+                        .map(|r| {
                             (
                                 -Complex64::new(dot(&kre, mode(r)), dot(&kim, mode(r))),
-                                -dot(&col(&model.c_fg, *d), mode(r)),
-                                -dot(&col(&model.m_fg, *d), mode(r)),
+                                -dot(c, mode(r)),
+                                -dot(m, mode(r)),
                             )
-                        }
-                    })
-                    .collect()
+                        })
+                        .collect()
+                }
             })
             .collect();
         Some(ModalLayout { eta, alpha, beta, lambda, rows, inputs })
@@ -181,8 +182,7 @@ impl ModalLayout {
     /// direct path's pivot test would report).
     #[inline(always)]
     fn evaluate_lanes(&self, f_hz: &[f64], acc: &mut [CLane], out: &mut [Complex64]) -> LaneMask {
-        let mut w: Lane = [f_hz[f_hz.len() - 1]; LANES];
-        w[..f_hz.len()].copy_from_slice(f_hz);
+        let mut w = pad_block(f_hz);
         let mut w2: Lane = [0.0; LANES];
         for l in 0..LANES {
             w[l] *= 2.0 * PI;
@@ -645,9 +645,10 @@ impl<'m> FrfPlan<'m> {
     ) -> LaneMask {
         let m = self.model;
         let n = m.dof_count();
-        let Some(&last) = f_hz.last() else { return 0 };
-        let mut fl: Lane = [last; LANES];
-        fl[..f_hz.len()].copy_from_slice(&f_hz[..f_hz.len().min(LANES)]);
+        if f_hz.is_empty() {
+            return 0;
+        }
+        let fl = pad_block(f_hz);
         let mut w: Lane = [0.0; LANES];
         let mut w2: Lane = [0.0; LANES];
         for l in 0..LANES {

@@ -16,7 +16,7 @@
 use crate::error::{Error, Result};
 use crate::frf::FrfPlan;
 use crate::linalg::lanes::{
-    BandLanes, CLane, LANES, Lane, LaneMask, dense_backward_error_mask, dense_factor, dense_solve,
+    BandLanes, CLane, LANES, Lane, LaneMask, dense_backward_error_mask, dense_factor, dense_solve, pad_block,
     with_best_simd,
 };
 use crate::linalg::solve_small_in_place;
@@ -128,8 +128,7 @@ impl<'m> SweepPlan<'m> {
                                     CLane::splat(self.gvec[p + k * j]) + dot(up, col(j)).scale(-1.0);
                             }
                         }
-                        let mut fl8: Lane = [fl[fl.len() - 1]; LANES];
-                        fl8[..fl.len()].copy_from_slice(fl);
+                        let fl8 = pad_block(fl);
                         for (ko, &i) in k_old.iter_mut().zip(&self.springs) {
                             *ko = model.springs[i].model.at_lanes(&fl8);
                         }
@@ -241,8 +240,7 @@ impl<'m> SweepPlan<'m> {
                     #[inline(always)]
                     || {
                         for (b, (r, fb)) in recs.chunks_exact(rec).zip(freq_hz.chunks(LANES)).enumerate() {
-                            let mut fl: Lane = [fb[fb.len() - 1]; LANES];
-                            fl[..fb.len()].copy_from_slice(fb);
+                            let fl = pad_block(fb);
                             let mut wl: Lane = [0.0; LANES];
                             wl.copy_from_slice(&wts[b * LANES..(b + 1) * LANES]);
                             for (v, rep) in reps.iter().enumerate() {

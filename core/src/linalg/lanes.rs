@@ -27,6 +27,16 @@ pub type Lane = [f64; LANES];
 /// Bit mask over the lanes (bit l set: lane l needs the scalar kernel).
 pub type LaneMask = u32;
 
+/// Up to [`LANES`] frequencies as one lane block; missing lanes repeat the last frequency, so a
+/// short final block solves valid systems whose answers are simply not used.
+#[inline(always)]
+pub fn pad_block(f: &[f64]) -> Lane {
+    let mut l: Lane = [f.last().copied().unwrap_or(0.0); LANES];
+    let k = f.len().min(LANES);
+    l[..k].copy_from_slice(&f[..k]);
+    l
+}
+
 /// A complex number per lane, split into real and imaginary parts.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct CLane {
