@@ -568,28 +568,21 @@ impl<const K: usize, const NS: usize> pulp::WithSimd for RationalSums<'_, K, NS>
         let (zero, one) = (simd.splat_f64s(0.0), simd.splat_f64s(1.0));
         let mut bad: LaneMask = 0;
         for q in 0..chunks {
-            // d_S = Π_{s∈S} d_s over subsets S, and Π cabs1(d_s), which bounds |d_S|.
-            let (mut pr, mut pi, mut pa) = ([zero; NS], [zero; NS], [zero; NS]);
-            pr[0] = one;
-            pa[0] = one;
+            // d_s and cabs1(d_s), which bounds |d_s|.
+            let mut dv = [[zero; K]; 3];
             for p in 0..K {
-                let h = 1 << p;
                 let (xr, xi) = (chunk::<S>(&d[p].re, q), chunk::<S>(&d[p].im, q));
-                let xa = simd.add_f64s(simd.abs_f64s(xr), simd.abs_f64s(xi));
-                for s in 0..h {
-                    pr[h + s] = simd.negate_mul_add_e_f64s(pi[s], xi, simd.mul_f64s(pr[s], xr));
-                    pi[h + s] = simd.mul_add_e_f64s(pr[s], xi, simd.mul_f64s(pi[s], xr));
-                    pa[h + s] = simd.mul_f64s(pa[s], xa);
-                }
+                dv[0][p] = xr;
+                dv[1][p] = xi;
+                dv[2][p] = simd.add_f64s(simd.abs_f64s(xr), simd.abs_f64s(xi));
             }
-            let p = [pr, pi, pa];
             let mut ok = simd.less_than_or_equal_f64s(zero, zero);
-            let (dr, di) = rational_sum(simd, &p, &c[..NS], &cb[..NS], q, &mut ok);
+            let (dr, di) = rational_sum::<S, K, NS>(simd, &dv, &c[..NS], &cb[..NS], q, &mut ok);
             let rinv = simd.div_f64s(one, simd.mul_add_e_f64s(dr, dr, simd.mul_f64s(di, di)));
             let (ir, ii) = (simd.mul_f64s(dr, rinv), simd.neg_f64s(simd.mul_f64s(di, rinv)));
             for (t, yt) in y.iter_mut().enumerate() {
                 let span = NS * (t + 1)..NS * (t + 2);
-                let (nr, ni) = rational_sum(simd, &p, &c[span.clone()], &cb[span], q, &mut ok);
+                let (nr, ni) = rational_sum::<S, K, NS>(simd, &dv, &c[span.clone()], &cb[span], q, &mut ok);
                 S::as_mut_simd_f64s(&mut yt.re).0[q] =
                     simd.negate_mul_add_e_f64s(ni, ii, simd.mul_f64s(nr, ir));
                 S::as_mut_simd_f64s(&mut yt.im).0[q] = simd.mul_add_e_f64s(nr, ii, simd.mul_f64s(ni, ir));
@@ -610,30 +603,42 @@ fn chunk<S: pulp::Simd>(x: &Lane, q: usize) -> S::f64s {
     S::as_simd_f64s(x).0[q]
 }
 
-/// Σ_S d_S c_S over one chunk, with p = [Re d_S, Im d_S, bound of |d_S|]; the lanes whose bound
-/// Σ |d_S| b_S exceeds [`CANCELLATION_MAX`]·cabs1(sum), or is not a number, clear `ok`.
+/// Σ_S d_S c_S over one chunk, nested one spring at a time (c_S + d_s c_{S∪s}, a tree of
+/// 2^k − 1 complex multiply-adds), with dv = [Re d_s, Im d_s, cabs1 d_s]; the same nesting of the
+/// bounds gives Σ |d_S| b_S. Lanes where that exceeds [`CANCELLATION_MAX`]·cabs1(sum), or is not
+/// a number, clear `ok`.
 #[inline(always)]
-fn rational_sum<S: pulp::Simd, const NS: usize>(
+fn rational_sum<S: pulp::Simd, const K: usize, const NS: usize>(
     simd: S,
-    p: &[[S::f64s; NS]; 3],
+    dv: &[[S::f64s; K]; 3],
     c: &[CLane],
     cb: &[Lane],
     q: usize,
     ok: &mut S::m64s,
 ) -> (S::f64s, S::f64s) {
-    let [pr, pi, pa] = p;
+    let [dr, di, da] = dv;
     let zero = simd.splat_f64s(0.0);
-    let (mut vr, mut vi, mut e) = (zero, zero, zero);
+    let (mut vr, mut vi, mut vb) = ([zero; NS], [zero; NS], [zero; NS]);
     for s in 0..NS {
-        let (cr, ci) = (chunk::<S>(&c[s].re, q), chunk::<S>(&c[s].im, q));
-        vr = simd.negate_mul_add_e_f64s(pi[s], ci, simd.mul_add_e_f64s(pr[s], cr, vr));
-        vi = simd.mul_add_e_f64s(pi[s], cr, simd.mul_add_e_f64s(pr[s], ci, vi));
-        e = simd.mul_add_e_f64s(pa[s], chunk::<S>(&cb[s], q), e);
+        vr[s] = chunk::<S>(&c[s].re, q);
+        vi[s] = chunk::<S>(&c[s].im, q);
+        vb[s] = chunk::<S>(&cb[s], q);
     }
-    let a = simd.add_f64s(simd.abs_f64s(vr), simd.abs_f64s(vi));
-    let fine = simd.less_than_or_equal_f64s(e, simd.mul_f64s(simd.splat_f64s(CANCELLATION_MAX), a));
+    // Bit p of the subset index is spring p; each level folds the lowest remaining bit.
+    let mut h = NS;
+    for p in 0..K {
+        h /= 2;
+        for s in 0..h {
+            let (ar, ai, br, bi) = (vr[2 * s], vi[2 * s], vr[2 * s + 1], vi[2 * s + 1]);
+            vr[s] = simd.negate_mul_add_e_f64s(di[p], bi, simd.mul_add_e_f64s(dr[p], br, ar));
+            vi[s] = simd.mul_add_e_f64s(di[p], br, simd.mul_add_e_f64s(dr[p], bi, ai));
+            vb[s] = simd.mul_add_e_f64s(da[p], vb[2 * s + 1], vb[2 * s]);
+        }
+    }
+    let a = simd.add_f64s(simd.abs_f64s(vr[0]), simd.abs_f64s(vi[0]));
+    let fine = simd.less_than_or_equal_f64s(vb[0], simd.mul_f64s(simd.splat_f64s(CANCELLATION_MAX), a));
     *ok = simd.and_m64s(*ok, fine);
-    (vr, vi)
+    (vr[0], vi[0])
 }
 
 /// Per-task scratch of the variant loop.
