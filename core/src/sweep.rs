@@ -318,6 +318,7 @@ impl<'m> SweepPlan<'m> {
             .zip(rms_buf.par_chunks_mut(chunk * no * ni))
             .map(|((o, reps), racc)| {
                 let mut ws = VariantScratch::new(k, ni, no, reps.len());
+                let arch = pulp::Arch::new();
                 let redone = with_best_simd(
                     #[inline(always)]
                     || {
@@ -336,10 +337,18 @@ impl<'m> SweepPlan<'m> {
                                 let dst = &mut o[v * per_v + b * LANES * no * ni..];
                                 let rejected = valid
                                     & match (self.rational, k) {
-                                        (true, 1) => self.rational_form::<1, 2>(&mut ws, r, rb, rep, &fl),
-                                        (true, 2) => self.rational_form::<2, 4>(&mut ws, r, rb, rep, &fl),
-                                        (true, 3) => self.rational_form::<3, 8>(&mut ws, r, rb, rep, &fl),
-                                        (true, 4) => self.rational_form::<4, 16>(&mut ws, r, rb, rep, &fl),
+                                        (true, 1) => {
+                                            self.rational_form::<1, 2>(arch, &mut ws, r, rb, rep, &fl)
+                                        }
+                                        (true, 2) => {
+                                            self.rational_form::<2, 4>(arch, &mut ws, r, rb, rep, &fl)
+                                        }
+                                        (true, 3) => {
+                                            self.rational_form::<3, 8>(arch, &mut ws, r, rb, rep, &fl)
+                                        }
+                                        (true, 4) => {
+                                            self.rational_form::<4, 16>(arch, &mut ws, r, rb, rep, &fl)
+                                        }
                                         _ => LaneMask::MAX,
                                     };
                                 if rejected == 0 {
@@ -378,6 +387,7 @@ impl<'m> SweepPlan<'m> {
     #[inline(always)]
     fn rational_form<const K: usize, const NS: usize>(
         &self,
+        arch: pulp::Arch,
         ws: &mut VariantScratch,
         r: &[CLane],
         rb: &[Lane],
@@ -387,7 +397,7 @@ impl<'m> SweepPlan<'m> {
         let [.., k_old, rat] = self.split(r);
         self.stiffness_change(ws, k_old, rep, fl);
         let VariantScratch { d, y, .. } = ws;
-        pulp::Arch::new().dispatch(RationalSums::<K, NS> { d: &d[..K], c: rat, cb: rb, y })
+        arch.dispatch(RationalSums::<K, NS> { d: &d[..K], c: rat, cb: rb, y })
     }
 
     /// Write the block's FRFs `ws.y` for its `count` valid lanes into `dst` and add w·|H|² to the
