@@ -335,15 +335,25 @@ def welch_case(nsamp, repeat):
     return {k: statistics.median(v) for k, v in res.items()}, rel(out["ours"][1], out["scipy"][1])
 
 
+def overhead_case(calls):
+    """Median of `calls` binding calls Model.frf (n = 12 chain, 4096 log frequencies, one input,
+    one output); compare with criterion's frf_chain/convenience/n12_f4096 (the same call in Rust)."""
+    m = stillsky.Model.from_toml_str(chain_toml(12), "chain")
+    f = np.geomspace(0.5, 500.0, 4096)
+    m.frf(f, "ground_z", "m11:z")
+    med, _ = timed(lambda: m.frf(f, "ground_z", "m11:z"), calls)
+    return med
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--repeat", type=int, default=5)
     ap.add_argument("--welch-size", type=int, action="append", default=None,
                     help="in-memory Welch sizes (default 720000; 86400000 is the 24 h case)")
     ap.add_argument("--skip-full", action="store_true", help="skip the full-solve sweep (about 5 s)")
-    ap.add_argument("--only", choices=("frf", "modal", "sweep", "welch"), action="append", default=None)
+    ap.add_argument("--only", choices=("frf", "modal", "sweep", "welch", "overhead"), action="append", default=None)
     a = ap.parse_args()
-    only = set(a.only or ("frf", "modal", "sweep", "welch"))
+    only = set(a.only or ("frf", "modal", "sweep", "welch", "overhead"))
     print(f"threads: RAYON={os.environ['RAYON_NUM_THREADS']} OMP={os.environ['OMP_NUM_THREADS']}; "
           f"numpy {np.__version__}, scipy {scipy.__version__}, repeat {a.repeat}")
     if "frf" in only:
@@ -382,6 +392,10 @@ def main():
             print(f"| {ns} samples | {med['scipy']:.4g} | {med['ours']:.4g} | {med['scipy'] / med['ours']:.1f} | {err:.1e} |",
                   flush=True)
             assert err < 1e-9, err
+    if "overhead" in only:
+        med = overhead_case(60)
+        print(f"\nModel.frf via the binding, n = 12, F = 4096, median of 60 calls: {med * 1e3:.3f} ms "
+              "(compare: cargo bench --bench frf -- frf_chain/convenience/n12_f4096)")
 
 
 if __name__ == "__main__":

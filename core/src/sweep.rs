@@ -12,10 +12,11 @@
 //! matrix determinant lemma det(I + D G) = Σ_S d_S det G[S, S], and y·det(I + D G) = Σ_S d_S
 //! det M[{0} ∪ S, {0} ∪ S] with the bordered M = [[c·x0, −c·Y], [g − h, G]] (Cramer's rule): both
 //! are multilinear in the stiffness changes d_s, with the principal minors as coefficients, taken
-//! once per frequency. A variant then costs 2^k complex products per output instead of a
-//! factorisation. Each lane carries the bound Σ_S |d_S|·perm|M[S, S]| on the rounding of these
-//! sums; where it exceeds [`CANCELLATION_MAX`] times the value (cancellation near a resonance or
-//! an antiresonance), that block is redone by the capacitance solve.
+//! once per frequency. A variant then costs 2^k − 1 complex multiply-adds per output (nested one
+//! spring at a time) instead of a factorisation. Each lane carries the bound
+//! Σ_S |d_S|·perm|M[S, S]| on the rounding of these sums; where it exceeds [`CANCELLATION_MAX`]
+//! times the value (cancellation near a resonance or an antiresonance), that block is redone by
+//! the capacitance solve.
 //!
 //! Both stages run eight frequencies at once, one per SIMD lane ([`crate::linalg::lanes`]): the
 //! reference solves through [`FrfPlan`]'s lane kernel, the capacitance systems through the same
