@@ -495,24 +495,11 @@ pub(crate) struct LaneScratch {
 impl<'m> FrfPlan<'m> {
     /// Resolve input and output names.
     pub fn new(model: &'m Model, inputs: &[&str], outputs: &[&str]) -> Result<Self> {
-        if inputs.is_empty() {
-            return Err(Error::invalid("inputs", "at least one input is needed"));
-        }
-        let ins = inputs.iter().map(|n| model.input(n)).collect::<Result<Vec<_>>>()?;
         let mut rows = Vec::with_capacity(outputs.len() * model.dof_count());
         for o in outputs {
             rows.extend(model.output(o)?);
         }
-        let layout = Layout::new(model, &ins, &rows, SolverChoice::Auto);
-        Ok(FrfPlan {
-            model,
-            input_names: inputs.iter().map(|s| s.to_string()).collect(),
-            output_names: outputs.iter().map(|s| s.to_string()).collect(),
-            inputs: ins,
-            rows,
-            choice: SolverChoice::Auto,
-            layout,
-        })
+        Self::from_rows(model, inputs, outputs.iter().map(|s| s.to_string()).collect(), rows)
     }
 
     /// A plan whose outputs are arbitrary real rows over the free DOFs (row-major
@@ -522,11 +509,30 @@ impl<'m> FrfPlan<'m> {
         if rows.len() != names.len() * n {
             return Err(Error::shape("output rows", names.len() * n, rows.len()));
         }
-        let mut plan = FrfPlan::new(model, inputs, &[])?;
-        plan.output_names = names;
-        plan.rows = rows;
-        plan.layout = Layout::new(model, &plan.inputs, &plan.rows, plan.choice);
-        Ok(plan)
+        Self::from_rows(model, inputs, names, rows)
+    }
+
+    /// Resolve the inputs and lay out the solver once (the modal path's eigen-solution included).
+    fn from_rows(
+        model: &'m Model,
+        inputs: &[&str],
+        output_names: Vec<String>,
+        rows: Vec<f64>,
+    ) -> Result<Self> {
+        if inputs.is_empty() {
+            return Err(Error::invalid("inputs", "at least one input is needed"));
+        }
+        let ins = inputs.iter().map(|n| model.input(n)).collect::<Result<Vec<_>>>()?;
+        let layout = Layout::new(model, &ins, &rows, SolverChoice::Auto);
+        Ok(FrfPlan {
+            model,
+            input_names: inputs.iter().map(|s| s.to_string()).collect(),
+            output_names,
+            inputs: ins,
+            rows,
+            choice: SolverChoice::Auto,
+            layout,
+        })
     }
 
     /// The same plan with a forced solver choice (for checks and benchmarks; results agree to
