@@ -869,7 +869,11 @@ def spring_sweep(
     *,
     input_psd: npt.ArrayLike,
 ) -> tuple[npt.NDArray[np.complex128], npt.NDArray[np.float64]]:
-    """Replace named rank-one springs by each variant's stiffness models (rank-k update).
+    """Replace named rank-one springs by each variant's stiffness models.
+
+    Up to four springs: a rational form in the stiffness changes, computed once per frequency;
+    where it would lose accuracy (near a resonance), and for more springs, a rank-k (Woodbury)
+    update of the base solve. Both agree with rebuilt models to round-off.
 
     Args:
         model: the base model; `springs` names its rank-one springs to replace.
