@@ -336,20 +336,16 @@ impl<'m> SweepPlan<'m> {
                             let valid: LaneMask = (1 << fb.len()) - 1;
                             for (v, rep) in reps.iter().enumerate() {
                                 let dst = &mut o[v * per_v + b * LANES * no * ni..];
+                                // The stiffness changes, shared by the rational form and the
+                                // capacitance solve that redoes its rejected lanes.
+                                let [.., k_old, _] = self.split(r);
+                                self.stiffness_change(&mut ws, k_old, rep, &fl);
                                 let rejected = valid
                                     & match (self.rational, k) {
-                                        (true, 1) => {
-                                            self.rational_form::<1, 2>(arch, &mut ws, r, rb, rep, &fl)
-                                        }
-                                        (true, 2) => {
-                                            self.rational_form::<2, 4>(arch, &mut ws, r, rb, rep, &fl)
-                                        }
-                                        (true, 3) => {
-                                            self.rational_form::<3, 8>(arch, &mut ws, r, rb, rep, &fl)
-                                        }
-                                        (true, 4) => {
-                                            self.rational_form::<4, 16>(arch, &mut ws, r, rb, rep, &fl)
-                                        }
+                                        (true, 1) => self.rational_form::<1, 2>(arch, &mut ws, r, rb),
+                                        (true, 2) => self.rational_form::<2, 4>(arch, &mut ws, r, rb),
+                                        (true, 3) => self.rational_form::<3, 8>(arch, &mut ws, r, rb),
+                                        (true, 4) => self.rational_form::<4, 16>(arch, &mut ws, r, rb),
                                         _ => LaneMask::MAX,
                                     };
                                 if rejected == 0 {
@@ -359,11 +355,11 @@ impl<'m> SweepPlan<'m> {
                                 redone += rejected.count_ones() as usize;
                                 // Capacitance systems, unrolled for the usual few springs.
                                 match k {
-                                    1 => self.capacitance_small::<1>(&mut ws, r, rep, &fl),
-                                    2 => self.capacitance_small::<2>(&mut ws, r, rep, &fl),
-                                    3 => self.capacitance_small::<3>(&mut ws, r, rep, &fl),
-                                    4 => self.capacitance_small::<4>(&mut ws, r, rep, &fl),
-                                    _ => self.capacitance_band(&mut ws, r, rep, &fl),
+                                    1 => self.capacitance_small::<1>(&mut ws, r),
+                                    2 => self.capacitance_small::<2>(&mut ws, r),
+                                    3 => self.capacitance_small::<3>(&mut ws, r),
+                                    4 => self.capacitance_small::<4>(&mut ws, r),
+                                    _ => self.capacitance_band(&mut ws, r),
                                 }
                                 self.finish_block(&mut ws, r, fb, dst, v, &wl)?;
                             }
@@ -383,8 +379,9 @@ impl<'m> SweepPlan<'m> {
         Ok(redone)
     }
 
-    /// Rational form of the block for k = K springs and NS = 2^K subsets (module notes): the
-    /// FRFs into `ws.y`, and the lanes whose rounding bound fails [`CANCELLATION_MAX`].
+    /// Rational form of the block for k = K springs and NS = 2^K subsets (module notes), with
+    /// the stiffness changes in `ws.d`: the FRFs into `ws.y`, and the lanes whose rounding bound
+    /// fails [`CANCELLATION_MAX`].
     #[inline(always)]
     fn rational_form<const K: usize, const NS: usize>(
         &self,
@@ -392,11 +389,8 @@ impl<'m> SweepPlan<'m> {
         ws: &mut VariantScratch,
         r: &[CLane],
         rb: &[Lane],
-        rep: &[StiffnessModel],
-        fl: &Lane,
     ) -> LaneMask {
-        let [.., k_old, rat] = self.split(r);
-        self.stiffness_change(ws, k_old, rep, fl);
+        let [.., rat] = self.split(r);
         let VariantScratch { d, y, .. } = ws;
         arch.dispatch(RationalSums::<K, NS> { d: &d[..K], c: rat, cb: rb, y })
     }
@@ -439,18 +433,12 @@ impl<'m> SweepPlan<'m> {
         }
     }
 
-    /// Capacitance systems (I + D G) w = D (g − h) for k = K springs, unrolled: `ws.w` gets w,
+    /// Capacitance systems (I + D G) w = D (g − h) for k = K springs, D from `ws.d`
+    /// ([`SweepPlan::stiffness_change`]), unrolled: `ws.w` gets w,
     /// `ws.a0`/`ws.w0` the systems (column-major k × k, k × n_in), `ws.bad` the lanes to redo.
     #[inline(always)]
-    fn capacitance_small<const K: usize>(
-        &self,
-        ws: &mut VariantScratch,
-        r: &[CLane],
-        rep: &[StiffnessModel],
-        fl: &Lane,
-    ) {
-        let [_, _, g, gh, k_old, _] = self.split(r);
-        self.stiffness_change(ws, k_old, rep, fl);
+    fn capacitance_small<const K: usize>(&self, ws: &mut VariantScratch, r: &[CLane]) {
+        let [_, _, g, gh, ..] = self.split(r);
         let mut a = [[CLane::ZERO; K]; K];
         for q in 0..K {
             for p in 0..K {
@@ -488,11 +476,10 @@ impl<'m> SweepPlan<'m> {
 
     /// [`SweepPlan::capacitance_small`] for any k (banded kernel with kl = ku = k − 1).
     #[inline(always)]
-    fn capacitance_band(&self, ws: &mut VariantScratch, r: &[CLane], rep: &[StiffnessModel], fl: &Lane) {
+    fn capacitance_band(&self, ws: &mut VariantScratch, r: &[CLane]) {
         let k = self.springs.len();
         let ni = self.plan.n_inputs();
-        let [_, _, g, gh, k_old, _] = self.split(r);
-        self.stiffness_change(ws, k_old, rep, fl);
+        let [_, _, g, gh, ..] = self.split(r);
         for q in 0..k {
             for p in 0..k {
                 let mut x = ws.d[p] * g[p + q * k];
@@ -875,9 +862,9 @@ mod tests {
         let e = max_rel_diff(&got, direct.data.as_slice().unwrap());
         assert!(e < 1e-8, "against the dense direct path: {e}");
         // The lanes the rational form kept against the capacitance solve of the same Woodbury
+        // identity: they agree within the accepted rounding bound, CANCELLATION_MAX·(k + 2)·ε.
         let mut cap = vec![Complex64::default(); f.len()];
         plan.clone().with_rational(false).run(&f, &reps, &mut cap, None).unwrap();
-        // identity: they agree within the accepted rounding bound, CANCELLATION_MAX·(k + 2)·ε.
         let e = max_rel_diff(&got, &cap);
         assert!(e < CANCELLATION_MAX * 4.0 * f64::EPSILON, "against the capacitance solve: {e}");
     }
