@@ -308,9 +308,7 @@ impl<'m> SweepPlan<'m> {
             rms_out = Some(r);
         }
         let (recs, bounds) = self.reduce(freq_hz)?;
-        let (rec, bw) = (self.rec_len(), self.bound_len().max(1));
-        // Variants in chunks (parallel); within a chunk, blocks of frequencies outermost so a
-        // block's record stays in L1 while every variant of the chunk uses it.
+        // Variants in chunks (parallel), each run by [`VariantLoop`].
         let chunk = replacements.len().div_ceil(4 * rayon::current_num_threads()).clamp(1, 64);
         let mut rms_buf = vec![0.0; replacements.len() * no * ni];
         let redone = out
@@ -319,54 +317,16 @@ impl<'m> SweepPlan<'m> {
             .zip(rms_buf.par_chunks_mut(chunk * no * ni))
             .map(|((o, reps), racc)| {
                 let mut ws = VariantScratch::new(k, ni, no, reps.len());
-                let arch = pulp::Arch::new();
-                let redone = with_best_simd(
-                    #[inline(always)]
-                    || {
-                        let mut redone = 0;
-                        for (b, ((r, rb), fb)) in recs
-                            .chunks_exact(rec)
-                            .zip(bounds.chunks_exact(bw))
-                            .zip(freq_hz.chunks(LANES))
-                            .enumerate()
-                        {
-                            let fl = pad_block(fb);
-                            let mut wl: Lane = [0.0; LANES];
-                            wl.copy_from_slice(&wts[b * LANES..(b + 1) * LANES]);
-                            let valid: LaneMask = (1 << fb.len()) - 1;
-                            for (v, rep) in reps.iter().enumerate() {
-                                let dst = &mut o[v * per_v + b * LANES * no * ni..];
-                                // The stiffness changes, shared by the rational form and the
-                                // capacitance solve that redoes its rejected lanes.
-                                let [.., k_old, _] = self.split(r);
-                                self.stiffness_change(&mut ws, k_old, rep, &fl);
-                                let rejected = valid
-                                    & match (self.rational, k) {
-                                        (true, 1) => self.rational_form::<1, 2>(arch, &mut ws, r, rb),
-                                        (true, 2) => self.rational_form::<2, 4>(arch, &mut ws, r, rb),
-                                        (true, 3) => self.rational_form::<3, 8>(arch, &mut ws, r, rb),
-                                        (true, 4) => self.rational_form::<4, 16>(arch, &mut ws, r, rb),
-                                        _ => LaneMask::MAX,
-                                    };
-                                if rejected == 0 {
-                                    self.emit(&mut ws, fb.len(), dst, v, &wl);
-                                    continue;
-                                }
-                                redone += rejected.count_ones() as usize;
-                                // Capacitance systems, unrolled for the usual few springs.
-                                match k {
-                                    1 => self.capacitance_small::<1>(&mut ws, r),
-                                    2 => self.capacitance_small::<2>(&mut ws, r),
-                                    3 => self.capacitance_small::<3>(&mut ws, r),
-                                    4 => self.capacitance_small::<4>(&mut ws, r),
-                                    _ => self.capacitance_band(&mut ws, r),
-                                }
-                                self.finish_block(&mut ws, r, fb, dst, v, &wl)?;
-                            }
-                        }
-                        Ok::<usize, Error>(redone)
-                    },
-                )?;
+                let redone = pulp::Arch::new().dispatch(VariantLoop {
+                    plan: self,
+                    recs: &recs,
+                    bounds: &bounds,
+                    freq_hz,
+                    wts: &wts,
+                    reps,
+                    out: o,
+                    ws: &mut ws,
+                })?;
                 for (a, acc) in racc.iter_mut().zip(&ws.acc) {
                     *a = acc.iter().sum::<f64>().sqrt();
                 }
@@ -383,16 +343,16 @@ impl<'m> SweepPlan<'m> {
     /// the stiffness changes in `ws.d`: the FRFs into `ws.y`, and the lanes whose rounding bound
     /// fails [`CANCELLATION_MAX`].
     #[inline(always)]
-    fn rational_form<const K: usize, const NS: usize>(
+    fn rational_form<S: pulp::Simd, const K: usize, const NS: usize>(
         &self,
-        arch: pulp::Arch,
+        simd: S,
         ws: &mut VariantScratch,
         r: &[CLane],
         rb: &[Lane],
     ) -> LaneMask {
         let [.., rat] = self.split(r);
         let VariantScratch { d, y, .. } = ws;
-        arch.dispatch(RationalSums::<K, NS> { d: &d[..K], c: rat, cb: rb, y })
+        pulp::WithSimd::with_simd(RationalSums::<K, NS> { d: &d[..K], c: rat, cb: rb, y }, simd)
     }
 
     /// Write the block's FRFs `ws.y` for its `count` valid lanes into `dst` and add w·|H|² to the
@@ -401,14 +361,27 @@ impl<'m> SweepPlan<'m> {
     fn emit(&self, ws: &mut VariantScratch, count: usize, dst: &mut [Complex64], v: usize, wl: &Lane) {
         let t_n = ws.y.len();
         for (t, y) in ws.y.iter().enumerate() {
-            for l in 0..count {
-                dst[l * t_n + t] = y.get(l);
+            if count == LANES {
+                // A whole block: a fixed trip count the compiler can unroll.
+                for (l, d) in dst[..LANES * t_n].iter_mut().skip(t).step_by(t_n).enumerate() {
+                    *d = y.get(l);
+                }
+            } else {
+                for l in 0..count {
+                    dst[l * t_n + t] = y.get(l);
+                }
             }
             let acc = &mut ws.acc[v * t_n + t];
             let m2 = y.norm_sqr();
             // Only the valid lanes: a padding lane may hold an unchecked value.
-            for l in 0..count {
-                acc[l] += wl[l] * m2[l];
+            if count == LANES {
+                for l in 0..LANES {
+                    acc[l] += wl[l] * m2[l];
+                }
+            } else {
+                for l in 0..count {
+                    acc[l] += wl[l] * m2[l];
+                }
             }
         }
     }
@@ -544,6 +517,71 @@ impl<'m> SweepPlan<'m> {
     }
 }
 
+/// The variant loop of one parallel chunk, compiled for the CPU's best SIMD set: blocks of
+/// frequencies outermost so a block's record stays in L1 while every variant of the chunk uses
+/// it. Returns how many (variant, frequency) pairs the rational form handed over.
+struct VariantLoop<'a, 'm> {
+    plan: &'a SweepPlan<'m>,
+    recs: &'a [CLane],
+    bounds: &'a [Lane],
+    freq_hz: &'a [f64],
+    wts: &'a [f64],
+    reps: &'a [Vec<StiffnessModel>],
+    out: &'a mut [Complex64],
+    ws: &'a mut VariantScratch,
+}
+
+impl pulp::WithSimd for VariantLoop<'_, '_> {
+    type Output = Result<usize>;
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, simd: S) -> Result<usize> {
+        let VariantLoop { plan, recs, bounds, freq_hz, wts, reps, out, ws } = self;
+        let (k, ni, no) = (plan.springs.len(), plan.plan.n_inputs(), plan.n_out);
+        let per_v = ni * no * freq_hz.len();
+        let (rec, bw) = (plan.rec_len(), plan.bound_len().max(1));
+        let mut redone = 0;
+        for (b, ((r, rb), fb)) in
+            recs.chunks_exact(rec).zip(bounds.chunks_exact(bw)).zip(freq_hz.chunks(LANES)).enumerate()
+        {
+            let fl = pad_block(fb);
+            let mut wl: Lane = [0.0; LANES];
+            wl.copy_from_slice(&wts[b * LANES..(b + 1) * LANES]);
+            let valid: LaneMask = (1 << fb.len()) - 1;
+            for (v, rep) in reps.iter().enumerate() {
+                let dst = &mut out[v * per_v + b * LANES * no * ni..];
+                // The stiffness changes, shared by the rational form and the capacitance solve
+                // that redoes its rejected lanes.
+                let [.., k_old, _] = plan.split(r);
+                plan.stiffness_change(ws, k_old, rep, &fl);
+                let rejected = valid
+                    & match (plan.rational, k) {
+                        (true, 1) => plan.rational_form::<S, 1, 2>(simd, ws, r, rb),
+                        (true, 2) => plan.rational_form::<S, 2, 4>(simd, ws, r, rb),
+                        (true, 3) => plan.rational_form::<S, 3, 8>(simd, ws, r, rb),
+                        (true, 4) => plan.rational_form::<S, 4, 16>(simd, ws, r, rb),
+                        _ => LaneMask::MAX,
+                    };
+                if rejected == 0 {
+                    plan.emit(ws, fb.len(), dst, v, &wl);
+                    continue;
+                }
+                redone += rejected.count_ones() as usize;
+                // Capacitance systems, unrolled for the usual few springs.
+                match k {
+                    1 => plan.capacitance_small::<1>(ws, r),
+                    2 => plan.capacitance_small::<2>(ws, r),
+                    3 => plan.capacitance_small::<3>(ws, r),
+                    4 => plan.capacitance_small::<4>(ws, r),
+                    _ => plan.capacitance_band(ws, r),
+                }
+                plan.finish_block(ws, r, fb, dst, v, &wl)?;
+            }
+        }
+        Ok(redone)
+    }
+}
+
 /// The sums of the rational form for one lane block, written with explicit SIMD vectors (the
 /// compiler did not vectorise them across lanes by itself). `c`/`cb` hold [D_S | N_t,S] and their
 /// bounds; `y` gets N_t/D per (output, input) t.
@@ -564,7 +602,7 @@ impl<const K: usize, const NS: usize> pulp::WithSimd for RationalSums<'_, K, NS>
         let chunks = S::as_simd_f64s(&[0.0; LANES]).0.len();
         debug_assert_eq!(chunks * S::F64_LANES, LANES);
         let (zero, one) = (simd.splat_f64s(0.0), simd.splat_f64s(1.0));
-        let mut bad: LaneMask = 0;
+        let (mut flags, mut any) = ([0.0; LANES], zero);
         for q in 0..chunks {
             // d_s and cabs1(d_s), which bounds |d_s|.
             let mut dv = [[zero; K]; 3];
@@ -585,10 +623,15 @@ impl<const K: usize, const NS: usize> pulp::WithSimd for RationalSums<'_, K, NS>
                     simd.negate_mul_add_e_f64s(ni, ii, simd.mul_f64s(nr, ir));
                 S::as_mut_simd_f64s(&mut yt.im).0[q] = simd.mul_add_e_f64s(nr, ii, simd.mul_f64s(ni, ir));
             }
-            let mut flags = [0.0; LANES];
-            S::as_mut_simd_f64s(&mut flags).0[0] = simd.select_f64s(ok, zero, one);
-            for (i, f) in flags[..S::F64_LANES].iter().enumerate() {
-                bad |= ((*f != 0.0) as LaneMask) << (q * S::F64_LANES + i);
+            let flag = simd.select_f64s(ok, zero, one);
+            S::as_mut_simd_f64s(&mut flags).0[q] = flag;
+            any = simd.add_f64s(any, flag);
+        }
+        // Nearly every block passes: one horizontal sum decides whether to build the mask.
+        let mut bad: LaneMask = 0;
+        if simd.reduce_sum_f64s(any) != 0.0 {
+            for (l, f) in flags.iter().enumerate() {
+                bad |= ((*f != 0.0) as LaneMask) << l;
             }
         }
         bad

@@ -422,7 +422,7 @@ pub fn dense_backward_error_mask<const K: usize>(
 /// (Higham 2002, §14.6, for the error of a sum of products). Laplace expansion along the first
 /// row; for the small matrices of a sweep's rational form (n ≤ 5, 31 minors).
 pub fn principal_minors(m: &[CLane], n: usize) -> (Vec<CLane>, Vec<Lane>) {
-    fn expand(m: &[CLane], n: usize, rows: u32, cols: u32) -> (CLane, Lane) {
+    fn expand(m: &[CLane], abs: &[Lane], n: usize, rows: u32, cols: u32) -> (CLane, Lane) {
         if rows == 0 {
             return (CLane::splat(Complex64::new(1.0, 0.0)), [1.0; LANES]);
         }
@@ -432,19 +432,19 @@ pub fn principal_minors(m: &[CLane], n: usize) -> (Vec<CLane>, Vec<Lane>) {
         while left != 0 {
             let c = left.trailing_zeros() as usize;
             left &= left - 1;
-            let (d, p) = expand(m, n, rows & (rows - 1), cols & !(1 << c));
-            let a = m[r + c * n];
-            det = det.add_mul(a.scale(sign), d);
-            let an = a.norm_sqr();
+            let (d, p) = expand(m, abs, n, rows & (rows - 1), cols & !(1 << c));
+            det = det.add_mul(m[r + c * n].scale(sign), d);
+            let a = &abs[r + c * n];
             for l in 0..LANES {
-                per[l] += an[l].sqrt() * p[l];
+                per[l] += a[l] * p[l];
             }
             sign = -sign;
         }
         (det, per)
     }
     assert!(n <= 8 && m.len() == n * n, "principal_minors: n × n input with n ≤ 8");
-    (0..1u32 << n).map(|t| expand(m, n, t, t)).unzip()
+    let abs: Vec<Lane> = m.iter().map(|a| a.norm_sqr().map(f64::sqrt)).collect();
+    (0..1u32 << n).map(|t| expand(m, &abs, n, t, t)).unzip()
 }
 
 /// Run `f` in a function compiled for the best instruction set this CPU offers (AVX-512 or
