@@ -90,6 +90,10 @@ fn sweep(c: &mut Criterion) {
     g.bench_function("woodbury_1000x2048", |b| {
         b.iter(|| std::hint::black_box(plan.evaluate_with_rms(f, &specs, &psd).unwrap()))
     });
+    // The same sweep keeping only the RMS (no FRF array).
+    g.bench_function("rms_only_1000x2048", |b| {
+        b.iter(|| std::hint::black_box(plan.evaluate_rms(f, &specs, &psd).unwrap()))
+    });
     g.finish();
 }
 

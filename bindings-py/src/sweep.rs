@@ -269,9 +269,10 @@ pub fn sweep_columns() -> Vec<&'static str> {
 
 /// Replace named rank-one springs of `model` by each variant's stiffness models (JSON: a list of
 /// variants, each a list of stiffness tables in the model file's form) and return the FRFs
-/// (n_variant, n_freq, n_out, n_in) and the RMS responses (n_variant, n_out, n_in) to `input_psd`.
+/// (n_variant, n_freq, n_out, n_in), or None when `frf` is false, and the RMS responses
+/// (n_variant, n_out, n_in) to `input_psd`.
 #[pyfunction]
-#[pyo3(signature = (model, springs, replacements_json, freq_hz, input, output, *, input_psd))]
+#[pyo3(signature = (model, springs, replacements_json, freq_hz, input, output, *, input_psd, frf = true))]
 #[allow(clippy::too_many_arguments, clippy::type_complexity)]
 pub fn spring_sweep<'py>(
     py: Python<'py>,
@@ -282,7 +283,9 @@ pub fn spring_sweep<'py>(
     input: &Bound<'py, PyAny>,
     output: &Bound<'py, PyAny>,
     input_psd: &Bound<'py, PyAny>,
-) -> PyResult<(Bound<'py, numpy::PyArray4<num_complex::Complex64>>, Bound<'py, numpy::PyArray3<f64>>)> {
+    frf: bool,
+) -> PyResult<(Option<Bound<'py, numpy::PyArray4<num_complex::Complex64>>>, Bound<'py, numpy::PyArray3<f64>>)>
+{
     use crate::convert::{f64_1d, names, slice_or_copy};
     use numpy::IntoPyArray;
     let reps: Vec<Vec<stillsky::stiffness::StiffnessModel>> = serde_json::from_str(replacements_json)
@@ -297,10 +300,15 @@ pub fn spring_sweep<'py>(
             let sp: Vec<&str> = springs.iter().map(String::as_str).collect();
             let i: Vec<&str> = ins.iter().map(String::as_str).collect();
             let o: Vec<&str> = outs.iter().map(String::as_str).collect();
-            stillsky::sweep::SweepPlan::new(m, &sp, &i, &o)?.evaluate_with_rms(&f, &reps, &s)
+            let plan = stillsky::sweep::SweepPlan::new(m, &sp, &i, &o)?;
+            if frf {
+                plan.evaluate_with_rms(&f, &reps, &s).map(|(h, r)| (Some(h), r))
+            } else {
+                plan.evaluate_rms(&f, &reps, &s).map(|r| (None, r))
+            }
         })
         .py_err()?;
-    Ok((h.into_pyarray(py), rms.into_pyarray(py)))
+    Ok((h.map(|h| h.into_pyarray(py)), rms.into_pyarray(py)))
 }
 
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {

@@ -49,6 +49,12 @@ def test_matches_rebuilt_models_and_numpy_rms():
         np.testing.assert_allclose(h[v, :, 0, 0], direct, rtol=1e-9, atol=1e-9 * np.abs(direct).max())
         want = np.sqrt(np.trapezoid(np.abs(direct) ** 2 * psd, f))
         assert rms[v, 0, 0] == pytest.approx(want, rel=1e-9)
+    # Without the FRFs: the same RMS (same arithmetic), and no FRF array.
+    none, rms_only = stillsky.spring_sweep(
+        base, ["s0", "s2"], json.dumps([v[0] for v in variants]), f, "ground_z", "m2:z", input_psd=psd, frf=False
+    )
+    assert none is None
+    np.testing.assert_array_equal(rms_only, rms)
 
 
 def test_bad_input_is_a_value_error():

@@ -247,8 +247,23 @@ impl<'m> SweepPlan<'m> {
         let mut rms = Array3::<f64>::zeros((replacements.len(), no, ni));
         let hs = h.as_slice_mut().ok_or_else(|| Error::invalid("sweep output", "not contiguous"))?;
         let rs = rms.as_slice_mut().ok_or_else(|| Error::invalid("sweep RMS", "not contiguous"))?;
-        self.run(freq_hz, replacements, hs, Some((input_psd, rs)))?;
+        self.run(freq_hz, replacements, Some(hs), Some((input_psd, rs)))?;
         Ok((h, rms))
+    }
+
+    /// Only the RMS responses, shape (n_variant, n_out, n_in): the same arithmetic as
+    /// [`SweepPlan::evaluate_with_rms`] without storing the FRFs, so memory does not grow with
+    /// n_variant × n_freq (ranking specs needs only the RMS).
+    pub fn evaluate_rms(
+        &self,
+        freq_hz: &[f64],
+        replacements: &[Vec<StiffnessModel>],
+        input_psd: &[f64],
+    ) -> Result<Array3<f64>> {
+        let mut rms = Array3::<f64>::zeros((replacements.len(), self.n_out, self.plan.n_inputs()));
+        let rs = rms.as_slice_mut().ok_or_else(|| Error::invalid("sweep RMS", "not contiguous"))?;
+        self.run(freq_hz, replacements, None, Some((input_psd, rs)))?;
+        Ok(rms)
     }
 
     /// FRFs of every variant into `out`, laid out (n_variant, n_freq, n_out, n_in) row-major.
@@ -259,25 +274,28 @@ impl<'m> SweepPlan<'m> {
         replacements: &[Vec<StiffnessModel>],
         out: &mut [Complex64],
     ) -> Result<()> {
-        self.run(freq_hz, replacements, out, None).map(|_| ())
+        self.run(freq_hz, replacements, Some(out), None).map(|_| ())
     }
 
-    /// FRFs into `out` and, given (input PSD, RMS buffer (n_variant, n_out, n_in)), the RMS.
+    /// FRFs into `out` (when given) and, given (input PSD, RMS buffer (n_variant, n_out, n_in)),
+    /// the RMS.
     /// Returns how many (variant, frequency) pairs the rational form handed to the capacitance
     /// solve.
     fn run(
         &self,
         freq_hz: &[f64],
         replacements: &[Vec<StiffnessModel>],
-        out: &mut [Complex64],
+        out: Option<&mut [Complex64]>,
         rms: Option<(&[f64], &mut [f64])>,
     ) -> Result<usize> {
         crate::grid::validate_freqs("freq_hz", freq_hz)?;
         let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
         let nf = freq_hz.len();
         let per_v = ni * no * nf;
-        if out.len() != per_v * replacements.len() {
-            return Err(Error::shape("sweep output buffer", per_v * replacements.len(), out.len()));
+        if let Some(o) = &out
+            && o.len() != per_v * replacements.len()
+        {
+            return Err(Error::shape("sweep output buffer", per_v * replacements.len(), o.len()));
         }
         for (v, r) in replacements.iter().enumerate() {
             if r.len() != k {
@@ -311,8 +329,12 @@ impl<'m> SweepPlan<'m> {
         // Variants in chunks (parallel), each run by [`VariantLoop`].
         let chunk = replacements.len().div_ceil(4 * rayon::current_num_threads()).clamp(1, 64);
         let mut rms_buf = vec![0.0; replacements.len() * no * ni];
-        let redone = out
-            .par_chunks_mut(chunk * per_v)
+        let outs: Vec<Option<&mut [Complex64]>> = match out {
+            Some(o) => o.chunks_mut(chunk * per_v).map(Some).collect(),
+            None => replacements.chunks(chunk).map(|_| None).collect(),
+        };
+        let redone = outs
+            .into_par_iter()
             .zip(replacements.par_chunks(chunk))
             .zip(rms_buf.par_chunks_mut(chunk * no * ni))
             .map(|((o, reps), racc)| {
@@ -355,21 +377,32 @@ impl<'m> SweepPlan<'m> {
         pulp::WithSimd::with_simd(RationalSums::<K, NS> { d: &d[..K], c: rat, cb: rb, y }, simd)
     }
 
-    /// Write the block's FRFs `ws.y` for its `count` valid lanes into `dst` and add w·|H|² to the
-    /// variant's RMS sums.
+    /// Write the block's FRFs `ws.y` for its `count` valid lanes into `dst` (when given) and add
+    /// w·|H|² to the variant's RMS sums.
     #[inline(always)]
-    fn emit(&self, ws: &mut VariantScratch, count: usize, dst: &mut [Complex64], v: usize, wl: &Lane) {
+    fn emit(
+        &self,
+        ws: &mut VariantScratch,
+        count: usize,
+        mut dst: Option<&mut [Complex64]>,
+        v: usize,
+        wl: &Lane,
+    ) {
         let t_n = ws.y.len();
         for (t, y) in ws.y.iter().enumerate() {
-            if count == LANES {
+            match dst.as_deref_mut() {
                 // A whole block: a fixed trip count the compiler can unroll.
-                for (l, d) in dst[..LANES * t_n].iter_mut().skip(t).step_by(t_n).enumerate() {
-                    *d = y.get(l);
+                Some(dst) if count == LANES => {
+                    for (l, d) in dst[..LANES * t_n].iter_mut().skip(t).step_by(t_n).enumerate() {
+                        *d = y.get(l);
+                    }
                 }
-            } else {
-                for l in 0..count {
-                    dst[l * t_n + t] = y.get(l);
+                Some(dst) => {
+                    for l in 0..count {
+                        dst[l * t_n + t] = y.get(l);
+                    }
                 }
+                None => {}
             }
             let acc = &mut ws.acc[v * t_n + t];
             let m2 = y.norm_sqr();
@@ -477,14 +510,14 @@ impl<'m> SweepPlan<'m> {
     }
 
     /// Redo the flagged lanes with the pivoted scalar solver, then write the block's FRFs for
-    /// the valid lanes into `dst` and add w·|H|² to the variant's RMS sums.
+    /// the valid lanes into `dst` (when given) and add w·|H|² to the variant's RMS sums.
     #[inline(always)]
     fn finish_block(
         &self,
         ws: &mut VariantScratch,
         r: &[CLane],
         fb: &[f64],
-        dst: &mut [Complex64],
+        dst: Option<&mut [Complex64]>,
         v: usize,
         wl: &Lane,
     ) -> Result<()> {
@@ -527,7 +560,8 @@ struct VariantLoop<'a, 'm> {
     freq_hz: &'a [f64],
     wts: &'a [f64],
     reps: &'a [Vec<StiffnessModel>],
-    out: &'a mut [Complex64],
+    /// The chunk's FRFs, or none when only the RMS is wanted.
+    out: Option<&'a mut [Complex64]>,
     ws: &'a mut VariantScratch,
 }
 
@@ -536,7 +570,7 @@ impl pulp::WithSimd for VariantLoop<'_, '_> {
 
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, simd: S) -> Result<usize> {
-        let VariantLoop { plan, recs, bounds, freq_hz, wts, reps, out, ws } = self;
+        let VariantLoop { plan, recs, bounds, freq_hz, wts, reps, mut out, ws } = self;
         let (k, ni, no) = (plan.springs.len(), plan.plan.n_inputs(), plan.n_out);
         let per_v = ni * no * freq_hz.len();
         let (rec, bw) = (plan.rec_len(), plan.bound_len().max(1));
@@ -549,7 +583,7 @@ impl pulp::WithSimd for VariantLoop<'_, '_> {
             wl.copy_from_slice(&wts[b * LANES..(b + 1) * LANES]);
             let valid: LaneMask = (1 << fb.len()) - 1;
             for (v, rep) in reps.iter().enumerate() {
-                let dst = &mut out[v * per_v + b * LANES * no * ni..];
+                let mut dst = out.as_deref_mut().map(|o| &mut o[v * per_v + b * LANES * no * ni..]);
                 // The stiffness changes, shared by the rational form and the capacitance solve
                 // that redoes its rejected lanes.
                 let [.., k_old, _] = plan.split(r);
@@ -563,7 +597,7 @@ impl pulp::WithSimd for VariantLoop<'_, '_> {
                         _ => LaneMask::MAX,
                     };
                 if rejected == 0 {
-                    plan.emit(ws, fb.len(), dst, v, &wl);
+                    plan.emit(ws, fb.len(), dst.as_deref_mut(), v, &wl);
                     continue;
                 }
                 redone += rejected.count_ones() as usize;
@@ -758,12 +792,14 @@ mod tests {
         let reps: Vec<Vec<StiffnessModel>> = variants.iter().map(|v| v.0.clone()).collect();
         let run = |p: &SweepPlan| {
             let mut got = Array4::zeros((reps.len(), f.len(), outs.len(), ins.len()));
-            let redone = p.run(&f, &reps, got.as_slice_mut().unwrap(), None).unwrap();
+            let redone = p.run(&f, &reps, Some(got.as_slice_mut().unwrap()), None).unwrap();
             (got, redone)
         };
         let (got, redone) = run(&plan);
         let (capacitance, _) = run(&plan.clone().with_rational(false));
         assert_eq!(redone, 0, "well-damped chain: no lane should need the capacitance solve");
+        let psd: Vec<f64> = f.iter().map(|x| 1e-12 / (1.0 + x / 30.0)).collect();
+        let rms_only = plan.evaluate_rms(&f, &reps, &psd).unwrap();
         for (v, (_, toml)) in variants.iter().enumerate() {
             let mut pads: Vec<String> = (0..12)
                 .map(|i| {
@@ -789,6 +825,17 @@ mod tests {
                 let g = got.index_axis(ndarray::Axis(0), v).to_owned();
                 let e = max_rel_diff(g.as_slice().unwrap(), direct.data.as_slice().unwrap());
                 assert!(e < 1e-9, "{path}, variant {v}: {e}");
+            }
+            // The RMS-only sweep against the trapezoid rule on the direct FRFs (DESIGN.md rule).
+            for (o, j) in (0..outs.len()).flat_map(|o| (0..ins.len()).map(move |j| (o, j))) {
+                let y = |k: usize| direct.data[[k, o, j]].norm_sqr() * psd[k];
+                let ms: f64 = (1..f.len()).map(|k| 0.5 * (f[k] - f[k - 1]) * (y(k) + y(k - 1))).sum();
+                let got = rms_only[[v, o, j]];
+                assert!(
+                    (got - ms.sqrt()).abs() <= 1e-9 * ms.sqrt(),
+                    "variant {v} ({o}, {j}): {got} vs {}",
+                    ms.sqrt()
+                );
             }
         }
     }
@@ -893,7 +940,7 @@ mod tests {
         let reps = vec![vec![StiffnessModel::Hysteretic { k: 2.2e6, loss_factor: 3e-6 }]];
         let plan = SweepPlan::new(&base, &["s2"], &["ground_z"], &["m5:z"]).unwrap();
         let mut got = vec![Complex64::default(); f.len()];
-        let redone = plan.run(&f, &reps, &mut got, None).unwrap();
+        let redone = plan.run(&f, &reps, Some(&mut got), None).unwrap();
         assert!(redone > 0 && redone < f.len() / 2, "{redone} of {}", f.len());
         let direct = FrfPlan::new(&target, &["ground_z"], &["m5:z"])
             .unwrap()
@@ -907,9 +954,13 @@ mod tests {
         // The lanes the rational form kept against the capacitance solve of the same Woodbury
         // identity: they agree within the accepted rounding bound, CANCELLATION_MAX·(k + 2)·ε.
         let mut cap = vec![Complex64::default(); f.len()];
-        plan.clone().with_rational(false).run(&f, &reps, &mut cap, None).unwrap();
+        plan.clone().with_rational(false).run(&f, &reps, Some(&mut cap), None).unwrap();
         let e = max_rel_diff(&got, &cap);
         assert!(e < CANCELLATION_MAX * 4.0 * f64::EPSILON, "against the capacitance solve: {e}");
+        // Without stored FRFs the handed-over lanes still reach the RMS: the same sums as with them.
+        let s = vec![1e-12; f.len()];
+        let (_, with_frf) = plan.evaluate_with_rms(&f, &reps, &s).unwrap();
+        assert_eq!(plan.evaluate_rms(&f, &reps, &s).unwrap(), with_frf);
     }
 
     #[test]

@@ -868,7 +868,8 @@ def spring_sweep(
     output: str | list[str],
     *,
     input_psd: npt.ArrayLike,
-) -> tuple[npt.NDArray[np.complex128], npt.NDArray[np.float64]]:
+    frf: bool = True,
+) -> tuple[npt.NDArray[np.complex128] | None, npt.NDArray[np.float64]]:
     """Replace named rank-one springs by each variant's stiffness models.
 
     Up to four springs: a rational form in the stiffness changes, computed once per frequency;
@@ -882,10 +883,13 @@ def spring_sweep(
         freq_hz: the grid (Hz, strictly increasing, > 0).
         input, output: input and output names (one or a list each).
         input_psd: one-sided input PSD on `freq_hz` for the RMS (unit²/Hz, ≥ 0).
+        frf: False skips storing the FRFs (same arithmetic, memory independent of the number of
+            variants and frequencies); ranking specs needs only the RMS.
 
     Returns:
-        FRFs, shape (n_variant, n_freq, n_out, n_in), and RMS responses sqrt(∫|H|²S df)
-        (trapezoid rule), shape (n_variant, n_out, n_in). The GIL is released.
+        FRFs, shape (n_variant, n_freq, n_out, n_in), or None when `frf` is False, and RMS
+        responses sqrt(∫|H|²S df) (trapezoid rule), shape (n_variant, n_out, n_in). The GIL is
+        released.
     """
 
 # --- isolator sweep (stillsky.sweep in _sweep.py is the public entry; these are its parts) ---
