@@ -124,19 +124,25 @@ impl StiffnessModel {
             StiffnessModel::Hysteretic { k, loss_factor } => {
                 r = CLane::splat(Complex64::new(*k, k * loss_factor))
             }
+            // One loop per part, each the same expression in every lane, so the compiler packs
+            // lanes into vectors (one loop for both parts got packed (re, im) pairs instead).
             StiffnessModel::KelvinVoigt { k, c } => {
-                for l in 0..LANES {
-                    r.re[l] = *k;
-                    r.im[l] = 2.0 * PI * f_hz[l] * c;
+                let wc = 2.0 * PI * c;
+                r.re = [*k; LANES];
+                for (i, f) in r.im.iter_mut().zip(f_hz) {
+                    *i = wc * f;
                 }
             }
             StiffnessModel::Zener { k0, k_inf, tau_s } => {
                 // (k₀ + k∞·ix)/(1 + ix) = (k₀ + k∞x² + i(k∞ − k₀)x)/(1 + x²).
+                let (wt, dk) = (2.0 * PI * tau_s, k_inf - k0);
+                let x: Lane = f_hz.map(|f| wt * f);
+                let d: Lane = x.map(|x| 1.0 / (1.0 + x * x));
                 for l in 0..LANES {
-                    let x = 2.0 * PI * f_hz[l] * tau_s;
-                    let d = 1.0 / (1.0 + x * x);
-                    r.re[l] = (k0 + k_inf * x * x) * d;
-                    r.im[l] = (k_inf - k0) * x * d;
+                    r.re[l] = (k0 + k_inf * (x[l] * x[l])) * d[l];
+                }
+                for l in 0..LANES {
+                    r.im[l] = dk * x[l] * d[l];
                 }
             }
             _ => {
