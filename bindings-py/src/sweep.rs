@@ -287,7 +287,7 @@ pub fn spring_sweep<'py>(
 ) -> PyResult<(Option<Bound<'py, numpy::PyArray4<num_complex::Complex64>>>, Bound<'py, numpy::PyArray3<f64>>)>
 {
     use crate::convert::{f64_1d, names, slice_or_copy};
-    use numpy::IntoPyArray;
+    use numpy::PyArrayMethods;
     let reps: Vec<Vec<stillsky::stiffness::StiffnessModel>> = serde_json::from_str(replacements_json)
         .map_err(|e| to_pyerr(Error::invalid("replacements_json", e.to_string())))?;
     let (f, s) = (f64_1d(freq_hz, "freq_hz")?, f64_1d(input_psd, "input_psd")?);
@@ -295,20 +295,31 @@ pub fn spring_sweep<'py>(
     let (ins, _) = names(input, "input")?;
     let (outs, _) = names(output, "output")?;
     let m = &model.inner;
-    let (h, rms) = py
-        .detach(|| {
-            let sp: Vec<&str> = springs.iter().map(String::as_str).collect();
-            let i: Vec<&str> = ins.iter().map(String::as_str).collect();
-            let o: Vec<&str> = outs.iter().map(String::as_str).collect();
-            let plan = stillsky::sweep::SweepPlan::new(m, &sp, &i, &o)?;
-            if frf {
-                plan.evaluate_with_rms(&f, &reps, &s).map(|(h, r)| (Some(h), r))
-            } else {
-                plan.evaluate_rms(&f, &reps, &s).map(|r| (None, r))
+    let sp: Vec<&str> = springs.iter().map(String::as_str).collect();
+    let i: Vec<&str> = ins.iter().map(String::as_str).collect();
+    let o: Vec<&str> = outs.iter().map(String::as_str).collect();
+    let plan = stillsky::sweep::SweepPlan::new(m, &sp, &i, &o).py_err()?;
+    let (no, ni) = plan.shape();
+    let rms = numpy::PyArray3::<f64>::zeros(py, [reps.len(), no, ni], false);
+    // numpy allocates the FRF array (zeroed pages, and huge pages where numpy enables them for
+    // large arrays), so the sweep writes into it directly.
+    let h = frf
+        .then(|| numpy::PyArray4::<num_complex::Complex64>::zeros(py, [reps.len(), f.len(), no, ni], false));
+    {
+        let borrow = |e: numpy::BorrowError| pyo3::exceptions::PyRuntimeError::new_err(e.to_string());
+        let slice = |e: numpy::AsSliceError| pyo3::exceptions::PyRuntimeError::new_err(e.to_string());
+        let mut rw = rms.try_readwrite().map_err(borrow)?;
+        let rs = rw.as_slice_mut().map_err(slice)?;
+        match &h {
+            Some(h) => {
+                let mut hw = h.try_readwrite().map_err(borrow)?;
+                let hs = hw.as_slice_mut().map_err(slice)?;
+                py.detach(|| plan.evaluate_with_rms_into(&f, &reps, &s, hs, rs)).py_err()?;
             }
-        })
-        .py_err()?;
-    Ok((h.map(|h| h.into_pyarray(py)), rms.into_pyarray(py)))
+            None => py.detach(|| plan.evaluate_rms_into(&f, &reps, &s, rs)).py_err()?,
+        }
+    }
+    Ok((h, rms))
 }
 
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {

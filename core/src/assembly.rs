@@ -733,14 +733,14 @@ pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
     for b in &spec.bodies {
         claim(&b.name, "body")?;
         let p = format!("body '{}'", b.name);
-        require_positive(&format!("{p}.mass_kg"), b.mass_kg)?;
+        require_positive(|| format!("{p}.mass_kg"), b.mass_kg)?;
         finite3(&format!("{p}.cg_m"), b.cg_m)?;
         for (i, v) in b.inertia_kgm2.iter().enumerate() {
             let rot = [Dof::Rx, Dof::Ry, Dof::Rz][i];
             if b.dofs.contains(&rot) {
-                require_positive(&format!("{p}.inertia_kgm2[{i}]"), *v)?;
+                require_positive(|| format!("{p}.inertia_kgm2[{i}]"), *v)?;
             } else {
-                require_non_negative(&format!("{p}.inertia_kgm2[{i}]"), *v)?;
+                require_non_negative(|| format!("{p}.inertia_kgm2[{i}]"), *v)?;
             }
         }
         finite3(&format!("{p}.products_kgm2"), b.products_kgm2)?;
@@ -750,7 +750,7 @@ pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
     for nd in &spec.nodes {
         claim(&nd.name, "node")?;
         let p = format!("node '{}'", nd.name);
-        require_positive(&format!("{p}.mass_kg"), nd.mass_kg)?;
+        require_positive(|| format!("{p}.mass_kg"), nd.mass_kg)?;
         finite3(&format!("{p}.at_m"), nd.at_m)?;
         let index = free(&mut labels, &nd.name, &nd.dofs, &[Dof::X, Dof::Y, Dof::Z])?;
         carriers.insert(nd.name.clone(), Carrier { origin: nd.at_m, index, rotates: false });
@@ -773,8 +773,8 @@ pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
         finite3(&format!("{p}.to_at_m"), bm.to_at_m)?;
         bm.section.validate(&format!("{p}.section"))?;
         bm.material()?;
-        require_non_negative(&format!("{p}.added_mass_kg_per_m"), bm.added_mass_kg_per_m)?;
-        require_non_negative(&format!("{p}.added_loss_factor"), bm.added_loss_factor)?;
+        require_non_negative(|| format!("{p}.added_mass_kg_per_m"), bm.added_mass_kg_per_m)?;
+        require_non_negative(|| format!("{p}.added_loss_factor"), bm.added_loss_factor)?;
         if bm.elements == 0 || bm.elements > 200 {
             return Err(Error::invalid(
                 format!("{p}.elements"),
@@ -936,10 +936,10 @@ pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
         let who = format!("general_spring '{}'", s.name);
         connect(&s.from, &s.to, &who)?;
         finite3(&format!("{who}.at_m"), s.at_m)?;
-        require_non_negative(&format!("{who}.loss_factor"), s.loss_factor)?;
+        require_non_negative(|| format!("{who}.loss_factor"), s.loss_factor)?;
         for i in 0..6 {
             for j in 0..6 {
-                require_finite(&format!("{who}.matrix[{i}][{j}]"), s.matrix[i][j])?;
+                require_finite(|| format!("{who}.matrix[{i}][{j}]"), s.matrix[i][j])?;
                 if (s.matrix[i][j] - s.matrix[j][i]).abs()
                     > 1e-9 * (s.matrix[i][j].abs() + s.matrix[j][i].abs())
                 {

@@ -63,32 +63,63 @@ impl Error {
     }
 }
 
+/// The name of a checked parameter: a string, or a closure that builds it only when the check
+/// fails (hot loops validate thousands of parameters and should not format names that succeed).
+pub trait ParamName {
+    /// The name, built now.
+    fn param_name(self) -> String;
+}
+
+impl ParamName for &str {
+    fn param_name(self) -> String {
+        self.to_string()
+    }
+}
+
+impl ParamName for &String {
+    fn param_name(self) -> String {
+        self.clone()
+    }
+}
+
+impl ParamName for String {
+    fn param_name(self) -> String {
+        self
+    }
+}
+
+impl<F: FnOnce() -> String> ParamName for F {
+    fn param_name(self) -> String {
+        self()
+    }
+}
+
 /// Check that a parameter is finite and > 0.
-pub fn require_positive(name: &str, v: f64) -> Result<f64> {
+pub fn require_positive(name: impl ParamName, v: f64) -> Result<f64> {
     if !v.is_finite() {
-        return Err(Error::invalid(name, format!("must be finite, got {v}")));
+        return Err(Error::invalid(name.param_name(), format!("must be finite, got {v}")));
     }
     if v <= 0.0 {
-        return Err(Error::invalid(name, format!("must be > 0, got {v}")));
+        return Err(Error::invalid(name.param_name(), format!("must be > 0, got {v}")));
     }
     Ok(v)
 }
 
 /// Check that a parameter is finite and >= 0.
-pub fn require_non_negative(name: &str, v: f64) -> Result<f64> {
+pub fn require_non_negative(name: impl ParamName, v: f64) -> Result<f64> {
     if !v.is_finite() {
-        return Err(Error::invalid(name, format!("must be finite, got {v}")));
+        return Err(Error::invalid(name.param_name(), format!("must be finite, got {v}")));
     }
     if v < 0.0 {
-        return Err(Error::invalid(name, format!("must be >= 0, got {v}")));
+        return Err(Error::invalid(name.param_name(), format!("must be >= 0, got {v}")));
     }
     Ok(v)
 }
 
 /// Check that a parameter is finite.
-pub fn require_finite(name: &str, v: f64) -> Result<f64> {
+pub fn require_finite(name: impl ParamName, v: f64) -> Result<f64> {
     if !v.is_finite() {
-        return Err(Error::invalid(name, format!("must be finite, got {v}")));
+        return Err(Error::invalid(name.param_name(), format!("must be finite, got {v}")));
     }
     Ok(v)
 }

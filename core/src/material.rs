@@ -38,10 +38,10 @@ impl Material {
 
     /// Check every field; the error names the field.
     pub fn validate(&self, name: &str) -> Result<()> {
-        require_positive(&format!("{name}.youngs_modulus_pa"), self.youngs_modulus_pa)?;
-        require_positive(&format!("{name}.density_kg_m3"), self.density_kg_m3)?;
-        require_positive(&format!("{name}.yield_strength_pa"), self.yield_strength_pa)?;
-        require_non_negative(&format!("{name}.loss_factor"), self.loss_factor)?;
+        require_positive(|| format!("{name}.youngs_modulus_pa"), self.youngs_modulus_pa)?;
+        require_positive(|| format!("{name}.density_kg_m3"), self.density_kg_m3)?;
+        require_positive(|| format!("{name}.yield_strength_pa"), self.yield_strength_pa)?;
+        require_non_negative(|| format!("{name}.loss_factor"), self.loss_factor)?;
         let nu = self.poisson_ratio;
         if !nu.is_finite() || !(-1.0..0.5).contains(&nu) {
             return Err(crate::Error::invalid(

@@ -430,7 +430,7 @@ fn fin_or(name: &str, v: Option<f64>, default: f64) -> Result<f64> {
 fn pos3(name: &str, v: Option<[f64; 3]>) -> Result<[f64; 3]> {
     let v = v.ok_or_else(|| Error::invalid(name, "is required"))?;
     for (i, x) in v.iter().enumerate() {
-        require_positive(&format!("{name}[{i}]"), *x)?;
+        require_positive(|| format!("{name}[{i}]"), *x)?;
     }
     Ok(v)
 }
@@ -663,7 +663,7 @@ impl PartSpec {
             (PartKind::Cylinder, None) => 0.0,
             (_, None) => ro,
             (_, Some(d)) => {
-                let ri = require_non_negative(&format!("{p}.inner_diameter_m"), d)? / 2.0;
+                let ri = require_non_negative(|| format!("{p}.inner_diameter_m"), d)? / 2.0;
                 if ri > ro {
                     return Err(Error::invalid(
                         format!("{p}.inner_diameter_m"),

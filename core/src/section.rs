@@ -22,8 +22,8 @@ impl Section {
     pub fn validate(&self, name: &str) -> Result<()> {
         match *self {
             Section::Tube { outer_diameter_m, wall_m } => {
-                require_positive(&format!("{name}.outer_diameter_m"), outer_diameter_m)?;
-                require_positive(&format!("{name}.wall_m"), wall_m)?;
+                require_positive(|| format!("{name}.outer_diameter_m"), outer_diameter_m)?;
+                require_positive(|| format!("{name}.wall_m"), wall_m)?;
                 if 2.0 * wall_m > outer_diameter_m {
                     return Err(Error::invalid(
                         format!("{name}.wall_m"),
@@ -32,11 +32,11 @@ impl Section {
                 }
             }
             Section::Rod { diameter_m } => {
-                require_positive(&format!("{name}.diameter_m"), diameter_m)?;
+                require_positive(|| format!("{name}.diameter_m"), diameter_m)?;
             }
             Section::Rectangle { width_m, depth_m } => {
-                require_positive(&format!("{name}.width_m"), width_m)?;
-                require_positive(&format!("{name}.depth_m"), depth_m)?;
+                require_positive(|| format!("{name}.width_m"), width_m)?;
+                require_positive(|| format!("{name}.depth_m"), depth_m)?;
             }
         }
         Ok(())

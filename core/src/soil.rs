@@ -77,9 +77,9 @@ impl Soil {
 
     /// Validate; errors name the field under `name`.
     pub fn validate(&self, name: &str) -> Result<()> {
-        require_positive(&format!("{name}.shear_modulus_pa"), self.shear_modulus_pa)?;
-        require_positive(&format!("{name}.density_kg_m3"), self.density_kg_m3)?;
-        require_non_negative(&format!("{name}.loss_factor"), self.loss_factor)?;
+        require_positive(|| format!("{name}.shear_modulus_pa"), self.shear_modulus_pa)?;
+        require_positive(|| format!("{name}.density_kg_m3"), self.density_kg_m3)?;
+        require_non_negative(|| format!("{name}.loss_factor"), self.loss_factor)?;
         let nu = self.poisson_ratio;
         if !(nu.is_finite() && (0.0..=0.5).contains(&nu)) {
             return Err(Error::invalid(

@@ -178,32 +178,38 @@ impl StiffnessModel {
         k.im / k.re
     }
 
-    /// Validate every parameter; errors name `name` and the field.
-    pub fn validate(&self, name: &str) -> Result<()> {
-        let f = |field: &str| format!("{name}.{field}");
+    /// Validate every parameter; errors name `name` and the field. The name is formatted only
+    /// when a check fails (`format_args!` works here), so sweeps can validate thousands of specs.
+    pub fn validate(&self, name: impl std::fmt::Display) -> Result<()> {
+        self.validate_named(&name)
+    }
+
+    fn validate_named(&self, name: &dyn std::fmt::Display) -> Result<()> {
+        let f = |field: &'static str| format!("{name}.{field}");
+        let lazy = |field: &'static str| move || format!("{name}.{field}");
         match self {
             StiffnessModel::Hysteretic { k, loss_factor } => {
-                require_positive(&f("stiffness"), *k)?;
-                require_non_negative(&f("loss_factor"), *loss_factor)?;
+                require_positive(lazy("stiffness"), *k)?;
+                require_non_negative(lazy("loss_factor"), *loss_factor)?;
             }
             StiffnessModel::KelvinVoigt { k, c } => {
                 // k = 0 is a pure dashpot (e.g. radiation damping in parallel with a spring).
-                require_non_negative(&f("stiffness"), *k)?;
-                require_non_negative(&f("damping"), *c)?;
+                require_non_negative(lazy("stiffness"), *k)?;
+                require_non_negative(lazy("damping"), *c)?;
                 if *k == 0.0 && *c == 0.0 {
                     return Err(Error::invalid(f("stiffness"), "spring and dashpot are both zero"));
                 }
             }
             StiffnessModel::Zener { k0, k_inf, tau_s } => {
-                require_positive(&f("k0"), *k0)?;
-                require_positive(&f("k_inf"), *k_inf)?;
-                require_positive(&f("tau_s"), *tau_s)?;
+                require_positive(lazy("k0"), *k0)?;
+                require_positive(lazy("k_inf"), *k_inf)?;
+                require_positive(lazy("tau_s"), *tau_s)?;
                 if k_inf < k0 {
                     return Err(Error::invalid(f("k_inf"), format!("must be >= k0 = {k0}, got {k_inf}")));
                 }
             }
             StiffnessModel::FractionalZener { k0, k_inf, tau_s, alpha } => {
-                StiffnessModel::Zener { k0: *k0, k_inf: *k_inf, tau_s: *tau_s }.validate(name)?;
+                StiffnessModel::Zener { k0: *k0, k_inf: *k_inf, tau_s: *tau_s }.validate_named(name)?;
                 if !(alpha.is_finite() && *alpha > 0.0 && *alpha <= 1.0) {
                     return Err(Error::invalid(f("alpha"), format!("must lie in (0, 1], got {alpha}")));
                 }
@@ -217,8 +223,8 @@ impl StiffnessModel {
                     return Err(Error::shape(f("table.loss_factor"), freq_hz.len(), loss_factor.len()));
                 }
                 for (i, (kk, e)) in k.iter().zip(loss_factor).enumerate() {
-                    require_positive(&format!("{name}.table.stiffness[{i}]"), *kk)?;
-                    require_non_negative(&format!("{name}.table.loss_factor[{i}]"), *e)?;
+                    require_positive(|| format!("{name}.table.stiffness[{i}]"), *kk)?;
+                    require_non_negative(|| format!("{name}.table.loss_factor[{i}]"), *e)?;
                 }
             }
             StiffnessModel::Series(parts) | StiffnessModel::Parallel(parts) => {
@@ -229,7 +235,7 @@ impl StiffnessModel {
                     ));
                 }
                 for (i, p) in parts.iter().enumerate() {
-                    p.validate(&format!("{name}[{i}]"))?;
+                    p.validate_named(&format_args!("{name}[{i}]"))?;
                 }
             }
         }

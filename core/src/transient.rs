@@ -375,7 +375,7 @@ pub fn random_realisation(freq_hz: &[f64], psd: &[f64], fs_hz: f64, n: usize, se
         return Err(Error::shape("psd", freq_hz.len(), psd.len()));
     }
     for (i, v) in psd.iter().enumerate() {
-        require_non_negative(&format!("psd[{i}]"), *v)?;
+        require_non_negative(|| format!("psd[{i}]"), *v)?;
     }
     check_fs_n(fs_hz, n)?;
     if n > MAX_FFT_LEN {

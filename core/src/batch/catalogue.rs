@@ -188,9 +188,9 @@ impl Isolator {
                 return Err(Error::invalid(format!("{who}.{field}"), "is required by this model"));
             }
         }
-        let pos = |f: &str, v: Option<f64>| v.map_or(Ok(0.0), |v| require_positive(&format!("{who}.{f}"), v));
+        let pos = |f: &str, v: Option<f64>| v.map_or(Ok(0.0), |v| require_positive(|| format!("{who}.{f}"), v));
         let nonneg =
-            |f: &str, v: Option<f64>| v.map_or(Ok(0.0), |v| require_non_negative(&format!("{who}.{f}"), v));
+            |f: &str, v: Option<f64>| v.map_or(Ok(0.0), |v| require_non_negative(|| format!("{who}.{f}"), v));
         pos("compression_n_per_m", self.compression_n_per_m)?;
         pos("shear_n_per_m", self.shear_n_per_m)?;
         nonneg("loss_factor", self.loss_factor)?;

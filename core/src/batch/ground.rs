@@ -65,7 +65,7 @@ impl GroundSource {
     /// Load the spectrum. `grid` is used for reference models (clipped to their 10 Hz limit).
     pub fn load(&self, grid: &FreqGrid, scale: [f64; 3], opts: &SeriesOptions) -> Result<GroundSpectrum> {
         for (k, s) in scale.iter().enumerate() {
-            crate::error::require_non_negative(&format!("ground scale [{k}]"), *s)?;
+            crate::error::require_non_negative(|| format!("ground scale [{k}]"), *s)?;
         }
         let label = self.label();
         let scaled = |p: &Psd| -> Result<[Option<Psd>; 3]> {
