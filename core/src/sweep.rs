@@ -1010,5 +1010,12 @@ mod tests {
         assert!(matches!(r, Err(Error::ShapeMismatch { .. })), "{r:?}");
         let r = plan.evaluate(&[1.0], &[vec![StiffnessModel::Hysteretic { k: f64::NAN, loss_factor: 0.0 }]]);
         assert!(r.is_err());
+        // Names are built only on failure, and still name the spec, the field and the index.
+        let good = vec![StiffnessModel::Hysteretic { k: 1e6, loss_factor: 0.1 }];
+        let bad = vec![StiffnessModel::Zener { k0: 1e6, k_inf: 2e6, tau_s: -1.0 }];
+        let e = plan.evaluate(&[1.0, 2.0], &[good.clone(), bad]).unwrap_err().to_string();
+        assert!(e.contains("replacements[1][0].tau_s"), "{e}");
+        let e = plan.evaluate_rms(&[1.0, 2.0], &[good], &[1.0, -1.0]).unwrap_err().to_string();
+        assert!(e.contains("input_psd[1]"), "{e}");
     }
 }

@@ -188,7 +188,8 @@ impl Isolator {
                 return Err(Error::invalid(format!("{who}.{field}"), "is required by this model"));
             }
         }
-        let pos = |f: &str, v: Option<f64>| v.map_or(Ok(0.0), |v| require_positive(|| format!("{who}.{f}"), v));
+        let pos =
+            |f: &str, v: Option<f64>| v.map_or(Ok(0.0), |v| require_positive(|| format!("{who}.{f}"), v));
         let nonneg =
             |f: &str, v: Option<f64>| v.map_or(Ok(0.0), |v| require_non_negative(|| format!("{who}.{f}"), v));
         pos("compression_n_per_m", self.compression_n_per_m)?;
