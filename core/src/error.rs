@@ -76,18 +76,6 @@ impl ParamName for &str {
     }
 }
 
-impl ParamName for &String {
-    fn param_name(self) -> String {
-        self.clone()
-    }
-}
-
-impl ParamName for String {
-    fn param_name(self) -> String {
-        self
-    }
-}
-
 impl<F: FnOnce() -> String> ParamName for F {
     fn param_name(self) -> String {
         self()

@@ -185,25 +185,24 @@ impl StiffnessModel {
     }
 
     fn validate_named(&self, name: &dyn std::fmt::Display) -> Result<()> {
-        let f = |field: &'static str| format!("{name}.{field}");
-        let lazy = |field: &'static str| move || format!("{name}.{field}");
+        let f = |field: &str| format!("{name}.{field}");
         match self {
             StiffnessModel::Hysteretic { k, loss_factor } => {
-                require_positive(lazy("stiffness"), *k)?;
-                require_non_negative(lazy("loss_factor"), *loss_factor)?;
+                require_positive(|| f("stiffness"), *k)?;
+                require_non_negative(|| f("loss_factor"), *loss_factor)?;
             }
             StiffnessModel::KelvinVoigt { k, c } => {
                 // k = 0 is a pure dashpot (e.g. radiation damping in parallel with a spring).
-                require_non_negative(lazy("stiffness"), *k)?;
-                require_non_negative(lazy("damping"), *c)?;
+                require_non_negative(|| f("stiffness"), *k)?;
+                require_non_negative(|| f("damping"), *c)?;
                 if *k == 0.0 && *c == 0.0 {
                     return Err(Error::invalid(f("stiffness"), "spring and dashpot are both zero"));
                 }
             }
             StiffnessModel::Zener { k0, k_inf, tau_s } => {
-                require_positive(lazy("k0"), *k0)?;
-                require_positive(lazy("k_inf"), *k_inf)?;
-                require_positive(lazy("tau_s"), *tau_s)?;
+                require_positive(|| f("k0"), *k0)?;
+                require_positive(|| f("k_inf"), *k_inf)?;
+                require_positive(|| f("tau_s"), *tau_s)?;
                 if k_inf < k0 {
                     return Err(Error::invalid(f("k_inf"), format!("must be >= k0 = {k0}, got {k_inf}")));
                 }
