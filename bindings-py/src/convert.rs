@@ -6,7 +6,7 @@ use numpy::{
 };
 use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
-use pyo3::types::PyString;
+use pyo3::types::{PyDict, PyString};
 use std::borrow::Cow;
 use stillsky::Error;
 
@@ -81,4 +81,17 @@ pub fn c128_1d<'py>(
     }
     let typed = arr.cast_into::<PyArray1<num_complex::Complex64>>()?;
     typed.try_readonly().map_err(|e| to_pyerr(Error::invalid(name, format!("cannot borrow the array: {e}"))))
+}
+
+/// A serialisable core result as a Python dict (via JSON; NaN and ±inf arrive as None).
+pub fn to_dict<'py, T: serde::Serialize>(py: Python<'py>, v: &T) -> PyResult<Bound<'py, PyDict>> {
+    let text = serde_json::to_string(v)
+        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: result to dict: {e}")))?;
+    Ok(py.import("json")?.call_method1("loads", (text,))?.cast_into::<PyDict>()?)
+}
+
+/// A serialisable core result as JSON text.
+pub fn to_json<T: serde::Serialize>(v: &T) -> PyResult<String> {
+    serde_json::to_string(v)
+        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: result to JSON: {e}")))
 }

@@ -1,9 +1,9 @@
 //! Ring-down identification (`identify_ringdown`) and the before/after comparison
 //! (`compare_ringdowns`) as result objects. Physics in `stillsky::identify`.
 
+use crate::convert::to_dict;
 use crate::convert::{c128_1d, f64_1d, slice_or_copy};
 use crate::errors::{IntoPyResult, to_pyerr};
-use crate::image::to_dict;
 use numpy::{IntoPyArray, PyArray1};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
@@ -335,7 +335,7 @@ pub fn calibrate<'py>(
     opts.damping_weight = damping_weight;
     let c = py.detach(|| core_id::calibrate(&src.text, &src.label, &params, &tgts, &opts)).py_err()?;
     let fitted =
-        crate::persist::model_from_text(py, c.model_toml.clone(), format!("{} (calibrated)", src.label))?;
+        crate::model::model_from_text(py, c.model_toml.clone(), format!("{} (calibrated)", src.label))?;
     let d = to_dict(py, &c)?;
     d.set_item("model", Py::new(py, fitted)?)?;
     Ok(d)

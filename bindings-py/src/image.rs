@@ -1,108 +1,17 @@
-//! `Wind` (a wind disturbance spec) and `ImageMotion` (the result of `Model.image_motion`).
+//! The disturbance arguments of `Model.image_motion` / `Model.response` and `ImageMotion` (the
+//! result of `Model.image_motion`).
 
-use crate::convert::{f64_1d, slice_or_copy};
+use crate::convert::{f64_1d, slice_or_copy, to_dict, to_json};
 use crate::errors::{IntoPyResult, to_pyerr};
 use crate::spectrum::PyPsd;
+use crate::wind::PyWind;
 use numpy::{IntoPyArray, PyArray1, PyArray2};
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyMapping};
 use stillsky::image::{Guiding, ImageMotion, ImageOptions};
 use stillsky::response::Disturbances;
 use stillsky::spectrum::Psd;
-use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 use stillsky::{Error, FreqGrid};
-
-/// Mean wind and its turbulence at a height: the `wind=` disturbance of `Model.image_motion`.
-#[pyclass(name = "Wind", module = "stillsky._native", frozen)]
-#[derive(Clone)]
-pub struct PyWind {
-    pub inner: WindSpec,
-}
-
-#[pymethods]
-impl PyWind {
-    #[new]
-    #[pyo3(signature = (kind, mean_speed_m_s, height_m, *, turbulence_intensity = None,
-                        roughness_length_m = None, shelter_factor = 1.0, air_density_kg_m3 = None))]
-    fn new(
-        kind: &str,
-        mean_speed_m_s: f64,
-        height_m: f64,
-        turbulence_intensity: Option<f64>,
-        roughness_length_m: Option<f64>,
-        shelter_factor: f64,
-        air_density_kg_m3: Option<f64>,
-    ) -> PyResult<Self> {
-        let inner = wind_spec(
-            kind,
-            mean_speed_m_s,
-            height_m,
-            turbulence_intensity,
-            roughness_length_m,
-            shelter_factor,
-            air_density_kg_m3,
-        )?;
-        Ok(Self { inner })
-    }
-
-    /// Along-wind velocity PSD ((m/s)²/Hz) on `freq_hz`.
-    fn spectrum(&self, freq_hz: &Bound<'_, PyAny>) -> PyResult<PyPsd> {
-        let a = f64_1d(freq_hz, "freq_hz")?;
-        let g = FreqGrid::new(slice_or_copy(&a).into_owned()).py_err()?;
-        Ok(PyPsd { inner: self.inner.velocity_psd(&g).py_err()? })
-    }
-
-    #[getter]
-    fn mean_speed_m_s(&self) -> f64 {
-        self.inner.mean_speed_m_s
-    }
-
-    #[getter]
-    fn height_m(&self) -> f64 {
-        self.inner.height_m
-    }
-
-    fn __repr__(&self) -> String {
-        format!(
-            "Wind({:?}, mean_speed_m_s={}, height_m={}, turbulence={:?}, shelter_factor={})",
-            self.inner.kind,
-            self.inner.mean_speed_m_s,
-            self.inner.height_m,
-            self.inner.turbulence,
-            self.inner.shelter_factor
-        )
-    }
-}
-
-/// A validated wind spec from the Python arguments (shared by `Wind` and `wind_spectrum`).
-pub fn wind_spec(
-    kind: &str,
-    mean_speed_m_s: f64,
-    height_m: f64,
-    turbulence_intensity: Option<f64>,
-    roughness_length_m: Option<f64>,
-    shelter_factor: f64,
-    air_density_kg_m3: Option<f64>,
-) -> PyResult<WindSpec> {
-    let turbulence = match (turbulence_intensity, roughness_length_m) {
-        (Some(i), None) => Turbulence::Intensity(i),
-        (None, Some(z0_m)) => Turbulence::RoughnessLength { z0_m },
-        _ => {
-            return Err(to_pyerr(Error::invalid(
-                "turbulence",
-                "give exactly one of turbulence_intensity or roughness_length_m",
-            )));
-        }
-    };
-    let mut spec =
-        WindSpec::new(WindSpectrum::from_name(kind).py_err()?, mean_speed_m_s, height_m, turbulence)
-            .with_shelter_factor(shelter_factor);
-    if let Some(rho) = air_density_kg_m3 {
-        spec = spec.with_air_density(rho);
-    }
-    spec.validate().py_err()?;
-    Ok(spec)
-}
 
 /// Ground PSD per axis: a mapping {"x"|"y"|"z": Psd}, one `Psd` for all three axes, or a
 /// sequence of three `Psd | None`.
@@ -225,13 +134,6 @@ fn rows2<'py>(py: Python<'py>, a: &[f64], b: &[f64]) -> PyResult<Bound<'py, PyAr
     Ok(arr.into_pyarray(py))
 }
 
-/// A serialisable core result as a Python dict (via JSON; NaN and ±inf arrive as None).
-pub fn to_dict<'py, T: serde::Serialize>(py: Python<'py>, v: &T) -> PyResult<Bound<'py, PyDict>> {
-    let text = serde_json::to_string(v)
-        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: result to dict: {e}")))?;
-    Ok(py.import("json")?.call_method1("loads", (text,))?.cast_into::<PyDict>()?)
-}
-
 #[pymethods]
 impl PyImageMotion {
     /// Radial RMS on the sky √(σx² + σy²) (arcsec).
@@ -317,9 +219,4 @@ impl PyImageMotion {
             self.inner.rms_arcsec, self.inner.rms_px, self.inner.radius_px, self.inner.p_outside
         )
     }
-}
-
-fn to_json<T: serde::Serialize>(v: &T) -> PyResult<String> {
-    serde_json::to_string(v)
-        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(format!("internal: result to JSON: {e}")))
 }

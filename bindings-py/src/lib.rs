@@ -10,12 +10,12 @@ mod errors;
 mod identify;
 mod image;
 mod model;
-mod persist;
 mod response;
 mod series;
 mod spectrum;
 mod sweep;
 mod transient;
+mod wind;
 
 use pyo3::prelude::*;
 
@@ -25,16 +25,16 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     errors::register(m)?;
     m.add_class::<model::PyModel>()?;
     m.add_class::<model::PyModes>()?;
-    m.add_class::<image::PyWind>()?;
     m.add_class::<image::PyImageMotion>()?;
     m.add_class::<series::PySeries>()?;
     spectrum::register(m)?;
+    wind::register(m)?;
     m.add_function(wrap_pyfunction!(series::read_series, m)?)?;
     identify::register(m)?;
     transient::register(m)?;
     m.add_class::<checks::PyStaticChecks>()?;
     m.add_function(wrap_pyfunction!(checks::static_checks, m)?)?;
-    m.add_function(wrap_pyfunction!(persist::_model_from_toml, m)?)?;
+    m.add_function(wrap_pyfunction!(model::_model_from_toml, m)?)?;
     sweep::register(m)?;
     Ok(())
 }

@@ -1,11 +1,16 @@
-//! `Model` and `Modes`.
+//! `Model` and `Modes`, and pickling: a `Model` travels as its model-file TOML text (the text it
+//! was built from, else the generic-layer TOML of its spec).
 
 use crate::convert::{f64_1d, names, slice_or_copy};
 use crate::errors::IntoPyResult;
 use numpy::{IntoPyArray, PyArray1, PyArray2};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
-use std::path::PathBuf;
+use pyo3::types::PyTuple;
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use stillsky::io::model_file::MAX_MODEL_FILE_BYTES;
+use stillsky::io::{read_text_capped, spec_to_toml};
 use stillsky::model::Model;
 
 /// An assembled linear structure (immutable; safe to share between threads).
@@ -13,24 +18,24 @@ use stillsky::model::Model;
 pub struct PyModel {
     pub inner: Model,
     /// The model-file text it was built from (for pickling and `static_checks`), if any.
-    pub source: Option<std::sync::Arc<crate::persist::ModelSource>>,
+    pub source: Option<Arc<ModelSource>>,
 }
 
 #[pymethods]
 impl PyModel {
     #[staticmethod]
     fn from_toml(py: Python<'_>, path: PathBuf) -> PyResult<Self> {
-        crate::persist::model_from_path(py, &path)
+        model_from_path(py, &path)
     }
 
     #[staticmethod]
     #[pyo3(signature = (text, label = String::from("<string>")))]
     fn from_toml_str(py: Python<'_>, text: String, label: String) -> PyResult<Self> {
-        crate::persist::model_from_text(py, text, label)
+        model_from_text(py, text, label)
     }
 
     fn __reduce__<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, pyo3::types::PyTuple>> {
-        crate::persist::reduce_model(self, py)
+        reduce_model(self, py)
     }
 
     #[pyo3(signature = (freq_hz, *, ground = None, wind = None, loads = None, output))]
@@ -39,7 +44,7 @@ impl PyModel {
         py: Python<'py>,
         freq_hz: &Bound<'py, PyAny>,
         ground: Option<&Bound<'py, PyAny>>,
-        wind: Option<PyRef<'py, crate::image::PyWind>>,
+        wind: Option<PyRef<'py, crate::wind::PyWind>>,
         loads: Option<&Bound<'py, PyAny>>,
         output: &Bound<'py, PyAny>,
     ) -> PyResult<Bound<'py, PyAny>> {
@@ -244,7 +249,7 @@ impl PyModel {
         py: Python<'py>,
         freq_hz: &Bound<'py, PyAny>,
         ground: Option<&Bound<'py, PyAny>>,
-        wind: Option<PyRef<'py, crate::image::PyWind>>,
+        wind: Option<PyRef<'py, crate::wind::PyWind>>,
         loads: Option<&Bound<'py, PyAny>>,
         exposure_s: Option<f64>,
         guide: Option<&Bound<'py, PyAny>>,
@@ -321,4 +326,40 @@ impl PyModes {
         let f = self.frequency_hz.bind(py).to_string();
         format!("Modes(n={}, frequency_hz={f})", self.dominant_dofs.len())
     }
+}
+
+/// The model-file text a `Model` was built from and the label its errors name.
+#[derive(Debug)]
+pub struct ModelSource {
+    pub text: String,
+    pub label: String,
+}
+
+/// Build a model from text and keep the text.
+pub fn model_from_text(py: Python<'_>, text: String, label: String) -> PyResult<PyModel> {
+    let inner = py.detach(|| Model::from_toml_str(&text, &label)).py_err()?;
+    Ok(PyModel { inner, source: Some(Arc::new(ModelSource { text, label })) })
+}
+
+/// Read a model file's text (I/O errors name the path) and build the model from it.
+pub fn model_from_path(py: Python<'_>, path: &Path) -> PyResult<PyModel> {
+    let label = path.display().to_string();
+    let text = py.detach(|| read_text_capped(path, MAX_MODEL_FILE_BYTES)).py_err()?;
+    model_from_text(py, text, label)
+}
+
+/// Restore a pickled `Model` (the callable `Model.__reduce__` names).
+#[pyfunction]
+pub fn _model_from_toml(py: Python<'_>, text: String, label: String) -> PyResult<PyModel> {
+    model_from_text(py, text, label)
+}
+
+/// `Model.__reduce__`: (restore function, (text, label)).
+pub fn reduce_model<'py>(m: &PyModel, py: Python<'py>) -> PyResult<Bound<'py, PyTuple>> {
+    let (text, label) = match &m.source {
+        Some(s) => (s.text.clone(), s.label.clone()),
+        None => (spec_to_toml(m.inner.spec()).py_err()?, "<pickled model>".to_string()),
+    };
+    let f = py.import("stillsky._native")?.getattr("_model_from_toml")?;
+    PyTuple::new(py, [f, PyTuple::new(py, [text, label])?.into_any()])
 }

@@ -3,25 +3,14 @@
 
 use crate::convert::{f64_1d, names, slice_or_copy};
 use crate::errors::IntoPyResult;
-use crate::image::{PyWind, disturbances};
+use crate::image::disturbances;
 use crate::spectrum::PyPsd;
+use crate::wind::PyWind;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 use stillsky::FreqGrid;
 use stillsky::model::Model;
 use stillsky::response::response_psd;
-use stillsky::spectrum::Quantity;
-
-/// The PSD quantity of an output: rotations and image axes are angles (rad), the rest
-/// translations (m); the same naming rule as the core's transient results.
-fn output_quantity(name: &str) -> Quantity {
-    let angle = name == "image_x"
-        || name == "image_y"
-        || name.ends_with(":rx")
-        || name.ends_with(":ry")
-        || name.ends_with(":rz");
-    if angle { Quantity::Angle } else { Quantity::Displacement }
-}
 
 /// `Model.response`: a `Psd` for one output name, a dict {name: Psd} for a sequence of names.
 pub fn response<'py>(
@@ -42,7 +31,7 @@ pub fn response<'py>(
             let o: Vec<&str> = outs.iter().map(String::as_str).collect();
             let r = response_psd(m, &grid, &dist, &o, false)?;
             o.iter()
-                .map(|name| r.output_psd(name, output_quantity(name)))
+                .map(|name| r.output_psd(name, Model::output_quantity(name)))
                 .collect::<stillsky::Result<Vec<_>>>()
         })
         .py_err()?;

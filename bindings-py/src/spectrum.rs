@@ -279,32 +279,6 @@ pub fn criterion_curve<'py>(py: Python<'py>, name: &str) -> PyResult<(F64Array<'
     Ok((centres.into_pyarray(py), limits.into_pyarray(py)))
 }
 
-/// Along-wind velocity PSD.
-#[pyfunction]
-#[pyo3(signature = (kind, freq_hz, mean_speed_m_s, height_m, *, turbulence_intensity = None,
-                    roughness_length_m = None, shelter_factor = 1.0))]
-pub fn wind_spectrum(
-    kind: &str,
-    freq_hz: &Bound<'_, PyAny>,
-    mean_speed_m_s: f64,
-    height_m: f64,
-    turbulence_intensity: Option<f64>,
-    roughness_length_m: Option<f64>,
-    shelter_factor: f64,
-) -> PyResult<PyPsd> {
-    let spec = crate::image::wind_spec(
-        kind,
-        mean_speed_m_s,
-        height_m,
-        turbulence_intensity,
-        roughness_length_m,
-        shelter_factor,
-        None,
-    )?;
-    let g = grid(freq_hz, "freq_hz")?;
-    Ok(PyPsd { inner: spec.velocity_psd(&g).py_err()? })
-}
-
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyPsd>()?;
     m.add_function(wrap_pyfunction!(welch, m)?)?;
@@ -313,6 +287,5 @@ pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(transfer_estimate, m)?)?;
     m.add_function(wrap_pyfunction!(reference_ground, m)?)?;
     m.add_function(wrap_pyfunction!(criterion_curve, m)?)?;
-    m.add_function(wrap_pyfunction!(wind_spectrum, m)?)?;
     Ok(())
 }

@@ -10,7 +10,8 @@ use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList};
 use stillsky::Error;
 use stillsky::batch::{
-    self, Catalogue, GroundSource, Isolator, SWEEP_COLUMNS, SweepConfig, SweepInputs, SweepRow, WindCase,
+    self, Catalogue, ColumnKind, GroundSource, Isolator, SWEEP_COLUMNS, SWEEP_ROW, SweepConfig, SweepInputs,
+    SweepRow, SweepValue, WindCase,
 };
 use stillsky::grid::FreqGrid;
 use stillsky::io::ModelFile;
@@ -74,58 +75,36 @@ fn parse(
     })
 }
 
+/// A row as a dict, converted column by column from the core's row table.
 fn row_dict<'py>(py: Python<'py>, r: &SweepRow) -> PyResult<Bound<'py, PyDict>> {
     let d = PyDict::new(py);
-    let bad = r.is_error();
-    d.set_item("key", &r.key)?;
-    d.set_item("spec", &r.spec)?;
-    d.set_item("spectrum", &r.spectrum)?;
-    d.set_item("wind", &r.wind)?;
-    d.set_item("status", if bad { "error" } else { "ok" })?;
-    d.set_item("rms_arcsec", r.rms_arcsec)?;
-    d.set_item("rms_px", r.rms_px)?;
-    d.set_item("p_outside_half_px", r.p_outside_half_px)?;
-    d.set_item("first_mode_hz", r.first_mode_hz)?;
-    d.set_item("first_mode_zeta", r.first_mode_zeta)?;
-    d.set_item("ratio_to_none", r.ratio_to_none)?;
-    d.set_item("worse_than_none", if bad { None } else { Some(r.worse_than_none) })?;
-    d.set_item("pad_load_n", r.pad_load_n)?;
-    d.set_item("overloaded", r.overloaded)?;
-    d.set_item("gust_peak_px", r.gust_peak_px)?;
-    d.set_item("gust_settle_s", r.gust_settle_s)?;
-    d.set_item("error", r.error.as_deref())?;
+    for ((name, _), v) in SWEEP_ROW.iter().zip(r.values()) {
+        match v {
+            SweepValue::Text(s) => d.set_item(name, s)?,
+            SweepValue::Number(x) => d.set_item(name, x)?,
+            SweepValue::Flag(b) => d.set_item(name, b)?,
+            SweepValue::Message(m) => d.set_item(name, m)?,
+        }
+    }
     Ok(d)
 }
 
+/// A row from a dict with the keys of `SWEEP_COLUMNS` (row `i` in errors).
 fn dict_row(d: &Bound<'_, PyAny>, i: usize) -> PyResult<SweepRow> {
-    let get = |k: &str| -> PyResult<Bound<'_, PyAny>> {
-        d.get_item(k)
-            .map_err(|_| to_pyerr(Error::invalid(format!("sweep row {i}"), format!("has no field '{k}'"))))
-    };
-    let s = |k: &str| -> PyResult<String> { get(k)?.extract() };
-    let x = |k: &str| -> PyResult<f64> { get(k)?.extract() };
-    let error: Option<String> = get("error")?.extract()?;
-    if (s("status")? == "error") != error.is_some() {
-        return Err(to_pyerr(Error::invalid(format!("sweep row {i}"), "status and error disagree")));
-    }
-    Ok(SweepRow {
-        key: s("key")?,
-        spec: s("spec")?,
-        spectrum: s("spectrum")?,
-        wind: s("wind")?,
-        error,
-        rms_arcsec: x("rms_arcsec")?,
-        rms_px: x("rms_px")?,
-        p_outside_half_px: x("p_outside_half_px")?,
-        first_mode_hz: x("first_mode_hz")?,
-        first_mode_zeta: x("first_mode_zeta")?,
-        ratio_to_none: x("ratio_to_none")?,
-        worse_than_none: get("worse_than_none")?.extract::<Option<bool>>()?.unwrap_or(false),
-        pad_load_n: x("pad_load_n")?,
-        overloaded: get("overloaded")?.extract()?,
-        gust_peak_px: x("gust_peak_px")?,
-        gust_settle_s: x("gust_settle_s")?,
-    })
+    let bad = |reason: String| to_pyerr(Error::invalid(format!("sweep row {i}"), reason));
+    let values = SWEEP_ROW
+        .iter()
+        .map(|&(name, kind)| {
+            let v = d.get_item(name).map_err(|_| bad(format!("has no field '{name}'")))?;
+            Ok(match kind {
+                ColumnKind::Text => SweepValue::Text(v.extract()?),
+                ColumnKind::Number => SweepValue::Number(v.extract()?),
+                ColumnKind::Flag => SweepValue::Flag(v.extract()?),
+                ColumnKind::Message => SweepValue::Message(v.extract()?),
+            })
+        })
+        .collect::<PyResult<Vec<_>>>()?;
+    SweepRow::from_values(values).map_err(bad)
 }
 
 /// Rows of a sweep (see the module docs); `labels` override the ground labels (one each).
@@ -267,6 +246,12 @@ pub fn sweep_columns() -> Vec<&'static str> {
     SWEEP_COLUMNS.to_vec()
 }
 
+/// The key of a combination (`spec|spectrum|wind`), as the core writes it.
+#[pyfunction]
+pub fn sweep_key(spec: &str, spectrum: &str, wind: &str) -> String {
+    SweepRow::key_of(spec, spectrum, wind)
+}
+
 /// Replace named rank-one springs of `model` by each variant's stiffness models (JSON: a list of
 /// variants, each a list of stiffness tables in the model file's form) and return the FRFs
 /// (n_variant, n_freq, n_out, n_in), or None when `frf` is false, and the RMS responses
@@ -331,5 +316,6 @@ pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(sweep_csv, m)?)?;
     m.add_function(wrap_pyfunction!(sweep_error_row, m)?)?;
     m.add_function(wrap_pyfunction!(sweep_columns, m)?)?;
+    m.add_function(wrap_pyfunction!(sweep_key, m)?)?;
     Ok(())
 }

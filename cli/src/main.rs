@@ -499,7 +499,7 @@ fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
 fn calibrate(a: &CalibrateArgs) -> CliResult {
     use stillsky::identify::{CalibrationOptions, ModalTarget, RingdownOptions, identify_ringdown};
     let label = a.model.display().to_string();
-    let text = std::fs::read_to_string(&a.model).map_err(|e| Failure::io(&label, e))?;
+    let text = stillsky::io::read_text_capped(&a.model, stillsky::io::model_file::MAX_MODEL_FILE_BYTES)?;
     let mut targets = a.targets.clone();
     if let Some(tap) = &a.tap {
         let (name, x, fs_hz) = recording_axis(tap, a.fs, a.axis.as_deref())?;

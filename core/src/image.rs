@@ -16,7 +16,7 @@
 //!   Workman, *Digital Control of Dynamic Systems*; notes §11). Stable for 0 < g < 2.
 
 use crate::error::{Error, Result, require_positive};
-use crate::grid::FreqGrid;
+use crate::grid::{FreqGrid, trapezoid};
 use crate::model::Model;
 use crate::response::{Disturbances, response_psd};
 use crate::spectrum::BandWidth;
@@ -201,18 +201,8 @@ pub struct ImageMotion {
     pub notes: Vec<String>,
 }
 
-fn trapz(f: &[f64], y: &[f64]) -> f64 {
-    f.windows(2).zip(y.windows(2)).map(|(fw, yw)| 0.5 * (fw[1] - fw[0]) * (yw[0] + yw[1])).sum()
-}
-
 fn cumulative(f: &[f64], y: &[f64]) -> Vec<f64> {
-    let mut acc = 0.0;
-    let mut out = vec![0.0; f.len()];
-    for k in 1..f.len() {
-        acc += 0.5 * (f[k] - f[k - 1]) * (y[k] + y[k - 1]);
-        out[k] = acc.sqrt();
-    }
-    out
+    crate::grid::cumulative_from_low(f, y).into_iter().map(f64::sqrt).collect()
 }
 
 impl ImageMotion {
@@ -266,7 +256,7 @@ impl Model {
         let px = scale(&r.psd[0]);
         let py = scale(&r.psd[1]);
         let co = scale(&r.co_spectra[0].2);
-        let (vx, vy, cxy) = (trapz(f, &px), trapz(f, &py), trapz(f, &co));
+        let (vx, vy, cxy) = (trapezoid(f, &px), trapezoid(f, &py), trapezoid(f, &co));
         let total = vx + vy;
         let plate = optics.plate_scale_arcsec_per_px();
         let rms = total.sqrt();
@@ -278,7 +268,7 @@ impl Model {
                 let n = r.mode_frequency_hz.len();
                 (0..=n)
                     .map(|j| {
-                        let s = trapz(f, &scale(&bm[0][j])) + trapz(f, &scale(&bm[1][j]));
+                        let s = trapezoid(f, &scale(&bm[0][j])) + trapezoid(f, &scale(&bm[1][j]));
                         ModeShare {
                             label: if j < n { format!("mode {}", j + 1) } else { "quasi-static".into() },
                             frequency_hz: if j < n { r.mode_frequency_hz[j] } else { 0.0 },
@@ -294,14 +284,14 @@ impl Model {
             .iter()
             .enumerate()
             .map(|(i, name)| {
-                let s = trapz(f, &scale(&r.by_input[0][i])) + trapz(f, &scale(&r.by_input[1][i]));
+                let s = trapezoid(f, &scale(&r.by_input[0][i])) + trapezoid(f, &scale(&r.by_input[1][i]));
                 (name.clone(), if total > 0.0 { s / total } else { 0.0 })
             })
             .collect();
         let exposure = opts.exposure_s.map(|t| {
             let wx: Vec<f64> =
                 f.iter().zip(px.iter().zip(&py)).map(|(&fh, (a, b))| (a + b) * sinc2(fh, t)).collect();
-            let wander = trapz(f, &wx);
+            let wander = trapezoid(f, &wx);
             ExposureSplit {
                 exposure_s: t,
                 wander_rms_arcsec: wander.sqrt(),

@@ -15,6 +15,7 @@
 
 use crate::assembly::{self, Assembled, Dof, DofLabel, GROUND, ModelSpec, OpticsSpec, WindLoadSpec};
 use crate::error::{Error, Result};
+use crate::spectrum::Quantity;
 use ndarray::{Array1, Array2};
 use num_complex::Complex64;
 use std::f64::consts::PI;
@@ -326,6 +327,18 @@ impl Model {
         let mut out = vec![Complex64::default(); self.n];
         self.fill_input(&inp, 2.0 * PI * f_hz, &mut out);
         Ok(Array1::from(out))
+    }
+
+    /// The physical quantity of an output by its name: `image_x`, `image_y` and `BODY:rx|ry|rz`
+    /// are angles (rad), every other output a displacement (m). The one naming rule used by
+    /// response PSDs and transient results.
+    pub fn output_quantity(name: &str) -> Quantity {
+        let angle = name == "image_x"
+            || name == "image_y"
+            || name.ends_with(":rx")
+            || name.ends_with(":ry")
+            || name.ends_with(":rz");
+        if angle { Quantity::Angle } else { Quantity::Displacement }
     }
 
     /// The output row of an output name (n, real).

@@ -40,22 +40,22 @@
 //!   coverage and the fraction of time above threshold.
 
 use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
-use crate::image::{ImageOptions, p_outside_isotropic};
+use crate::image::{ARCSEC_PER_RAD, ImageOptions, p_outside_isotropic};
 use crate::model::{GROUND_INPUTS, Model};
 use crate::response::Disturbances;
 use crate::spectrum::{Psd, Quantity};
 use num_complex::Complex64;
 use std::f64::consts::PI;
 
-pub use crate::image::ARCSEC_PER_RAD;
 /// Largest FIR length accepted.
 pub const MAX_FIR_TAPS: usize = 1 << 16;
 /// Longest RMS window accepted (samples).
 pub const MAX_WINDOW_SAMPLES: usize = 1 << 22;
 
-/// Image motion statistics for a ground-acceleration PSD.
+/// Image-motion estimate from ground-acceleration PSDs (the monitor's quick summary; the full
+/// result with spectra and shares is [`crate::image::ImageMotion`]).
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct ImageMotion {
+pub struct GroundImageEstimate {
     pub rms_x_arcsec: f64,
     pub rms_y_arcsec: f64,
     /// sqrt(σx² + σy²).
@@ -82,7 +82,7 @@ pub fn image_motion_from_ground_acceleration(
     freq_hz: &[f64],
     acc_psd: [Option<&[f64]>; 3],
     radius_px: f64,
-) -> Result<ImageMotion> {
+) -> Result<GroundImageEstimate> {
     let grid = crate::grid::FreqGrid::new(freq_hz.to_vec())?;
     if grid.len() < 2 {
         return Err(Error::InvalidGrid {
@@ -125,7 +125,7 @@ pub fn image_motion_from_ground_acceleration(
     } else {
         1.0
     };
-    Ok(ImageMotion {
+    Ok(GroundImageEstimate {
         rms_x_arcsec: sx * ARCSEC_PER_RAD,
         rms_y_arcsec: sy * ARCSEC_PER_RAD,
         rms_radial_arcsec: sr * ARCSEC_PER_RAD,

@@ -67,15 +67,13 @@ use crate::error::{
     Error, Result, require_all_finite, require_finite, require_non_negative, require_positive,
 };
 use crate::frf::{FrfPlan, build_dynamic_stiffness};
+use crate::image::ARCSEC_PER_RAD;
 use crate::linalg::{ComplexLu, RealLu};
 use crate::model::{Input, Model};
 use num_complex::Complex64;
 use rand::{Rng, SeedableRng, rngs::StdRng};
 use realfft::RealFftPlanner;
 use std::f64::consts::PI;
-
-/// Arcseconds per radian, 180 × 3600 / π = 206264.806….
-pub const ARCSEC_PER_RAD: f64 = 648_000.0 / PI;
 
 /// Longest FFT accepted: the FRF is evaluated on L/2 bins, at most [`crate::grid::MAX_GRID_LEN`].
 pub const MAX_FFT_LEN: usize = 2 * crate::grid::MAX_GRID_LEN;
@@ -174,12 +172,7 @@ impl TransientResult {
 
     /// An angle output (`image_x`, `image_y`, `BODY:rx|ry|rz`) in arcseconds.
     pub fn arcsec(&self, name: &str) -> Result<Vec<f64>> {
-        let is_angle = name == "image_x"
-            || name == "image_y"
-            || name.ends_with(":rx")
-            || name.ends_with(":ry")
-            || name.ends_with(":rz");
-        if !is_angle {
+        if Model::output_quantity(name) != crate::spectrum::Quantity::Angle {
             return Err(Error::invalid(
                 format!("output '{name}'"),
                 "is a displacement (m), not an angle; only image_x, image_y and BODY:rx|ry|rz convert to arcsec",

@@ -4,10 +4,11 @@
 
 use std::f64::consts::PI;
 use stillsky::Error;
+use stillsky::image::ARCSEC_PER_RAD;
 use stillsky::model::Model;
 use stillsky::transient::{
-    ARCSEC_PER_RAD, DragLaw, GroundQuantity, Gust, GustWind, TransientOptions, image_metrics,
-    one_minus_cosine_history, random_realisation, step_history,
+    DragLaw, GroundQuantity, Gust, GustWind, TransientOptions, image_metrics, one_minus_cosine_history,
+    random_realisation, step_history,
 };
 
 /// A single mass on a vertical spring; `k` is the stiffness lines of the spring.

@@ -964,3 +964,6 @@ def sweep_error_row(spec: str, spectrum: str, wind: str, reason: str) -> dict[st
 
 def sweep_columns() -> list[str]:
     """The sweep table's column names, in order."""
+
+def sweep_key(spec: str, spectrum: str, wind: str) -> str:
+    """The key of one combination (``spec|spectrum|wind``), as sweep rows carry it."""

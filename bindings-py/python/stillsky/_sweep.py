@@ -150,7 +150,7 @@ def run_part(model, model_name, cat, cat_name, spectra, labels, wind, options) -
                 if i in fetch_failed:
                     out.append(_native.sweep_error_row(s, label, w, fetch_failed[i]))
                 else:
-                    out.append(by_key[f"{s}|{label}|{w}"])
+                    out.append(by_key[_native.sweep_key(s, label, w)])
     return out
 
 

@@ -65,7 +65,7 @@ pub const NO_PAD: &str = "none";
 pub const DEFAULT_PAD_PREFIX: &str = "pad";
 
 /// Largest catalogue file accepted (bytes).
-const MAX_CATALOGUE_BYTES: u64 = 4 << 20;
+const MAX_CATALOGUE_BYTES: usize = 4 << 20;
 
 /// The stiffness law of an isolator.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -320,17 +320,7 @@ impl Catalogue {
     /// Read a catalogue file.
     pub fn read(path: &Path) -> Result<Catalogue> {
         let name = path.display().to_string();
-        let meta =
-            std::fs::metadata(path).map_err(|e| Error::Io { path: name.clone(), reason: e.to_string() })?;
-        if meta.len() > MAX_CATALOGUE_BYTES {
-            return Err(Error::TooLarge {
-                what: format!("size of {name} (bytes)"),
-                value: meta.len() as usize,
-                limit: MAX_CATALOGUE_BYTES as usize,
-            });
-        }
-        let text = std::fs::read_to_string(path)
-            .map_err(|e| Error::Io { path: name.clone(), reason: e.to_string() })?;
+        let text = crate::io::read_text_capped(path, MAX_CATALOGUE_BYTES)?;
         Self::parse(&text, &name)
     }
 }

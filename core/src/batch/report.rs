@@ -322,7 +322,7 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         })
         .collect();
     let gust = match &o.wind {
-        Some(w) => match super::design_gust_response(&model, w) {
+        Some(w) => match super::gust::design_gust_response(&model, w) {
             Ok(g) => {
                 let px = |v: &[f64]| v.iter().map(|a| a / g.plate_scale_arcsec_per_px).collect();
                 Some(GustTrace {

@@ -4,5 +4,7 @@
 pub mod atomic;
 pub mod model_file;
 pub mod series;
+pub mod text;
 
 pub use model_file::{ModelFile, spec_to_toml};
+pub use text::read_text_capped;

@@ -40,6 +40,7 @@ pub mod window;
 
 pub use interval::{BandRmsStats, IntervalStream, band_rms_distribution, interval_psds, percentile_linear};
 pub use psd::{BandLevels, BandWidth, Extrapolate, Psd, Quantity};
+pub use psd_file::MAX_PSD_FILE_BYTES;
 pub use reference::{CriterionCurve, CriterionResult, ReferenceGround};
 pub use transfer::{TransferEstimate, transfer_estimate};
 pub use welch::{

@@ -306,11 +306,7 @@ impl Psd {
 
     /// Mean square ∫ S df over the grid (trapezoid rule); unit: quantity unit².
     pub fn mean_square(&self) -> f64 {
-        self.freq_hz
-            .windows(2)
-            .zip(self.values.windows(2))
-            .map(|(f, s)| 0.5 * (s[0] + s[1]) * (f[1] - f[0]))
-            .sum()
+        crate::grid::trapezoid(&self.freq_hz, &self.values)
     }
 
     /// RMS = √(mean square) over the grid.
@@ -375,27 +371,13 @@ impl Psd {
     /// Running RMS from the lowest frequency: element i is √∫_{f_0}^{f_i} S df (so the first
     /// element is 0 and the last equals [`Psd::rms`]).
     pub fn cumulative_rms_from_low(&self) -> Vec<f64> {
-        let mut out = Vec::with_capacity(self.len());
-        let mut acc = 0.0;
-        out.push(0.0);
-        for i in 1..self.len() {
-            acc += 0.5 * (self.values[i - 1] + self.values[i]) * (self.freq_hz[i] - self.freq_hz[i - 1]);
-            out.push(acc.sqrt());
-        }
-        out
+        crate::grid::cumulative_from_low(&self.freq_hz, &self.values).into_iter().map(f64::sqrt).collect()
     }
 
     /// Running RMS from the highest frequency: element i is √∫_{f_i}^{f_max} S df (so the last
     /// element is 0 and the first equals [`Psd::rms`] up to rounding).
     pub fn cumulative_rms_from_high(&self) -> Vec<f64> {
-        let n = self.len();
-        let mut out = vec![0.0; n];
-        let mut acc = 0.0;
-        for i in (0..n.saturating_sub(1)).rev() {
-            acc += 0.5 * (self.values[i] + self.values[i + 1]) * (self.freq_hz[i + 1] - self.freq_hz[i]);
-            out[i] = acc.sqrt();
-        }
-        out
+        crate::grid::cumulative_from_high(&self.freq_hz, &self.values).into_iter().map(f64::sqrt).collect()
     }
 
     /// Multiply every value by `alpha` (finite, >= 0). For an amplitude gain g use alpha = g².

@@ -17,6 +17,10 @@ use std::path::Path;
 use super::psd::{Psd, Quantity};
 use crate::error::{Error, Result};
 
+/// Largest PSD file read (bytes): [`crate::grid::MAX_GRID_LEN`] rows of about 50 characters each
+/// fit well inside it.
+pub const MAX_PSD_FILE_BYTES: usize = 256 << 20;
+
 const MAGIC: &str = "# stillsky psd";
 const COLUMNS: &str = "freq_hz,value";
 
@@ -80,8 +84,7 @@ impl Psd {
     pub fn read_csv(path: impl AsRef<Path>) -> Result<Psd> {
         let path = path.as_ref();
         let label = path.display().to_string();
-        let text = std::fs::read_to_string(path)
-            .map_err(|e| Error::Io { path: label.clone(), reason: e.to_string() })?;
+        let text = crate::io::read_text_capped(path, MAX_PSD_FILE_BYTES)?;
         Psd::from_csv_str(&text, &label)
     }
 

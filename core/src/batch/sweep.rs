@@ -1,0 +1,938 @@
+//! The isolator sweep.
+//!
+//! A sweep evaluates every isolator of a [`Catalogue`] (plus the no-pad baseline) under every
+//! ground spectrum ([`GroundSource`]) and wind case ([`WindCase`]) and writes one CSV row per
+//! combination ([`SWEEP_COLUMNS`]):
+//! - order: ground spectra in the given order, then wind cases, then isolators in catalogue
+//!   order with `none` first; the order does not depend on thread timing;
+//! - `key` = `spec|spectrum|wind`, the unit of `--resume`;
+//! - `ratio_to_none` = RMS image motion / that of the baseline for the same spectrum and wind;
+//!   `worse_than_none` when the ratio exceeds 1;
+//! - a recording that cannot be read gives an `error` row for each of its combinations (the
+//!   message naming file and line), so the table keeps every key, and the other inputs finish;
+//!   a spec whose model cannot be built gives error rows for its combinations;
+//! - [`sweep_rows`] returns the rows in memory at full precision; [`sweep_rows_labelled`] lets
+//!   a sweep split into parts (specs × grounds) label its grounds as the whole would, so the
+//!   parts' rows are the whole's rows;
+//! - rows are computed in parallel (rayon) and handed to an [`AtomicCsvWriter`] in order as soon
+//!   as the prefix is complete; `resume` keeps the complete rows of an interrupted run and
+//!   computes only the missing keys (error rows count as complete: delete the output to retry).
+//!   The final file is byte-identical to an uninterrupted run (same inputs).
+//!
+//! How pads enter the model: see [`catalogue`] (pad springs in series with their support).
+//! `pad_load_n` is the total weight carried by the ground translation (g · r_zᵀ M r_z, r_z the
+//! static response to a unit vertical ground motion) shared equally by the compression pads
+//! — exact for a symmetric rig, an estimate otherwise; `overloaded` compares it with the
+//! isolator's `rated_load_n`.
+
+use super::catalogue::{self, Catalogue, DEFAULT_PAD_PREFIX, Isolator, PadDirection, PadSite};
+use super::ground::{GroundSource, GroundSpectrum};
+use super::gust::design_gust;
+use super::sweep_row::{SWEEP_COLUMNS, SweepRow, read_sweep_csv};
+use crate::assembly::ModelSpec;
+use crate::error::{Error, Result};
+use crate::grid::FreqGrid;
+use crate::image::ImageOptions;
+use crate::io::atomic::{AtomicCsvWriter, completed_keys};
+use crate::io::model_file::ModelFile;
+use crate::io::series::SeriesOptions;
+use crate::model::Model;
+use crate::response::Disturbances;
+use crate::wind::{Turbulence, WindSpec, WindSpectrum};
+use rayon::prelude::*;
+use std::collections::{BTreeMap, HashSet};
+use std::path::{Path, PathBuf};
+
+/// Standard gravity (m/s²), for pad loads.
+const G_M_S2: f64 = 9.80665;
+
+/// A named wind case of a sweep.
+#[derive(Debug, Clone, PartialEq)]
+pub struct WindCase {
+    /// Label used in rows and keys.
+    pub label: String,
+    /// None: calm.
+    pub wind: Option<WindSpec>,
+}
+
+impl WindCase {
+    /// No wind.
+    pub fn calm() -> WindCase {
+        WindCase { label: "calm".into(), wind: None }
+    }
+
+    /// Parse `calm`, or `SPEED[:HEIGHT[:SPECTRUM[:INTENSITY]]]` with the speed in m/s, the height
+    /// in m (default 2), the spectrum name (default `kaimal`) and the turbulence intensity
+    /// (default 0.2), e.g. `5`, `5:2:von-karman:0.25`.
+    pub fn parse(text: &str) -> Result<WindCase> {
+        let t = text.trim();
+        if t.eq_ignore_ascii_case("calm") || t.eq_ignore_ascii_case("none") {
+            return Ok(WindCase::calm());
+        }
+        let parts: Vec<&str> = t.split(':').collect();
+        if parts.len() > 4 {
+            return Err(Error::invalid(
+                format!("wind case '{text}'"),
+                "use calm or SPEED[:HEIGHT[:SPECTRUM[:INTENSITY]]]",
+            ));
+        }
+        let num = |s: &str, what: &str| -> Result<f64> {
+            s.trim().parse::<f64>().map_err(|_| {
+                Error::invalid(format!("wind case '{text}'"), format!("{what} '{s}' is not a number"))
+            })
+        };
+        let u = num(parts[0], "speed (m/s)")?;
+        let z = parts.get(1).map(|s| num(s, "height (m)")).transpose()?.unwrap_or(2.0);
+        let kind = parts.get(2).map(|s| WindSpectrum::from_name(s)).transpose()?.unwrap_or_default();
+        let i = parts.get(3).map(|s| num(s, "turbulence intensity")).transpose()?.unwrap_or(0.2);
+        WindCase::new(kind, u, z, i)
+    }
+
+    /// A wind case from its parts (validated), labelled `U m/s @ z m, spectrum, I`.
+    pub fn new(kind: WindSpectrum, speed_m_s: f64, height_m: f64, intensity: f64) -> Result<WindCase> {
+        let w = WindSpec::new(kind, speed_m_s, height_m, Turbulence::Intensity(intensity));
+        w.validate()?;
+        let name = match kind {
+            WindSpectrum::Kaimal => "kaimal",
+            WindSpectrum::KaimalIec => "kaimal-iec",
+            WindSpectrum::VonKarman => "von-karman",
+            WindSpectrum::Davenport => "davenport",
+        };
+        Ok(WindCase { label: format!("{speed_m_s}m/s@{height_m}m {name} I={intensity}"), wind: Some(w) })
+    }
+}
+
+/// Settings of a sweep.
+#[derive(Debug, Clone)]
+#[non_exhaustive]
+pub struct SweepConfig {
+    /// Analysis grid.
+    pub grid: FreqGrid,
+    /// Prefix of the pad springs in the generic model.
+    pub pad_prefix: String,
+    /// Per-axis factor on PSD files and reference models (recordings use their own axes).
+    pub ground_scale: [f64; 3],
+    /// Options of the recording readers.
+    pub series: SeriesOptions,
+    /// Threads of the sweep's own rayon pool; None: the global pool (all cores). The rows do
+    /// not depend on it.
+    pub threads: Option<usize>,
+}
+
+impl SweepConfig {
+    /// 0.5–90 Hz, 300 log-spaced points, prefix `pad`, ground scale [1, 1, 1].
+    pub fn new() -> Result<SweepConfig> {
+        Ok(SweepConfig {
+            grid: FreqGrid::log(0.5, 90.0, 300)?,
+            pad_prefix: DEFAULT_PAD_PREFIX.into(),
+            ground_scale: [1.0; 3],
+            series: SeriesOptions::default(),
+            threads: None,
+        })
+    }
+    /// Replace the grid.
+    pub fn with_grid(mut self, grid: FreqGrid) -> Self {
+        self.grid = grid;
+        self
+    }
+    /// Replace the pad prefix.
+    pub fn with_pad_prefix(mut self, prefix: impl Into<String>) -> Self {
+        self.pad_prefix = prefix.into();
+        self
+    }
+    /// Replace the ground scale.
+    pub fn with_ground_scale(mut self, s: [f64; 3]) -> Self {
+        self.ground_scale = s;
+        self
+    }
+    /// Run on a pool of `n` threads (at least 1) instead of the global pool.
+    pub fn with_threads(mut self, n: usize) -> Self {
+        self.threads = Some(n);
+        self
+    }
+}
+
+/// Progress of a running sweep.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SweepProgress {
+    /// Rows finished (written or kept from a previous run).
+    pub done: usize,
+    pub total: usize,
+}
+
+/// What a sweep did.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SweepOutcome {
+    /// The finished CSV.
+    pub path: PathBuf,
+    /// All rows of the finished file, in order.
+    pub rows: Vec<SweepRow>,
+    /// Rows computed in this run.
+    pub computed: usize,
+    /// Rows kept from an interrupted run.
+    pub kept: usize,
+    /// Ranked summary.
+    pub summary: SweepSummary,
+}
+
+impl SweepOutcome {
+    /// Error rows (failed inputs).
+    pub fn failures(&self) -> Vec<&SweepRow> {
+        self.rows.iter().filter(|r| r.is_error()).collect()
+    }
+}
+
+/// How isolators enter the model: the rig layer's `[pads]`, or generic pad springs.
+#[derive(Debug, Clone)]
+pub enum PadMechanism {
+    /// A rig file with a `[tripod]`: each spec sets `[pads]` (compression and shear per pad);
+    /// the baseline removes the section (the feet stand on the `[ground]` as given).
+    Rig { file: Box<ModelFile>, n_pads: usize },
+    /// A generic-layer model with pad springs in series with their support ([`catalogue`]).
+    Generic { spec: Box<ModelSpec>, sites: Vec<PadSite> },
+}
+
+impl PadMechanism {
+    /// Choose the mechanism for a model file: the rig layer when it has a `[tripod]`, else the
+    /// generic pad springs named `prefix*`.
+    pub fn for_file(file: &ModelFile, prefix: &str) -> Result<PadMechanism> {
+        if let Some(t) = &file.tripod {
+            let n_pads = t.legs.unwrap_or(3);
+            return Ok(PadMechanism::Rig { file: Box::new(file.clone()), n_pads });
+        }
+        if file.pier.is_some() && file.springs.iter().all(|s| !s.name.starts_with(prefix)) {
+            return Err(Error::invalid(
+                "model",
+                "pads go under tripod feet; this rig has no [tripod] (and no generic pad springs)",
+            ));
+        }
+        let spec = file.expanded()?;
+        let sites = catalogue::pad_sites(&spec, prefix)?;
+        Ok(PadMechanism::Generic { spec: Box::new(spec), sites })
+    }
+
+    /// The generic model with `iso` in place of the pads (or none).
+    pub fn spec_with(&self, iso: &Isolator) -> Result<ModelSpec> {
+        match self {
+            PadMechanism::Generic { spec, sites } => catalogue::apply_isolator(spec, sites, iso),
+            PadMechanism::Rig { file, .. } => {
+                let mut f = (**file).clone();
+                f.pads = match (iso.stiffness(PadDirection::Compression), iso.stiffness(PadDirection::Shear))
+                {
+                    (Some(c), Some(s)) => Some(crate::rig::PadSpec {
+                        compression: Some(crate::assembly::StiffnessSpec::from_model(&c, false)),
+                        shear: Some(crate::assembly::StiffnessSpec::from_model(&s, false)),
+                    }),
+                    _ => None,
+                };
+                f.expanded()
+            }
+        }
+    }
+
+    /// Number of pads carrying the weight (one per foot).
+    pub fn compression_pads(&self) -> usize {
+        match self {
+            PadMechanism::Rig { n_pads, .. } => *n_pads,
+            PadMechanism::Generic { sites, .. } => {
+                sites.iter().filter(|s| s.direction == PadDirection::Compression).count()
+            }
+        }
+    }
+
+    /// The model's `[wind]` load point, if any.
+    fn has_wind(&self) -> bool {
+        match self {
+            PadMechanism::Rig { file, .. } => file.wind.is_some(),
+            PadMechanism::Generic { spec, .. } => spec.wind.is_some(),
+        }
+    }
+}
+
+/// A built spec: its model (or why it failed), first mode and pad load.
+struct BuiltSpec {
+    model: std::result::Result<Model, String>,
+    first_mode: (f64, f64),
+    pad_load_n: f64,
+}
+
+fn build_spec(mech: &PadMechanism, iso: &Isolator) -> BuiltSpec {
+    let fail = |e: Error| BuiltSpec {
+        model: Err(format!("isolator '{}': {e}", iso.name)),
+        first_mode: (f64::NAN, f64::NAN),
+        pad_load_n: f64::NAN,
+    };
+    let model = match mech.spec_with(iso).and_then(|s| Model::from_spec(&s)) {
+        Ok(m) => m,
+        Err(e) => return fail(e),
+    };
+    let modes = match model.modes() {
+        Ok(m) => m,
+        Err(e) => return fail(e),
+    };
+    let first = (
+        modes.frequency_hz.first().copied().unwrap_or(f64::NAN),
+        modes.damping_ratio.first().copied().unwrap_or(f64::NAN),
+    );
+    let n_comp = mech.compression_pads();
+    let load = match model.static_influence() {
+        Ok(r) if n_comp > 0 => {
+            let n = model.dof_count();
+            let rz = &r[2 * n..3 * n];
+            let mut mass = 0.0;
+            for a in 0..n {
+                for b in 0..n {
+                    mass += rz[a] * model.m_ff[a + b * n] * rz[b];
+                }
+            }
+            G_M_S2 * mass / n_comp as f64
+        }
+        _ => f64::NAN,
+    };
+    BuiltSpec { model: Ok(model), first_mode: first, pad_load_n: load }
+}
+
+/// One (spectrum, wind, isolator) combination.
+struct Job {
+    ground: usize,
+    wind: usize,
+    spec: usize,
+    key: String,
+}
+
+/// RMS arcsec, RMS px and P(outside ½ px) of one combination, or why it failed.
+type Evaluated = std::result::Result<(f64, f64, f64), String>;
+
+fn evaluate(
+    built: &BuiltSpec,
+    iso: &Isolator,
+    ground: &GroundSpectrum,
+    wind: &WindCase,
+    grid: &FreqGrid,
+) -> Evaluated {
+    let model = built.model.as_ref().map_err(Clone::clone)?;
+    let d = Disturbances { ground: ground.axes.clone(), wind: wind.wind.clone(), loads: Vec::new() };
+    let opts = ImageOptions { skip_mode_shares: true, ..ImageOptions::default() };
+    let im = model.image_motion(grid, &d, &opts).map_err(|e| format!("isolator '{}': {e}", iso.name))?;
+    Ok((im.rms_arcsec, im.rms_px, im.p_outside))
+}
+
+/// What a sweep combines.
+#[derive(Debug, Clone, Copy)]
+pub struct SweepInputs<'a> {
+    /// The model file: a rig with a `[tripod]`, or a generic layer with pad springs.
+    pub model: &'a ModelFile,
+    pub catalogue: &'a Catalogue,
+    pub grounds: &'a [GroundSource],
+    /// Wind cases; empty means one calm case.
+    pub winds: &'a [WindCase],
+}
+
+/// The labels of ground sources in rows and keys: the file stem (or the reference model's name),
+/// or the whole path where stems collide. Refuses labels with `|` or line breaks and an input
+/// given twice.
+pub fn ground_labels(grounds: &[GroundSource]) -> Result<Vec<String>> {
+    let stems: Vec<String> = grounds.iter().map(GroundSource::label).collect();
+    // Collisions are counted on the stems, so one input given twice stays a duplicate.
+    let labels: Vec<String> = stems
+        .iter()
+        .zip(grounds)
+        .map(|(s, g)| match g.path() {
+            Some(p) if stems.iter().filter(|x| *x == s).count() > 1 => p.display().to_string(),
+            _ => s.clone(),
+        })
+        .collect();
+    check_labels(&labels, grounds.len())?;
+    Ok(labels)
+}
+
+fn check_labels(labels: &[String], n_grounds: usize) -> Result<()> {
+    if labels.len() != n_grounds {
+        return Err(Error::shape("ground labels", n_grounds, labels.len()));
+    }
+    if let Some(l) = labels.iter().find(|l| l.contains('|') || l.contains(['\n', '\r'])) {
+        return Err(Error::invalid(format!("ground '{l}'"), "names may not contain '|' or line breaks"));
+    }
+    if labels.iter().collect::<HashSet<_>>().len() != labels.len() {
+        return Err(Error::invalid("ground", "the same input is given twice"));
+    }
+    Ok(())
+}
+
+/// Check what a sweep needs before any ground is read: the pad mechanism of the model, a
+/// `[wind]` section when a wind case blows, no wind case twice. Returns the mechanism and the
+/// wind cases (one calm case when none is given).
+fn prepare(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<(PadMechanism, Vec<WindCase>)> {
+    if inputs.grounds.is_empty() {
+        return Err(Error::invalid(
+            "ground",
+            "give at least one ground spectrum (recording, PSD file, nlnm, nhnm)",
+        ));
+    }
+    let winds: Vec<WindCase> =
+        if inputs.winds.is_empty() { vec![WindCase::calm()] } else { inputs.winds.to_vec() };
+    let mech = PadMechanism::for_file(inputs.model, &cfg.pad_prefix)?;
+    if winds.iter().any(|w| w.wind.is_some()) && !mech.has_wind() {
+        return Err(Error::invalid(
+            "wind",
+            "the model has no [wind] section (load point, area, drag coefficient)",
+        ));
+    }
+    let mut seen = HashSet::new();
+    for w in &winds {
+        if !seen.insert(w.label.clone()) {
+            return Err(Error::invalid(format!("wind case '{}'", w.label), "is given twice"));
+        }
+    }
+    if cfg.threads == Some(0) {
+        return Err(Error::invalid("threads", "must be at least 1"));
+    }
+    Ok((mech, winds))
+}
+
+/// Check a sweep's inputs without reading any ground or building any model: what
+/// [`sweep_rows`] refuses before it starts (a recording that cannot be read is an error row,
+/// not an error).
+pub fn check_sweep(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<()> {
+    prepare(inputs, cfg)?;
+    ground_labels(inputs.grounds).map(|_| ())
+}
+
+/// Everything the rows of a sweep are made from, computed once; row `i` is then independent.
+struct PreparedSweep<'a> {
+    catalogue: &'a Catalogue,
+    winds: Vec<WindCase>,
+    labels: Vec<String>,
+    grid: &'a FreqGrid,
+    built: Vec<BuiltSpec>,
+    spectra: Vec<std::result::Result<GroundSpectrum, String>>,
+    /// Rows in their fixed order: ground, then wind, then isolator.
+    jobs: Vec<Job>,
+    base_idx: usize,
+    baselines: BTreeMap<(usize, usize), Evaluated>,
+    gusts: BTreeMap<(usize, usize), (f64, f64)>,
+}
+
+impl<'a> PreparedSweep<'a> {
+    fn new(inputs: &SweepInputs<'a>, labels: &[String], cfg: &'a SweepConfig) -> Result<PreparedSweep<'a>> {
+        let (mech, winds) = prepare(inputs, cfg)?;
+        check_labels(labels, inputs.grounds.len())?;
+        let catalogue = inputs.catalogue;
+        let built: Vec<BuiltSpec> =
+            catalogue.isolators.par_iter().map(|iso| build_spec(&mech, iso)).collect();
+        let spectra: Vec<std::result::Result<GroundSpectrum, String>> = inputs
+            .grounds
+            .par_iter()
+            .zip(labels.par_iter())
+            .map(|(g, l)| {
+                g.load(&cfg.grid, cfg.ground_scale, &cfg.series)
+                    .map(|mut s| {
+                        s.label = l.clone();
+                        s
+                    })
+                    .map_err(|e| e.to_string())
+            })
+            .collect();
+        let mut jobs = Vec::new();
+        for (gi, label) in labels.iter().enumerate() {
+            for (wi, w) in winds.iter().enumerate() {
+                for (si, iso) in catalogue.isolators.iter().enumerate() {
+                    let key = SweepRow::key_of(&iso.name, label, &w.label);
+                    jobs.push(Job { ground: gi, wind: wi, spec: si, key });
+                }
+            }
+        }
+        // Baselines (always computed: every row needs them for the ratio).
+        let base_idx = catalogue.isolators.iter().position(Isolator::is_none).unwrap_or(0);
+        let baselines: BTreeMap<(usize, usize), Evaluated> = spectra
+            .iter()
+            .enumerate()
+            .filter_map(|(gi, s)| s.as_ref().ok().map(|s| (gi, s)))
+            .flat_map(|(gi, s)| (0..winds.len()).map(move |wi| (gi, wi, s)))
+            .collect::<Vec<_>>()
+            .into_par_iter()
+            .map(|(gi, wi, s)| {
+                let iso = &catalogue.isolators[base_idx];
+                ((gi, wi), evaluate(&built[base_idx], iso, s, &winds[wi], &cfg.grid))
+            })
+            .collect();
+        // Design gusts per (isolator, wind case): they do not depend on the ground.
+        let gust_jobs: Vec<(usize, usize)> = (0..catalogue.isolators.len())
+            .flat_map(|si| (0..winds.len()).map(move |wi| (si, wi)))
+            .filter(|&(_, wi)| winds[wi].wind.is_some())
+            .collect();
+        let gusts: BTreeMap<(usize, usize), (f64, f64)> = gust_jobs
+            .into_par_iter()
+            .filter_map(|(si, wi)| {
+                let m = built[si].model.as_ref().ok()?;
+                let w = winds[wi].wind.as_ref()?;
+                design_gust(m, w).ok().map(|g| ((si, wi), g))
+            })
+            .collect();
+        Ok(PreparedSweep {
+            catalogue,
+            winds,
+            labels: labels.to_vec(),
+            grid: &cfg.grid,
+            built,
+            spectra,
+            jobs,
+            base_idx,
+            baselines,
+            gusts,
+        })
+    }
+
+    fn len(&self) -> usize {
+        self.jobs.len()
+    }
+
+    fn row(&self, i: usize) -> SweepRow {
+        let Some(j) = self.jobs.get(i) else {
+            return SweepRow::failed("*", "*", "*", "internal: missing job".into());
+        };
+        let iso = &self.catalogue.isolators[j.spec];
+        let (spec_l, spec_s, wind_l) = (&iso.name, &self.labels[j.ground], &self.winds[j.wind].label);
+        let ground = match &self.spectra[j.ground] {
+            Ok(g) => g,
+            Err(e) => return SweepRow::failed(spec_l, spec_s, wind_l, e.clone()),
+        };
+        let b = &self.built[j.spec];
+        let key = (j.ground, j.wind);
+        let res = if j.spec == self.base_idx {
+            self.baselines.get(&key).cloned().unwrap_or_else(|| Err("baseline missing".into()))
+        } else {
+            evaluate(b, iso, ground, &self.winds[j.wind], self.grid)
+        };
+        match res {
+            Err(e) => SweepRow::failed(spec_l, spec_s, wind_l, e),
+            Ok((rms_arcsec, rms_px, p)) => {
+                let base = self.baselines.get(&key).and_then(|r| r.as_ref().ok()).map(|r| r.0);
+                let ratio = base.map_or(f64::NAN, |b0| if b0 > 0.0 { rms_arcsec / b0 } else { f64::NAN });
+                let gust = self.gusts.get(&(j.spec, j.wind));
+                SweepRow {
+                    key: j.key.clone(),
+                    spec: spec_l.clone(),
+                    spectrum: spec_s.clone(),
+                    wind: wind_l.clone(),
+                    error: None,
+                    rms_arcsec,
+                    rms_px,
+                    p_outside_half_px: p,
+                    first_mode_hz: b.first_mode.0,
+                    first_mode_zeta: b.first_mode.1,
+                    ratio_to_none: ratio,
+                    worse_than_none: ratio > 1.0,
+                    pad_load_n: if iso.is_none() { f64::NAN } else { b.pad_load_n },
+                    overloaded: iso
+                        .rated_load_n
+                        .filter(|_| b.pad_load_n.is_finite())
+                        .map(|r| b.pad_load_n > r),
+                    gust_peak_px: gust.map_or(f64::NAN, |g| g.0),
+                    gust_settle_s: gust.map_or(f64::NAN, |g| g.1),
+                }
+            }
+        }
+    }
+}
+
+/// Run `f` on a rayon pool of `threads` threads, or on the global pool.
+fn in_pool<T: Send>(threads: Option<usize>, f: impl FnOnce() -> Result<T> + Send) -> Result<T> {
+    match threads {
+        None => f(),
+        Some(n) => rayon::ThreadPoolBuilder::new()
+            .num_threads(n)
+            .build()
+            .map_err(|e| Error::invalid("threads", format!("cannot start {n} threads: {e}")))?
+            .install(f),
+    }
+}
+
+/// The rows of a sweep of catalogue × grounds × winds, in memory and at full precision, in the
+/// order of the module docs; the same rows [`run_sweep`] writes (its file rounds numbers to six
+/// significant digits). Labels come from [`ground_labels`].
+pub fn sweep_rows(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<Vec<SweepRow>> {
+    let labels = ground_labels(inputs.grounds)?;
+    sweep_rows_labelled(inputs, &labels, cfg)
+}
+
+/// [`sweep_rows`] with the ground labels given (one per ground, unique): a sweep split into
+/// parts (e.g. over machines) labels every part's grounds as the whole sweep would.
+pub fn sweep_rows_labelled(
+    inputs: &SweepInputs<'_>,
+    labels: &[String],
+    cfg: &SweepConfig,
+) -> Result<Vec<SweepRow>> {
+    in_pool(cfg.threads, || {
+        let plan = PreparedSweep::new(inputs, labels, cfg)?;
+        Ok((0..plan.len()).into_par_iter().map(|i| plan.row(i)).collect())
+    })
+}
+
+/// A sweep table as the CSV text [`run_sweep`] writes (header and rows, `\n` line ends).
+pub fn sweep_csv_text(rows: &[SweepRow]) -> Result<String> {
+    let what = Path::new("sweep table");
+    let mut out = crate::io::atomic::encode_row(&SWEEP_COLUMNS, what)?;
+    for r in rows {
+        out.extend(crate::io::atomic::encode_row(&r.fields(), what)?);
+    }
+    String::from_utf8(out).map_err(|e| Error::invalid("sweep table", e.to_string()))
+}
+
+/// Run a sweep of catalogue × grounds × winds, writing `out` (see the module docs); with
+/// `resume`, continue an interrupted output. `progress` is called after every finished row.
+pub fn run_sweep(
+    inputs: &SweepInputs<'_>,
+    cfg: &SweepConfig,
+    out: &Path,
+    resume: bool,
+    progress: &(dyn Fn(SweepProgress) + Sync),
+) -> Result<SweepOutcome> {
+    let labels = ground_labels(inputs.grounds)?;
+    prepare(inputs, cfg)?;
+    let done_keys = if resume { completed_keys(out, "key")? } else { HashSet::new() };
+    in_pool(cfg.threads, || {
+        let plan = PreparedSweep::new(inputs, &labels, cfg)?;
+        let total = plan.len();
+        let header: Vec<&str> = SWEEP_COLUMNS.to_vec();
+        let mut writer = if resume {
+            AtomicCsvWriter::resume(out, &header)?
+        } else {
+            AtomicCsvWriter::create(out, &header)?
+        };
+        let kept = writer.rows();
+        let todo: Vec<usize> = (0..total).filter(|&i| !done_keys.contains(&plan.jobs[i].key)).collect();
+        let mut done = total - todo.len();
+        progress(SweepProgress { done, total });
+        let (tx, rx) = std::sync::mpsc::channel::<(usize, SweepRow)>();
+        let mut write_err: Option<Error> = None;
+        std::thread::scope(|scope| {
+            let todo = &todo;
+            let plan = &plan;
+            scope.spawn(move || {
+                todo.par_iter().for_each_with(tx, |tx, &i| {
+                    let _ = tx.send((i, plan.row(i)));
+                });
+            });
+            let mut pending: BTreeMap<usize, SweepRow> = BTreeMap::new();
+            let mut next = 0usize; // position in `todo`
+            for (i, row) in rx {
+                pending.insert(i, row);
+                while next < todo.len() {
+                    let Some(row) = pending.remove(&todo[next]) else { break };
+                    if write_err.is_none()
+                        && let Err(e) = writer.write_row(&row.fields())
+                    {
+                        write_err = Some(e);
+                    }
+                    next += 1;
+                    done += 1;
+                    progress(SweepProgress { done, total });
+                }
+            }
+        });
+        if let Some(e) = write_err {
+            return Err(e);
+        }
+        let path = writer.finish()?;
+        let rows = read_sweep_csv(&path)?;
+        let summary = summarize(&rows);
+        Ok(SweepOutcome { path, computed: todo.len(), kept, rows, summary })
+    })
+}
+
+/// One isolator's standing in a summary table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RankEntry {
+    pub spec: String,
+    /// Mean of `ratio_to_none` over the cases.
+    pub mean_ratio: f64,
+    pub mean_rms_px: f64,
+    pub mean_p_outside_half_px: f64,
+    pub cases: usize,
+    /// Cases with ratio > 1.
+    pub cases_worse: usize,
+    /// Mean ratio > 1.
+    pub worse_than_none: bool,
+    pub overloaded: bool,
+}
+
+/// A ranked table (best first: smallest mean ratio).
+#[derive(Debug, Clone, PartialEq)]
+pub struct RankTable {
+    /// A spectrum label, or "all spectra".
+    pub scope: String,
+    pub entries: Vec<RankEntry>,
+}
+
+/// Ranked summary per spectrum and overall.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SweepSummary {
+    pub per_spectrum: Vec<RankTable>,
+    pub overall: RankTable,
+    /// Error rows (key and message).
+    pub failures: Vec<(String, String)>,
+}
+
+fn rank(scope: &str, rows: &[&SweepRow]) -> RankTable {
+    let mut specs: Vec<String> = Vec::new();
+    for r in rows {
+        if !specs.contains(&r.spec) {
+            specs.push(r.spec.clone());
+        }
+    }
+    let mut entries: Vec<RankEntry> = specs
+        .iter()
+        .map(|s| {
+            let mine: Vec<&&SweepRow> =
+                rows.iter().filter(|r| &r.spec == s && r.ratio_to_none.is_finite()).collect();
+            let n = mine.len().max(1) as f64;
+            let mean_ratio = mine.iter().map(|r| r.ratio_to_none).sum::<f64>() / n;
+            RankEntry {
+                spec: s.clone(),
+                mean_ratio,
+                mean_rms_px: mine.iter().map(|r| r.rms_px).sum::<f64>() / n,
+                mean_p_outside_half_px: mine.iter().map(|r| r.p_outside_half_px).sum::<f64>() / n,
+                cases: mine.len(),
+                cases_worse: mine.iter().filter(|r| r.worse_than_none).count(),
+                worse_than_none: mean_ratio > 1.0,
+                overloaded: mine.iter().any(|r| r.overloaded == Some(true)),
+            }
+        })
+        .filter(|e| e.cases > 0)
+        .collect();
+    entries.sort_by(|a, b| a.mean_ratio.total_cmp(&b.mean_ratio).then_with(|| a.spec.cmp(&b.spec)));
+    RankTable { scope: scope.into(), entries }
+}
+
+/// Rank the isolators of a sweep's rows per spectrum (mean ratio over wind cases) and overall.
+pub fn summarize(rows: &[SweepRow]) -> SweepSummary {
+    let good: Vec<&SweepRow> = rows.iter().filter(|r| !r.is_error()).collect();
+    let mut spectra: Vec<String> = Vec::new();
+    for r in &good {
+        if !spectra.contains(&r.spectrum) {
+            spectra.push(r.spectrum.clone());
+        }
+    }
+    let per_spectrum = spectra
+        .iter()
+        .map(|s| {
+            let mine: Vec<&SweepRow> = good.iter().copied().filter(|r| &r.spectrum == s).collect();
+            rank(s, &mine)
+        })
+        .collect();
+    SweepSummary {
+        per_spectrum,
+        overall: rank("all spectra", &good),
+        failures: rows.iter().filter_map(|r| r.error.as_ref().map(|e| (r.key.clone(), e.clone()))).collect(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::io::model_file::ModelFile;
+    use crate::spectrum::{Psd, Quantity};
+
+    const MODEL: &str = include_str!("../../../docs/examples/tripod-paver-generic.toml");
+    const CATALOGUE: &str = include_str!("../../../docs/examples/isolators.toml");
+
+    fn tmpdir(tag: &str) -> PathBuf {
+        let d = std::env::temp_dir().join(format!("stillsky-batch-{tag}-{}", std::process::id()));
+        std::fs::create_dir_all(&d).unwrap();
+        d
+    }
+
+    fn flat_psd_file(dir: &Path, level: f64) -> PathBuf {
+        let grid = FreqGrid::log(0.2, 100.0, 200).unwrap();
+        let p = Psd::on_grid(&grid, vec![level; grid.len()], Quantity::Acceleration).unwrap();
+        let path = dir.join("flat.csv");
+        std::fs::write(&path, p.to_csv_string()).unwrap();
+        path
+    }
+
+    fn file() -> ModelFile {
+        ModelFile::parse(MODEL, "tripod-paver-generic.toml").unwrap()
+    }
+
+    fn spec() -> ModelSpec {
+        file().expanded().unwrap()
+    }
+
+    #[test]
+    fn none_removes_the_pad_and_keeps_the_support() {
+        let s = spec();
+        let sites = catalogue::pad_sites(&s, "pad").unwrap();
+        assert_eq!(sites.len(), 9);
+        assert_eq!(sites.iter().filter(|x| x.direction == PadDirection::Compression).count(), 3);
+        let bare = catalogue::apply_isolator(&s, &sites, &Isolator::none()).unwrap();
+        let k = bare.springs[sites[0].spring].stiffness().to_model("k", false).unwrap();
+        // Only the paver contact remains: 1e8 N/m with loss 0.05 (the model file).
+        assert_eq!(k, crate::stiffness::StiffnessModel::Hysteretic { k: 1.0e8, loss_factor: 0.05 });
+        // A pad in series: k = 1/(1/k_pad + 1/k_paver) (elementary mechanics).
+        let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
+        let soft = &cat.isolators[1];
+        let padded = catalogue::apply_isolator(&s, &sites, soft).unwrap();
+        let k = padded.springs[sites[0].spring].stiffness().to_model("k", false).unwrap();
+        let (kp, ks) =
+            (crate::Complex64::new(2.0e5, 0.4 * 2.0e5), crate::Complex64::new(1.0e8, 0.05 * 1.0e8));
+        let want = 1.0 / (1.0 / kp + 1.0 / ks);
+        assert!((k.at(3.0) - want).norm() / want.norm() < 1e-12);
+    }
+
+    #[test]
+    fn pad_springs_must_be_series_chains() {
+        let mut s = spec();
+        s.springs[0].series = None;
+        s.springs[0].stiffness_n_per_m = Some(1e6);
+        let e = catalogue::pad_sites(&s, "pad").unwrap_err().to_string();
+        assert!(e.contains("pad_foot1_z") && e.contains("series"), "{e}");
+        let e = catalogue::pad_sites(&spec(), "isolator").unwrap_err().to_string();
+        assert!(e.contains("no pad springs"), "{e}");
+    }
+
+    #[test]
+    fn soft_pad_in_series_raises_image_motion_on_a_hard_paver() {
+        // Common practice, no source: a soft spring in series with a stiff support dominates
+        // the stiffness, lowering the rig's modes into stronger ground motion.
+        let dir = tmpdir("series");
+        let g = flat_psd_file(&dir, 1e-9);
+        let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
+        let s = file();
+        let inputs =
+            SweepInputs { model: &s, catalogue: &cat, grounds: &[GroundSource::PsdFile(g)], winds: &[] };
+        let out = dir.join("rows.csv");
+        let r = run_sweep(&inputs, &SweepConfig::new().unwrap(), &out, false, &|_| {}).unwrap();
+        assert_eq!(r.rows.len(), cat.isolators.len());
+        let row = |n: &str| r.rows.iter().find(|x| x.spec == n).unwrap();
+        assert_eq!(row("none").ratio_to_none, 1.0);
+        assert!(row("soft-elastomer").rms_arcsec > row("none").rms_arcsec);
+        assert!(row("soft-elastomer").worse_than_none);
+        assert!(row("soft-elastomer").first_mode_hz < row("none").first_mode_hz);
+        // The overall ranking marks it.
+        let e = r.summary.overall.entries.iter().find(|e| e.spec == "soft-elastomer").unwrap();
+        assert!(e.worse_than_none);
+    }
+
+    #[test]
+    fn resume_after_torn_tail_equals_uninterrupted_run() {
+        let dir = tmpdir("resume");
+        let g = flat_psd_file(&dir, 1e-9);
+        let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
+        let s = file();
+        let winds = [WindCase::calm(), WindCase::parse("4").unwrap()];
+        let grounds =
+            [GroundSource::PsdFile(g), GroundSource::Reference(crate::spectrum::ReferenceGround::Nlnm)];
+        let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &winds };
+        let cfg = SweepConfig::new().unwrap();
+        let full = dir.join("full.csv");
+        run_sweep(&inputs, &cfg, &full, false, &|_| {}).unwrap();
+        let text = std::fs::read_to_string(&full).unwrap();
+        let lines: Vec<&str> = text.lines().collect();
+        assert_eq!(lines.len(), 1 + 2 * 2 * cat.isolators.len());
+        // An interrupted run: header + 7 complete rows + half a row.
+        let part = dir.join("part.csv");
+        let torn = format!("{}\n{}", lines[..8].join("\n"), &lines[8][..lines[8].len() / 2]);
+        std::fs::write(crate::io::atomic::partial_path(&part), torn).unwrap();
+        let r = run_sweep(&inputs, &cfg, &part, true, &|_| {}).unwrap();
+        assert_eq!(r.kept, 7);
+        assert_eq!(r.computed, lines.len() - 1 - 7);
+        assert_eq!(std::fs::read_to_string(&part).unwrap(), text);
+    }
+
+    #[test]
+    fn bad_recording_is_an_error_row_and_the_rest_finish() {
+        let dir = tmpdir("bad");
+        let g = flat_psd_file(&dir, 1e-9);
+        let bad = dir.join("broken.csv");
+        std::fs::write(&bad, "# fs_hz=100\nz_m_s2\n0.1\n0.2\nabc\n").unwrap();
+        let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
+        let s = file();
+        let grounds = [GroundSource::Recording(bad), GroundSource::PsdFile(g)];
+        let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &[] };
+        let r = run_sweep(&inputs, &SweepConfig::new().unwrap(), &dir.join("o.csv"), false, &|_| {}).unwrap();
+        let n = cat.isolators.len();
+        assert_eq!(r.rows.len(), 2 * n);
+        // One error row per spec of the bad recording, each with its key.
+        for (e, iso) in r.rows[..n].iter().zip(&cat.isolators) {
+            assert!(e.is_error());
+            assert_eq!(e.key, format!("{}|broken|calm", iso.name));
+            let msg = e.error.as_ref().unwrap();
+            assert!(msg.contains("broken.csv") && msg.contains("line 5"), "{msg}");
+        }
+        assert_eq!(r.failures().len(), n);
+        assert!(r.rows[n..].iter().all(|x| !x.is_error()));
+    }
+
+    #[test]
+    fn rows_in_memory_and_in_parts_are_the_file_rows() {
+        let dir = tmpdir("parts");
+        let g = flat_psd_file(&dir, 1e-9);
+        let bad = dir.join("broken.csv");
+        std::fs::write(&bad, "# fs_hz=100\nz_m_s2\n0.1\nabc\n").unwrap();
+        let cat = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
+        let s = file();
+        let winds = [WindCase::calm(), WindCase::parse("4").unwrap()];
+        let grounds = [
+            GroundSource::PsdFile(g),
+            GroundSource::Recording(bad),
+            GroundSource::Reference(crate::spectrum::ReferenceGround::Nhnm),
+        ];
+        let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &winds };
+        let cfg = SweepConfig::new().unwrap().with_grid(FreqGrid::log(1.0, 60.0, 60).unwrap());
+        let whole = sweep_rows(&inputs, &cfg).unwrap();
+        // The file holds the same rows, to six significant digits.
+        let out = dir.join("file.csv");
+        let r = run_sweep(&inputs, &cfg, &out, false, &|_| {}).unwrap();
+        assert_eq!(sweep_csv_text(&whole).unwrap(), std::fs::read_to_string(&out).unwrap());
+        assert_eq!(r.rows.len(), whole.len());
+        // Parts (specs in twos × one ground each, on one thread) give the whole's rows, bit for
+        // bit: every row is computed from its own spec, ground and wind only.
+        let labels = ground_labels(&grounds).unwrap();
+        let one = cfg.clone().with_threads(1);
+        let mut by_key = std::collections::HashMap::new();
+        for part in cat.split(2).unwrap() {
+            for (gi, gr) in grounds.iter().enumerate() {
+                let gs = std::slice::from_ref(gr);
+                let inp = SweepInputs { model: &s, catalogue: &part, grounds: gs, winds: &winds };
+                for row in sweep_rows_labelled(&inp, &labels[gi..=gi], &one).unwrap() {
+                    by_key.insert(row.key.clone(), row);
+                }
+            }
+        }
+        assert_eq!(by_key.len(), whole.len());
+        for w in &whole {
+            let p = &by_key[&w.key];
+            assert_eq!(format!("{p:?}"), format!("{w:?}"), "{}", w.key);
+            assert_eq!(p.rms_arcsec.to_bits(), w.rms_arcsec.to_bits());
+        }
+        assert!(whole.iter().filter(|r| r.spectrum == "broken").all(SweepRow::is_error));
+        assert!(whole.iter().filter(|r| r.spectrum != "broken").all(|r| !r.is_error()));
+        // Inputs refused before anything is read.
+        let e = check_sweep(&SweepInputs { grounds: &[], ..inputs }, &cfg).unwrap_err();
+        assert!(e.to_string().contains("at least one ground"), "{e}");
+        let twice = [grounds[2].clone(), grounds[2].clone()];
+        assert!(check_sweep(&SweepInputs { grounds: &twice, ..inputs }, &cfg).is_err());
+        let twice = [grounds[1].clone(), grounds[1].clone()];
+        let e = check_sweep(&SweepInputs { grounds: &twice, ..inputs }, &cfg).unwrap_err();
+        assert!(e.to_string().contains("given twice"), "{e}");
+        let same_stem = [grounds[1].clone(), GroundSource::Recording(dir.join("sub").join("broken.csv"))];
+        let l = ground_labels(&same_stem).unwrap();
+        assert!(l[0].ends_with("broken.csv") && l[1].ends_with("sub/broken.csv"), "{l:?}");
+        let e = sweep_rows_labelled(&inputs, &labels[..1], &cfg).unwrap_err();
+        assert!(e.to_string().contains("ground labels"), "{e}");
+        let mut zero = cfg.clone();
+        zero.threads = Some(0);
+        assert!(check_sweep(&inputs, &zero).unwrap_err().to_string().contains("threads"));
+    }
+
+    #[test]
+    fn wind_cases_parse_and_refuse_nonsense() {
+        assert_eq!(WindCase::parse("calm").unwrap().wind, None);
+        let w = WindCase::parse("5:3:von-karman:0.25").unwrap();
+        assert_eq!(w.label, "5m/s@3m von-karman I=0.25");
+        assert!(WindCase::parse("fast").unwrap_err().to_string().contains("speed"));
+        assert!(WindCase::parse("5:2:breeze").is_err());
+        assert!(WindCase::parse("-3").is_err());
+    }
+}
