@@ -307,8 +307,9 @@ mod tests {
     fn a_good_row_round_trips_through_values_and_text() {
         let mut r = SweepRow::failed("soft", "night", "calm", String::new());
         r.error = None;
-        r.rms_arcsec = 0.125;
-        r.rms_px = 0.5;
+        (r.rms_arcsec, r.rms_px, r.p_outside_half_px, r.first_mode_hz, r.first_mode_zeta) =
+            (0.125, 0.5, 0.01, 9.5, 0.04);
+        (r.ratio_to_none, r.pad_load_n, r.gust_peak_px, r.gust_settle_s) = (1.5, 30.0, 0.7, 1.25);
         r.worse_than_none = true;
         r.overloaded = Some(false);
         assert_eq!(SweepRow::from_values(r.values()).unwrap(), r);
