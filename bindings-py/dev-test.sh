@@ -18,4 +18,5 @@ rm -rf "$dist"
 
 # Run from outside the source tree so the installed wheel is what gets imported.
 cd "$here/tests"
-"$venv/bin/python" -m pytest -q -p no:cacheprovider .
+cargo build --release --locked -p stillsky-cli --manifest-path "$root/Cargo.toml"
+STILLSKY_BIN="$CARGO_TARGET_DIR/release/stillsky" "$venv/bin/python" -m pytest -q -p no:cacheprovider .

@@ -17,7 +17,9 @@ venv="${STILLSKY_VENV:-$root/target/venv}"
 "$venv/bin/python" -m pip install --quiet --upgrade pip
 "$venv/bin/python" -m pip install --quiet -r "$root/bindings-py/requirements-test.txt"
 CARGO_TARGET_DIR="$root/target" "$venv/bin/python" -m pip install --quiet --force-reinstall --no-deps "$root/bindings-py"
-"$venv/bin/python" -m pytest -q "$root/bindings-py/tests"
+# The Python tests that compare with the command line run this one binary.
+cargo build --release --locked -p stillsky-cli
+STILLSKY_BIN="$root/target/release/stillsky" "$venv/bin/python" -m pytest -q "$root/bindings-py/tests"
 
 echo "== Benches compile"
 cargo bench --workspace --no-run --locked

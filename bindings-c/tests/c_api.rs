@@ -71,23 +71,14 @@ fn reached(stdout: &str) -> BTreeSet<String> {
         .collect()
 }
 
-/// The model of smoke.c (kept identical by hand; a difference fails the 1e-12 comparison).
-const SMOKE_MODEL: &str = r#"
-[[body]]
-name = "mass"
-mass_kg = 25
-cg_m = [0, 0, 1]
-inertia_kgm2 = [1, 1, 1]
-dofs = ["z"]
-[[spring]]
-name = "support"
-from = "ground"
-to = "mass"
-at_m = [0, 0, 0.5]
-direction = [0, 0, 1]
-stiffness_n_per_m = 4e5
-loss_factor = 0.08
-"#;
+#[path = "../../tests/src/fixtures.rs"]
+mod fixtures;
+
+/// The model of smoke.c (the shared fixture with smoke.c's numbers; a difference fails the 1e-12
+/// comparison).
+fn smoke_model() -> String {
+    fixtures::sdof_toml(25.0, "stiffness_n_per_m = 4e5\nloss_factor = 0.08")
+}
 
 #[test]
 fn c_programs_pass_and_match_core() {
@@ -110,7 +101,7 @@ fn c_programs_pass_and_match_core() {
         .collect();
     assert_eq!(rows.len(), 50);
     let f: Vec<f64> = rows.iter().map(|r| r[0]).collect();
-    let model = Model::from_toml_str(SMOKE_MODEL, "smoke").expect("model");
+    let model = Model::from_toml_str(&smoke_model(), "smoke").expect("model");
     let h =
         model.frf(&f, &["ground_z"], &["mass:z"]).expect("frf").series("mass:z", "ground_z").expect("series");
     for (r, h) in rows.iter().zip(&h) {

@@ -11,27 +11,12 @@ use stillsky::transient::{
     random_realisation, step_history,
 };
 
+#[path = "../../tests/src/fixtures.rs"]
+mod fixtures;
+
 /// A single mass on a vertical spring; `k` is the stiffness lines of the spring.
 fn sdof(m: f64, k: &str) -> Model {
-    let text = format!(
-        r#"
-[[body]]
-name = "mass"
-mass_kg = {m}
-cg_m = [0, 0, 1]
-inertia_kgm2 = [1, 1, 1]
-dofs = ["z"]
-
-[[spring]]
-name = "support"
-from = "ground"
-to = "mass"
-at_m = [0, 0, 0.5]
-direction = [0, 0, 1]
-{k}
-"#
-    );
-    Model::from_toml_str(&text, "sdof").unwrap()
+    Model::from_toml_str(&fixtures::sdof_toml(m, k), "sdof").unwrap()
 }
 
 fn viscous_sdof(m: f64, k: f64, zeta: f64) -> Model {

@@ -15,11 +15,7 @@ use stillsky::spectrum::{Extrapolate, Psd, Quantity};
 use stillsky::{Complex64, Error, FreqGrid};
 
 fn sdof(extra: &str, k: &str) -> String {
-    format!(
-        "{extra}\n[[body]]\nname = \"mass\"\nmass_kg = 1\ncg_m = [0, 0, 1]\ninertia_kgm2 = [1, 1, 1]\n\
-         dofs = [\"z\"]\n[[spring]]\nname = \"support\"\nfrom = \"ground\"\nto = \"mass\"\nat_m = [0, 0, 0]\n\
-         direction = [0, 0, 1]\n{k}\n"
-    )
+    format!("{extra}\n{}", stillsky_tests::fixtures::sdof_toml(1.0, k))
 }
 
 const K: &str = "stiffness_n_per_m = 4e5\nloss_factor = 0.05";

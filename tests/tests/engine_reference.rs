@@ -6,24 +6,7 @@ use std::f64::consts::PI;
 use stillsky::{Error, model::Model};
 
 fn sdof(k: &str, m: f64) -> String {
-    format!(
-        r#"
-[[body]]
-name = "mass"
-mass_kg = {m}
-cg_m = [0, 0, 1]
-inertia_kgm2 = [1, 1, 1]
-dofs = ["z"]
-
-[[spring]]
-name = "support"
-from = "ground"
-to = "mass"
-at_m = [0, 0, 0.5]
-direction = [0, 0, 1]
-{k}
-"#
-    )
+    stillsky_tests::fixtures::sdof_toml(m, k)
 }
 
 #[test]

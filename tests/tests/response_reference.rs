@@ -10,25 +10,8 @@ use stillsky::response::{Disturbances, response_psd, response_psd_cross};
 use stillsky::spectrum::{Psd, Quantity};
 
 fn sdof_viscous(k: f64, m: f64, c: f64) -> Model {
-    let text = format!(
-        r#"
-[[body]]
-name = "mass"
-mass_kg = {m}
-cg_m = [0, 0, 1]
-inertia_kgm2 = [1, 1, 1]
-dofs = ["z"]
-[[spring]]
-name = "support"
-from = "ground"
-to = "mass"
-at_m = [0, 0, 0.5]
-direction = [0, 0, 1]
-stiffness_n_per_m = {k}
-damping_ns_per_m = {c}
-"#
-    );
-    Model::from_toml_str(&text, "sdof").unwrap()
+    let k_lines = format!("stiffness_n_per_m = {k}\ndamping_ns_per_m = {c}");
+    Model::from_toml_str(&stillsky_tests::fixtures::sdof_toml(m, &k_lines), "sdof").unwrap()
 }
 
 #[test]
