@@ -250,7 +250,7 @@ dofs = ["z"]
         Model::from_toml_str(&sdof("stiffness_n_per_m = 1e5\nstifness = 3", 1.0), "typo.toml").unwrap_err();
     assert!(matches!(e, Error::Parse { .. }), "{e}");
     let s = e.to_string();
-    assert!(s.contains("stifness") && s.contains("typo.toml") && s.contains("line 16"), "{s}");
+    assert!(s.contains("stifness") && s.contains("typo.toml") && s.contains("line 17"), "{s}");
     // Negative stiffness, NaN mass, zero direction: each names its field.
     let e = Model::from_toml_str(&sdof("stiffness_n_per_m = -5", 1.0), "neg").unwrap_err();
     assert!(e.to_string().contains("spring 'support'.stiffness"), "{e}");
