@@ -173,7 +173,7 @@ def spec_stiffness(z, hy, kv, w):
     return np.stack([kz, kh, kk], axis=-1)
 
 
-def sweep_case(nspec, nf, repeat, full):
+def variants_case(nspec, nf, repeat, full):
     """1000 pad specs replacing s0, s1, s2 of the n = 12 chain; FRF m11:z / ground_z and the RMS
     response to a flat ground-displacement PSD of 1e-12 m^2/Hz (invented) per spec."""
     n = 12
@@ -303,11 +303,11 @@ def sweep_case(nspec, nf, repeat, full):
         return numpy_rational(keep_frf=False)
 
     def ours():
-        h, r = stillsky.spring_sweep(m, ["s0", "s1", "s2"], text, f, "ground_z", "m11:z", input_psd=psd)
+        h, r = stillsky.spring_variants(m, ["s0", "s1", "s2"], text, f, "ground_z", "m11:z", input_psd=psd)
         return h[:, :, 0, 0], r[:, 0, 0]
 
     def ours_rms():
-        _, r = stillsky.spring_sweep(m, ["s0", "s1", "s2"], text, f, "ground_z", "m11:z", input_psd=psd, frf=False)
+        _, r = stillsky.spring_variants(m, ["s0", "s1", "s2"], text, f, "ground_z", "m11:z", input_psd=psd, frf=False)
         return None, r[:, 0, 0]
 
     cases = [
@@ -364,10 +364,10 @@ def main():
     ap.add_argument("--repeat", type=int, default=5)
     ap.add_argument("--welch-size", type=int, action="append", default=None,
                     help="in-memory Welch sizes (default 720000; 86400000 is the 24 h case)")
-    ap.add_argument("--skip-full", action="store_true", help="skip the full-solve sweep (about 5 s)")
-    ap.add_argument("--only", choices=("frf", "modal", "sweep", "welch", "overhead"), action="append", default=None)
+    ap.add_argument("--skip-full", action="store_true", help="skip the full-solve variants case (about 5 s)")
+    ap.add_argument("--only", choices=("frf", "modal", "variants", "welch", "overhead"), action="append", default=None)
     a = ap.parse_args()
-    only = set(a.only or ("frf", "modal", "sweep", "welch", "overhead"))
+    only = set(a.only or ("frf", "modal", "variants", "welch", "overhead"))
     print(f"threads: RAYON={os.environ['RAYON_NUM_THREADS']} OMP={os.environ['OMP_NUM_THREADS']}; "
           f"numpy {np.__version__}, scipy {scipy.__version__}, repeat {a.repeat}")
     if "frf" in only:
@@ -389,9 +389,9 @@ def main():
             print(f"| n={n} F={nf} | {med['numpy']:.4g} | {med['ours']:.4g} | {med['numpy'] / med['ours']:.1f} | {err:.1e} |",
                   flush=True)
             assert err < 1e-9, err
-    if "sweep" in only:
-        med, err = sweep_case(1000, 2048, max(1, min(a.repeat, 3)), full=not a.skip_full)
-        print("\n| sweep 1000 specs x 2048 freq, n = 12, 3 springs | time (s) | ratio to ours (RMS-only rows: to ours_rms_only) | max rel diff |")
+    if "variants" in only:
+        med, err = variants_case(1000, 2048, max(1, min(a.repeat, 3)), full=not a.skip_full)
+        print("\n| spring variants 1000 specs x 2048 freq, n = 12, 3 springs | time (s) | ratio to ours (RMS-only rows: to ours_rms_only) | max rel diff |")
         print("|---|---|---|---|")
         for k in ("full", "woodbury_loop", "vectorised", "rational", "ours", "rational_rms_only", "ours_rms_only"):
             if k in med:

@@ -5,6 +5,7 @@ use crate::status::stillsky_status;
 use std::ffi::c_char;
 use stillsky_core::Complex64;
 use stillsky_core::frf::FrfPlan;
+use stillsky_core::grid::FreqGrid;
 use stillsky_core::model::Model;
 
 /// An assembled structural model (opaque). Created by `stillsky_model_from_toml` or
@@ -126,7 +127,7 @@ unsafe fn frf_series(
     }
     let plan = FrfPlan::new(&m.model, &[input], &[output])?;
     let mut h = vec![Complex64::default(); n_freq];
-    plan.evaluate_into(f, &mut h)?;
+    plan.evaluate_into(&FreqGrid::new(f.to_vec())?, Some(&mut h), None)?;
     Ok(h)
 }
 

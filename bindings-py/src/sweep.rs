@@ -259,7 +259,7 @@ pub fn sweep_key(spec: &str, spectrum: &str, wind: &str) -> String {
 #[pyfunction]
 #[pyo3(signature = (model, springs, replacements_json, freq_hz, input, output, *, input_psd, frf = true))]
 #[allow(clippy::too_many_arguments, clippy::type_complexity)]
-pub fn spring_sweep<'py>(
+pub fn spring_variants<'py>(
     py: Python<'py>,
     model: &crate::model::PyModel,
     springs: Vec<String>,
@@ -273,6 +273,7 @@ pub fn spring_sweep<'py>(
 {
     use crate::convert::{f64_1d, names, slice_or_copy};
     use numpy::PyArrayMethods;
+    use stillsky::frf::RmsOut;
     let reps: Vec<Vec<stillsky::stiffness::StiffnessModel>> = serde_json::from_str(replacements_json)
         .map_err(|e| to_pyerr(Error::invalid("replacements_json", e.to_string())))?;
     let (f, s) = (f64_1d(freq_hz, "freq_hz")?, f64_1d(input_psd, "input_psd")?);
@@ -283,32 +284,30 @@ pub fn spring_sweep<'py>(
     let sp: Vec<&str> = springs.iter().map(String::as_str).collect();
     let i: Vec<&str> = ins.iter().map(String::as_str).collect();
     let o: Vec<&str> = outs.iter().map(String::as_str).collect();
-    let plan = stillsky::sweep::SweepPlan::new(m, &sp, &i, &o).py_err()?;
+    let plan = stillsky::frf::variants::VariantPlan::new(m, &sp, &i, &o).py_err()?;
+    let grid = stillsky::FreqGrid::new(f.into_owned()).py_err()?;
     let (no, ni) = plan.shape();
     let rms = numpy::PyArray3::<f64>::zeros(py, [reps.len(), no, ni], false);
     // numpy allocates the FRF array (zeroed pages, and huge pages where numpy enables them for
-    // large arrays), so the sweep writes into it directly.
-    let h = frf
-        .then(|| numpy::PyArray4::<num_complex::Complex64>::zeros(py, [reps.len(), f.len(), no, ni], false));
+    // large arrays), so the variants are written into it directly.
+    let h = frf.then(|| {
+        numpy::PyArray4::<num_complex::Complex64>::zeros(py, [reps.len(), grid.len(), no, ni], false)
+    });
     {
         let borrow = |e: numpy::BorrowError| pyo3::exceptions::PyRuntimeError::new_err(e.to_string());
         let slice = |e: numpy::AsSliceError| pyo3::exceptions::PyRuntimeError::new_err(e.to_string());
         let mut rw = rms.try_readwrite().map_err(borrow)?;
         let rs = rw.as_slice_mut().map_err(slice)?;
-        match &h {
-            Some(h) => {
-                let mut hw = h.try_readwrite().map_err(borrow)?;
-                let hs = hw.as_slice_mut().map_err(slice)?;
-                py.detach(|| plan.evaluate_with_rms_into(&f, &reps, &s, hs, rs)).py_err()?;
-            }
-            None => py.detach(|| plan.evaluate_rms_into(&f, &reps, &s, rs)).py_err()?,
-        }
+        let mut hw = h.as_ref().map(|h| h.try_readwrite()).transpose().map_err(borrow)?;
+        let hs = hw.as_mut().map(|w| w.as_slice_mut()).transpose().map_err(slice)?;
+        let rms_out = RmsOut { input_psd: &s, rms: rs };
+        py.detach(|| plan.evaluate_into(&grid, &reps, hs, Some(rms_out))).py_err()?;
     }
     Ok((h, rms))
 }
 
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
-    m.add_function(wrap_pyfunction!(spring_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(spring_variants, m)?)?;
     m.add_function(wrap_pyfunction!(sweep_rows, m)?)?;
     m.add_function(wrap_pyfunction!(sweep_plan, m)?)?;
     m.add_function(wrap_pyfunction!(catalogue_toml, m)?)?;

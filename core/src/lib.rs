@@ -31,8 +31,9 @@
 //! - [`soil`]: impedance of a rigid circular contact on an elastic half-space; soil presets.
 //! - [`assembly`]: bodies, nodes, connectors and beams → mass, damping, stiffness matrices.
 //! - [`model`]: the assembled [`model::Model`] with named inputs and outputs.
-//! - [`frf`]: frequency response by direct complex solve per frequency.
-//! - [`modal`]: natural frequencies, mode shapes, modal damping and participation.
+//! - [`frf`]: frequency response by direct complex solve per frequency (or modal superposition
+//!   where exact), and [`frf::variants`] for many variants that each replace a few springs.
+//! - [`modes`]: natural frequencies, mode shapes, modal damping and participation.
 //! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
 //! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
@@ -56,8 +57,8 @@ pub mod image;
 pub mod io;
 pub mod linalg;
 pub mod material;
-pub mod modal;
 pub mod model;
+pub mod modes;
 pub mod monitor;
 pub mod response;
 pub mod rig;
@@ -65,7 +66,6 @@ pub mod section;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;
-pub mod sweep;
 pub mod transient;
 pub mod wind;
 

@@ -56,7 +56,8 @@ pub struct Model {
     pub(crate) k_fg: Vec<Complex64>,
     pub(crate) terms: Vec<Term>,
     /// Every rank-one spring by name, with its full stiffness model (viscous part included);
-    /// used by [`crate::sweep::SweepPlan`]. Z(ω) already contains `model.at(f)·b bᵀ` for each.
+    /// used by [`crate::frf::variants::VariantPlan`]. Z(ω) already contains `model.at(f)·b bᵀ`
+    /// for each.
     pub(crate) springs: Vec<Term>,
     carriers: std::collections::BTreeMap<String, assembly::Carrier>,
 }

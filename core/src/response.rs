@@ -172,7 +172,7 @@ pub fn response_psd(
         modal = Some((modes, r));
     }
     let plan = FrfPlan::with_rows(model, &in_names, names, rows)?;
-    let frf = plan.evaluate(grid.hz())?;
+    let frf = plan.evaluate(grid)?;
     let mut psd = vec![vec![0.0; nf]; no];
     let mut by_input = vec![vec![vec![0.0; nf]; ni]; no];
     for f in 0..nf {

@@ -67,6 +67,7 @@ use crate::error::{
     Error, Result, require_all_finite, require_finite, require_non_negative, require_positive,
 };
 use crate::frf::{FrfPlan, build_dynamic_stiffness};
+use crate::grid::FreqGrid;
 use crate::image::ARCSEC_PER_RAD;
 use crate::linalg::{ComplexLu, RealLu};
 use crate::model::{Input, Model};
@@ -716,8 +717,8 @@ impl Model {
         let no = outputs.len();
         // FRF on the bins: exact f = 0 solve for the DC bin, the plan for the rest.
         let mut h = vec![Complex64::default(); nb * no];
-        let freqs: Vec<f64> = (1..nb).map(|j| j as f64 * fs_hz / l as f64).collect();
-        plan.evaluate_into(&freqs, &mut h[no..])?;
+        let freqs = FreqGrid::new((1..nb).map(|j| j as f64 * fs_hz / l as f64).collect())?;
+        plan.evaluate_into(&freqs, Some(&mut h[no..]), None)?;
         let h0 = self.static_response(&inp, outputs)?;
         h[..no].copy_from_slice(&h0);
 

@@ -21,7 +21,7 @@ fn spring_k(spec: &ModelSpec, name: &str) -> f64 {
 }
 
 /// Index of the mode with the largest effective mass for ground input `d` (0 x, 1 y, 2 z).
-fn mode_along(modes: &stillsky::modal::Modes, d: usize) -> usize {
+fn mode_along(modes: &stillsky::modes::Modes, d: usize) -> usize {
     (0..modes.frequency_hz.len())
         .max_by(|&a, &b| modes.effective_mass_kg[[a, d]].total_cmp(&modes.effective_mass_kg[[b, d]]))
         .unwrap()

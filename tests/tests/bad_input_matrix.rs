@@ -247,7 +247,8 @@ fn buffer_too_small() {
     let m = model();
     let plan = stillsky::frf::FrfPlan::new(&m, &["ground_z"], &["mass:z"]).unwrap();
     let mut out = vec![Complex64::default(); 2];
-    let e = plan.evaluate_into(&[1.0, 2.0, 3.0], &mut out).unwrap_err();
+    let grid = stillsky::FreqGrid::new(vec![1.0, 2.0, 3.0]).unwrap();
+    let e = plan.evaluate_into(&grid, Some(&mut out), None).unwrap_err();
     assert!(matches!(e, Error::ShapeMismatch { expected: 3, got: 2, .. }), "{e:?}");
 }
 

@@ -859,7 +859,7 @@ class StaticChecks:
     def cautions(self) -> str:
         """The cautions that go with every report, one per line."""
     def summary(self) -> dict[str, object]: ...
-def spring_sweep(
+def spring_variants(
     model: Model,
     springs: list[str],
     replacements_json: str,

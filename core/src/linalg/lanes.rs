@@ -1,8 +1,9 @@
 //! Eliminations for [`LANES`] independent complex systems at once, one per SIMD lane.
 //!
-//! An FRF grid or a sweep solves the same sparsity pattern at thousands of frequencies. Solving one
-//! frequency at a time leaves the CPU waiting on each pivot division; solving eight frequencies in
-//! lockstep turns every scalar operation into one vector operation over eight independent chains.
+//! An FRF grid or a set of spring variants solves the same sparsity pattern at thousands of
+//! frequencies. Solving one frequency at a time leaves the CPU waiting on each pivot division;
+//! solving eight frequencies in lockstep turns every scalar operation into one vector operation
+//! over eight independent chains.
 //! The values of the eight systems are stored split into real and imaginary lanes ([`CLane`]).
 //!
 //! The lane kernels take no row exchanges (a row exchange differs per lane). Instead each lane's
@@ -331,8 +332,8 @@ impl BandLanes {
 }
 
 /// Dense K × K systems without row exchanges, unrolled at compile time (the capacitance systems
-/// of a sweep). `a[p][q]` = A(p, q) is overwritten by L below the diagonal and the inverse pivots
-/// on it. Returns the lanes whose pivots fail [`SINGULAR_PIVOT_RATIO`].
+/// of the variants engine). `a[p][q]` = A(p, q) is overwritten by L below the diagonal and the
+/// inverse pivots on it. Returns the lanes whose pivots fail [`SINGULAR_PIVOT_RATIO`].
 #[inline(always)]
 pub fn dense_factor<const K: usize>(a: &mut [[CLane; K]; K]) -> LaneMask {
     let mut lo = [f64::INFINITY; LANES];
@@ -420,7 +421,7 @@ pub fn dense_backward_error_mask<const K: usize>(
 /// subset mask T (bit i: row and column i; the empty minor is 1), each with the permanent of
 /// |M[T, T]|: the sum of the moduli of its Laplace terms, which bounds its rounding error
 /// (Higham 2002, §14.6, for the error of a sum of products). Laplace expansion along the first
-/// row; for the small matrices of a sweep's rational form (n ≤ 5, 31 minors).
+/// row; for the small matrices of the variants engine's rational form (n ≤ 5, 31 minors).
 pub fn principal_minors(m: &[CLane], n: usize) -> (Vec<CLane>, Vec<Lane>) {
     fn expand(m: &[CLane], abs: &[Lane], n: usize, rows: u32, cols: u32) -> (CLane, Lane) {
         if rows == 0 {

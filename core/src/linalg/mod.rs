@@ -8,9 +8,13 @@
 //!   factorisation in the crate; it is tested against faer's dense LU (tests below).
 //! - [`sym_generalized_eigen`]: K φ = λ M φ for symmetric K and positive-definite M.
 //! - [`lanes`]: banded and small dense eliminations of eight systems at once (one per SIMD
-//!   lane), for FRF grids and sweeps.
+//!   lane), for FRF grids and spring variants.
+//! - [`rational`]: multilinear (rational-form) sums over SIMD lanes for the variants engine.
+//!
+//! Explicit SIMD (`pulp`) lives only in this module.
 
 pub mod lanes;
+pub mod rational;
 
 use crate::error::{Error, Result};
 use faer::dyn_stack::{MemBuffer, MemStack};
@@ -90,8 +94,8 @@ fn pivot_ratio_check(lo_sq: f64, hi_sq: f64) -> std::result::Result<(), f64> {
 /// Solve a small dense k × k complex system A X = B in place by Gaussian elimination with
 /// partial pivoting (|re| + |im| pivot choice, as LAPACK's `izamax`): `a` column-major k × k is
 /// overwritten, `b` column-major k × nrhs receives X. For the handful-sized capacitance systems
-/// of [`crate::sweep`], where a general LU's set-up costs more than the arithmetic. Returns
-/// `Err(ratio)` like [`ComplexLu::solve_in_place`] when A is numerically singular.
+/// of [`crate::frf::variants`], where a general LU's set-up costs more than the arithmetic.
+/// Returns `Err(ratio)` like [`ComplexLu::solve_in_place`] when A is numerically singular.
 pub fn solve_small_in_place(
     a: &mut [Complex64],
     k: usize,
@@ -161,8 +165,8 @@ pub fn solve_small_in_place(
 /// max(0, j − ku) ≤ i ≤ min(n − 1, j + kl); the top `kl` rows hold the fill-in that row
 /// interchanges create. The algorithm is the unblocked `gbtf2` factorisation and `gbtrs` solve
 /// (Anderson et al., LAPACK Users' Guide, 3rd ed., SIAM 1999, §5.3.2); cost O(n·kl·(kl + ku)).
-/// With kl = ku = n − 1 it is an ordinary dense partial-pivot LU, which [`crate::sweep`] uses for
-/// its k × k capacitance systems (k = number of replaced springs, a handful).
+/// With kl = ku = n − 1 it is an ordinary dense partial-pivot LU, which [`crate::frf::variants`]
+/// uses for its k × k capacitance systems (k = number of replaced springs, a handful).
 #[derive(Debug, Clone)]
 pub struct BandLu {
     n: usize,

@@ -1,4 +1,4 @@
-//! Batch sweeps that replace a few rank-one springs of a model (isolator pads, feet).
+//! Many variants of one model, each replacing a few rank-one springs (isolator pads, feet).
 //!
 //! With U = [b_1 … b_k] the full-system vectors of the replaced springs and
 //! D(ω) = diag(k_new,s(f) − k_old,s(f)) (complete complex stiffness, viscous part included), every
@@ -21,14 +21,17 @@
 //! Both stages run eight frequencies at once, one per SIMD lane ([`crate::linalg::lanes`]): the
 //! reference solves through [`FrfPlan`]'s lane kernel, the capacitance systems through the same
 //! banded kernel with kl = ku = k − 1, each lane checked by its backward error and redone by the
-//! pivoted scalar solver when the check fails. The RMS integral is accumulated in the same pass.
+//! pivoted scalar solver when the check fails; the rational-form sums are those of
+//! [`crate::linalg::rational`]. The RMS integral is accumulated in the same pass.
 
+use super::{FrfPlan, RmsOut, trapezoid_psd_weights};
 use crate::error::{Error, Result};
-use crate::frf::FrfPlan;
+use crate::grid::FreqGrid;
 use crate::linalg::lanes::{
     BandLanes, CLane, LANES, Lane, LaneMask, dense_backward_error_mask, dense_factor, dense_solve, pad_block,
     principal_minors, with_best_simd,
 };
+use crate::linalg::rational::{RationalLoop, RationalSums, with_rational_sums};
 use crate::linalg::solve_small_in_place;
 use crate::model::{Input, Model};
 use crate::stiffness::StiffnessModel;
@@ -43,9 +46,9 @@ pub const RATIONAL_SPRINGS_MAX: usize = 4;
 /// 1e4·(k + 2)·ε ≈ 1e-11 relative error); larger ratios take the capacitance solve.
 pub const CANCELLATION_MAX: f64 = 1e4;
 
-/// A sweep over replacement stiffness models for named springs of one model.
+/// Variants of one model that each replace the same named springs by other stiffness models.
 #[derive(Debug, Clone)]
-pub struct SweepPlan<'m> {
+pub struct VariantPlan<'m> {
     plan: FrfPlan<'m>,
     springs: Vec<usize>,
     /// U_f columns, sparse over the free DOFs (model order).
@@ -57,7 +60,7 @@ pub struct SweepPlan<'m> {
     rational: bool,
 }
 
-impl<'m> SweepPlan<'m> {
+impl<'m> VariantPlan<'m> {
     /// Resolve the springs to replace (by their names in the model file) and the inputs/outputs.
     pub fn new(model: &'m Model, spring_names: &[&str], inputs: &[&str], outputs: &[&str]) -> Result<Self> {
         if spring_names.is_empty() {
@@ -90,7 +93,7 @@ impl<'m> SweepPlan<'m> {
                 }
             }
         }
-        Ok(SweepPlan { plan, springs, u, gvec, n_out: outputs.len(), rational: k <= RATIONAL_SPRINGS_MAX })
+        Ok(VariantPlan { plan, springs, u, gvec, n_out: outputs.len(), rational: k <= RATIONAL_SPRINGS_MAX })
     }
 
     /// The same plan with the rational form switched on or off (tests compare both paths).
@@ -117,7 +120,7 @@ impl<'m> SweepPlan<'m> {
     }
 
     /// Reference solutions reduced to what each variant needs, one record of
-    /// [`SweepPlan::rec_len`] lanes per block of [`LANES`] frequencies.
+    /// [`VariantPlan::rec_len`] lanes per block of [`LANES`] frequencies.
     fn reduce(&self, f: &[f64]) -> Result<(Vec<CLane>, Vec<Lane>)> {
         let model = self.plan.model();
         let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
@@ -223,46 +226,43 @@ impl<'m> SweepPlan<'m> {
     /// FRFs of every variant, shape (n_variant, n_freq, n_out, n_in).
     pub fn evaluate(
         &self,
-        freq_hz: &[f64],
+        grid: &FreqGrid,
         replacements: &[Vec<StiffnessModel>],
     ) -> Result<Array4<Complex64>> {
-        crate::grid::validate_freqs("freq_hz", freq_hz)?;
-        let mut a = Array4::zeros((replacements.len(), freq_hz.len(), self.n_out, self.plan.n_inputs()));
-        let buf = a.as_slice_mut().ok_or_else(|| Error::invalid("sweep output", "not contiguous"))?;
-        self.evaluate_into(freq_hz, replacements, buf)?;
+        let mut a = Array4::zeros((replacements.len(), grid.len(), self.n_out, self.plan.n_inputs()));
+        let buf = a.as_slice_mut().ok_or_else(|| Error::invalid("variant FRFs", "not contiguous"))?;
+        self.evaluate_into(grid, replacements, Some(buf), None)?;
         Ok(a)
     }
 
-    /// FRFs of every variant and the RMS response of each (variant, output, input) pair to an
-    /// input PSD given on `freq_hz`: RMS = sqrt(∫ |H|² S df), trapezoid rule on the grid.
-    /// Shapes: FRF (n_variant, n_freq, n_out, n_in), RMS (n_variant, n_out, n_in).
-    pub fn evaluate_with_rms(
+    /// Only the RMS responses to `input_psd`, shape (n_variant, n_out, n_in): no FRF array is
+    /// stored, so memory does not grow with n_variant × n_freq (ranking specs needs only these).
+    pub fn evaluate_rms(
         &self,
-        freq_hz: &[f64],
+        grid: &FreqGrid,
         replacements: &[Vec<StiffnessModel>],
         input_psd: &[f64],
-    ) -> Result<(Array4<Complex64>, Array3<f64>)> {
-        let (ni, no) = (self.plan.n_inputs(), self.n_out);
-        let mut h = Array4::zeros((replacements.len(), freq_hz.len(), no, ni));
-        let mut rms = Array3::<f64>::zeros((replacements.len(), no, ni));
-        let hs = h.as_slice_mut().ok_or_else(|| Error::invalid("sweep output", "not contiguous"))?;
-        let rs = rms.as_slice_mut().ok_or_else(|| Error::invalid("sweep RMS", "not contiguous"))?;
-        self.evaluate_with_rms_into(freq_hz, replacements, input_psd, hs, rs)?;
-        Ok((h, rms))
+    ) -> Result<Array3<f64>> {
+        let mut rms = Array3::<f64>::zeros((replacements.len(), self.n_out, self.plan.n_inputs()));
+        let rs = rms.as_slice_mut().ok_or_else(|| Error::invalid("variant RMS", "not contiguous"))?;
+        self.evaluate_into(grid, replacements, None, Some(RmsOut { input_psd, rms: rs }))?;
+        Ok(rms)
     }
 
-    /// [`SweepPlan::evaluate_with_rms`] into caller-owned buffers, laid out row-major as its
-    /// arrays (callers that own a large output, such as a binding handing it to numpy, avoid a
-    /// copy).
-    pub fn evaluate_with_rms_into(
+    /// Evaluate every variant into caller-owned buffers (callers that own a large output, such
+    /// as a binding handing it to numpy, avoid a copy): the FRFs into `frf_out` when given, laid
+    /// out (n_variant, n_freq, n_out, n_in) row-major, and the RMS response of each (variant,
+    /// output, input) to an input PSD when `rms` is given, laid out (n_variant, n_out, n_in);
+    /// RMS = sqrt(∫ |H|² S df), trapezoid rule on the grid. `replacements[v][s]` replaces the
+    /// s-th named spring in variant v. The RMS is the same arithmetic with or without `frf_out`.
+    pub fn evaluate_into(
         &self,
-        freq_hz: &[f64],
+        grid: &FreqGrid,
         replacements: &[Vec<StiffnessModel>],
-        input_psd: &[f64],
-        out: &mut [Complex64],
-        rms: &mut [f64],
+        frf_out: Option<&mut [Complex64]>,
+        rms: Option<RmsOut<'_>>,
     ) -> Result<()> {
-        self.run(freq_hz, replacements, Some(out), Some((input_psd, rms))).map(|_| ())
+        self.run(grid, replacements, frf_out, rms).map(|_| ())
     }
 
     /// Output and input counts (n_out, n_in) of the FRF layout.
@@ -270,62 +270,23 @@ impl<'m> SweepPlan<'m> {
         (self.n_out, self.plan.n_inputs())
     }
 
-    /// Only the RMS responses, shape (n_variant, n_out, n_in): the same arithmetic as
-    /// [`SweepPlan::evaluate_with_rms`] without storing the FRFs, so memory does not grow with
-    /// n_variant × n_freq (ranking specs needs only the RMS).
-    pub fn evaluate_rms(
-        &self,
-        freq_hz: &[f64],
-        replacements: &[Vec<StiffnessModel>],
-        input_psd: &[f64],
-    ) -> Result<Array3<f64>> {
-        let mut rms = Array3::<f64>::zeros((replacements.len(), self.n_out, self.plan.n_inputs()));
-        let rs = rms.as_slice_mut().ok_or_else(|| Error::invalid("sweep RMS", "not contiguous"))?;
-        self.evaluate_rms_into(freq_hz, replacements, input_psd, rs)?;
-        Ok(rms)
-    }
-
-    /// [`SweepPlan::evaluate_rms`] into a caller-owned buffer (n_variant, n_out, n_in).
-    pub fn evaluate_rms_into(
-        &self,
-        freq_hz: &[f64],
-        replacements: &[Vec<StiffnessModel>],
-        input_psd: &[f64],
-        rms: &mut [f64],
-    ) -> Result<()> {
-        self.run(freq_hz, replacements, None, Some((input_psd, rms))).map(|_| ())
-    }
-
-    /// FRFs of every variant into `out`, laid out (n_variant, n_freq, n_out, n_in) row-major.
-    /// `replacements[v][s]` replaces the s-th named spring in variant v.
-    pub fn evaluate_into(
-        &self,
-        freq_hz: &[f64],
-        replacements: &[Vec<StiffnessModel>],
-        out: &mut [Complex64],
-    ) -> Result<()> {
-        self.run(freq_hz, replacements, Some(out), None).map(|_| ())
-    }
-
-    /// FRFs into `out` (when given) and, given (input PSD, RMS buffer (n_variant, n_out, n_in)),
-    /// the RMS.
-    /// Returns how many (variant, frequency) pairs the rational form handed to the capacitance
-    /// solve.
+    /// [`VariantPlan::evaluate_into`]; returns how many (variant, frequency) pairs the rational
+    /// form handed to the capacitance solve.
     fn run(
         &self,
-        freq_hz: &[f64],
+        grid: &FreqGrid,
         replacements: &[Vec<StiffnessModel>],
         out: Option<&mut [Complex64]>,
-        rms: Option<(&[f64], &mut [f64])>,
+        rms: Option<RmsOut<'_>>,
     ) -> Result<usize> {
-        crate::grid::validate_freqs("freq_hz", freq_hz)?;
+        let freq_hz = grid.hz();
         let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
         let nf = freq_hz.len();
         let per_v = ni * no * nf;
         if let Some(o) = &out
             && o.len() != per_v * replacements.len()
         {
-            return Err(Error::shape("sweep output buffer", per_v * replacements.len(), o.len()));
+            return Err(Error::shape("variant FRF buffer", per_v * replacements.len(), o.len()));
         }
         for (v, r) in replacements.iter().enumerate() {
             if r.len() != k {
@@ -335,29 +296,19 @@ impl<'m> SweepPlan<'m> {
                 m.validate(format_args!("replacements[{v}][{s}]"))?;
             }
         }
-        // Trapezoid weights times the PSD: Σ_k w_k |H_k|² equals Σ ½ (f_k − f_{k−1}) (y_k + y_{k−1}).
+        // Trapezoid weights times the PSD, padded to whole lane blocks (zero without an RMS).
         let mut wts = vec![0.0; nf.next_multiple_of(LANES)];
         let mut rms_out = None;
-        if let Some((psd, r)) = rms {
-            if psd.len() != nf {
-                return Err(Error::shape("input_psd (one value per frequency)", nf, psd.len()));
-            }
-            for (i, &v) in psd.iter().enumerate() {
-                crate::error::require_non_negative(|| format!("input_psd[{i}]"), v)?;
-            }
+        if let Some(RmsOut { input_psd, rms: r }) = rms {
+            wts = trapezoid_psd_weights(grid, input_psd, nf.next_multiple_of(LANES))?;
             if r.len() != replacements.len() * no * ni {
-                return Err(Error::shape("sweep RMS buffer", replacements.len() * no * ni, r.len()));
-            }
-            for i in 1..nf {
-                let h = 0.5 * (freq_hz[i] - freq_hz[i - 1]);
-                wts[i - 1] += h * psd[i - 1];
-                wts[i] += h * psd[i];
+                return Err(Error::shape("variant RMS buffer", replacements.len() * no * ni, r.len()));
             }
             rms_out = Some(r);
         }
         let (recs, bounds) = self.reduce(freq_hz)?;
         // Variants in chunks (parallel), each run by [`VariantLoop`]. A chunk writes one FRF
-        // stream per variant, a block at a time; with 64 streams the whole FRF sweep took
+        // stream per variant, a block at a time; with 64 streams the whole FRF evaluation took
         // 33–36 ms, with 16 about 21 ms (same machine, one thread; RMS-only 14–15 ms either way).
         let chunk = replacements.len().div_ceil(4 * rayon::current_num_threads()).clamp(1, 16);
         let mut rms_buf = vec![0.0; replacements.len() * no * ni];
@@ -371,7 +322,7 @@ impl<'m> SweepPlan<'m> {
             .zip(rms_buf.par_chunks_mut(chunk * no * ni))
             .map(|((o, reps), racc)| {
                 let mut ws = VariantScratch::new(k, ni, no, reps.len());
-                let redone = pulp::Arch::new().dispatch(VariantLoop {
+                let redone = with_rational_sums(VariantLoop {
                     plan: self,
                     recs: &recs,
                     bounds: &bounds,
@@ -397,16 +348,16 @@ impl<'m> SweepPlan<'m> {
     /// the stiffness changes in `ws.d`: the FRFs into `ws.y`, and the lanes whose rounding bound
     /// fails [`CANCELLATION_MAX`].
     #[inline(always)]
-    fn rational_form<S: pulp::Simd, const K: usize, const NS: usize>(
+    fn rational_form<R: RationalSums, const K: usize, const NS: usize>(
         &self,
-        simd: S,
+        sums: R,
         ws: &mut VariantScratch,
         r: &[CLane],
         rb: &[Lane],
     ) -> LaneMask {
         let [.., rat] = self.split(r);
         let VariantScratch { d, y, .. } = ws;
-        pulp::WithSimd::with_simd(RationalSums::<K, NS> { d: &d[..K], c: rat, cb: rb, y }, simd)
+        sums.quotients::<K, NS>(d, rat, rb, CANCELLATION_MAX, y)
     }
 
     /// Write the block's FRFs `ws.y` for its `count` valid lanes into `dst` (when given) and add
@@ -475,7 +426,7 @@ impl<'m> SweepPlan<'m> {
     }
 
     /// Capacitance systems (I + D G) w = D (g − h) for k = K springs, D from `ws.d`
-    /// ([`SweepPlan::stiffness_change`]), unrolled: `ws.w` gets w,
+    /// ([`VariantPlan::stiffness_change`]), unrolled: `ws.w` gets w,
     /// `ws.a0`/`ws.w0` the systems (column-major k × k, k × n_in), `ws.bad` the lanes to redo.
     #[inline(always)]
     fn capacitance_small<const K: usize>(&self, ws: &mut VariantScratch, r: &[CLane]) {
@@ -515,7 +466,7 @@ impl<'m> SweepPlan<'m> {
         ws.bad = bad;
     }
 
-    /// [`SweepPlan::capacitance_small`] for any k (banded kernel with kl = ku = k − 1).
+    /// [`VariantPlan::capacitance_small`] for any k (banded kernel with kl = ku = k − 1).
     #[inline(always)]
     fn capacitance_band(&self, ws: &mut VariantScratch, r: &[CLane]) {
         let k = self.springs.len();
@@ -589,7 +540,7 @@ impl<'m> SweepPlan<'m> {
 /// frequencies outermost so a block's record stays in L1 while every variant of the chunk uses
 /// it. Returns how many (variant, frequency) pairs the rational form handed over.
 struct VariantLoop<'a, 'm> {
-    plan: &'a SweepPlan<'m>,
+    plan: &'a VariantPlan<'m>,
     recs: &'a [CLane],
     bounds: &'a [Lane],
     freq_hz: &'a [f64],
@@ -600,11 +551,11 @@ struct VariantLoop<'a, 'm> {
     ws: &'a mut VariantScratch,
 }
 
-impl pulp::WithSimd for VariantLoop<'_, '_> {
+impl RationalLoop for VariantLoop<'_, '_> {
     type Output = Result<usize>;
 
     #[inline(always)]
-    fn with_simd<S: pulp::Simd>(self, simd: S) -> Result<usize> {
+    fn run<R: RationalSums>(self, sums: R) -> Result<usize> {
         let VariantLoop { plan, recs, bounds, freq_hz, wts, reps, mut out, ws } = self;
         let (k, ni, no) = (plan.springs.len(), plan.plan.n_inputs(), plan.n_out);
         let per_v = ni * no * freq_hz.len();
@@ -625,10 +576,10 @@ impl pulp::WithSimd for VariantLoop<'_, '_> {
                 plan.stiffness_change(ws, k_old, rep, &fl);
                 let rejected = valid
                     & match (plan.rational, k) {
-                        (true, 1) => plan.rational_form::<S, 1, 2>(simd, ws, r, rb),
-                        (true, 2) => plan.rational_form::<S, 2, 4>(simd, ws, r, rb),
-                        (true, 3) => plan.rational_form::<S, 3, 8>(simd, ws, r, rb),
-                        (true, 4) => plan.rational_form::<S, 4, 16>(simd, ws, r, rb),
+                        (true, 1) => plan.rational_form::<R, 1, 2>(sums, ws, r, rb),
+                        (true, 2) => plan.rational_form::<R, 2, 4>(sums, ws, r, rb),
+                        (true, 3) => plan.rational_form::<R, 3, 8>(sums, ws, r, rb),
+                        (true, 4) => plan.rational_form::<R, 4, 16>(sums, ws, r, rb),
                         _ => LaneMask::MAX,
                     };
                 if rejected == 0 {
@@ -649,106 +600,6 @@ impl pulp::WithSimd for VariantLoop<'_, '_> {
         }
         Ok(redone)
     }
-}
-
-/// The sums of the rational form for one lane block, written with explicit SIMD vectors (the
-/// compiler did not vectorise them across lanes by itself). `c`/`cb` hold [D_S | N_t,S] and their
-/// bounds; `y` gets N_t/D per (output, input) t.
-struct RationalSums<'a, const K: usize, const NS: usize> {
-    d: &'a [CLane],
-    c: &'a [CLane],
-    cb: &'a [Lane],
-    y: &'a mut [CLane],
-}
-
-impl<const K: usize, const NS: usize> pulp::WithSimd for RationalSums<'_, K, NS> {
-    type Output = LaneMask;
-
-    #[inline(always)]
-    fn with_simd<S: pulp::Simd>(self, simd: S) -> LaneMask {
-        const { assert!(NS == 1 << K) };
-        let RationalSums { d, c, cb, y } = self;
-        let chunks = S::as_simd_f64s(&[0.0; LANES]).0.len();
-        debug_assert_eq!(chunks * S::F64_LANES, LANES);
-        let (zero, one) = (simd.splat_f64s(0.0), simd.splat_f64s(1.0));
-        let (mut flags, mut any) = ([0.0; LANES], zero);
-        for q in 0..chunks {
-            // d_s and cabs1(d_s), which bounds |d_s|.
-            let mut dv = [[zero; K]; 3];
-            for p in 0..K {
-                let (xr, xi) = (chunk::<S>(&d[p].re, q), chunk::<S>(&d[p].im, q));
-                dv[0][p] = xr;
-                dv[1][p] = xi;
-                dv[2][p] = simd.add_f64s(simd.abs_f64s(xr), simd.abs_f64s(xi));
-            }
-            let mut ok = simd.less_than_or_equal_f64s(zero, zero);
-            let (dr, di) = rational_sum::<S, K, NS>(simd, &dv, &c[..NS], &cb[..NS], q, &mut ok);
-            let rinv = simd.div_f64s(one, simd.mul_add_e_f64s(dr, dr, simd.mul_f64s(di, di)));
-            let (ir, ii) = (simd.mul_f64s(dr, rinv), simd.neg_f64s(simd.mul_f64s(di, rinv)));
-            for (t, yt) in y.iter_mut().enumerate() {
-                let span = NS * (t + 1)..NS * (t + 2);
-                let (nr, ni) = rational_sum::<S, K, NS>(simd, &dv, &c[span.clone()], &cb[span], q, &mut ok);
-                S::as_mut_simd_f64s(&mut yt.re).0[q] =
-                    simd.negate_mul_add_e_f64s(ni, ii, simd.mul_f64s(nr, ir));
-                S::as_mut_simd_f64s(&mut yt.im).0[q] = simd.mul_add_e_f64s(nr, ii, simd.mul_f64s(ni, ir));
-            }
-            let flag = simd.select_f64s(ok, zero, one);
-            S::as_mut_simd_f64s(&mut flags).0[q] = flag;
-            any = simd.add_f64s(any, flag);
-        }
-        // Nearly every block passes: one horizontal sum decides whether to build the mask.
-        let mut bad: LaneMask = 0;
-        if simd.reduce_sum_f64s(any) != 0.0 {
-            for (l, f) in flags.iter().enumerate() {
-                bad |= ((*f != 0.0) as LaneMask) << l;
-            }
-        }
-        bad
-    }
-}
-
-/// SIMD chunk `q` of a lane array.
-#[inline(always)]
-fn chunk<S: pulp::Simd>(x: &Lane, q: usize) -> S::f64s {
-    S::as_simd_f64s(x).0[q]
-}
-
-/// Σ_S d_S c_S over one chunk, nested one spring at a time (c_S + d_s c_{S∪s}, a tree of
-/// 2^k − 1 complex multiply-adds), with dv = [Re d_s, Im d_s, cabs1 d_s]; the same nesting of the
-/// bounds gives Σ |d_S| b_S. Lanes where that exceeds [`CANCELLATION_MAX`]·cabs1(sum), or is not
-/// a number, clear `ok`.
-#[inline(always)]
-fn rational_sum<S: pulp::Simd, const K: usize, const NS: usize>(
-    simd: S,
-    dv: &[[S::f64s; K]; 3],
-    c: &[CLane],
-    cb: &[Lane],
-    q: usize,
-    ok: &mut S::m64s,
-) -> (S::f64s, S::f64s) {
-    let [dr, di, da] = dv;
-    let zero = simd.splat_f64s(0.0);
-    let (mut vr, mut vi, mut vb) = ([zero; NS], [zero; NS], [zero; NS]);
-    for s in 0..NS {
-        vr[s] = chunk::<S>(&c[s].re, q);
-        vi[s] = chunk::<S>(&c[s].im, q);
-        vb[s] = chunk::<S>(&cb[s], q);
-    }
-    // Bit p of the subset index is spring p; each level folds the lowest remaining bit.
-    let mut h = NS;
-    for p in 0..K {
-        h /= 2;
-        for s in 0..h {
-            let (ar, ai, br, bi) = (vr[2 * s], vi[2 * s], vr[2 * s + 1], vi[2 * s + 1]);
-            vr[s] = simd.negate_mul_add_e_f64s(di[p], bi, simd.mul_add_e_f64s(dr[p], br, ar));
-            vi[s] = simd.mul_add_e_f64s(di[p], br, simd.mul_add_e_f64s(dr[p], bi, ai));
-            vb[s] = simd.mul_add_e_f64s(da[p], vb[2 * s + 1], vb[2 * s]);
-        }
-    }
-    let a = simd.add_f64s(simd.abs_f64s(vr[0]), simd.abs_f64s(vi[0]));
-    let fine = simd.less_than_or_equal_f64s(vb[0], simd.mul_f64s(simd.splat_f64s(CANCELLATION_MAX), a));
-    *ok = simd.and_m64s(*ok, fine);
-    (vr[0], vi[0])
 }
 
 /// Per-task scratch of the variant loop.
@@ -794,11 +645,27 @@ mod tests {
     use super::*;
     use crate::frf::tests::{chain, max_rel_diff};
 
+    /// FRFs and RMS of every variant as owned arrays, through [`VariantPlan::evaluate_into`].
+    fn with_rms(
+        plan: &VariantPlan,
+        grid: &FreqGrid,
+        reps: &[Vec<StiffnessModel>],
+        psd: &[f64],
+    ) -> Result<(Array4<Complex64>, Array3<f64>)> {
+        let (no, ni) = plan.shape();
+        let mut h = Array4::zeros((reps.len(), grid.len(), no, ni));
+        let mut rms = Array3::zeros((reps.len(), no, ni));
+        let rms_out = RmsOut { input_psd: psd, rms: rms.as_slice_mut().unwrap() };
+        plan.evaluate_into(grid, reps, Some(h.as_slice_mut().unwrap()), Some(rms_out))?;
+        Ok((h, rms))
+    }
+
     #[test]
-    fn woodbury_sweep_matches_direct_models() {
+    fn woodbury_variants_match_direct_models() {
         // Oracle: a model assembled with the replacement springs, solved by the dense direct path.
         let base = chain(12, &[]);
         let f: Vec<f64> = (0..400).map(|k| 0.5 + k as f64 * 0.9).collect();
+        let g = FreqGrid::new(f.clone()).unwrap();
         let names = ["s0", "s1", "s5"];
         let variants: Vec<(Vec<StiffnessModel>, [String; 3])> = (0..4)
             .map(|v| {
@@ -823,18 +690,18 @@ mod tests {
             .collect();
         let ins = ["ground_z", "force:m3:z"];
         let outs = ["m11:z", "m2:z"];
-        let plan = SweepPlan::new(&base, &names, &ins, &outs).unwrap();
+        let plan = VariantPlan::new(&base, &names, &ins, &outs).unwrap();
         let reps: Vec<Vec<StiffnessModel>> = variants.iter().map(|v| v.0.clone()).collect();
-        let run = |p: &SweepPlan| {
+        let run = |p: &VariantPlan| {
             let mut got = Array4::zeros((reps.len(), f.len(), outs.len(), ins.len()));
-            let redone = p.run(&f, &reps, Some(got.as_slice_mut().unwrap()), None).unwrap();
+            let redone = p.run(&g, &reps, Some(got.as_slice_mut().unwrap()), None).unwrap();
             (got, redone)
         };
         let (got, redone) = run(&plan);
         let (capacitance, _) = run(&plan.clone().with_rational(false));
         assert_eq!(redone, 0, "well-damped chain: no lane should need the capacitance solve");
         let psd: Vec<f64> = f.iter().map(|x| 1e-12 / (1.0 + x / 30.0)).collect();
-        let rms_only = plan.evaluate_rms(&f, &reps, &psd).unwrap();
+        let rms_only = plan.evaluate_rms(&g, &reps, &psd).unwrap();
         for (v, (_, toml)) in variants.iter().enumerate() {
             let mut pads: Vec<String> = (0..12)
                 .map(|i| {
@@ -854,14 +721,14 @@ mod tests {
             let direct = FrfPlan::new(&m, &ins, &outs)
                 .unwrap()
                 .with_solver(crate::frf::SolverChoice::Dense)
-                .evaluate(&f)
+                .evaluate(&g)
                 .unwrap();
             for (path, got) in [("rational", &got), ("capacitance", &capacitance)] {
                 let g = got.index_axis(ndarray::Axis(0), v).to_owned();
                 let e = max_rel_diff(g.as_slice().unwrap(), direct.data.as_slice().unwrap());
                 assert!(e < 1e-9, "{path}, variant {v}: {e}");
             }
-            // The RMS-only sweep against the trapezoid rule on the direct FRFs (DESIGN.md rule).
+            // The RMS-only evaluation against the trapezoid rule on the direct FRFs (DESIGN.md rule).
             for (o, j) in (0..outs.len()).flat_map(|o| (0..ins.len()).map(move |j| (o, j))) {
                 let y = |k: usize| direct.data[[k, o, j]].norm_sqr() * psd[k];
                 let ms: f64 = (1..f.len()).map(|k| 0.5 * (f[k] - f[k - 1]) * (y(k) + y(k - 1))).sum();
@@ -881,14 +748,15 @@ mod tests {
         // the RMS is then the trapezoid integral of |H|²·S of that direct FRF (DESIGN.md rule).
         let base = chain(6, &[]);
         let f: Vec<f64> = (0..300).map(|k| 0.5 + k as f64 * 1.3).collect();
+        let g = FreqGrid::new(f.clone()).unwrap();
         let s: Vec<f64> = f.iter().map(|x| 1e-12 / (1.0 + x / 50.0)).collect();
         let same = vec![vec![StiffnessModel::Zener { k0: 4e5, k_inf: 1.2e6, tau_s: 0.002 }]];
-        let plan = SweepPlan::new(&base, &["s0"], &["ground_z"], &["m5:z"]).unwrap();
-        let (h, rms) = plan.evaluate_with_rms(&f, &same, &s).unwrap();
+        let plan = VariantPlan::new(&base, &["s0"], &["ground_z"], &["m5:z"]).unwrap();
+        let (h, rms) = with_rms(&plan, &g, &same, &s).unwrap();
         let d = FrfPlan::new(&base, &["ground_z"], &["m5:z"])
             .unwrap()
             .with_solver(crate::frf::SolverChoice::Dense)
-            .evaluate(&f)
+            .evaluate(&g)
             .unwrap();
         let e = max_rel_diff(h.as_slice().unwrap(), d.data.as_slice().unwrap());
         assert!(e < 1e-9, "{e}");
@@ -899,10 +767,10 @@ mod tests {
             })
             .sum();
         assert!((rms[[0, 0, 0]] - ms.sqrt()).abs() <= 1e-9 * ms.sqrt());
-        assert!(matches!(plan.evaluate_with_rms(&f, &same, &s[1..]), Err(Error::ShapeMismatch { .. })));
+        assert!(matches!(with_rms(&plan, &g, &same, &s[1..]), Err(Error::ShapeMismatch { .. })));
         let mut neg = s.clone();
         neg[3] = -1.0;
-        assert!(plan.evaluate_with_rms(&f, &same, &neg).is_err());
+        assert!(with_rms(&plan, &g, &same, &neg).is_err());
     }
 
     #[test]
@@ -911,6 +779,7 @@ mod tests {
         // 13-point grid include padding. Oracle: rebuilt models solved by the dense direct path.
         let base = chain(8, &[]);
         let f: Vec<f64> = (0..13).map(|k| 1.0 + k as f64 * 37.0).collect();
+        let g = FreqGrid::new(f.clone()).unwrap();
         let names = ["s0", "s1", "s2", "s3", "s4"];
         let reps: Vec<Vec<StiffnessModel>> = (0..3)
             .map(|v| {
@@ -922,9 +791,9 @@ mod tests {
                     .collect()
             })
             .collect();
-        let plan = SweepPlan::new(&base, &names, &["ground_z"], &["m7:z"]).unwrap();
+        let plan = VariantPlan::new(&base, &names, &["ground_z"], &["m7:z"]).unwrap();
         let psd = vec![1e-12; f.len()];
-        let (got, rms) = plan.evaluate_with_rms(&f, &reps, &psd).unwrap();
+        let (got, rms) = with_rms(&plan, &g, &reps, &psd).unwrap();
         for (v, rep) in reps.iter().enumerate() {
             let pads: Vec<String> = rep
                 .iter()
@@ -939,7 +808,7 @@ mod tests {
             let direct = FrfPlan::new(&chain(8, &pr), &["ground_z"], &["m7:z"])
                 .unwrap()
                 .with_solver(crate::frf::SolverChoice::Dense)
-                .evaluate(&f)
+                .evaluate(&g)
                 .unwrap();
             let g = got.index_axis(ndarray::Axis(0), v).to_owned();
             let d = direct.data.as_slice().unwrap();
@@ -972,15 +841,16 @@ mod tests {
         }
         f.sort_by(f64::total_cmp);
         f.dedup();
+        let g = FreqGrid::new(f.clone()).unwrap();
         let reps = vec![vec![StiffnessModel::Hysteretic { k: 2.2e6, loss_factor: 3e-6 }]];
-        let plan = SweepPlan::new(&base, &["s2"], &["ground_z"], &["m5:z"]).unwrap();
+        let plan = VariantPlan::new(&base, &["s2"], &["ground_z"], &["m5:z"]).unwrap();
         let mut got = vec![Complex64::default(); f.len()];
-        let redone = plan.run(&f, &reps, Some(&mut got), None).unwrap();
+        let redone = plan.run(&g, &reps, Some(&mut got), None).unwrap();
         assert!(redone > 0 && redone < f.len() / 2, "{redone} of {}", f.len());
         let direct = FrfPlan::new(&target, &["ground_z"], &["m5:z"])
             .unwrap()
             .with_solver(crate::frf::SolverChoice::Dense)
-            .evaluate(&f)
+            .evaluate(&g)
             .unwrap();
         // Direct solves of this system (transmissibility ≈ 1/η at resonance) are themselves only
         // good to about 1e-9: the dense and the banded direct paths differ by 8e-10 here.
@@ -989,33 +859,34 @@ mod tests {
         // The lanes the rational form kept against the capacitance solve of the same Woodbury
         // identity: they agree within the accepted rounding bound, CANCELLATION_MAX·(k + 2)·ε.
         let mut cap = vec![Complex64::default(); f.len()];
-        plan.clone().with_rational(false).run(&f, &reps, Some(&mut cap), None).unwrap();
+        plan.clone().with_rational(false).run(&g, &reps, Some(&mut cap), None).unwrap();
         let e = max_rel_diff(&got, &cap);
         assert!(e < CANCELLATION_MAX * 4.0 * f64::EPSILON, "against the capacitance solve: {e}");
         // Without stored FRFs the handed-over lanes still reach the RMS: the same sums as with them.
         let s = vec![1e-12; f.len()];
-        let (_, with_frf) = plan.evaluate_with_rms(&f, &reps, &s).unwrap();
-        assert_eq!(plan.evaluate_rms(&f, &reps, &s).unwrap(), with_frf);
+        let (_, with_frf) = with_rms(&plan, &g, &reps, &s).unwrap();
+        assert_eq!(plan.evaluate_rms(&g, &reps, &s).unwrap(), with_frf);
     }
 
     #[test]
-    fn sweep_rejects_bad_input() {
+    fn variants_reject_bad_input() {
         let base = chain(4, &[]);
         assert!(matches!(
-            SweepPlan::new(&base, &["nope"], &["ground_z"], &["m3:z"]),
+            VariantPlan::new(&base, &["nope"], &["ground_z"], &["m3:z"]),
             Err(Error::UnknownName { .. })
         ));
-        let plan = SweepPlan::new(&base, &["s0"], &["ground_z"], &["m3:z"]).unwrap();
-        let r = plan.evaluate(&[1.0, 2.0], &[vec![]]);
+        let plan = VariantPlan::new(&base, &["s0"], &["ground_z"], &["m3:z"]).unwrap();
+        let (g1, g2) = (FreqGrid::new(vec![1.0]).unwrap(), FreqGrid::new(vec![1.0, 2.0]).unwrap());
+        let r = plan.evaluate(&g2, &[vec![]]);
         assert!(matches!(r, Err(Error::ShapeMismatch { .. })), "{r:?}");
-        let r = plan.evaluate(&[1.0], &[vec![StiffnessModel::Hysteretic { k: f64::NAN, loss_factor: 0.0 }]]);
+        let r = plan.evaluate(&g1, &[vec![StiffnessModel::Hysteretic { k: f64::NAN, loss_factor: 0.0 }]]);
         assert!(r.is_err());
         // Names are built only on failure, and still name the spec, the field and the index.
         let good = vec![StiffnessModel::Hysteretic { k: 1e6, loss_factor: 0.1 }];
         let bad = vec![StiffnessModel::Zener { k0: 1e6, k_inf: 2e6, tau_s: -1.0 }];
-        let e = plan.evaluate(&[1.0, 2.0], &[good.clone(), bad]).unwrap_err().to_string();
+        let e = plan.evaluate(&g2, &[good.clone(), bad]).unwrap_err().to_string();
         assert!(e.contains("replacements[1][0].tau_s"), "{e}");
-        let e = plan.evaluate_rms(&[1.0, 2.0], &[good], &[1.0, -1.0]).unwrap_err().to_string();
+        let e = plan.evaluate_rms(&g2, &[good], &[1.0, -1.0]).unwrap_err().to_string();
         assert!(e.contains("input_psd[1]"), "{e}");
     }
 }

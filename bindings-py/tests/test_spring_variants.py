@@ -1,4 +1,4 @@
-"""stillsky.spring_sweep: rank-k spring replacement against the direct FRF of rebuilt models."""
+"""stillsky.spring_variants: rank-k spring replacement against the direct FRF of rebuilt models."""
 
 import json
 
@@ -40,7 +40,7 @@ def test_matches_rebuilt_models_and_numpy_rms():
          ["stiffness_n_per_m = 2e6\nloss_factor = 0.2", "stiffness_n_per_m = 5e5\nloss_factor = 0.05"]),
     ]
     base = chain(BASE)
-    h, rms = stillsky.spring_sweep(
+    h, rms = stillsky.spring_variants(
         base, ["s0", "s2"], json.dumps([v[0] for v in variants]), f, "ground_z", "m2:z", input_psd=psd
     )
     assert h.shape == (2, f.size, 1, 1) and rms.shape == (2, 1, 1)
@@ -50,7 +50,7 @@ def test_matches_rebuilt_models_and_numpy_rms():
         want = np.sqrt(np.trapezoid(np.abs(direct) ** 2 * psd, f))
         assert rms[v, 0, 0] == pytest.approx(want, rel=1e-9)
     # Without the FRFs: the same RMS (same arithmetic), and no FRF array.
-    none, rms_only = stillsky.spring_sweep(
+    none, rms_only = stillsky.spring_variants(
         base, ["s0", "s2"], json.dumps([v[0] for v in variants]), f, "ground_z", "m2:z", input_psd=psd, frf=False
     )
     assert none is None
@@ -62,10 +62,10 @@ def test_bad_input_is_a_value_error():
     f = np.array([1.0, 2.0])
     one = json.dumps([[{"hysteretic": {"k": 1e6, "loss_factor": 0.1}}]])
     with pytest.raises(stillsky.StillskyError):
-        stillsky.spring_sweep(base, ["nope"], one, f, "ground_z", "m2:z", input_psd=[1.0, 1.0])
+        stillsky.spring_variants(base, ["nope"], one, f, "ground_z", "m2:z", input_psd=[1.0, 1.0])
     with pytest.raises(stillsky.StillskyError, match="replacements_json"):
-        stillsky.spring_sweep(base, ["s0"], "[[{]]", f, "ground_z", "m2:z", input_psd=[1.0, 1.0])
+        stillsky.spring_variants(base, ["s0"], "[[{]]", f, "ground_z", "m2:z", input_psd=[1.0, 1.0])
     with pytest.raises(stillsky.StillskyError):
-        stillsky.spring_sweep(base, ["s0"], one, f, "ground_z", "m2:z", input_psd=[1.0])
+        stillsky.spring_variants(base, ["s0"], one, f, "ground_z", "m2:z", input_psd=[1.0])
     with pytest.raises(stillsky.StillskyError):
-        stillsky.spring_sweep(base, ["s0"], one, [2.0, 1.0], "ground_z", "m2:z", input_psd=[1.0, 1.0])
+        stillsky.spring_variants(base, ["s0"], one, [2.0, 1.0], "ground_z", "m2:z", input_psd=[1.0, 1.0])

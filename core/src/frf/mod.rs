@@ -1,14 +1,29 @@
-//! Frequency response by a direct complex solve per frequency.
+//! Frequency response of a model: Z(ω) x = b with Z(ω) = K*(ω) + iωC − ω²M over the free DOFs,
+//! for every requested input at once.
 //!
-//! Z(ω) x = b with Z(ω) = K*(ω) + iωC − ω²M over the free DOFs, for every requested input at
-//! once (one LU per frequency, many right-hand sides). [`FrfPlan`] resolves names once and owns
-//! its scratch space, so evaluating many grids allocates nothing per frequency; evaluation is
-//! parallel over frequency blocks (rayon) when the work is large enough to pay.
+//! - [`FrfPlan`] (here): resolves names once, owns its scratch space and evaluates grids by one
+//!   LU per frequency (many right-hand sides), eight frequencies at a time where the lane kernel
+//!   applies, in parallel over frequency blocks (rayon) when the work is large enough to pay.
+//! - `layout`: the frequency-independent structure (solver order and band, storage positions).
+//! - `modal`: the modal-superposition path for small proportionally damped models.
+//! - [`variants`]: many variants of one model that each replace a few springs (Woodbury
+//!   identity and rational form).
+//!
+//! RMS outputs integrate |H|²·S over the grid by the trapezoid rule (S a one-sided input PSD
+//! per Hz given on the grid).
+
+mod layout;
+mod modal;
+pub mod variants;
+
+pub use layout::{SolverChoice, SolverKind};
 
 use crate::error::{Error, Result};
+use crate::grid::FreqGrid;
 use crate::linalg::lanes::{BandLanes, CLane, LANES, Lane, LaneMask, pad_block, with_best_simd};
 use crate::linalg::{BandLu, ComplexLu};
 use crate::model::{Input, Model};
+use layout::{LaneLayout, Layout};
 use ndarray::Array3;
 use num_complex::Complex64;
 use rayon::prelude::*;
@@ -41,411 +56,33 @@ impl Frf {
     }
 }
 
-/// Which linear solver an [`FrfPlan`] uses per frequency.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
-#[non_exhaustive]
-pub enum SolverChoice {
-    /// Pick by the rule in [`FrfPlan::solver`]'s docs (default).
-    #[default]
-    Auto,
-    /// faer's dense partial-pivot LU on the natural order (the reference path).
-    Dense,
-    /// The banded LU of [`crate::linalg::BandLu`] after the better of the natural and the
-    /// reverse Cuthill–McKee orderings.
-    Banded,
+/// An RMS output requested from an evaluation: the RMS response of each (output, input) pair to
+/// an input PSD on the evaluation grid, RMS = sqrt(∫ |H|² S df) by the trapezoid rule.
+#[derive(Debug)]
+pub struct RmsOut<'a> {
+    /// One-sided input PSD per Hz, one value ≥ 0 per grid frequency.
+    pub input_psd: &'a [f64],
+    /// The RMS values, row-major as the evaluation documents (per (output, input) last).
+    pub rms: &'a mut [f64],
 }
 
-/// The solver an [`FrfPlan`] settled on.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum SolverKind {
-    /// Dense LU (faer).
-    Dense,
-    /// Banded LU with `kl` sub- and `ku` super-diagonals after reordering.
-    Banded { kl: usize, ku: usize },
-}
-
-/// One structurally non-zero entry of Z in solver storage: Z = k + iωc − ω²m there.
-#[derive(Debug, Clone, Copy)]
-struct Entry {
-    pos: usize,
-    k: Complex64,
-    c: f64,
-    m: f64,
-}
-
-/// A resolved input in solver order: constants of −Z_fg e_d (or a fixed load), plus the
-/// contributions of frequency-dependent terms `(term, row, b_i·b_g)`.
-#[derive(Debug, Clone)]
-struct RhsPlan {
-    entries: Vec<(usize, Complex64, f64, f64)>,
-    terms: Vec<(usize, usize, f64)>,
-}
-
-/// Storage of the lane kernel ([`crate::linalg::lanes`]): the same solver order as the scalar
-/// path, band (kl, ku) of that order, positions in the lane band storage.
-#[derive(Debug, Clone)]
-struct LaneLayout {
-    kl: usize,
-    ku: usize,
-    entries: Vec<Entry>,
-    terms: Vec<Vec<(usize, f64)>>,
-}
-
-/// Modal superposition for proportionally damped models: K* = K′(1 + iη) with one loss factor
-/// η, C = αM + βK′, and no frequency-dependent terms. With K′φ = λMφ, φᵀMφ = I, every FRF is
-/// Σ_r (c·φ_r)(φ_rᵀb(ω)) / (λ_r(1 + iη) + iω(α + βλ_r) − ω²), exact with all n modes
-/// (Clough & Penzien, Dynamics of Structures, 2nd ed., 1993, §12-3 and §13-2).
-#[derive(Debug, Clone)]
-struct ModalLayout {
-    eta: f64,
-    alpha: f64,
-    beta: f64,
-    lambda: Vec<f64>,
-    /// Output rows times mode shapes: `rows[o][r]`.
-    rows: Vec<Vec<f64>>,
-    /// Per input and mode: φᵀb(ω) = q0 + iω·q1 − ω²·q2 (loads: q0 only).
-    inputs: Vec<Vec<(Complex64, f64, f64)>>,
-}
-
-/// Largest model the modal path takes: its eigen-solution (≈ 10n³ flops, once per plan) must
-/// not outweigh the direct path's per-frequency savings on a typical grid.
-const MODAL_DOFS_MAX: usize = 64;
-
-impl ModalLayout {
-    /// The modal path, when `model` is proportionally damped to round-off (relative 1e-12 in the
-    /// Frobenius norm) and small enough.
-    fn try_new(model: &Model, inputs: &[Input], rows: &[f64]) -> Option<ModalLayout> {
-        let n = model.dof_count();
-        if n == 0 || n > MODAL_DOFS_MAX || !model.terms.is_empty() {
-            return None;
-        }
-        let dot = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(x, y)| x * y).sum::<f64>();
-        let kr: Vec<f64> = model.k_ff.iter().map(|z| z.re).collect();
-        let ki: Vec<f64> = model.k_ff.iter().map(|z| z.im).collect();
-        let kk = dot(&kr, &kr);
-        if kk == 0.0 {
-            return None;
-        }
-        let eta = dot(&ki, &kr) / kk;
-        let tol = 1e-12;
-        let resid = |a: &[f64], f: &dyn Fn(usize) -> f64| {
-            a.iter().enumerate().map(|(i, x)| (x - f(i)).powi(2)).sum::<f64>()
-        };
-        if resid(&ki, &|i| eta * kr[i]) > tol * tol * kk {
-            return None;
-        }
-        // C ≈ αM + βK′ by least squares on the Frobenius inner product.
-        let (m, c) = (&model.m_ff, &model.c_ff);
-        let (mm, mk, cm, ck) = (dot(m, m), dot(m, &kr), dot(c, m), dot(c, &kr));
-        let det = mm * kk - mk * mk;
-        let (alpha, beta) = if det.abs() > 1e-12 * mm * kk {
-            ((cm * kk - ck * mk) / det, (ck * mm - cm * mk) / det)
-        } else {
-            // M ∥ K′: all of C on M.
-            (cm / mm, 0.0)
-        };
-        let cc = dot(c, c);
-        if resid(c, &|i| alpha * m[i] + beta * kr[i]) > tol * tol * cc.max(f64::MIN_POSITIVE) && cc > 0.0 {
-            return None;
-        }
-        let (lambda, phi) = crate::linalg::sym_generalized_eigen(&kr, m, n).ok()?;
-        let mode = |r: usize| &phi[r * n..(r + 1) * n];
-        let rows = rows.chunks_exact(n).map(|row| (0..n).map(|r| dot(row, mode(r))).collect()).collect();
-        let inputs = inputs
-            .iter()
-            .map(|inp| match inp {
-                Input::Load(v) => (0..n).map(|r| (Complex64::new(dot(v, mode(r)), 0.0), 0.0, 0.0)).collect(),
-                Input::Ground(d) => {
-                    // b = −(K*_fg + iωC_fg − ω²M_fg) e_d, its columns taken once per input.
-                    let cols = d * n..(d + 1) * n;
-                    let kre: Vec<f64> = model.k_fg[cols.clone()].iter().map(|z| z.re).collect();
-                    let kim: Vec<f64> = model.k_fg[cols.clone()].iter().map(|z| z.im).collect();
-                    let (c, m) = (&model.c_fg[cols.clone()], &model.m_fg[cols]);
-                    (0..n)
-                        .map(|r| {
-                            (
-                                -Complex64::new(dot(&kre, mode(r)), dot(&kim, mode(r))),
-                                -dot(c, mode(r)),
-                                -dot(m, mode(r)),
-                            )
-                        })
-                        .collect()
-                }
-            })
-            .collect();
-        Some(ModalLayout { eta, alpha, beta, lambda, rows, inputs })
+/// Trapezoid weights times the PSD, zero-padded to `len` ≥ the grid length:
+/// Σ_k w_k |H_k|² equals Σ ½ (f_k − f_{k−1}) (y_k + y_{k−1}) with y = |H|² S.
+pub(crate) fn trapezoid_psd_weights(grid: &FreqGrid, input_psd: &[f64], len: usize) -> Result<Vec<f64>> {
+    let (f, nf) = (grid.hz(), grid.len());
+    if input_psd.len() != nf {
+        return Err(Error::shape("input_psd (one value per frequency)", nf, input_psd.len()));
     }
-
-    /// FRFs at up to [`LANES`] frequencies `f_hz` into `out` (per frequency n_out × n_in);
-    /// call inside [`with_best_simd`]. Returns the lanes where a modal denominator is below
-    /// [`crate::linalg::SINGULAR_PIVOT_RATIO`] of λ_r + ω² (Z numerically singular there, as the
-    /// direct path's pivot test would report).
-    #[inline(always)]
-    fn evaluate_lanes(&self, f_hz: &[f64], acc: &mut [CLane], out: &mut [Complex64]) -> LaneMask {
-        let mut w = pad_block(f_hz);
-        let mut w2: Lane = [0.0; LANES];
-        for l in 0..LANES {
-            w[l] *= 2.0 * PI;
-            w2[l] = w[l] * w[l];
-        }
-        let ni = self.inputs.len();
-        let mut bad: LaneMask = 0;
-        acc.iter_mut().for_each(|x| *x = CLane::ZERO);
-        for (r, &lam) in self.lambda.iter().enumerate() {
-            let mut den = CLane::ZERO;
-            for l in 0..LANES {
-                den.re[l] = lam - w2[l];
-                den.im[l] = lam * self.eta + w[l] * (self.alpha + self.beta * lam);
-            }
-            let dn = den.norm_sqr();
-            for l in 0..LANES {
-                let scale = crate::linalg::SINGULAR_PIVOT_RATIO * (lam.abs() + w2[l]);
-                // NaN compares false: a NaN denominator is flagged too.
-                let ok = dn[l] > scale * scale;
-                bad |= (!ok as LaneMask) << l;
-            }
-            let inv = den.inv();
-            for (j, q) in self.inputs.iter().enumerate() {
-                let (q0, q1, q2) = q[r];
-                let mut qr = CLane::ZERO;
-                for l in 0..LANES {
-                    qr.re[l] = q0.re - w2[l] * q2;
-                    qr.im[l] = q0.im + w[l] * q1;
-                }
-                let qr = qr * inv;
-                for (o, row) in self.rows.iter().enumerate() {
-                    acc[o * ni + j] = acc[o * ni + j] + qr.scale(row[r]);
-                }
-            }
-        }
-        let per = acc.len();
-        for (l, o) in out.chunks_exact_mut(per).take(f_hz.len()).enumerate() {
-            for (x, a) in o.iter_mut().zip(acc.iter()) {
-                *x = a.get(l);
-            }
-        }
-        bad
+    for (i, &v) in input_psd.iter().enumerate() {
+        crate::error::require_non_negative(|| format!("input_psd[{i}]"), v)?;
     }
-}
-
-/// Largest lane band storage n·(kl + ku + 1) the lane kernel takes (512 KiB of lanes, so one
-/// thread's factor stays in L2); larger or denser models use the scalar kernels.
-const LANE_STORAGE_MAX: usize = 4096;
-
-/// Frequency-independent structure of Z(ω), computed once per plan.
-#[derive(Debug, Clone)]
-struct Layout {
-    kind: SolverKind,
-    /// The lane kernel, when the model is small or narrow enough (see [`FrfPlan::lanes`]).
-    lanes: Option<LaneLayout>,
-    /// Modal superposition, when the model is proportionally damped (see [`FrfPlan::is_modal`]).
-    modal: Option<ModalLayout>,
-    /// Storage length of the Z buffer.
-    len: usize,
-    entries: Vec<Entry>,
-    /// Per term: (storage position, b_i·b_j).
-    terms: Vec<Vec<(usize, f64)>>,
-    rhs: Vec<RhsPlan>,
-    /// Output rows as sparse (solver index, weight).
-    rows: Vec<Vec<(usize, f64)>>,
-    /// `pos[model DOF] = solver index`.
-    pos: Vec<usize>,
-}
-
-/// Reverse Cuthill–McKee ordering of a symmetric pattern (George & Liu, Computer Solution of
-/// Large Sparse Positive Definite Systems, 1981, §4.3): returns `order[new] = old`.
-fn reverse_cuthill_mckee(adj: &[Vec<usize>]) -> Vec<usize> {
-    let n = adj.len();
-    let mut seen = vec![false; n];
-    let mut order = Vec::with_capacity(n);
-    while order.len() < n {
-        // Start each component at a node of least degree.
-        let start = (0..n).filter(|&i| !seen[i]).min_by_key(|&i| adj[i].len()).unwrap_or(0);
-        seen[start] = true;
-        let mut head = order.len();
-        order.push(start);
-        while head < order.len() {
-            let v = order[head];
-            head += 1;
-            let mut nb: Vec<usize> = adj[v].iter().copied().filter(|&u| !seen[u]).collect();
-            nb.sort_by_key(|&u| adj[u].len());
-            for u in nb {
-                seen[u] = true;
-                order.push(u);
-            }
-        }
+    let mut wts = vec![0.0; len.max(nf)];
+    for i in 1..nf {
+        let h = 0.5 * (f[i] - f[i - 1]);
+        wts[i - 1] += h * input_psd[i - 1];
+        wts[i] += h * input_psd[i];
     }
-    order.reverse();
-    order
-}
-
-/// (kl, ku) of a pattern under `pos[old] = new`.
-fn bandwidths(adj: &[Vec<usize>], pos: &[usize]) -> (usize, usize) {
-    let (mut kl, mut ku) = (0, 0);
-    for (i, nb) in adj.iter().enumerate() {
-        for &j in nb {
-            let (a, b) = (pos[i], pos[j]);
-            if a > b { kl = kl.max(a - b) } else { ku = ku.max(b - a) }
-        }
-    }
-    (kl, ku)
-}
-
-impl Layout {
-    fn new(model: &Model, inputs: &[Input], rows: &[f64], choice: SolverChoice) -> Layout {
-        let n = model.dof_count();
-        let nz =
-            |k: usize| model.k_ff[k] != Complex64::default() || model.c_ff[k] != 0.0 || model.m_ff[k] != 0.0;
-        let mut pattern = vec![false; n * n];
-        for (k, p) in pattern.iter_mut().enumerate() {
-            *p = nz(k);
-        }
-        for t in &model.terms {
-            for &(i, _) in &t.bf {
-                for &(j, _) in &t.bf {
-                    pattern[i + j * n] = true;
-                }
-            }
-        }
-        let mut adj = vec![Vec::new(); n];
-        for j in 0..n {
-            for i in 0..n {
-                if i != j && (pattern[i + j * n] || pattern[j + i * n]) {
-                    adj[i].push(j);
-                }
-            }
-        }
-        let natural: Vec<usize> = (0..n).collect();
-        let rcm = reverse_cuthill_mckee(&adj);
-        let mut rcm_pos = vec![0; n];
-        for (new, &old) in rcm.iter().enumerate() {
-            rcm_pos[old] = new;
-        }
-        let (nat_b, rcm_b) = (bandwidths(&adj, &natural), bandwidths(&adj, &rcm_pos));
-        let (pos, (kl, ku)) =
-            if rcm_b.0 + rcm_b.1 < nat_b.0 + nat_b.1 { (rcm_pos, rcm_b) } else { (natural.clone(), nat_b) };
-        // Rule: banded when its elimination count n·kl·(kl + ku + 1) is below a sixth of the
-        // dense n³ (dense LU ≈ n³/3 complex multiply–adds, so a ≥ 2× margin before the banded
-        // kernel's plain loops compete with faer's SIMD kernels).
-        let banded_cost = (n * kl * (kl + ku + 1)) as f64;
-        let dense_cost = (n as f64).powi(3);
-        let use_band = match choice {
-            SolverChoice::Dense => false,
-            SolverChoice::Banded => true,
-            SolverChoice::Auto => n > 0 && 6.0 * banded_cost < dense_cost,
-        };
-        let (kind, pos, len, ld) = if use_band {
-            let ld = 2 * kl + ku + 1;
-            (SolverKind::Banded { kl, ku }, pos, ld * n, ld)
-        } else {
-            (SolverKind::Dense, natural, n * n, n)
-        };
-        let at = |i: usize, j: usize| -> usize {
-            let (a, b) = (pos[i], pos[j]);
-            match kind {
-                SolverKind::Dense => a + b * n,
-                SolverKind::Banded { kl, ku } => kl + ku + a - b + b * ld,
-            }
-        };
-        let place = |at: &dyn Fn(usize, usize) -> usize| {
-            let mut entries = Vec::new();
-            for j in 0..n {
-                for i in 0..n {
-                    let k = i + j * n;
-                    if nz(k) {
-                        entries.push(Entry {
-                            pos: at(i, j),
-                            k: model.k_ff[k],
-                            c: model.c_ff[k],
-                            m: model.m_ff[k],
-                        });
-                    }
-                }
-            }
-            let terms: Vec<Vec<(usize, f64)>> = model
-                .terms
-                .iter()
-                .map(|t| {
-                    let mut v = Vec::with_capacity(t.bf.len() * t.bf.len());
-                    for &(j, bj) in &t.bf {
-                        for &(i, bi) in &t.bf {
-                            v.push((at(i, j), bi * bj));
-                        }
-                    }
-                    v
-                })
-                .collect();
-            (entries, terms)
-        };
-        let (entries, terms) = place(&at);
-        // The lane kernel works in the scalar path's order (a lane it cannot take is redone by the
-        // scalar path, whose solution must land in the same places).
-        let (lkl, lku) = match kind {
-            SolverKind::Banded { kl, ku } => (kl, ku),
-            SolverKind::Dense => nat_b,
-        };
-        let lanes = (matches!(choice, SolverChoice::Auto)
-            && n > 0
-            && n * (lkl + lku + 1) <= LANE_STORAGE_MAX)
-            .then(|| {
-                let lu = BandLanes::new(n, lkl, lku);
-                let (entries, terms) = place(&|i, j| lu.index(pos[i], pos[j]));
-                LaneLayout { kl: lkl, ku: lku, entries, terms }
-            });
-        let rhs = inputs
-            .iter()
-            .map(|inp| match inp {
-                Input::Load(v) => RhsPlan {
-                    entries: (0..n)
-                        .filter(|&i| v[i] != 0.0)
-                        .map(|i| (pos[i], Complex64::new(-v[i], 0.0), 0.0, 0.0))
-                        .collect(),
-                    terms: Vec::new(),
-                },
-                Input::Ground(d) => {
-                    let mut e = Vec::new();
-                    for i in 0..n {
-                        let k = i + d * n;
-                        if model.k_fg[k] != Complex64::default()
-                            || model.c_fg[k] != 0.0
-                            || model.m_fg[k] != 0.0
-                        {
-                            e.push((pos[i], model.k_fg[k], model.c_fg[k], model.m_fg[k]));
-                        }
-                    }
-                    let mut terms = Vec::new();
-                    for (ti, t) in model.terms.iter().enumerate() {
-                        if t.bg[*d] != 0.0 {
-                            for &(i, bi) in &t.bf {
-                                terms.push((ti, pos[i], bi * t.bg[*d]));
-                            }
-                        }
-                    }
-                    RhsPlan { entries: e, terms }
-                }
-            })
-            .collect();
-        let modal = if matches!(choice, SolverChoice::Auto) {
-            ModalLayout::try_new(model, inputs, rows)
-        } else {
-            None
-        };
-        let rows = rows
-            .chunks_exact(n.max(1))
-            .map(|r| (0..n).filter(|&i| r[i] != 0.0).map(|i| (pos[i], r[i])).collect())
-            .collect();
-        Layout { kind, lanes, modal, len, entries, terms, rhs, rows, pos }
-    }
-
-    /// Per-frequency cost estimate (multiply–adds) used for the parallel threshold.
-    fn cost(&self, n: usize, nrhs: usize) -> f64 {
-        match self.kind {
-            SolverKind::Dense => (n as f64).powi(3) / 3.0 + (n * n * nrhs) as f64,
-            SolverKind::Banded { kl, ku } => {
-                (n * (kl + 1) * (kl + ku + 1) + n * nrhs * (2 * kl + ku + 1)) as f64
-            }
-        }
-    }
+    Ok(wts)
 }
 
 /// A reusable FRF evaluation for fixed inputs and outputs of one model.
@@ -724,50 +361,78 @@ impl<'m> FrfPlan<'m> {
         }
     }
 
-    /// Evaluate on a validated grid.
-    pub fn evaluate(&self, freq_hz: &[f64]) -> Result<Frf> {
-        crate::grid::validate_freqs("freq_hz", freq_hz)?;
+    /// FRFs on `grid` as an owned [`Frf`].
+    pub fn evaluate(&self, grid: &FreqGrid) -> Result<Frf> {
         let (no, ni) = (self.output_names.len(), self.inputs.len());
-        let mut data = Array3::<Complex64>::zeros((freq_hz.len(), no, ni));
+        let mut data = Array3::<Complex64>::zeros((grid.len(), no, ni));
         self.evaluate_into(
-            freq_hz,
-            data.as_slice_mut().ok_or_else(|| Error::invalid("data", "not contiguous"))?,
+            grid,
+            Some(data.as_slice_mut().ok_or_else(|| Error::invalid("data", "not contiguous"))?),
+            None,
         )?;
         Ok(Frf {
-            freq_hz: freq_hz.to_vec(),
+            freq_hz: grid.hz().to_vec(),
             inputs: self.input_names.clone(),
             outputs: self.output_names.clone(),
             data,
         })
     }
 
-    /// Evaluate into `out` laid out (n_freq, n_out, n_in) row-major.
-    pub fn evaluate_into(&self, freq_hz: &[f64], out: &mut [Complex64]) -> Result<()> {
-        crate::grid::validate_freqs("freq_hz", freq_hz)?;
+    /// Evaluate on `grid` into caller-owned buffers: the FRFs into `frf_out` when given, laid
+    /// out (n_freq, n_out, n_in) row-major, and the RMS response to an input PSD when `rms` is
+    /// given, laid out (n_out, n_in). Without `frf_out` the FRFs are still computed (in a
+    /// temporary buffer) when the RMS needs them.
+    pub fn evaluate_into(
+        &self,
+        grid: &FreqGrid,
+        frf_out: Option<&mut [Complex64]>,
+        rms: Option<RmsOut<'_>>,
+    ) -> Result<()> {
         if self.output_names.is_empty() {
             return Err(Error::invalid("outputs", "at least one output is needed"));
         }
         let per = self.output_names.len() * self.inputs.len();
-        if out.len() != freq_hz.len() * per {
-            return Err(Error::shape("FRF output buffer", freq_hz.len() * per, out.len()));
+        let nf = grid.len();
+        if let Some(out) = &frf_out
+            && out.len() != nf * per
+        {
+            return Err(Error::shape("FRF output buffer", nf * per, out.len()));
         }
+        let Some(RmsOut { input_psd, rms }) = rms else {
+            return match frf_out {
+                Some(out) => self.frf_into(grid.hz(), out),
+                None => Ok(()),
+            };
+        };
+        let wts = trapezoid_psd_weights(grid, input_psd, nf)?;
+        if rms.len() != per {
+            return Err(Error::shape("FRF RMS buffer", per, rms.len()));
+        }
+        let mut tmp = Vec::new();
+        let out = match frf_out {
+            Some(out) => out,
+            None => {
+                tmp.resize(nf * per, Complex64::default());
+                &mut tmp[..]
+            }
+        };
+        self.frf_into(grid.hz(), out)?;
+        rms.fill(0.0);
+        for (h, w) in out.chunks_exact(per).zip(&wts) {
+            for (r, x) in rms.iter_mut().zip(h) {
+                *r += w * x.norm_sqr();
+            }
+        }
+        rms.iter_mut().for_each(|r| *r = r.sqrt());
+        Ok(())
+    }
+
+    /// FRFs on a valid grid into `out`, (n_freq, n_out, n_in) row-major, its length checked.
+    fn frf_into(&self, freq_hz: &[f64], out: &mut [Complex64]) -> Result<()> {
+        let per = self.output_names.len() * self.inputs.len();
         let n = self.model.dof_count();
         if let Some(ml) = &self.layout.modal {
-            let mut acc = vec![CLane::ZERO; per];
-            return with_best_simd(
-                #[inline(always)]
-                || {
-                    for (o, f) in out.chunks_mut(LANES * per).zip(freq_hz.chunks(LANES)) {
-                        let bad = ml.evaluate_lanes(f, &mut acc, o);
-                        if let Some(&fh) =
-                            f.iter().enumerate().find(|(l, _)| bad & (1 << l) != 0).map(|(_, fh)| fh)
-                        {
-                            return Err(Error::Singular { freq_hz: fh });
-                        }
-                    }
-                    Ok(())
-                },
-            );
+            return ml.evaluate_into(freq_hz, per, out);
         }
         let block = self.block_len(freq_hz.len(), self.layout.cost(n, self.inputs.len()));
         out.par_chunks_mut(block * per).zip(freq_hz.par_chunks(block)).try_for_each(|(o, f)| {
@@ -875,9 +540,11 @@ pub(crate) fn build_dynamic_stiffness(m: &Model, f_hz: f64, z: &mut [Complex64])
 }
 
 impl Model {
-    /// FRF of every `outputs` × `inputs` pair on `freq_hz` (see [`crate::model`] for names).
+    /// FRF of every `outputs` × `inputs` pair on `freq_hz` (see [`crate::model`] for names;
+    /// the grid is validated as [`FreqGrid::new`] does).
     pub fn frf(&self, freq_hz: &[f64], inputs: &[&str], outputs: &[&str]) -> Result<Frf> {
-        FrfPlan::new(self, inputs, outputs)?.evaluate(freq_hz)
+        let plan = FrfPlan::new(self, inputs, outputs)?;
+        plan.evaluate(&FreqGrid::new(freq_hz.to_vec())?)
     }
 }
 
@@ -931,28 +598,8 @@ pub(crate) mod tests {
         a.iter().zip(b).map(|(x, y)| (x - y).norm()).fold(0.0, f64::max) / scale
     }
 
-    fn grid(nf: usize) -> Vec<f64> {
-        (0..nf).map(|k| 0.5 * (1000.0f64).powf(k as f64 / (nf - 1) as f64)).collect()
-    }
-
-    #[test]
-    fn rcm_finds_the_band_of_a_shuffled_path() {
-        // Path 0–1–…–9 relabelled by i ↦ 3i mod 10: natural bandwidth is large, RCM gives 1.
-        let n = 10;
-        let mut adj = vec![Vec::new(); n];
-        for i in 0..n - 1 {
-            let (a, b) = ((3 * i) % n, (3 * (i + 1)) % n);
-            adj[a].push(b);
-            adj[b].push(a);
-        }
-        let order = reverse_cuthill_mckee(&adj);
-        let mut pos = vec![0; n];
-        for (new, &old) in order.iter().enumerate() {
-            pos[old] = new;
-        }
-        assert_eq!(bandwidths(&adj, &pos), (1, 1));
-        let natural: Vec<usize> = (0..n).collect();
-        assert!(bandwidths(&adj, &natural).0 > 1);
+    fn grid(nf: usize) -> FreqGrid {
+        FreqGrid::new((0..nf).map(|k| 0.5 * (1000.0f64).powf(k as f64 / (nf - 1) as f64)).collect()).unwrap()
     }
 
     #[test]
@@ -1017,10 +664,48 @@ pub(crate) mod tests {
         let m = chain(1, &["stiffness_n_per_m = 1e6\nloss_factor = 0.05"]);
         let f = grid(50);
         let r = FrfPlan::new(&m, &["force:m0:z"], &["m0:z"]).unwrap().evaluate(&f).unwrap();
-        for (k, &fh) in f.iter().enumerate() {
+        for (k, &fh) in f.hz().iter().enumerate() {
             let w = 2.0 * PI * fh;
             let h = 1.0 / Complex64::new(1e6 - w * w * 2.0, 1e6 * 0.05);
             assert!((r.data[[k, 0, 0]] - h).norm() <= 1e-12 * h.norm());
         }
+    }
+
+    #[test]
+    fn rms_output_is_the_trapezoid_integral_of_the_frf() {
+        // Oracle: RMS = sqrt(∫ |H|² S df) by the trapezoid rule on the grid (crate conventions),
+        // summed here directly from the owned FRFs.
+        let m = chain(6, &[]);
+        let (ins, outs) = (["ground_z", "force:m2:z"], ["m5:z", "m0:z"]);
+        let plan = FrfPlan::new(&m, &ins, &outs).unwrap();
+        let f = grid(400);
+        let psd: Vec<f64> = f.hz().iter().map(|x| 1e-12 / (1.0 + x / 30.0)).collect();
+        let h = plan.evaluate(&f).unwrap();
+        let mut buf = vec![Complex64::default(); f.len() * 4];
+        let (mut with_frf, mut rms_only) = (vec![0.0; 4], vec![0.0; 4]);
+        let rms = |r| Some(RmsOut { input_psd: &psd, rms: r });
+        plan.evaluate_into(&f, Some(&mut buf), rms(&mut with_frf)).unwrap();
+        plan.evaluate_into(&f, None, rms(&mut rms_only)).unwrap();
+        assert_eq!(buf.as_slice(), h.data.as_slice().unwrap());
+        assert_eq!(with_frf, rms_only);
+        let hz = f.hz();
+        for (o, j) in (0..2).flat_map(|o| (0..2).map(move |j| (o, j))) {
+            let y = |k: usize| h.data[[k, o, j]].norm_sqr() * psd[k];
+            let ms: f64 = (1..hz.len()).map(|k| 0.5 * (hz[k] - hz[k - 1]) * (y(k) + y(k - 1))).sum();
+            let got = rms_only[o * 2 + j];
+            assert!((got - ms.sqrt()).abs() <= 1e-12 * ms.sqrt(), "({o}, {j}): {got} vs {}", ms.sqrt());
+        }
+        // Bad requests: PSD length, a negative PSD value (named by index), RMS buffer length.
+        let r = plan.evaluate_into(&f, None, Some(RmsOut { input_psd: &psd[1..], rms: &mut rms_only }));
+        assert!(matches!(r, Err(Error::ShapeMismatch { .. })), "{r:?}");
+        let mut neg = psd.clone();
+        neg[3] = -1.0;
+        let e =
+            plan.evaluate_into(&f, None, Some(RmsOut { input_psd: &neg, rms: &mut rms_only })).unwrap_err();
+        assert!(e.to_string().contains("input_psd[3]"), "{e}");
+        let r = plan.evaluate_into(&f, None, Some(RmsOut { input_psd: &psd, rms: &mut [0.0; 3] }));
+        assert!(matches!(r, Err(Error::ShapeMismatch { .. })), "{r:?}");
+        let r = plan.evaluate_into(&f, Some(&mut buf[1..]), None);
+        assert!(matches!(r, Err(Error::ShapeMismatch { .. })), "{r:?}");
     }
 }
