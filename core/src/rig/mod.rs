@@ -3,7 +3,7 @@
 //! A rig file names hardware (`[payload]`, `[mount]`, `[tripod]`, `[pads]`, `[ground]`,
 //! `[pier]`, `[floor]`); [`RigSpec::expand`] turns it into the generic layer
 //! ([`ModelSpec`]: bodies, nodes, springs, beams) that [`crate::model::Model::from_spec`]
-//! assembles. `stillsky::io::spec_to_toml(&spec)` prints the expansion, so every number the
+//! assembles. `stillsky::schema::spec_to_toml(&spec)` prints the expansion, so every number the
 //! builders choose can be read and edited. Keys, units and defaults: docs/model-file.md.
 //!
 //! Geometry (x east, y north, z up, m). z = 0 is the surface the rig stands on: the soil or
