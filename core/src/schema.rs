@@ -150,6 +150,43 @@ mod tests {
     }
 
     #[test]
+    fn errors_name_the_first_bad_entry_in_key_order_across_layers() {
+        // Messages and places as the single-struct reader gave them before the schema moved
+        // here: the first bad top-level entry in key order wins, whichever layer it is in.
+        let body =
+            "[[body]]\nname = \"a\"\nmass_kg = \"heavy\"\ncg_m = [0, 0, 0]\ninertia_kgm2 = [1, 1, 1]\n";
+        for (text, location, reason) in [
+            (
+                format!("[tripod]\nlegs = \"x\"\n{body}"),
+                "line 5, column 11",
+                "invalid type: string \"heavy\", expected f64",
+            ),
+            (
+                "zzz = 1\n[tripod]\nlegs = \"x\"\n".into(),
+                "line 3, column 8",
+                "invalid type: string \"x\", expected usize",
+            ),
+            (
+                "title = 5\nwind = 3\n".into(),
+                "line 1, column 9",
+                "invalid type: integer `5`, expected a string",
+            ),
+            (
+                "payload = 3\nbody = 3\n".into(),
+                "line 2, column 8",
+                "invalid type: integer `3`, expected a sequence",
+            ),
+        ] {
+            let e = ModelFile::parse(&text, "m.toml").unwrap_err();
+            assert_eq!(
+                e,
+                Error::Parse { file: "m.toml".into(), location: location.into(), reason: reason.into() },
+                "{text}"
+            );
+        }
+    }
+
+    #[test]
     fn unknown_top_level_key_lists_title_and_both_layers() {
         let e = ModelFile::parse("title = \"t\"\nwobble = 1\n", "m.toml").unwrap_err();
         let Error::Parse { file, location, reason } = e else { panic!("{e:?}") };
