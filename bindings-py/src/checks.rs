@@ -8,7 +8,7 @@ use pyo3::types::{PyDict, PyList};
 use std::path::PathBuf;
 use stillsky::Error;
 use stillsky::checks::{self, CheckReport, StaticWind, Verdict};
-use stillsky::io::ModelFile;
+use stillsky::schema::ModelFile;
 
 fn verdict_name(v: Verdict) -> &'static str {
     match v {

@@ -9,9 +9,9 @@ use pyo3::types::PyDict;
 use pyo3::types::PyTuple;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
-use stillsky::io::model_file::MAX_MODEL_FILE_BYTES;
-use stillsky::io::{read_text_capped, spec_to_toml};
+use stillsky::io::read_text_capped;
 use stillsky::model::Model;
+use stillsky::schema::{MAX_MODEL_FILE_BYTES, spec_to_toml};
 
 /// An assembled linear structure (immutable; safe to share between threads).
 #[pyclass(name = "Model", module = "stillsky._native", frozen)]

@@ -14,7 +14,7 @@ use stillsky::batch::{
     SweepRow, SweepValue, WindCase,
 };
 use stillsky::grid::FreqGrid;
-use stillsky::io::ModelFile;
+use stillsky::schema::ModelFile;
 
 /// The parsed, text-only inputs of a sweep.
 struct Parsed {

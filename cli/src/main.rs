@@ -10,8 +10,8 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig, SweepInputs, WindCase};
 use stillsky::image::Guiding;
-use stillsky::io::model_file::ModelFile;
 use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
+use stillsky::schema::ModelFile;
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 
 #[derive(Parser)]
@@ -313,7 +313,7 @@ fn run_report(model: &Path, o: &ReportOptions, plots: Option<&Path>, json: Optio
     let spec = file.expanded()?;
     let r = batch::build_report(&spec, o)?;
     print!("{}", print::report_text(&model.display().to_string(), &r));
-    if file.tripod.is_some() || file.pier.is_some() {
+    if file.rig.tripod.is_some() || file.rig.pier.is_some() {
         let c = stillsky::checks::rig_checks(&file, &stillsky::checks::StaticWind::default())?;
         print!("{}", print::checks_text(&stillsky::checks::StaticWind::default(), &c));
     }
@@ -426,7 +426,7 @@ fn sweep(a: &SweepArgs) -> CliResult {
 
 fn expand(model: &Path) -> CliResult {
     let file = ModelFile::read(model)?;
-    print!("{}", stillsky::io::spec_to_toml(&file.expanded()?)?);
+    print!("{}", stillsky::schema::spec_to_toml(&file.expanded()?)?);
     Ok(())
 }
 
@@ -499,7 +499,7 @@ fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
 fn calibrate(a: &CalibrateArgs) -> CliResult {
     use stillsky::identify::{CalibrationOptions, ModalTarget, RingdownOptions, identify_ringdown};
     let label = a.model.display().to_string();
-    let text = stillsky::io::read_text_capped(&a.model, stillsky::io::model_file::MAX_MODEL_FILE_BYTES)?;
+    let text = stillsky::io::read_text_capped(&a.model, stillsky::schema::MAX_MODEL_FILE_BYTES)?;
     let mut targets = a.targets.clone();
     if let Some(tap) = &a.tap {
         let (name, x, fs_hz) = recording_axis(tap, a.fs, a.axis.as_deref())?;

@@ -920,7 +920,7 @@ pub fn total_mass_kg(spec: &crate::assembly::ModelSpec) -> Result<f64> {
 /// under the wind load at its top. The wind's area, drag coefficient and centre-of-pressure
 /// height come from the model's `[wind]` section; without it the wind checks are skipped.
 /// Print [`CAUTIONS`] with the result.
-pub fn rig_checks(file: &crate::io::ModelFile, wind: &StaticWind) -> Result<CheckReport> {
+pub fn rig_checks(file: &crate::schema::ModelFile, wind: &StaticWind) -> Result<CheckReport> {
     require_non_negative("wind speed_m_s", wind.speed_m_s)?;
     require_positive("wind gust_factor", wind.gust_factor)?;
     require_positive("air_density_kg_m3", wind.air_density_kg_m3)?;
@@ -939,7 +939,7 @@ pub fn rig_checks(file: &crate::io::ModelFile, wind: &StaticWind) -> Result<Chec
         None => 0.0,
     };
     let mut checks = Vec::new();
-    if let Some(t) = &file.tripod {
+    if let Some(t) = &file.rig.tripod {
         let g = t.geometry()?;
         let n = t.legs.unwrap_or(3);
         let section = t
@@ -982,7 +982,7 @@ pub fn rig_checks(file: &crate::io::ModelFile, wind: &StaticWind) -> Result<Chec
             )));
         }
     }
-    if let Some(p) = &file.pier {
+    if let Some(p) = &file.rig.pier {
         let section = p.section.clone().ok_or_else(|| Error::invalid("pier.section", "is required"))?;
         let material = match (&p.material, &p.material_properties) {
             (Some(name), None) => Material::preset(name)?,

@@ -448,7 +448,7 @@ pub struct PointingMap {
 /// stay fixed in the site's frame (e.g. wind from a given direction); the wind's area and drag
 /// coefficient are kept as given.
 pub fn pointing_map(
-    file: &crate::io::ModelFile,
+    file: &crate::schema::ModelFile,
     altitude_deg: &[f64],
     azimuth_deg: &[f64],
     grid: &FreqGrid,
@@ -459,7 +459,7 @@ pub fn pointing_map(
     if altitude_deg.is_empty() || azimuth_deg.is_empty() {
         return Err(Error::invalid("pointing grid", "needs at least one altitude and one azimuth"));
     }
-    if file.optics.is_none() {
+    if file.generic.optics.is_none() {
         return Err(Error::invalid("optics", "the model file has no [optics] section"));
     }
     let opts = ImageOptions { skip_mode_shares: true, ..opts.clone() };
@@ -469,7 +469,7 @@ pub fn pointing_map(
         .par_iter()
         .map(|&(i, j)| {
             let mut f = file.clone();
-            if let Some(o) = f.optics.as_mut() {
+            if let Some(o) = f.generic.optics.as_mut() {
                 o.altitude_deg = altitude_deg[i];
                 o.azimuth_deg = azimuth_deg[j];
             }

@@ -41,7 +41,8 @@
 //!   Newmark check.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
 //! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
-//! - [`io`]: model files (TOML), recordings, PSD files, atomic writes.
+//! - [`schema`]: the model file (TOML): both layers, reading, expansion, writing.
+//! - [`io`]: text and TOML reading, recordings, PSD files, atomic writes.
 //! - [`batch`]: isolator catalogues, the isolator sweep, ground sources and the one-model report.
 #![forbid(unsafe_code)]
 #![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
@@ -62,6 +63,7 @@ pub mod modes;
 pub mod monitor;
 pub mod response;
 pub mod rig;
+pub mod schema;
 pub mod section;
 pub mod soil;
 pub mod spectrum;

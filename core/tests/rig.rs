@@ -4,8 +4,8 @@ use approx::assert_relative_eq;
 use std::f64::consts::PI;
 use stillsky::Error;
 use stillsky::assembly::ModelSpec;
-use stillsky::io::{ModelFile, spec_to_toml};
 use stillsky::model::Model;
+use stillsky::schema::{ModelFile, spec_to_toml};
 
 fn example(name: &str) -> std::path::PathBuf {
     std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/examples").join(name)

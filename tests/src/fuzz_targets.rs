@@ -8,8 +8,8 @@
 //! libFuzzer records as a crash and `cargo test` as a failed test.
 
 use std::ffi::{CString, c_char};
-use stillsky::io::ModelFile;
 use stillsky::io::series::{SeriesChunk, SeriesOptions, SeriesReader, read_series_text};
+use stillsky::schema::ModelFile;
 use stillsky::spectrum::Psd;
 use stillsky_c as capi;
 use stillsky_c::stillsky_status;

@@ -34,10 +34,10 @@ use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::image::ImageOptions;
 use crate::io::atomic::{AtomicCsvWriter, completed_keys};
-use crate::io::model_file::ModelFile;
 use crate::io::series::SeriesOptions;
 use crate::model::Model;
 use crate::response::Disturbances;
+use crate::schema::ModelFile;
 use crate::wind::{Turbulence, WindSpec, WindSpectrum};
 use rayon::prelude::*;
 use std::collections::{BTreeMap, HashSet};
@@ -196,11 +196,11 @@ impl PadMechanism {
     /// Choose the mechanism for a model file: the rig layer when it has a `[tripod]`, else the
     /// generic pad springs named `prefix*`.
     pub fn for_file(file: &ModelFile, prefix: &str) -> Result<PadMechanism> {
-        if let Some(t) = &file.tripod {
+        if let Some(t) = &file.rig.tripod {
             let n_pads = t.legs.unwrap_or(3);
             return Ok(PadMechanism::Rig { file: Box::new(file.clone()), n_pads });
         }
-        if file.pier.is_some() && file.springs.iter().all(|s| !s.name.starts_with(prefix)) {
+        if file.rig.pier.is_some() && file.generic.springs.iter().all(|s| !s.name.starts_with(prefix)) {
             return Err(Error::invalid(
                 "model",
                 "pads go under tripod feet; this rig has no [tripod] (and no generic pad springs)",
@@ -217,14 +217,14 @@ impl PadMechanism {
             PadMechanism::Generic { spec, sites } => catalogue::apply_isolator(spec, sites, iso),
             PadMechanism::Rig { file, .. } => {
                 let mut f = (**file).clone();
-                f.pads = match (iso.stiffness(PadDirection::Compression), iso.stiffness(PadDirection::Shear))
-                {
-                    (Some(c), Some(s)) => Some(crate::rig::PadSpec {
-                        compression: Some(crate::assembly::StiffnessSpec::from_model(&c, false)),
-                        shear: Some(crate::assembly::StiffnessSpec::from_model(&s, false)),
-                    }),
-                    _ => None,
-                };
+                f.rig.pads =
+                    match (iso.stiffness(PadDirection::Compression), iso.stiffness(PadDirection::Shear)) {
+                        (Some(c), Some(s)) => Some(crate::rig::PadSpec {
+                            compression: Some(crate::assembly::StiffnessSpec::from_model(&c, false)),
+                            shear: Some(crate::assembly::StiffnessSpec::from_model(&s, false)),
+                        }),
+                        _ => None,
+                    };
                 f.expanded()
             }
         }
@@ -243,7 +243,7 @@ impl PadMechanism {
     /// The model's `[wind]` load point, if any.
     fn has_wind(&self) -> bool {
         match self {
-            PadMechanism::Rig { file, .. } => file.wind.is_some(),
+            PadMechanism::Rig { file, .. } => file.generic.wind.is_some(),
             PadMechanism::Generic { spec, .. } => spec.wind.is_some(),
         }
     }
@@ -731,7 +731,7 @@ pub fn summarize(rows: &[SweepRow]) -> SweepSummary {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::io::model_file::ModelFile;
+    use crate::schema::ModelFile;
     use crate::spectrum::{Psd, Quantity};
 
     const MODEL: &str = include_str!("../../../docs/examples/tripod-paver-generic.toml");

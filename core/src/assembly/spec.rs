@@ -1,0 +1,329 @@
+//! The generic layer as written in a model file: bodies, nodes, springs, general springs,
+//! beams, optics and the wind load, and the whole [`ModelSpec`].
+
+use super::stiffness_spec::{StiffnessSpec, TableSpec, ZenerSpec};
+use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
+use crate::material::Material;
+use crate::section::Section;
+use crate::stiffness::StiffnessModel;
+use serde::{Deserialize, Serialize};
+
+/// Largest number of free DOFs accepted (dense matrices; refused up front).
+pub const MAX_DOFS: usize = 2000;
+
+/// The reserved carrier name for the ground.
+pub const GROUND: &str = "ground";
+
+/// One of the six motion components of a point or body.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Dof {
+    X,
+    Y,
+    Z,
+    Rx,
+    Ry,
+    Rz,
+}
+
+impl Dof {
+    /// All six, in canonical order.
+    pub const ALL: [Dof; 6] = [Dof::X, Dof::Y, Dof::Z, Dof::Rx, Dof::Ry, Dof::Rz];
+
+    /// Index 0..6 (x, y, z, rx, ry, rz).
+    pub fn index(self) -> usize {
+        self as usize
+    }
+
+    /// The name used in files and output names.
+    pub fn name(self) -> &'static str {
+        ["x", "y", "z", "rx", "ry", "rz"][self as usize]
+    }
+
+    /// Parse "x", "y", "z", "rx", "ry", "rz".
+    pub fn parse(s: &str) -> Result<Dof> {
+        Dof::ALL.into_iter().find(|d| d.name() == s).ok_or_else(|| Error::UnknownName {
+            kind: "DOF".into(),
+            name: s.into(),
+            known: "x, y, z, rx, ry, rz".into(),
+        })
+    }
+}
+
+fn all_dofs() -> Vec<Dof> {
+    Dof::ALL.to_vec()
+}
+fn translations() -> Vec<Dof> {
+    vec![Dof::X, Dof::Y, Dof::Z]
+}
+
+/// A rigid body with 6 DOF at its centre of gravity.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct BodySpec {
+    pub name: String,
+    pub mass_kg: f64,
+    /// Position of the centre of gravity (m).
+    pub cg_m: [f64; 3],
+    /// Moments of inertia about the CG along the model axes (kg·m²).
+    pub inertia_kgm2: [f64; 3],
+    /// Off-diagonal entries of the inertia tensor [J_xy, J_xz, J_yz] (tensor components, i.e.
+    /// −∫xy dm), kg·m².
+    #[serde(default, skip_serializing_if = "is_zero3")]
+    pub products_kgm2: [f64; 3],
+    /// Free DOFs (default all six); the rest are held fixed.
+    #[serde(default = "all_dofs")]
+    pub dofs: Vec<Dof>,
+}
+
+fn is_zero3(v: &[f64; 3]) -> bool {
+    v.iter().all(|x| *x == 0.0)
+}
+
+/// A point mass with translational DOFs.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct NodeSpec {
+    pub name: String,
+    pub mass_kg: f64,
+    pub at_m: [f64; 3],
+    /// Free translations (default x, y, z).
+    #[serde(default = "translations")]
+    pub dofs: Vec<Dof>,
+}
+
+/// An axial spring (along `direction`) or, in `[[torsion_spring]]`, a rotational spring about
+/// `axis`, between two carriers.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SpringSpec {
+    pub name: String,
+    pub from: String,
+    pub to: String,
+    /// The point where a zero-length spring acts (model coordinates, m).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub at_m: Option<[f64; 3]>,
+    /// End points of a spring of finite length; their line is the default direction.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub from_at_m: Option<[f64; 3]>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub to_at_m: Option<[f64; 3]>,
+    /// Unit vector of the spring's line of action (axial springs).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub direction: Option<[f64; 3]>,
+    /// Unit vector of the rotation axis (torsion springs).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axis: Option<[f64; 3]>,
+    // The stiffness, as in [`StiffnessSpec`] (fields inline so unknown keys are caught).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stiffness_n_per_m: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stiffness_nm_per_rad: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub loss_factor: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub damping_ns_per_m: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub damping_nms_per_rad: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub zener: Option<ZenerSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub table: Option<TableSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub series: Option<Vec<StiffnessSpec>>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub parallel: Option<Vec<StiffnessSpec>>,
+}
+
+impl SpringSpec {
+    /// The stiffness fields as a [`StiffnessSpec`].
+    pub fn stiffness(&self) -> StiffnessSpec {
+        StiffnessSpec {
+            stiffness_n_per_m: self.stiffness_n_per_m,
+            stiffness_nm_per_rad: self.stiffness_nm_per_rad,
+            loss_factor: self.loss_factor,
+            damping_ns_per_m: self.damping_ns_per_m,
+            damping_nms_per_rad: self.damping_nms_per_rad,
+            zener: self.zener.clone(),
+            table: self.table.clone(),
+            series: self.series.clone(),
+            parallel: self.parallel.clone(),
+        }
+    }
+
+    /// Set the stiffness fields from a model (translational or `angular`).
+    pub fn with_model(mut self, m: &StiffnessModel, angular: bool) -> Self {
+        let s = StiffnessSpec::from_model(m, angular);
+        self.stiffness_n_per_m = s.stiffness_n_per_m;
+        self.stiffness_nm_per_rad = s.stiffness_nm_per_rad;
+        self.loss_factor = s.loss_factor;
+        self.damping_ns_per_m = s.damping_ns_per_m;
+        self.damping_nms_per_rad = s.damping_nms_per_rad;
+        self.zener = s.zener;
+        self.table = s.table;
+        self.series = s.series;
+        self.parallel = s.parallel;
+        self
+    }
+}
+
+/// A general 6 × 6 spring between two carriers at one point: relative motion d (3 translations,
+/// 3 rotations of `to` minus `from` at `at_m`) stores energy ½ dᵀ K d, K = `matrix`(1 + iη).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GeneralSpringSpec {
+    pub name: String,
+    pub from: String,
+    pub to: String,
+    pub at_m: [f64; 3],
+    /// Symmetric 6 × 6 stiffness, rows in x, y, z, rx, ry, rz order (N/m, N, N·m/rad).
+    pub matrix: [[f64; 6]; 6],
+    #[serde(default)]
+    pub loss_factor: f64,
+}
+
+/// A 3-D Euler–Bernoulli beam (column, leg, pier) between two carriers, split into elements with
+/// consistent mass. Ends are clamped to bodies or the ground (a point node has no rotations, so
+/// a beam cannot end on one; use a small body for a pinned end).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct BeamSpec {
+    pub name: String,
+    pub from: String,
+    pub to: String,
+    pub from_at_m: [f64; 3],
+    pub to_at_m: [f64; 3],
+    pub section: Section,
+    /// A preset name (see [`crate::material::MATERIAL_PRESETS`]) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub material: Option<String>,
+    /// ... or explicit properties.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub material_properties: Option<Material>,
+    #[serde(default = "default_elements")]
+    pub elements: usize,
+    /// Non-structural mass per length, e.g. sand or concrete fill (kg/m).
+    #[serde(default)]
+    pub added_mass_kg_per_m: f64,
+    /// Extra loss factor added to the material's (e.g. from a damping fill).
+    #[serde(default)]
+    pub added_loss_factor: f64,
+    /// A vector in the plane of the section's local y axis (default: global z, or global x for
+    /// a vertical beam).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub orientation: Option<[f64; 3]>,
+}
+
+fn default_elements() -> usize {
+    4
+}
+
+impl BeamSpec {
+    /// The beam's material (preset or explicit).
+    pub fn material(&self) -> Result<Material> {
+        let m = match (&self.material, &self.material_properties) {
+            (Some(n), None) => Material::preset(n)?,
+            (None, Some(m)) => m.clone(),
+            _ => {
+                return Err(Error::invalid(
+                    format!("beam '{}'", self.name),
+                    "give exactly one of material (a preset name) or material_properties",
+                ));
+            }
+        };
+        m.validate(&format!("beam '{}'.material", self.name))?;
+        Ok(m)
+    }
+}
+
+/// Optics carried by a body, and its pointing.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct OpticsSpec {
+    /// The rigid body carrying the optics (default `payload`, the rig layer's payload body).
+    #[serde(default = "default_optics_body")]
+    pub body: String,
+    pub focal_length_mm: f64,
+    pub pixel_um: f64,
+    pub altitude_deg: f64,
+    pub azimuth_deg: f64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub seeing_fwhm_arcsec: Option<f64>,
+    /// Rotation of the camera's axes about the line of sight from (azimuth, altitude) (deg).
+    #[serde(default)]
+    pub camera_rotation_deg: f64,
+}
+
+fn default_optics_body() -> String {
+    "payload".into()
+}
+
+impl OpticsSpec {
+    /// Plate scale (arcsec per pixel) = 206.264806 × pixel_um / focal_length_mm.
+    pub fn plate_scale_arcsec_per_px(&self) -> f64 {
+        206.264_806_247_096_36 * self.pixel_um / self.focal_length_mm
+    }
+
+    /// Line of sight â and the sensor axes (e_az, e_alt) for the pointing, rotated by the
+    /// camera rotation angle.
+    pub fn axes(&self) -> ([f64; 3], [f64; 3], [f64; 3]) {
+        let (a, h) = (self.azimuth_deg.to_radians(), self.altitude_deg.to_radians());
+        let los = [a.sin() * h.cos(), a.cos() * h.cos(), h.sin()];
+        let e_az = [a.cos(), -a.sin(), 0.0];
+        let e_alt = [-a.sin() * h.sin(), -a.cos() * h.sin(), h.cos()];
+        let (c, s) =
+            (self.camera_rotation_deg.to_radians().cos(), self.camera_rotation_deg.to_radians().sin());
+        let ex = std::array::from_fn(|i| c * e_az[i] + s * e_alt[i]);
+        let ey = std::array::from_fn(|i| -s * e_az[i] + c * e_alt[i]);
+        (los, ex, ey)
+    }
+
+    pub(crate) fn validate(&self) -> Result<()> {
+        require_positive("optics.focal_length_mm", self.focal_length_mm)?;
+        require_positive("optics.pixel_um", self.pixel_um)?;
+        require_finite("optics.azimuth_deg", self.azimuth_deg)?;
+        require_finite("optics.camera_rotation_deg", self.camera_rotation_deg)?;
+        let h = require_finite("optics.altitude_deg", self.altitude_deg)?;
+        if !(-90.0..=90.0).contains(&h) {
+            return Err(Error::invalid("optics.altitude_deg", format!("must lie in [-90, 90], got {h}")));
+        }
+        if let Some(s) = self.seeing_fwhm_arcsec {
+            require_non_negative("optics.seeing_fwhm_arcsec", s)?;
+        }
+        Ok(())
+    }
+}
+
+/// Where and how wind loads a body.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct WindLoadSpec {
+    pub body: String,
+    pub centre_of_pressure_m: [f64; 3],
+    /// Unit horizontal vector the wind blows towards.
+    pub direction: [f64; 3],
+    pub area_m2: f64,
+    pub drag_coefficient: f64,
+}
+
+/// The whole generic model, as in a model file's generic layer.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ModelSpec {
+    #[serde(default, rename = "body", skip_serializing_if = "Vec::is_empty")]
+    pub bodies: Vec<BodySpec>,
+    #[serde(default, rename = "node", skip_serializing_if = "Vec::is_empty")]
+    pub nodes: Vec<NodeSpec>,
+    #[serde(default, rename = "spring", skip_serializing_if = "Vec::is_empty")]
+    pub springs: Vec<SpringSpec>,
+    #[serde(default, rename = "torsion_spring", skip_serializing_if = "Vec::is_empty")]
+    pub torsion_springs: Vec<SpringSpec>,
+    #[serde(default, rename = "general_spring", skip_serializing_if = "Vec::is_empty")]
+    pub general_springs: Vec<GeneralSpringSpec>,
+    #[serde(default, rename = "beam", skip_serializing_if = "Vec::is_empty")]
+    pub beams: Vec<BeamSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub optics: Option<OpticsSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub wind: Option<WindLoadSpec>,
+}

@@ -1,0 +1,80 @@
+//! `[ground]` and what a stand stands on: an elastic half-space under each contact
+//! ([`crate::soil`]), or rigid ground whose contacts move with the ground motion.
+
+use crate::error::{Error, Result};
+use crate::soil::Soil;
+use serde::{Deserialize, Serialize};
+
+/// What a tripod or pier stands on.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Support {
+    /// The `[ground]` (soil or rigid).
+    #[default]
+    Ground,
+    /// The `[floor]` deck body.
+    Floor,
+}
+
+/// Ground model.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum GroundKind {
+    /// Elastic half-space under each contact.
+    #[default]
+    Soil,
+    /// Rigid (paver, slab): contacts move with the ground motion.
+    Rigid,
+}
+
+/// `[ground]`: what is under the feet or footing.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GroundSpec {
+    /// `soil` (default) or `rigid`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub kind: Option<GroundKind>,
+    /// Soil preset name (see [`crate::soil::SOIL_PRESETS`]) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub soil: Option<String>,
+    /// ... or explicit half-space properties.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub soil_properties: Option<Soil>,
+    /// Contact radius of each tripod foot on the soil (m).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub contact_radius_m: Option<f64>,
+    /// Radiation dashpots (default false: they are large for light contacts, an upper bound).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub radiation_damping: Option<bool>,
+}
+
+impl GroundSpec {
+    /// The soil, or None for rigid ground; with it whether radiation dashpots are wanted.
+    pub(super) fn soil(&self) -> Result<Option<(Soil, bool)>> {
+        match self.kind.unwrap_or_default() {
+            GroundKind::Rigid => {
+                if self.soil.is_some() || self.soil_properties.is_some() {
+                    return Err(Error::invalid("ground.soil", "not used with kind = \"rigid\""));
+                }
+                Ok(None)
+            }
+            GroundKind::Soil => {
+                let s = match (&self.soil, &self.soil_properties) {
+                    (Some(n), None) => Soil::preset(n)?,
+                    (None, Some(s)) => s.clone(),
+                    (None, None) => {
+                        return Err(Error::invalid(
+                            "ground.soil",
+                            "is required (a preset name, soil_properties, or kind = \"rigid\")",
+                        ));
+                    }
+                    (Some(_), Some(_)) => {
+                        return Err(Error::invalid("ground.soil", "give soil or soil_properties, not both"));
+                    }
+                };
+                s.validate("ground.soil_properties")?;
+                Ok(Some((s, self.radiation_damping.unwrap_or(false))))
+            }
+        }
+    }
+}

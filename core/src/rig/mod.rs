@@ -1,0 +1,204 @@
+//! Rig builders: payload, mount head, tripod, pads, ground, pier, floor → generic model.
+//!
+//! A rig file names hardware (`[payload]`, `[mount]`, `[tripod]`, `[pads]`, `[ground]`,
+//! `[pier]`, `[floor]`); [`RigSpec::expand`] turns it into the generic layer
+//! ([`ModelSpec`]: bodies, nodes, springs, beams) that [`crate::model::Model::from_spec`]
+//! assembles. `stillsky::schema::spec_to_toml(&spec)` prints the expansion, so every number the
+//! builders choose can be read and edited. Keys, units and defaults: docs/model-file.md.
+//!
+//! Geometry (x east, y north, z up, m). z = 0 is the surface the rig stands on: the soil or
+//! paver surface, or the base of a pier footing. The rig's vertical axis is the z axis.
+//!
+//! One file per part: `payload.rs` (one rigid body posed for the pointing), `mount.rs` (the
+//! head body and the pivot springs to the payload), `tripod.rs` (legs, feet, pads under the
+//! feet), `ground.rs` (soil or rigid), `pier.rs` (a column on a footing) and `floor.rs` (a deck
+//! body on springs). Shared pieces: `mass.rs` (mass properties), `elements.rs` (the bodies and
+//! springs written out) and `fields.rs` (reading optional keys with named errors).
+
+mod elements;
+mod fields;
+mod floor;
+mod ground;
+mod mass;
+mod mount;
+mod payload;
+mod pier;
+mod tripod;
+
+pub use floor::FloorSpec;
+pub use ground::{GroundKind, GroundSpec, Support};
+pub use mount::{DEFAULT_PIVOT_TRANSLATIONAL_STIFFNESS_N_PER_M, MountSpec};
+pub use payload::{PartAxis, PartKind, PartSpec, PayloadSpec, payload_frame};
+pub use pier::{DEFAULT_FOOTING_DENSITY_KG_M3, FootingSpec, PierSpec};
+pub use tripod::{PadSpec, TripodGeometry, TripodSpec};
+
+use crate::assembly::{GROUND, ModelSpec, OpticsSpec};
+use crate::error::{Error, Result};
+use crate::soil::Soil;
+use elements::to_body;
+use fields::{body_name, pos};
+use mass::{Mass, combine};
+use serde::{Deserialize, Serialize};
+use tripod::{TripodPlan, foot_contact};
+
+/// The rig layer of a model file.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RigSpec {
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub payload: Option<PayloadSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub mount: Option<MountSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tripod: Option<TripodSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pads: Option<PadSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ground: Option<GroundSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pier: Option<PierSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub floor: Option<FloorSpec>,
+}
+
+impl RigSpec {
+    /// True when no rig section is present.
+    pub fn is_empty(&self) -> bool {
+        self == &RigSpec::default()
+    }
+
+    /// Expand into generic-layer bodies, nodes, springs and beams, posed for the optics'
+    /// pointing (zenith when `optics` is `None`). The result carries `optics` unchanged.
+    pub fn expand(&self, optics: Option<&OpticsSpec>) -> Result<ModelSpec> {
+        let mut out = ModelSpec { optics: optics.cloned(), ..Default::default() };
+        if self.is_empty() {
+            return Ok(out);
+        }
+        let (alt, az) = match optics {
+            Some(o) => {
+                o.validate()?;
+                (o.altitude_deg, o.azimuth_deg)
+            }
+            None => (90.0, 0.0),
+        };
+        if self.tripod.is_some() && self.pier.is_some() {
+            return Err(Error::invalid("pier", "a rig has either [tripod] or [pier], not both"));
+        }
+        if self.pads.is_some() && self.tripod.is_none() {
+            return Err(Error::invalid("pads", "pads go under tripod feet; there is no [tripod]"));
+        }
+        if self.payload.is_some() && self.mount.is_none() {
+            return Err(Error::invalid(
+                "mount",
+                "is required to carry the payload (the pivot is on the mount)",
+            ));
+        }
+        if self.mount.is_some() && self.tripod.is_none() && self.pier.is_none() {
+            return Err(Error::invalid("tripod", "the mount needs a [tripod] or a [pier] to stand on"));
+        }
+        let stand_on = self
+            .tripod
+            .as_ref()
+            .map(|t| (t.on.unwrap_or_default(), "tripod.on"))
+            .or_else(|| self.pier.as_ref().map(|p| (p.on.unwrap_or_default(), "pier.on")));
+        if self.ground.is_some() && !matches!(stand_on, Some((Support::Ground, _))) {
+            return Err(Error::invalid(
+                "ground",
+                "nothing stands on the ground (no tripod or pier with on = \"ground\")",
+            ));
+        }
+
+        if self.pier.is_some() && self.ground.as_ref().is_some_and(|g| g.contact_radius_m.is_some()) {
+            return Err(Error::invalid(
+                "ground.contact_radius_m",
+                "is for tripod feet; a pier footing's size sets its contact",
+            ));
+        }
+        // Floor.
+        let floor = match &self.floor {
+            Some(f) => Some(f.build(&mut out)?),
+            None => None,
+        };
+        // The stand's support surface.
+        let (support, support_z) = match stand_on {
+            None => (GROUND.to_string(), 0.0),
+            Some((Support::Ground, _)) => (GROUND.to_string(), 0.0),
+            Some((Support::Floor, field)) => match &floor {
+                Some((name, z)) => (name.clone(), *z),
+                None => return Err(Error::invalid(field, "is \"floor\" but there is no [floor]")),
+            },
+        };
+        let Some(mount) = &self.mount else {
+            return Ok(out);
+        };
+        let mount_name = body_name("mount.name", &mount.name, "mount")?;
+        let payload_name = match &self.payload {
+            Some(p) => Some(body_name("payload.name", &p.name, "payload")?),
+            None => None,
+        };
+        if payload_name.as_deref() == Some(mount_name.as_str()) {
+            return Err(Error::invalid("payload.name", "must differ from mount.name"));
+        }
+
+        // Stand geometry and extra masses on the mount body.
+        let mut extras: Vec<Mass> = Vec::new();
+        let top_z;
+        let mut tripod_plan = None;
+        let mut pier_base = None;
+        if let Some(t) = &self.tripod {
+            let g = t.geometry()?;
+            top_z = support_z + g.height_m;
+            let plan = TripodPlan::new(t, g, support_z, top_z)?;
+            extras.extend(plan.head_masses());
+            tripod_plan = Some(plan);
+        } else if let Some(p) = &self.pier {
+            let h = pos("pier.height_m", p.height_m)?;
+            let base = p.base(self, &support, support_z, &mut out)?;
+            top_z = base.z + h;
+            pier_base = Some(base);
+        } else {
+            return Ok(out);
+        }
+
+        // Mount body.
+        let (own, ph) = mount.own_mass(top_z)?;
+        let mut parts = vec![own];
+        parts.extend(extras);
+        out.bodies.push(to_body(&mount_name, &combine(&parts)));
+        let pivot = [0.0, 0.0, top_z + ph];
+
+        // Payload and the pivot joint.
+        if let (Some(p), Some(pname)) = (&self.payload, &payload_name) {
+            let posed = p.posed(pivot, alt, az)?;
+            out.bodies.push(to_body(pname, &posed));
+            mount.joint(&mount_name, pname, pivot, alt, az, &mut out)?;
+        }
+
+        // Stand elements.
+        if let Some(plan) = tripod_plan {
+            let contact = foot_contact(self, &support)?;
+            plan.build(&mount_name, &support, contact, &mut out)?;
+        }
+        if let (Some(p), Some(base)) = (&self.pier, pier_base) {
+            out.beams.push(p.column(&base, &mount_name, top_z)?);
+            if let Some(f) = &self.floor {
+                f.gap(&out, &base)?.into_iter().for_each(|s| out.springs.push(s));
+            }
+        } else if self.floor.as_ref().is_some_and(|f| f.gap_stiffness_n_per_m.is_some()) {
+            return Err(Error::invalid(
+                "floor.gap_stiffness_n_per_m",
+                "bridges the deck to a pier footing; there is no pier on a footing",
+            ));
+        }
+        Ok(out)
+    }
+
+    fn ground(&self) -> Result<&GroundSpec> {
+        self.ground.as_ref().ok_or_else(|| Error::invalid("ground", "is required (soil or kind = \"rigid\")"))
+    }
+
+    /// The soil of `[ground]`, or None for rigid ground.
+    fn soil(&self) -> Result<Option<(Soil, bool)>> {
+        self.ground()?.soil()
+    }
+}
