@@ -56,7 +56,7 @@ type M3 = [[f64; 3]; 3];
 pub const DEFAULT_PIVOT_TRANSLATIONAL_STIFFNESS_N_PER_M: f64 = 1.0e8;
 
 /// Default footing density (kg/m³): plain concrete, inside the 2300–2400 range of the reference
-/// notes §8.4.
+/// docs/references.md#s8-4.
 pub const DEFAULT_FOOTING_DENSITY_KG_M3: f64 = 2400.0;
 
 // ---------------------------------------------------------------------------------------------
