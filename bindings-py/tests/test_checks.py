@@ -47,13 +47,13 @@ def test_leg_stress_and_euler_by_hand():
     rep = stillsky.static_checks(m, design_wind_m_s=5.0, gust_factor=1.5)
     by_name = {c["name"].split(" (")[0]: c for c in rep}
     st, bk = by_name["leg axial stress"], by_name["leg buckling"]
-    # Leg load N = W / (n cos θ) (statics of a symmetric tripod, reference notes §9).
+    # Leg load N = W / (n cos θ) (statics of a symmetric tripod, docs/references.md#s9).
     load = total_mass_kg(m) * G / (3 * math.cos(math.radians(SPLAY)))
     assert bk["value"] == pytest.approx(load, rel=1e-9)
     # Axial stress N / A, A = π/4 (OD² − ID²) for a tube.
     ID = OD - 2 * WALL
     area = math.pi / 4 * (OD**2 - ID**2)
-    # REFERENCES.md §9 check value: this tube has A = 0.300333 in², so 40 lbf gives 133.19 psi.
+    # docs/references.md#s9 check value: this tube has A = 0.300333 in², so 40 lbf gives 133.19 psi.
     assert area / IN**2 == pytest.approx(0.300333, rel=2e-6)
     assert 40.0 / (area / IN**2) == pytest.approx(133.19, rel=1e-4)
     assert st["value"] == pytest.approx(load / area, rel=1e-9)

@@ -54,7 +54,7 @@ def test_one_psd_means_all_three_axes_and_summary(model):
 
 
 def test_wind_equals_numpy_linearised_drag(model):
-    # Quasi-steady linearised drag (REFERENCES.md §6.6; e.g. Simiu & Scanlan, Wind Effects on
+    # Quasi-steady linearised drag (docs/references.md#s6-6; e.g. Simiu & Scanlan, Wind Effects on
     # Structures): S_F = (ρ C_d A U)² S_u, with ρ = 1.225 kg/m³ and the model's [wind] area and
     # drag coefficient (tripod-lawn.toml: A = 0.2 m², C_d = 1.2); S_img = |H_wind→image|² S_F.
     f = np.geomspace(0.2, 100.0, 400)

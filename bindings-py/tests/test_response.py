@@ -54,7 +54,7 @@ def test_response_wind_matches_image_motion_path():
 
 
 def test_miles_equation_white_force_on_sdof():
-    # Miles (1954), force-input form (REFERENCES.md §3): an SDOF under white one-sided force PSD
+    # Miles (1954), force-input form (docs/references.md#s3): an SDOF under white one-sided force PSD
     # S0 has displacement mean square σ² = (π/2) f_n Q S0 / k², Q = 1/(2ζ) (= S0/(4kc)).
     mass, k, zeta = 2.0, 1.0e4, 0.02
     c = float(2 * zeta * np.sqrt(k * mass))

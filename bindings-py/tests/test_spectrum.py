@@ -93,7 +93,7 @@ def test_reference_ground_nlnm_below_nhnm():
     f = np.geomspace(0.05, 10.0, 100)
     lo, hi = stillsky.reference_ground("nlnm", f), stillsky.reference_ground("nhnm", f)
     assert lo.quantity == "acceleration" and np.all(lo.values < hi.values)
-    # Peterson (1993), check values in REFERENCES.md §4: NLNM at P = 1 s is −166.40 dB and
+    # Peterson (1993), check values in docs/references.md#s4: NLNM at P = 1 s is −166.40 dB and
     # NHNM −116.85 dB re 1 (m/s²)²/Hz.
     s1 = stillsky.reference_ground("nlnm", np.array([0.9, 1.0, 1.1])).values[1]
     assert 10 * np.log10(s1) == pytest.approx(-166.40, abs=0.01)
@@ -104,7 +104,7 @@ def test_reference_ground_nlnm_below_nhnm():
 def test_criterion_curve_and_check():
     c, lim = stillsky.criterion_curve("vc-a")
     assert c[0] == pytest.approx(1.0, rel=0.03) and c[-1] == pytest.approx(80.0, rel=0.03)
-    assert np.all(lim == 50e-6)  # VC-A: 50 µm/s band RMS (REFERENCES.md §5, VC table)
+    assert np.all(lim == 50e-6)  # VC-A: 50 µm/s band RMS (docs/references.md#s5, VC table)
     f = np.geomspace(0.5, 120.0, 2000)
     v = stillsky.Psd(f, np.full_like(f, 1e-14), "velocity")
     r = v.check_criterion("vc-a")
@@ -117,9 +117,9 @@ def test_wind_spectrum_variance():
     p = stillsky.wind_spectrum("kaimal", f, 5.0, 2.0, turbulence_intensity=0.2)
     assert p.quantity == "velocity"
     assert p.mean_square() == pytest.approx((0.2 * 5.0) ** 2, rel=0.02)
-    # IEC 61400-1 Kaimal and von Kármán, U = 5 m/s, σ_u = 1 m/s, z = 2 m (REFERENCES.md §6,
+    # IEC 61400-1 Kaimal and von Kármán, U = 5 m/s, σ_u = 1 m/s, z = 2 m (docs/references.md#s6,
     # values computed from the published formulas). The core rescales von Kármán by
-    # sqrt(C_exact/70.8) so that it integrates to σ_u² exactly (REFERENCES.md §6.3), hence the
+    # sqrt(C_exact/70.8) so that it integrates to σ_u² exactly (docs/references.md#s6-3), hence the
     # table's rounded-constant values are met to 2e-4 only.
     f2 = np.array([0.01, 0.1, 1.0])
     iec = stillsky.wind_spectrum("kaimal-iec", f2, 5.0, 2.0, turbulence_intensity=0.2)

@@ -86,7 +86,7 @@ fn report_prints_summary_plots_and_json() {
     }
     let json = std::fs::read_to_string(d.join("r.json")).unwrap();
     let v: serde_json::Value = serde_json::from_str(&json).unwrap();
-    // Plate scale 206.264806 × 3.76 / 2800 (reference notes §11).
+    // Plate scale 206.264806 × 3.76 / 2800 (docs/references.md#s11).
     let plate = v["image"]["plate_scale_arcsec_per_px"].as_f64().unwrap();
     assert!((plate - 206.264806 * 3.76 / 2800.0).abs() < 1e-9);
     let rms_px = v["image"]["rms_px"].as_f64().unwrap();

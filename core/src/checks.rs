@@ -3,7 +3,7 @@
 //! Plain functions on explicit parameters (SI units). Each check returns a result struct with
 //! the numbers behind it, and can be turned into a [`Check`] line of a [`CheckReport`].
 //!
-//! Formulas (reference notes §9): leg load N = W/(n cos θ); Euler load P_cr = π²EI/(KL)²;
+//! Formulas (docs/references.md#s9): leg load N = W/(n cos θ); Euler load P_cr = π²EI/(KL)²;
 //! transition slenderness C_c = √(2π²E/σ_y) with the Johnson parabola
 //! σ_cr = σ_y [1 − (KL/r)²/(2C_c²)] below it; a rig on feet spread on a circle tips about the
 //! line through two adjacent feet; cantilever tip deflection F H³/(3EI).
@@ -139,7 +139,7 @@ impl CheckReport {
 // ---------------------------------------------------------------------------------------------
 
 /// Axial load per leg (N) of `n_legs` legs sharing a central vertical load `total_weight_n`,
-/// each inclined `splay_from_vertical_rad` from vertical: N = W/(n cos θ) (reference notes §9).
+/// each inclined `splay_from_vertical_rad` from vertical: N = W/(n cos θ) (docs/references.md#s9).
 pub fn leg_axial_load_n(total_weight_n: f64, n_legs: usize, splay_from_vertical_rad: f64) -> Result<f64> {
     require_non_negative("total_weight_n", total_weight_n)?;
     if n_legs == 0 {
@@ -189,7 +189,7 @@ pub fn axial_stress(load_n: f64, section: &Section, material: &Material) -> Resu
     Ok(AxialStress { load_n, stress_pa, strength_pa, factor_of_safety })
 }
 
-/// End conditions of a column, with effective-length factors K (reference notes §9: Timoshenko
+/// End conditions of a column, with effective-length factors K (docs/references.md#s9: Timoshenko
 /// & Gere (1961) theoretical values; AISC commentary recommended design values, from memory:
 /// verify).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -225,7 +225,7 @@ impl EndCondition {
     }
 }
 
-/// Euler critical load P_cr = π² E I / (K L)² (N) (reference notes §9).
+/// Euler critical load P_cr = π² E I / (K L)² (N) (docs/references.md#s9).
 pub fn euler_load_n(
     youngs_modulus_pa: f64,
     second_moment_m4: f64,
@@ -239,7 +239,8 @@ pub fn euler_load_n(
     Ok(PI * PI * e * i / (k * l).powi(2))
 }
 
-/// Transition slenderness C_c = √(2π²E/σ_y) between the Johnson parabola and Euler (§9).
+/// Transition slenderness C_c = √(2π²E/σ_y) between the Johnson parabola and Euler
+/// (docs/references.md#s9).
 pub fn transition_slenderness(youngs_modulus_pa: f64, yield_strength_pa: f64) -> Result<f64> {
     let e = require_positive("youngs_modulus_pa", youngs_modulus_pa)?;
     let fy = require_positive("yield_strength_pa", yield_strength_pa)?;
@@ -326,7 +327,7 @@ pub fn buckling(
 /// Drag force of steady wind with a gust factor: F = G · ½ ρ C_d A U² (N).
 ///
 /// `gust_factor` G multiplies the mean-wind *force* (a speed gust factor G_u corresponds to
-/// G = G_u²). Drag law: reference notes §6.6.
+/// G = G_u²). Drag law: docs/references.md#s6-6.
 pub fn wind_force_n(
     air_density_kg_m3: f64,
     drag_coefficient: f64,
@@ -363,7 +364,7 @@ pub struct TippingInput {
     pub drag_coefficient: f64,
     /// Area exposed to the wind, A (m²).
     pub area_m2: f64,
-    /// Air density ρ (kg/m³); 1.225 is the ISA sea-level value (reference notes §6).
+    /// Air density ρ (kg/m³); 1.225 is the ISA sea-level value (docs/references.md#s6).
     pub air_density_kg_m3: f64,
     /// Factor G on the mean-wind force (see [`wind_force_n`]).
     pub gust_factor: f64,
@@ -464,7 +465,7 @@ impl Tipping {
 /// The resultant of weight and wind force meets the ground at c + (F h / W) ŵ (ŵ the direction
 /// the wind blows toward); the rig tips when that point leaves the foot polygon, i.e. about
 /// line k when F h (ŵ·n̂_k) > W (d − c·n̂_k), d = R_f cos(π/n) (R_f/2 for a tripod, reference
-/// notes §9). Sliding, uplift of light feet, ground give and dynamic gust response are ignored.
+/// docs/references.md#s9). Sliding, uplift of light feet, ground give and dynamic gust response are ignored.
 pub fn tipping(input: &TippingInput, wind_speed_m_s: f64, wind_from_azimuth_deg: f64) -> Result<Tipping> {
     input.validate()?;
     require_non_negative("wind_speed_m_s", wind_speed_m_s)?;
@@ -664,16 +665,16 @@ mod tests {
     fn steel_tube_2in() -> (Section, Material) {
         let s = Section::Tube { outer_diameter_m: 2.0 * INCH, wall_m: 0.049 * INCH };
         let mut m = Material::preset("stainless-304").unwrap();
-        m.youngs_modulus_pa = 28e6 * PSI; // §9 uses E = 28e6 psi for the leg example
+        m.youngs_modulus_pa = 28e6 * PSI; // docs/references.md#s9 uses E = 28e6 psi for the leg example
         (s, m)
     }
 
     #[test]
     fn leg_stress_matches_reference_check() {
-        // Reference notes §9 required check (computed from the published formula):
+        // docs/references.md#s9 required check (computed from the published formula):
         // 2.0 in OD × 0.049 in wall, 40 lbf axial → 133.19 psi.
         let (s, m) = steel_tube_2in();
-        // N = W/(3 cos θ) (§9): 120 lbf on three vertical legs is 40 lbf each.
+        // N = W/(3 cos θ) (docs/references.md#s9): 120 lbf on three vertical legs is 40 lbf each.
         let n = leg_axial_load_n(120.0 * LBF, 3, 0.0).unwrap();
         assert_relative_eq!(n / LBF, 40.0, max_relative = 1e-12);
         let a = axial_stress(n, &s, &m).unwrap();
@@ -682,7 +683,8 @@ mod tests {
         assert_relative_eq!(psi, 133.19, max_relative = 5e-5);
         assert_relative_eq!(a.factor_of_safety, m.yield_strength_pa / a.stress_pa, max_relative = 1e-12);
         assert_eq!(a.check("leg").verdict, Verdict::Pass);
-        // Splay: θ = 20° from vertical raises the load by 1/cos 20° = 1.064178 (§9 formula).
+        // Splay: θ = 20° from vertical raises the load by 1/cos 20° = 1.064178
+        // (docs/references.md#s9 formula).
         let n20 = leg_axial_load_n(120.0 * LBF, 3, 20f64.to_radians()).unwrap();
         assert_relative_eq!(n20 / LBF, 40.0 / 20f64.to_radians().cos(), max_relative = 1e-12);
         assert_relative_eq!(n20 / LBF, 42.567, max_relative = 1e-4);
@@ -693,7 +695,7 @@ mod tests {
 
     #[test]
     fn euler_loads_match_reference() {
-        // Reference notes §9 (computed from the published formula), E = 28e6 psi.
+        // docs/references.md#s9 (computed from the published formula), E = 28e6 psi.
         let (s, m) = steel_tube_2in();
         let i = s.min_second_moment_m4();
         let p = euler_load_n(m.youngs_modulus_pa, i, 48.0 * INCH, 1.0).unwrap();
@@ -708,20 +710,22 @@ mod tests {
         assert_relative_eq!(p2 / LBF, 4288.0, max_relative = 2e-4);
         let p3 = euler_load_n(m.youngs_modulus_pa, i, 60.0 * INCH, 2.0).unwrap();
         assert_relative_eq!(p3 / LBF, 2744.0, max_relative = 2e-4);
-        // Slenderness values of §9: 69.6, 139.1, 173.9.
+        // Slenderness values of docs/references.md#s9: 69.6, 139.1, 173.9.
         let b1 = buckling(&s, &m, 48.0 * INCH, 1.0, 40.0 * LBF).unwrap();
         let b2 = buckling(&s, &m, 48.0 * INCH, 2.0, 40.0 * LBF).unwrap();
         let b3 = buckling(&s, &m, 60.0 * INCH, 2.0, 40.0 * LBF).unwrap();
         assert_relative_eq!(b1.slenderness, 69.6, max_relative = 1e-3);
         assert_relative_eq!(b2.slenderness, 139.1, max_relative = 1e-3);
         assert_relative_eq!(b3.slenderness, 173.9, max_relative = 1e-3);
-        // §9: at KL/r 69.6 the column is inelastic, so Euler does not govern (304: C_c > 69.6).
+        // docs/references.md#s9: at KL/r 69.6 the column is inelastic, so Euler does not govern
+        // (304: C_c > 69.6).
         assert_eq!(b1.regime, BucklingRegime::Johnson);
         assert!(b1.critical_load_n < b1.euler_load_n);
         assert_eq!(b3.regime, BucklingRegime::Euler);
         assert_relative_eq!(b3.factor_of_safety, b3.euler_load_n / (40.0 * LBF), max_relative = 1e-12);
 
-        // SI example of §9: 6061-T6, 25 mm OD × 2 mm wall, L = 1 m: 6547.3 N (K=1), 1636.8 N (K=2).
+        // SI example of docs/references.md#s9: 6061-T6, 25 mm OD × 2 mm wall, L = 1 m: 6547.3 N (K=1),
+        // 1636.8 N (K=2).
         let s = Section::Tube { outer_diameter_m: 0.025, wall_m: 0.002 };
         let al = Material::preset("aluminium-6061-t6").unwrap();
         let p = euler_load_n(al.youngs_modulus_pa, s.min_second_moment_m4(), 1.0, 1.0).unwrap();
@@ -729,18 +733,18 @@ mod tests {
         assert_relative_eq!(p / s.area_m2() / 1e6, 45.3, max_relative = 1e-3);
         let p = euler_load_n(al.youngs_modulus_pa, s.min_second_moment_m4(), 1.0, 2.0).unwrap();
         assert_relative_eq!(p, 1636.8, max_relative = 1e-4);
-        // Squash load at 276 MPa: 39 886 N (§9).
+        // Squash load at 276 MPa: 39 886 N (docs/references.md#s9).
         assert_relative_eq!(s.area_m2() * 276e6, 39886.0, max_relative = 1e-4);
         assert!(euler_load_n(1.0, 1.0, 0.0, 1.0).is_err());
     }
 
     #[test]
     fn transition_slenderness_matches_reference() {
-        // Reference notes §9 (computed from the published formula): 304 (193 GPa, 215 MPa) 133.1;
+        // docs/references.md#s9 (computed from the published formula): 304 (193 GPa, 215 MPa) 133.1;
         // 6061-T6 (68.9 GPa, 276 MPa) 70.2.
         assert_relative_eq!(transition_slenderness(193e9, 215e6).unwrap(), 133.1, max_relative = 5e-4);
         assert_relative_eq!(transition_slenderness(68.9e9, 276e6).unwrap(), 70.2, max_relative = 5e-4);
-        // Johnson parabola meets Euler at C_c (σ_cr = σ_y/2 there, both curves, §9).
+        // Johnson parabola meets Euler at C_c (σ_cr = σ_y/2 there, both curves, docs/references.md#s9).
         let s = Section::Tube { outer_diameter_m: 0.025, wall_m: 0.002 };
         let al = Material::preset("aluminium-6061-t6").unwrap();
         let cc = transition_slenderness(al.youngs_modulus_pa, al.yield_strength_pa).unwrap();
@@ -752,7 +756,7 @@ mod tests {
 
     #[test]
     fn effective_length_factors() {
-        // Reference notes §9 (Timoshenko & Gere theoretical values).
+        // docs/references.md#s9 (Timoshenko & Gere theoretical values).
         assert_eq!(EndCondition::PinnedPinned.k_theoretical(), 1.0);
         assert_eq!(EndCondition::FixedFree.k_theoretical(), 2.0);
         assert_eq!(EndCondition::FixedFixed.k_theoretical(), 0.5);
@@ -762,7 +766,7 @@ mod tests {
 
     #[test]
     fn tripod_tipping_matches_reference_example() {
-        // Reference notes §9 (computed from the published formula): R_f = 0.6 m,
+        // docs/references.md#s9 (computed from the published formula): R_f = 0.6 m,
         // W = 30 kg × 9.80665 = 294.2 N, h = 1.5 m → restoring 88.26 N m, tipping force 58.84 N.
         let w = 30.0 * STANDARD_GRAVITY;
         let inp = TippingInput::tripod(0.6, w, 1.5, 0.5);
@@ -791,7 +795,7 @@ mod tests {
 
     #[test]
     fn tipping_depends_on_direction_and_cg() {
-        // Geometry (reference notes §9): wind toward a foot (not an edge normal) pushes at 60° to
+        // Geometry (docs/references.md#s9): wind toward a foot (not an edge normal) pushes at 60° to
         // both adjacent edge normals of a tripod, so the tipping force doubles: 1/cos 60° = 2.
         let w = 100.0;
         let inp = TippingInput::tripod(0.6, w, 1.0, 0.5);
@@ -831,7 +835,7 @@ mod tests {
     fn pier_checks() {
         // Steel tube pier, invented: 168.3 mm OD × 5 mm wall, H = 1.2 m, 40 kg on top, 200 N
         // horizontal at the top. Cantilever formulas: M = F H, σ_b = M c / I, δ = F H³/(3EI);
-        // buckling with K = 2 (reference notes §9).
+        // buckling with K = 2 (docs/references.md#s9).
         let s = Section::Tube { outer_diameter_m: 0.1683, wall_m: 0.005 };
         let m = Material::preset("steel-s235").unwrap();
         let p = pier(&s, &m, 1.2, 40.0, 200.0).unwrap();

@@ -1,7 +1,7 @@
 //! Image motion on the sensor plane: arcsec, µm and pixels; probability of leaving a radius;
 //! blur against seeing; exposure and guiding.
 //!
-//! Conventions (reference notes §11):
+//! Conventions (docs/references.md#s11):
 //! - arcsec = rad × 206264.806; µm on the sensor = f_mm × 1000 × rad; plate scale
 //!   ″/px = 206.264806 × pixel_um / f_mm.
 //! - Motion is zero-mean Gaussian. Isotropic 2-D motion with per-axis σ leaves a radius R with
@@ -13,7 +13,7 @@
 //!   1 − sinc²(πfT) (boxcar average; Bendat & Piersol, *Random Data*, from memory: verify).
 //! - Guiding at cadence T_g with integrator gain g and one frame of delay: residual =
 //!   |E(z)|² × PSD with E(z) = (1 − z⁻¹)/(1 − (1 − g)z⁻¹), z = e^{i2πfT_g} (Franklin, Powell &
-//!   Workman, *Digital Control of Dynamic Systems*; notes §11). Stable for 0 < g < 2.
+//!   Workman, *Digital Control of Dynamic Systems*; docs/references.md#s11). Stable for 0 < g < 2.
 
 use crate::error::{Error, Result, require_positive};
 use crate::grid::{FreqGrid, trapezoid};
@@ -365,7 +365,7 @@ mod tests {
 
     #[test]
     fn plate_scale_check_values() {
-        // Reference notes §11 (computed from the published formula).
+        // docs/references.md#s11 (computed from the published formula).
         assert_relative_eq!(plate_scale_arcsec_per_px(3.76, 1000.0), 0.77556, max_relative = 1e-5);
         assert_relative_eq!(plate_scale_arcsec_per_px(5.4, 800.0), 1.39229, max_relative = 1e-5);
         // Issue check: 3.8 µm at 3910 mm ≈ 0.200 ″/px (common practice).
@@ -374,7 +374,7 @@ mod tests {
 
     #[test]
     fn rayleigh_and_anisotropic_probability() {
-        // Notes §11: P(r > σ) = 0.606531, P(r > 2σ) = 0.135335, P(r > 3σ) = 0.011109.
+        // docs/references.md#s11: P(r > σ) = 0.606531, P(r > 2σ) = 0.135335, P(r > 3σ) = 0.011109.
         for (k, p) in [(1.0, 0.606531), (2.0, 0.135335), (3.0, 0.011109)] {
             assert_relative_eq!(p_outside_isotropic(k, 1.0), p, max_relative = 1e-5);
             assert_relative_eq!(
@@ -417,7 +417,8 @@ mod tests {
 
     #[test]
     fn guider_rejection_check_values() {
-        // Notes §11 table, one-frame delay: g = 0.5 at f/fs = 0.1 → 0.930682; g = 0.3 at 0.05 → 0.785813.
+        // docs/references.md#s11 table, one-frame delay: g = 0.5 at f/fs = 0.1 → 0.930682;
+        // g = 0.3 at 0.05 → 0.785813.
         assert_relative_eq!(guide_rejection_sq(0.1, 1.0, 0.5).sqrt(), 0.930682, max_relative = 1e-6);
         assert_relative_eq!(guide_rejection_sq(0.05, 1.0, 0.3).sqrt(), 0.785813, max_relative = 1e-6);
         assert_relative_eq!(guide_rejection_sq(0.5, 1.0, 0.5).sqrt(), 4.0 / 3.0, max_relative = 1e-12);
@@ -425,7 +426,7 @@ mod tests {
 
     #[test]
     fn sinc2_check_values() {
-        // Notes §11: sinc² at fT = 0.25 is 0.810569, at 0.5 is (2/π)², at 1 is 0.
+        // docs/references.md#s11: sinc² at fT = 0.25 is 0.810569, at 0.5 is (2/π)², at 1 is 0.
         assert_relative_eq!(sinc2(0.25, 1.0), 0.810569, max_relative = 1e-6);
         assert_relative_eq!(sinc2(0.5, 1.0), (2.0 / PI).powi(2), max_relative = 1e-12);
         assert!(sinc2(1.0, 1.0) < 1e-30);

@@ -1,8 +1,8 @@
 //! Named structural materials with their sources.
 //!
 //! Values are room-temperature, along the grain for wood. Each preset names its source as given
-//! in the project's reference notes; where the notes say "from memory: verify" or
-//! "common practice, no source" the doc of the preset says so. Use the supplier's data where you
+//! in docs/references.md#s9; where that page says "from memory" or "common practice, no source"
+//! the doc of the preset says so. Use the supplier's data where you
 //! have it: build a [`Material`] by hand.
 
 use crate::error::{Result, require_non_negative, require_positive};
@@ -55,18 +55,18 @@ impl Material {
     /// A named preset (see [`MATERIAL_PRESETS`]).
     ///
     /// - `stainless-304`: annealed 304, E 193 GPa, yield 207 MPa, ρ 7900, ν 0.27 (a mechanics
-    ///   textbook's material appendix, as quoted in the reference notes §9); η 0.002 (steel,
+    ///   textbook's material appendix, as quoted in docs/references.md#s9); η 0.002 (steel,
     ///   typical range 0.001–0.005, from memory: verify).
     /// - `aluminium-6061-t6`: E 68.9 GPa, yield 276 MPa typical, ρ 2700, ν 0.33 (engineering
-    ///   textbook appendix, notes §9); η 0.002 (from memory: verify).
+    ///   textbook appendix, docs/references.md#s9); η 0.002 (from memory: verify).
     /// - `carbon-fibre-tube`: roll-wrapped standard modulus, E 110 GPa axial, compressive
     ///   strength 500 MPa, ρ 1550, ν 0.3, η 0.01 (from memory: verify; use the supplier's data).
     /// - `white-ash`: along the grain at 12 % moisture, E 12.0 GPa, crushing strength 51.1 MPa
     ///   (Wood Handbook), ρ 670; ν 0.37 and η 0.015 (from memory: verify).
     /// - `steel-s235`: structural steel, E 210 GPa, yield 235 MPa, ρ 7850, ν 0.3, η 0.002
     ///   (EN 1993-1-1 nominal values, from memory: verify).
-    /// - `concrete-c30`: E 30 GPa, ρ 2400, ν 0.2 (notes §8.4 range 25–35 GPa); "yield" is the
-    ///   compressive characteristic strength 30 MPa; η 0.02 (common practice, no source).
+    /// - `concrete-c30`: E 30 GPa, ρ 2400, ν 0.2 (docs/references.md#s8-4 range 25–35 GPa); "yield"
+    ///   is the compressive characteristic strength 30 MPa; η 0.02 (common practice, no source).
     pub fn preset(name: &str) -> Result<Self> {
         let m = |e: f64, nu: f64, rho: f64, fy: f64, eta: f64| Material {
             youngs_modulus_pa: e,

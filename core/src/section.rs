@@ -106,7 +106,7 @@ mod tests {
 
     #[test]
     fn tube_matches_reference_example() {
-        // Reference notes §9 (computed from the published formula): 2.0 in OD × 0.049 in wall.
+        // docs/references.md#s9 (computed from the published formula): 2.0 in OD × 0.049 in wall.
         let inch = 0.0254;
         let s = Section::Tube { outer_diameter_m: 2.0 * inch, wall_m: 0.049 * inch };
         assert_relative_eq!(s.area_m2() / inch.powi(2), 0.300333, max_relative = 2e-6);

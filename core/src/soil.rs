@@ -47,8 +47,9 @@ pub struct ContactStiffness {
 }
 
 impl Soil {
-    /// Preset soils: the worked-example rows of the reference notes §8.3, whose G, ν, ρ sit
-    /// inside the typical ranges of §8.4 (from memory: verify; measure your site if you can):
+    /// Preset soils: the worked-example rows of docs/references.md#s8-3, whose G, ν, ρ sit
+    /// inside the typical ranges of docs/references.md#s8-4 (from memory: verify; measure your site
+    /// if you can):
     /// `soft-clay` G 5 MPa, ν 0.45, ρ 1700; `lawn` (topsoil) G 20 MPa, ν 0.33, ρ 1600;
     /// `dense-sand` G 100 MPa, ν 0.30, ρ 1950; `gravel` G 200 MPa, ν 0.30, ρ 2100.
     /// Soil loss factor 0.05 for all (material damping of soils at small strain is a few
@@ -152,7 +153,8 @@ mod tests {
 
     #[test]
     fn half_space_static_stiffness() {
-        // Arya, O'Neill & Pincus (1979) ch. 4 / reference notes §8.1, worked lawn row of §8.3:
+        // Arya, O'Neill & Pincus (1979) ch. 4 / docs/references.md#s8-1, worked lawn row of
+        // docs/references.md#s8-3:
         // R = 0.15 m, G = 20 MPa, ν = 0.33.
         let s = Soil::preset("lawn").unwrap();
         let k = s.contact_stiffness(0.15);
@@ -162,13 +164,14 @@ mod tests {
         assert_relative_eq!(k.rocking, 2.6866e5, max_relative = 1e-4);
         assert_relative_eq!(k.torsion, 3.6000e5, max_relative = 1e-12);
         assert_relative_eq!(k.horizontal, 32.0 * (1.0 - nu) * g * r / (7.0 - 8.0 * nu), max_relative = 1e-12);
-        // Lysmer's analog vertical dashpot, §8.3 lawn row: c_z = 20 425 N·s/m.
+        // Lysmer's analog vertical dashpot, docs/references.md#s8-3 lawn row: c_z = 20 425 N·s/m.
         assert_relative_eq!(s.radiation_dashpots(0.15).vertical, 20425.0, max_relative = 1e-3);
     }
 
     #[test]
     fn lysmer_damping_ratio_consistency() {
-        // §8.3: ζ_z = c_z / (2 sqrt(K_z m)) = 0.425 / sqrt(B_z), B_z = (1−ν) m / (4 ρ R³).
+        // docs/references.md#s8-3: ζ_z = c_z / (2 sqrt(K_z m)) = 0.425 / sqrt(B_z),
+        // B_z = (1−ν) m / (4 ρ R³).
         let s = Soil::preset("dense-sand").unwrap();
         let (r, m) = (0.15, 30.0);
         let k = s.contact_stiffness(r).vertical;

@@ -265,7 +265,7 @@ mod tests {
 
     #[test]
     fn zener_check_values() {
-        // Reference notes §10 (computed from the published formula), E0 = 1, E_inf = 2.
+        // docs/references.md#s10 (computed from the published formula), E0 = 1, E_inf = 2.
         let m = StiffnessModel::Zener { k0: 1.0, k_inf: 2.0, tau_s: 1.0 / (2.0 * PI) };
         for (x, ep, epp) in [(0.1, 1.009901, 0.099010), (1.0, 1.5, 0.5), (10.0, 1.990099, 0.099010)] {
             let k = m.at(x); // ω τ = x when f = x and τ = 1/2π
@@ -282,7 +282,7 @@ mod tests {
 
     #[test]
     fn fractional_zener_check_values() {
-        // Reference notes §10: α = 0.5 at x = 1 gives E' = 1.5, E'' = 0.207107, η = 0.138071;
+        // docs/references.md#s10: α = 0.5 at x = 1 gives E' = 1.5, E'' = 0.207107, η = 0.138071;
         // the loss peak at x = ρ^(1/α) = 0.5 is 1/7.
         let m = StiffnessModel::FractionalZener { k0: 1.0, k_inf: 2.0, tau_s: 1.0 / (2.0 * PI), alpha: 0.5 };
         let k = m.at(1.0);
@@ -298,7 +298,7 @@ mod tests {
 
     #[test]
     fn kelvin_voigt_loss_factor() {
-        // Reference notes §10: k = 1e5, c = 100 at 10 Hz gives η = 0.0628.
+        // docs/references.md#s10: k = 1e5, c = 100 at 10 Hz gives η = 0.0628.
         let m = StiffnessModel::KelvinVoigt { k: 1e5, c: 100.0 };
         assert_relative_eq!(m.loss_factor_at(10.0), 2.0 * PI * 10.0 * 100.0 / 1e5, max_relative = 1e-12);
         assert_eq!(m.viscous_part(), 100.0);

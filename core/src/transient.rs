@@ -319,7 +319,7 @@ pub fn step_history(fs_hz: f64, n: usize, start_s: f64, amplitude: f64) -> Resul
 }
 
 /// The "1-cosine" pulse (A/2)(1 − cos(2π(t − t₀)/T)) for t₀ ≤ t ≤ t₀ + T, zero elsewhere
-/// (14 CFR 25.341 shape in its time form, T = 2H/U; reference notes §7), n samples at `fs_hz`.
+/// (14 CFR 25.341 shape in its time form, T = 2H/U; docs/references.md#s7), n samples at `fs_hz`.
 pub fn one_minus_cosine_history(
     fs_hz: f64,
     n: usize,
@@ -423,7 +423,7 @@ pub enum GustLength {
 pub enum Gust {
     /// u′ = amplitude from `start_s` on (mid value at the jump, see [`step_history`]).
     Step { amplitude_m_s: f64, start_s: f64 },
-    /// u′ = (U_ds/2)(1 − cos(π s/H)) for 0 ≤ s ≤ 2H, s = U (t − t₀) (reference notes §7).
+    /// u′ = (U_ds/2)(1 − cos(π s/H)) for 0 ≤ s ≤ 2H, s = U (t − t₀) (docs/references.md#s7).
     OneMinusCosine { amplitude_m_s: f64, length: GustLength, start_s: f64 },
     /// A measured total wind speed (m/s) sampled at `fs_hz` from t = 0; u′ = speed − mean speed
     /// of [`GustWind`]. Resampled linearly; the record must cover the requested duration.
@@ -511,7 +511,7 @@ pub enum DragLaw {
     /// gusts; the sign follows the relative wind). The default for time histories.
     #[default]
     Quadratic,
-    /// F′ = ρC_dA U u′ (quasi-steady linearisation, u′ ≪ U; reference notes §6.6), the same
+    /// F′ = ρC_dA U u′ (quasi-steady linearisation, u′ ≪ U; docs/references.md#s6-6), the same
     /// law the spectral (PSD) path uses.
     Linearised,
 }
@@ -521,7 +521,7 @@ pub enum DragLaw {
 #[non_exhaustive]
 pub struct GustWind {
     pub mean_speed_m_s: f64,
-    /// Air density (default 1.225 kg/m³, ISA sea level; reference notes §6.6).
+    /// Air density (default 1.225 kg/m³, ISA sea level; docs/references.md#s6-6).
     pub air_density_kg_m3: f64,
     pub drag_law: DragLaw,
 }

@@ -1,7 +1,7 @@
 //! Wind: along-wind turbulence spectra, linearised drag force and air density.
 //!
 //! All spectra are one-sided per Hz for the longitudinal gust component u, normalised so that
-//! ∫₀^∞ S_u df = σ_u² (REFERENCES.md §6). The published forms are available unnormalised as
+//! ∫₀^∞ S_u df = σ_u² (docs/references.md#s6). The published forms are available unnormalised as
 //! [`kaimal_1972`], [`kaimal_iec`], [`von_karman`] and [`davenport`]; [`WindSpec::velocity_psd`]
 //! scales each shape analytically to the prescribed σ_u²:
 //! - Kaimal (1972): ∫ 105 (z/U)(1 + 33 n z/U)^(−5/3) dn = 105·(1/33)·(3/2) = 4.7727, so the
@@ -30,53 +30,53 @@ use crate::error::{Error, Result, require_positive};
 use crate::grid::FreqGrid;
 use crate::spectrum::{Psd, Quantity};
 
-/// Air density at sea level in the ISA, 1.2250 kg/m³ (REFERENCES.md §6.6).
+/// Air density at sea level in the ISA, 1.2250 kg/m³ (docs/references.md#s6-6).
 pub const AIR_DENSITY_SEA_LEVEL_KG_M3: f64 = 1.225;
 
-/// von Kármán's constant κ = 0.4 of the logarithmic wind profile (from memory: verify; not in
-/// REFERENCES.md).
+/// von Kármán's constant κ = 0.4 of the logarithmic wind profile (from memory: verify;
+/// docs/references.md#s6-1).
 pub const VON_KARMAN_CONSTANT: f64 = 0.4;
 
-/// σ_u / u* in a neutral surface layer, 2.5 (REFERENCES.md §6.1 quotes 2.4–2.5, from memory:
+/// σ_u / u* in a neutral surface layer, 2.5 (docs/references.md#s6-1 quotes 2.4–2.5, from memory:
 /// verify).
 pub const SIGMA_U_OVER_U_STAR: f64 = 2.5;
 
 /// Exact von Kármán constant (2√π Γ(1/3)/Γ(5/6))², evaluated with scipy.special.gamma
-/// (REFERENCES.md §6.3 gives 70.7801).
+/// (docs/references.md#s6-3 gives 70.7801).
 pub const VON_KARMAN_C_EXACT: f64 = 70.78012763381714;
 
-/// Davenport's length scale, 1200 m (REFERENCES.md §6.4).
+/// Davenport's length scale, 1200 m (docs/references.md#s6-4).
 pub const DAVENPORT_LENGTH_M: f64 = 1200.0;
 
-/// Kaimal et al. (1972) neutral along-wind spectrum, unnormalised (REFERENCES.md §6.1):
+/// Kaimal et al. (1972) neutral along-wind spectrum, unnormalised (docs/references.md#s6-1):
 /// n S_u / u*² = 105 f / (1 + 33 f)^(5/3), f = n z / U. Returns S_u in (m/s)²/Hz.
 pub fn kaimal_1972(freq_hz: f64, u_star_m_s: f64, height_m: f64, mean_speed_m_s: f64) -> f64 {
     let t = height_m / mean_speed_m_s;
     u_star_m_s * u_star_m_s * 105.0 * t / (1.0 + 33.0 * freq_hz * t).powf(5.0 / 3.0)
 }
 
-/// Kaimal spectrum as in IEC 61400-1 (REFERENCES.md §6.2):
+/// Kaimal spectrum as in IEC 61400-1 (docs/references.md#s6-2):
 /// S_u = 4 σ_u² (L_u/U) / (1 + 6 f L_u/U)^(5/3), in (m/s)²/Hz.
 pub fn kaimal_iec(freq_hz: f64, sigma_u_m_s: f64, length_m: f64, mean_speed_m_s: f64) -> f64 {
     let t = length_m / mean_speed_m_s;
     4.0 * sigma_u_m_s * sigma_u_m_s * t / (1.0 + 6.0 * freq_hz * t).powf(5.0 / 3.0)
 }
 
-/// von Kármán longitudinal spectrum with the published constant 70.8 (REFERENCES.md §6.3):
+/// von Kármán longitudinal spectrum with the published constant 70.8 (docs/references.md#s6-3):
 /// S_u = 4 σ_u² (L/U) / (1 + 70.8 (f L/U)²)^(5/6), in (m/s)²/Hz (integral 0.99986 σ_u²).
 pub fn von_karman(freq_hz: f64, sigma_u_m_s: f64, length_m: f64, mean_speed_m_s: f64) -> f64 {
     let t = length_m / mean_speed_m_s;
     4.0 * sigma_u_m_s * sigma_u_m_s * t / (1.0 + 70.8 * (freq_hz * t).powi(2)).powf(5.0 / 6.0)
 }
 
-/// Davenport (1961) spectrum, unnormalised (REFERENCES.md §6.4):
+/// Davenport (1961) spectrum, unnormalised (docs/references.md#s6-4):
 /// n S_u / (κ U10²) = 4 x² / (1 + x²)^(4/3), x = 1200 n / U10; integral 6 κ U10².
 pub fn davenport(freq_hz: f64, surface_drag_kappa: f64, u10_m_s: f64) -> f64 {
     let x = DAVENPORT_LENGTH_M * freq_hz / u10_m_s;
     surface_drag_kappa * u10_m_s * u10_m_s * 4.0 * x * x / (freq_hz * (1.0 + x * x).powf(4.0 / 3.0))
 }
 
-/// Air density of the ISA troposphere at `altitude_m` (REFERENCES.md §6.6; the ISA constants
+/// Air density of the ISA troposphere at `altitude_m` (docs/references.md#s6-6; the ISA constants
 /// are marked "from memory: verify" there): T = 288.15 − 0.0065 h, p = 101 325 (T/288.15)^5.25588,
 /// ρ = p/(287.05287 T). Valid from −1000 to 11 000 m.
 pub fn isa_air_density_kg_m3(altitude_m: f64) -> Result<f64> {
@@ -284,22 +284,22 @@ impl WindSpec {
         Ok(self.air_density_kg_m3 * drag_coefficient * area_m2)
     }
 
-    /// Mean drag F = ½ ρ C_d A U_eff² (N) (REFERENCES.md §6.6).
+    /// Mean drag F = ½ ρ C_d A U_eff² (N) (docs/references.md#s6-6).
     pub fn mean_drag_force_n(&self, drag_coefficient: f64, area_m2: f64) -> Result<f64> {
         let k = self.drag_args(drag_coefficient, area_m2)?;
         Ok(0.5 * k * self.effective_speed_m_s()?.powi(2))
     }
 
     /// Standard deviation of the linearised fluctuating drag σ_F = ρ C_d A U σ_u = 2 I_u F_mean
-    /// (N) (REFERENCES.md §6.6, quasi-steady, χ = 1).
+    /// (N) (docs/references.md#s6-6, quasi-steady, χ = 1).
     pub fn drag_force_std_n(&self, drag_coefficient: f64, area_m2: f64) -> Result<f64> {
         let k = self.drag_args(drag_coefficient, area_m2)?;
         Ok(k * self.effective_speed_m_s()? * self.sigma_u_m_s()?)
     }
 
-    /// Fluctuating drag force PSD S_F = (ρ C_d A U)² |χ(f)|² S_u (N²/Hz) (REFERENCES.md §6.6).
+    /// Fluctuating drag force PSD S_F = (ρ C_d A U)² |χ(f)|² S_u (N²/Hz) (docs/references.md#s6-6).
     /// `admittance_sq` gives |χ|² on the grid points (finite, >= 0); `None` means χ = 1, the
-    /// quasi-steady limit for a body small compared with the gusts. REFERENCES.md gives no
+    /// quasi-steady limit for a body small compared with the gusts. docs/references.md gives no
     /// admittance formula, so none is built in.
     pub fn drag_force_psd(
         &self,
@@ -332,7 +332,7 @@ impl WindSpec {
     }
 
     /// Gust factor G = F_peak / F_mean = 1 + 2 g I_u for the linearised drag with peak factor
-    /// `peak_factor` g (> 0) chosen by the caller (from σ_F = 2 I_u F_mean, REFERENCES.md §6.6;
+    /// `peak_factor` g (> 0) chosen by the caller (from σ_F = 2 I_u F_mean, docs/references.md#s6-6;
     /// no peak factor is given there, g ≈ 3–4 is common practice, no source).
     pub fn gust_factor(&self, peak_factor: f64) -> Result<f64> {
         require_positive("peak_factor", peak_factor)?;
@@ -356,7 +356,7 @@ mod tests {
 
     #[test]
     fn check_values_of_published_forms() {
-        // REFERENCES.md §6.5 (computed from the published formulas): U = 5, σ_u = 1, L = 11.34.
+        // docs/references.md#s6-5 (computed from the published formulas): U = 5, σ_u = 1, L = 11.34.
         let l = 8.1 * 0.7 * 2.0;
         for (f, kaimal, vk) in [
             (0.01, 7.334235, 8.805564),
@@ -367,11 +367,11 @@ mod tests {
             assert_relative_eq!(kaimal_iec(f, 1.0, l, 5.0), kaimal, max_relative = 1e-6);
             assert_relative_eq!(von_karman(f, 1.0, l, 5.0), vk, max_relative = 1e-6);
         }
-        // Kaimal 1972 with u* = 0.3, z = 2, U = 5 (REFERENCES.md §6.5).
+        // Kaimal 1972 with u* = 0.3, z = 2, U = 5 (docs/references.md#s6-5).
         for (f, v) in [(0.01, 3.074311), (0.1, 0.9297050), (1.0, 4.539534e-2), (10.0, 1.090785e-3)] {
             assert_relative_eq!(kaimal_1972(f, 0.3, 2.0, 5.0), v, max_relative = 1e-6);
         }
-        // Davenport with U10 = 10, κ = 0.005 (REFERENCES.md §6.5).
+        // Davenport with U10 = 10, κ = 0.005 (docs/references.md#s6-5).
         for (f, v) in [(0.01, 87.67438), (0.1, 3.780668), (1.0, 8.219946e-2)] {
             assert_relative_eq!(davenport(f, 0.005, 10.0), v, max_relative = 1e-6);
         }
@@ -384,8 +384,9 @@ mod tests {
 
     #[test]
     fn spectra_integrate_to_sigma_squared() {
-        // ∫S_u df = σ_u² (REFERENCES.md §6 intro and §6.1–6.4 integrals), trapezoid on a wide
-        // log grid; the normalisation is analytic, the check numerical (1 %).
+        // ∫S_u df = σ_u² (docs/references.md#s6 intro, and the integrals of docs/references.md#s6-1
+        // to docs/references.md#s6-4), trapezoid on a wide log grid; the normalisation is analytic,
+        // the check numerical (1 %).
         for kind in
             [WindSpectrum::Kaimal, WindSpectrum::KaimalIec, WindSpectrum::VonKarman, WindSpectrum::Davenport]
         {
@@ -402,7 +403,7 @@ mod tests {
                 assert!((ms / s2 - 1.0).abs() < 2e-3, "{kind:?} U={u}: {ms} vs {s2}");
             }
         }
-        // Unnormalised Kaimal (1972): σ_u² = 4.7727 u*² (REFERENCES.md §6.1).
+        // Unnormalised Kaimal (1972): σ_u² = 4.7727 u*² (docs/references.md#s6-1).
         let g = wide();
         let raw = Psd::on_grid(
             &g,
@@ -411,7 +412,7 @@ mod tests {
         )
         .unwrap();
         assert_relative_eq!(raw.mean_square(), 4.7727 * 0.09, max_relative = 2e-3);
-        // Davenport: 6 κ U10² (REFERENCES.md §6.4).
+        // Davenport: 6 κ U10² (docs/references.md#s6-4).
         let raw =
             Psd::on_grid(&g, g.hz().iter().map(|&f| davenport(f, 0.005, 10.0)).collect(), Quantity::Velocity)
                 .unwrap();
@@ -420,7 +421,7 @@ mod tests {
 
     #[test]
     fn drag_example() {
-        // REFERENCES.md §6.6 example: ρ = 1.225, Cd = 1.2, A = 0.18 m², U = 5, σ_u = 1 (I = 0.2):
+        // docs/references.md#s6-6 example: ρ = 1.225, Cd = 1.2, A = 0.18 m², U = 5, σ_u = 1 (I = 0.2):
         // F_mean = 3.3075 N, ρCdAU = 1.323 N/(m/s), σ_F = 1.323 N = 2·0.2·3.3075.
         let s = WindSpec::new(WindSpectrum::VonKarman, 5.0, 2.0, Turbulence::Intensity(0.2));
         assert_relative_eq!(s.mean_drag_force_n(1.2, 0.18).unwrap(), 3.3075, max_relative = 1e-12);
@@ -447,7 +448,7 @@ mod tests {
 
     #[test]
     fn isa_density() {
-        // REFERENCES.md §6.6 (computed from the ISA definition): 1.2250, 1.1116, 1.0065, 0.9091.
+        // docs/references.md#s6-6 (computed from the ISA definition): 1.2250, 1.1116, 1.0065, 0.9091.
         for (h, rho) in [(0.0, 1.2250), (1000.0, 1.1116), (2000.0, 1.0065), (3000.0, 0.9091)] {
             assert!((isa_air_density_kg_m3(h).unwrap() - rho).abs() < 6e-5, "{h}");
         }

@@ -1,9 +1,9 @@
 //! Ring-down identification on synthetic free decays.
 //!
-//! Source for every physics check here: reference notes §13 (free decay of a viscously damped
+//! Source for every physics check here: docs/references.md#s13 (free decay of a viscously damped
 //! SDOF, x = A e^{−ζω_n t} sin(ω_d t), ω_d = ω_n √(1 − ζ²); logarithmic decrement and
 //! half-power relations), and for several modes the superposition of such decays (a linear
-//! system's free response is a sum of its modes' decays, §13's SDOF form per mode).
+//! system's free response is a sum of its modes' decays, docs/references.md#s13's SDOF form per mode).
 //! Tolerances: f within 0.5 %, ζ within 10 % (the acceptance of the issue; noise sets them).
 
 use rand::SeedableRng;
@@ -51,7 +51,7 @@ fn duration_for(f: f64, z: f64) -> f64 {
 
 #[test]
 fn single_mode_grid_frequency_and_damping() {
-    // Reference notes §13: x = e^{−ζω_n t} sin(ω_d t); f within 0.5 %, best ζ within 10 %.
+    // docs/references.md#s13: x = e^{−ζω_n t} sin(ω_d t); f within 0.5 %, best ζ within 10 %.
     let mut seed = 1;
     let mut worst_f: f64 = 0.0;
     let mut worst_z: f64 = 0.0;
@@ -107,7 +107,7 @@ fn single_mode_grid_frequency_and_damping() {
 
 #[test]
 fn two_close_modes_separated_by_matrix_pencil() {
-    // Two superposed free decays (reference notes §13 per mode): 10 Hz ζ 0.01 and 11 Hz ζ 0.02,
+    // Two superposed free decays (docs/references.md#s13 per mode): 10 Hz ζ 0.01 and 11 Hz ζ 0.02,
     // equal amplitudes. f within 0.5 %, ζ within 10 % from the matrix pencil (Hua & Sarkar 1990).
     for (seed, snr) in [(11, 30.0), (12, 40.0), (13, 25.0)] {
         let modes = [(10.0, 0.01, 1.0), (11.0, 0.02, 1.0)];
@@ -181,7 +181,7 @@ fn bad_inputs_give_named_errors() {
 
 #[test]
 fn clipping_is_flagged_and_heavy_clipping_is_an_error() {
-    // A decay (reference notes §13 form) recorded by a sensor that saturates at ±0.8 of the
+    // A decay (docs/references.md#s13 form) recorded by a sensor that saturates at ±0.8 of the
     // first peak: a few cycles clip. Flagged, with the fits starting after the last clipped
     // sample; the damping is still found within 10 %.
     let fs = 1000.0;
@@ -205,11 +205,11 @@ fn clipping_is_flagged_and_heavy_clipping_is_an_error() {
 
 #[test]
 fn before_after_comparison() {
-    // Two decays of the §13 form, 8 Hz: without pads ζ = 0.005, with pads ζ = 0.03 and a 40 %
-    // smaller amplitude. Hand calculation (reference notes §13, x = A e^{−σt} sin(ω_d t),
-    // σ = ζω_n): the first peak is at t* = atan(ω_d/σ)/ω_d with value A e^{−σt*} ω_d/ω_n; the
-    // envelope A e^{−σt} falls to 1/e of that value 1/σ + ln(ω_n/ω_d)/σ after t*, and to a level
-    // c at t = ln(A/c)/σ.
+    // Two decays of the docs/references.md#s13 form, 8 Hz: without pads ζ = 0.005, with pads
+    // ζ = 0.03 and a 40 % smaller amplitude. Hand calculation (docs/references.md#s13,
+    // x = A e^{−σt} sin(ω_d t), σ = ζω_n): the first peak is at t* = atan(ω_d/σ)/ω_d with value
+    // A e^{−σt*} ω_d/ω_n; the envelope A e^{−σt} falls to 1/e of that value 1/σ + ln(ω_n/ω_d)/σ
+    // after t*, and to a level c at t = ln(A/c)/σ.
     let fs = 500.0;
     let a = ringdown(&[(8.0, 0.005, 1.0)], fs, 20.0, Some(60.0), 31);
     let b = ringdown(&[(8.0, 0.03, 0.6)], fs, 20.0, Some(60.0), 32);

@@ -72,8 +72,8 @@ kind = "rigid"
 
 #[test]
 fn tripod_leg_spring_and_vertical_mode_match_statics() {
-    // Leg EA/L with the tube area (π/4)(D_o² − D_i²) (reference notes §9) and E = 193 GPa
-    // (stainless-304 preset, notes §9).
+    // Leg EA/L with the tube area (π/4)(D_o² − D_i²) (docs/references.md#s9) and E = 193 GPa
+    // (stainless-304 preset, docs/references.md#s9).
     let s = spec(TRIPOD);
     let (e, d, t, l) = (193e9, 0.03_f64, 0.002, 1.2);
     let a = PI / 4.0 * (d * d - (d - 2.0 * t).powi(2));
@@ -212,9 +212,9 @@ soil = "lawn"
 
 #[test]
 fn pier_footing_springs_are_the_half_space_formulas() {
-    // Arya, O'Neill & Pincus (1979) ch. 4 via reference notes §8.1, rigid circular footing:
+    // Arya, O'Neill & Pincus (1979) ch. 4 via docs/references.md#s8-1, rigid circular footing:
     // K_z = 4GR/(1−ν), K_x = 32(1−ν)GR/(7−8ν), K_ψ = 8GR³/(3(1−ν)), K_t = 16GR³/3; lawn preset
-    // G = 20 MPa, ν = 0.33 (notes §8.3 worked row).
+    // G = 20 MPa, ν = 0.33 (docs/references.md#s8-3 worked row).
     let s = spec(PIER);
     let (g, nu, r) = (20e6, 0.33, 0.5_f64);
     assert_relative_eq!(spring_k(&s, "footing_z"), 4.0 * g * r / (1.0 - nu), max_relative = 1e-12);
@@ -229,8 +229,8 @@ fn pier_footing_springs_are_the_half_space_formulas() {
         assert_relative_eq!(spring_k(&s, n), 8.0 * g * r.powi(3) / (3.0 * (1.0 - nu)), max_relative = 1e-12);
     }
     assert_relative_eq!(spring_k(&s, "footing_rz"), 16.0 * g * r.powi(3) / 3.0, max_relative = 1e-12);
-    // Footing block: ρ π R² d with ρ = 2400 (notes §8.4), and the fill as added mass per length
-    // ρ_fill (π/4) D_i².
+    // Footing block: ρ π R² d with ρ = 2400 (docs/references.md#s8-4), and the fill as added mass
+    // per length ρ_fill (π/4) D_i².
     let f = s.bodies.iter().find(|b| b.name == "footing").unwrap();
     assert_relative_eq!(f.mass_kg, 2400.0 * PI * r * r * 0.7, max_relative = 1e-12);
     let beam = s.beams.iter().find(|b| b.name == "pier").unwrap();

@@ -1,6 +1,6 @@
 //! Transient response (FFT convolution and Newmark), gust histories, random realisations and
-//! image metrics, checked against closed forms and published check values. Sections cited as
-//! "notes §N" are in the project's reference notes (REFERENCES.md).
+//! image metrics, checked against closed forms and published check values; the sources are in
+//! docs/references.md.
 
 use std::f64::consts::PI;
 use stillsky::Error;
@@ -83,7 +83,7 @@ fn sdof_step_force_matches_closed_form() {
     assert!(err < 1e-4 * peak, "FFT step response error {err:e} vs peak {peak:e}");
 
     // Newmark on the same oscillator, the step at full value from the first sample (its load is
-    // linear between samples). Period error ≈ (ωΔt)²/12 = 8e-7 here (notes §13).
+    // linear between samples). Period error ≈ (ωΔt)²/12 = 8e-7 here (docs/references.md#s13).
     let xn = vec![f0; n];
     let rn = model.newmark("force:mass:z", &xn, fs, &["mass:z"], GroundQuantity::Displacement).unwrap();
     let err = max_diff(rn.series("mass:z").unwrap(), &exact);
@@ -92,7 +92,7 @@ fn sdof_step_force_matches_closed_form() {
 
 #[test]
 fn newmark_matches_published_average_acceleration_table() {
-    // Notes §13: Chopra's SDF example (m = 0.2533, k = 10, c = 0.159154, half-sine pulse
+    // docs/references.md#s13: Chopra's SDF example (m = 0.2533, k = 10, c = 0.159154, half-sine pulse
     // 10 sin(πt/0.6) for t ≤ 0.6 s, Δt = 0.1 s); the Newmark column is computed from the
     // published incremental formula. The ODE is unit-agnostic, so SI numbers stand in for kip/in.
     let model = sdof(0.2533, "stiffness_n_per_m = 10\ndamping_ns_per_m = 0.159154");
@@ -116,9 +116,9 @@ fn newmark_matches_published_average_acceleration_table() {
 
 #[test]
 fn sdof_one_minus_cosine_pulse_fft_matches_fine_newmark() {
-    // A 1-cosine force pulse (notes §7 time form) on a damped SDOF: FFT convolution against
-    // average-acceleration Newmark (notes §13) at Δt = 50 µs, where ωΔt = 3.2e-3 and Newmark's
-    // O(Δt²) period error is ≈ 8e-7.
+    // A 1-cosine force pulse (docs/references.md#s7 time form) on a damped SDOF: FFT convolution
+    // against average-acceleration Newmark (docs/references.md#s13) at Δt = 50 µs, where
+    // ωΔt = 3.2e-3 and Newmark's O(Δt²) period error is ≈ 8e-7.
     let model = viscous_sdof(10.0, 4.0e4, 0.03);
     let fs = 20_000.0;
     let n = 30_000;
@@ -135,7 +135,7 @@ fn sdof_one_minus_cosine_pulse_fft_matches_fine_newmark() {
 #[test]
 fn chain3_gust_force_fft_matches_newmark() {
     // A 3-DOF viscously damped chain (non-proportional damping) under the drag fluctuation of a
-    // 1-cosine gust: FFT convolution vs average-acceleration Newmark (notes §13) to 1e-3 of the
+    // 1-cosine gust: FFT convolution vs average-acceleration Newmark (docs/references.md#s13) to 1e-3 of the
     // peak of each output (Newmark at Δt = 50 µs; ω_max Δt ≈ 0.01, period error ≈ 1e-5).
     let model = chain3();
     let fs = 20_000.0;
@@ -155,7 +155,7 @@ fn chain3_gust_force_fft_matches_newmark() {
 
 #[test]
 fn chain3_ground_motion_fft_matches_newmark_and_acceleration_input() {
-    // Ground input: Newmark on the effective load −K_fg u_g − C_fg u̇_g (notes §13 method)
+    // Ground input: Newmark on the effective load −K_fg u_g − C_fg u̇_g (docs/references.md#s13 method)
     // against the FFT convolution with the ground-displacement FRF; and the FFT fed with the
     // ground acceleration of the same pulse (integrated by the trapezoid rule) against the FFT
     // fed with the displacement. Pulse u_g = (A/2)(1 − cos 2πt/T): ü_g = (A/2)(2π/T)² cos 2πt/T.
@@ -230,7 +230,7 @@ fn hysteretic_model_shows_a_precursor_and_kelvin_voigt_does_not() {
 
 #[test]
 fn one_minus_cosine_gust_shape_and_drag_laws() {
-    // Notes §7 (computed from the published formula): H = 10, U_ds = 5 → peak 5.0 at s = H,
+    // docs/references.md#s7 (computed from the published formula): H = 10, U_ds = 5 → peak 5.0 at s = H,
     // mean over the gust 2.5, RMS sqrt(3/8)·5 = 3.0619. With U = 10 m/s the gust lasts 2H/U = 2 s.
     let fs = 1000.0;
     let u = Gust::one_minus_cosine(5.0, 10.0).velocity_history(10.0, fs, 2001).unwrap();
@@ -243,7 +243,7 @@ fn one_minus_cosine_gust_shape_and_drag_laws() {
     assert!((rms - 3.0619).abs() < 1e-4, "{rms}");
     assert!(u[0] == 0.0 && u[2000].abs() < 1e-12);
 
-    // Notes §6.6: ρ = 1.225, Cd = 1.2, A = 0.18 m², U = 5 m/s → ρ Cd A U = 1.323 N per m/s.
+    // docs/references.md#s6-6: ρ = 1.225, Cd = 1.2, A = 0.18 m², U = 5 m/s → ρ Cd A U = 1.323 N per m/s.
     let lin =
         GustWind::new(5.0).with_drag_law(DragLaw::Linearised).drag_fluctuation(&[1.0], 0.18, 1.2).unwrap();
     assert!((lin[0] - 1.323).abs() < 1e-12);
@@ -316,7 +316,7 @@ fn slow_gust_on_optics_gives_the_quasi_static_image_shift() {
     // reference tests). Looking east at the horizon (A = 90°, h = 0) the image moves along
     // altitude by −θ_y (θ × â with â = x̂). A 1-cosine gust lasting 2 s ≫ T_n = 0.126 s is
     // quasi-static (dynamic amplification ≈ 1 + (T_n/T_g)², Chopra ch. 4 — from memory: verify).
-    // Plate scale for 3.76 µm at 1000 mm: 0.77556 ″/px (notes §11).
+    // Plate scale for 3.76 µm at 1000 mm: 0.77556 ″/px (docs/references.md#s11).
     let text = r#"
 [[body]]
 name = "tube"

@@ -11,7 +11,7 @@ fn sdof(k: &str, m: f64) -> String {
 
 #[test]
 fn sdof_hysteretic_matches_den_hartog_transmissibility() {
-    // Den Hartog, Mechanical Vibrations (reference notes §1): with a complex spring k(1+iη),
+    // Den Hartog, Mechanical Vibrations (docs/references.md#s1): with a complex spring k(1+iη),
     // T = (1 + iη) / (1 − r² + iη).
     let (k, m, eta) = (4.0e5_f64, 25.0_f64, 0.08_f64);
     let model =
@@ -26,14 +26,14 @@ fn sdof_hysteretic_matches_den_hartog_transmissibility() {
         assert_relative_eq!(hi.re, t.re, max_relative = 1e-9, epsilon = 1e-12);
         assert_relative_eq!(hi.im, t.im, max_relative = 1e-9, epsilon = 1e-12);
     }
-    // Peak at r = 1 equals sqrt(1 + η²)/η (notes §1).
+    // Peak at r = 1 equals sqrt(1 + η²)/η (docs/references.md#s1).
     let t1 = model.frf(&[fn_hz], &["ground_z"], &["mass:z"]).unwrap().data[[0, 0, 0]].norm();
     assert_relative_eq!(t1, (1.0 + eta * eta).sqrt() / eta, max_relative = 1e-9);
 }
 
 #[test]
 fn sdof_viscous_matches_den_hartog_transmissibility() {
-    // Den Hartog / Ogata (notes §1): T = (1 + i2ζr)/(1 − r² + i2ζr).
+    // Den Hartog / Ogata (docs/references.md#s1): T = (1 + i2ζr)/(1 − r² + i2ζr).
     let (k, m, zeta) = (2.0e5_f64, 10.0_f64, 0.03_f64);
     let c = 2.0 * zeta * (k * m).sqrt();
     let model =
@@ -45,7 +45,7 @@ fn sdof_viscous_matches_den_hartog_transmissibility() {
         let t = Complex64::new(1.0, 2.0 * zeta * r) / Complex64::new(1.0 - r * r, 2.0 * zeta * r);
         assert_relative_eq!((h - t).norm() / t.norm(), 0.0, epsilon = 1e-9);
     }
-    // |T| = 1 at r = √2 for any damping (notes §1).
+    // |T| = 1 at r = √2 for any damping (docs/references.md#s1).
     let h = model.frf(&[2f64.sqrt() * fn_hz], &["ground_z"], &["mass:z"]).unwrap().data[[0, 0, 0]];
     assert_relative_eq!(h.norm(), 1.0, max_relative = 1e-9);
     // Modal damping estimate equals ζ for a single viscous DOF.

@@ -16,7 +16,7 @@ fn sdof_viscous(k: f64, m: f64, c: f64) -> Model {
 
 #[test]
 fn miles_equation_absolute_acceleration() {
-    // Miles (1954), reference notes §2: Grms = sqrt(π/2 · fn · Q · S) for white base
+    // Miles (1954), docs/references.md#s2: Grms = sqrt(π/2 · fn · Q · S) for white base
     // acceleration S; the exact value is larger by sqrt(1 + 1/Q²), well inside 2 %.
     for q in [25.0, 50.0] {
         let (k, m) = (4.0e5f64, 20.0f64);
@@ -38,7 +38,7 @@ fn miles_equation_absolute_acceleration() {
 
 #[test]
 fn sdof_white_force_displacement_rms_exact() {
-    // Crandall & Mark / Newland, reference notes §3: σ_x² = G0/(4kc) for a one-sided per-Hz
+    // Crandall & Mark / Newland, docs/references.md#s3: σ_x² = G0/(4kc) for a one-sided per-Hz
     // white force level G0. m = 10 kg, k = 1e5 N/m, ζ = 0.02, G0 = 1 N²/Hz → σ_x = 2.5e-4 m.
     let (k, m, zeta) = (1e5f64, 10.0f64, 0.02f64);
     let c = 2.0 * zeta * (k * m).sqrt();
@@ -193,7 +193,7 @@ fn exposure_split_and_probabilities() {
     for t in [0.01, 0.5, 3.0] {
         let im = model.image_motion(&grid, &d, &ImageOptions::default().exposure(t)).unwrap();
         let e = im.exposure.unwrap();
-        // Wander + smear = total mean square (reference notes §11, boxcar average).
+        // Wander + smear = total mean square (docs/references.md#s11, boxcar average).
         assert_relative_eq!(
             e.wander_rms_arcsec.powi(2) + e.smear_rms_arcsec.powi(2),
             im.rms_arcsec.powi(2),
@@ -203,7 +203,7 @@ fn exposure_split_and_probabilities() {
     let tiny =
         model.image_motion(&grid, &d, &ImageOptions::default().exposure(1e-9)).unwrap().exposure.unwrap();
     assert_relative_eq!(tiny.wander_rms_arcsec, base.rms_arcsec, max_relative = 1e-9);
-    // Units: µm = f_mm·1000·rad and px = µm / pixel (notes §11).
+    // Units: µm = f_mm·1000·rad and px = µm / pixel (docs/references.md#s11).
     assert_relative_eq!(base.rms_um, base.rms_arcsec / 206264.806 * 2800.0 * 1000.0, max_relative = 1e-8);
     assert_relative_eq!(base.rms_px, base.rms_um / 3.76, max_relative = 1e-9);
     // Isotropic check of the probability helper against the per-axis σ when both axes agree.

@@ -117,10 +117,10 @@ static void stationary(const stillsky_model *model) {
     check(stillsky_image_motion_compute(model, f, NG, s, s, NULL, 1.0, &ref) == STILLSKY_STATUS_OK, "image motion");
     printf("offline: rms x %.4g y %.4g radial %.4g arcsec, %.4g px, P(>1 px) %.4g\n", ref.rms_x_arcsec,
            ref.rms_y_arcsec, ref.rms_radial_arcsec, ref.rms_radial_px, ref.p_outside);
-    /* Rayleigh law with the isotropic sigma (REFERENCES.md section 11). */
+    /* Rayleigh law with the isotropic sigma (docs/references.md#s11). */
     check(fabs(ref.p_outside - exp(-1.0 / (2.0 * ref.sigma_iso_px * ref.sigma_iso_px))) < 1e-12, "p_outside");
     check(fabs(ref.sigma_iso_px - ref.rms_radial_px / sqrt(2.0)) < 1e-12 * ref.rms_radial_px, "sigma_iso");
-    /* plate scale 206.264806 * 3.76 / 1000 = 0.77556 arcsec/px (REFERENCES.md section 11) */
+    /* plate scale 206.264806 * 3.76 / 1000 = 0.77556 arcsec/px (docs/references.md#s11) */
     check(fabs(ref.rms_radial_arcsec / ref.rms_radial_px - 0.775556) < 1e-5, "plate scale");
 
     stillsky_monitor_config cfg;

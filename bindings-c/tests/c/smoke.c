@@ -64,7 +64,7 @@ int main(int argc, char **argv) {
         stillsky_model_free(model);
         return 1;
     }
-    /* Closed form for a hysteretic spring (Den Hartog; REFERENCES.md section 1):
+    /* Closed form for a hysteretic spring (Den Hartog; docs/references.md#s1):
      * T = (1 + i eta) / (1 - r^2 + i eta). */
     double worst = 0.0;
     for (int i = 0; i < N; i++) {

@@ -461,7 +461,7 @@ tau_s = 0.005
         let names: Vec<_> = c.isolators.iter().map(|i| i.name.as_str()).collect();
         assert_eq!(names, ["none", "soft", "gel", "cork"]);
         let z = c.isolators[3].stiffness(PadDirection::Compression).unwrap();
-        // Zener: static stiffness k0, high-frequency limit k_inf (reference notes §10).
+        // Zener: static stiffness k0, high-frequency limit k_inf (docs/references.md#s10).
         assert!((z.static_stiffness() - 1.5e6).abs() < 1e-6);
         assert!((z.at(1e6).re - 3.0e6).abs() / 3.0e6 < 1e-6);
         assert!(c.isolators[0].stiffness(PadDirection::Shear).is_none());

@@ -13,7 +13,7 @@
 //!    `min_peak_to_median` ("no dominant peak"), fewer than [`MIN_CYCLES`] cycles of the found
 //!    frequency in the record, or the peak at the lowest searched frequency ("too short, or a
 //!    drift").
-//! 4. Damping of the dominant mode by three methods (reference notes §13):
+//! 4. Damping of the dominant mode by three methods (docs/references.md#s13):
 //!    - half-power bandwidth on |X|² (crossings linearly interpolated between bins):
 //!      ζ = (f₂ − f₁)/(2 f_peak);
 //!    - logarithmic decrement on the band-passed signal: positive peaks (parabolic refinement)

@@ -593,7 +593,7 @@ mod tests {
         // Base-10 third octave centres: 1000·10^(k/10) (IEC 61260-1); 10 Hz is k = -20.
         assert_relative_eq!(BandWidth::ThirdOctave.centre_hz(-20), 10.0, max_relative = 1e-14);
         let (a, b) = BandWidth::ThirdOctave.edges_hz(-20);
-        // Bandwidth of a base-10 third octave = 0.230768 fc (REFERENCES.md §5 conversions).
+        // Bandwidth of a base-10 third octave = 0.230768 fc (docs/references.md#s5 conversions).
         assert_relative_eq!(b - a, 2.30768, max_relative = 1e-5);
         assert_relative_eq!(BandWidth::Octave.centre_hz(-1), 501.18723362727224, max_relative = 1e-14);
     }

@@ -7,7 +7,7 @@ use crate::grid::FreqGrid;
 
 /// Peterson (1993) NLNM: (period s, A, B), dB re 1 (m/s²)²/Hz = A + B·log10(P). Each row holds
 /// from its period up to the next row's period; the last to 100 000 s. Digits copied from
-/// REFERENCES.md §4 (J. Peterson, USGS Open-File Report 93-322, 1993).
+/// docs/references.md#s4 (J. Peterson, USGS Open-File Report 93-322, 1993).
 const NLNM: [(f64, f64, f64); 21] = [
     (0.10, -162.36, 5.64),
     (0.17, -166.70, 0.00),
@@ -32,7 +32,7 @@ const NLNM: [(f64, f64, f64); 21] = [
     (10000.00, -346.88, 48.75),
 ];
 
-/// Peterson (1993) NHNM, same layout as [`NLNM`] (REFERENCES.md §4).
+/// Peterson (1993) NHNM, same layout as [`NLNM`] (docs/references.md#s4).
 const NHNM: [(f64, f64, f64); 11] = [
     (0.10, -108.73, -17.23),
     (0.22, -150.34, -80.50),
@@ -128,15 +128,15 @@ impl ReferenceGround {
 
 /// Generic vibration criterion curves: a limit on RMS velocity in each one-third-octave band.
 ///
-/// Levels (µm/s) from REFERENCES.md §5: Workshop 800, Office 400, Residential day 200,
+/// Levels (µm/s) from docs/references.md#s5: Workshop 800, Office 400, Residential day 200,
 /// Operating theatre 100, VC-A 50, VC-B 25, VC-C 12.5, VC-D 6.25, VC-E 3.12; the inch values
 /// (32 000 … 125 µin/s) are from a published ASHRAE TC 2.6 table, the metric values follow
-/// Gordon (1991) (REFERENCES.md: from memory: verify).
+/// Gordon (1991) (docs/references.md: from memory: verify).
 ///
 /// Shape: this crate applies each level **flat in velocity over the third-octave bands with
 /// centres from 1 to 80 Hz** (base-10 bands k = −30 … −11, centres 1.0 … 79.4 Hz). The frequency
 /// range and the low-frequency relaxation of VC-A, VC-B and the ISO-based curves below 8 Hz are
-/// marked "from memory: verify" in REFERENCES.md §5 and are *not* encoded; flat is the stricter
+/// marked "from memory: verify" in docs/references.md#s5 and are *not* encoded; flat is the stricter
 /// choice there (common practice, no source).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum CriterionCurve {
@@ -278,7 +278,7 @@ mod tests {
 
     #[test]
     fn peterson_reproduces_table_formula() {
-        // Peterson (1993) via REFERENCES.md §4: dB = A + B·log10(P) of the row holding P.
+        // Peterson (1993) via docs/references.md#s4: dB = A + B·log10(P) of the row holding P.
         let cases = [
             (ReferenceGround::Nlnm, 0.13, -162.36, 5.64),
             (ReferenceGround::Nlnm, 3.0, -159.98, 29.81),
@@ -302,7 +302,7 @@ mod tests {
 
     #[test]
     fn peterson_check_values() {
-        // Check values table, REFERENCES.md §4 (computed from the published formula), printed
+        // Check values table, docs/references.md#s4 (computed from the published formula), printed
         // to 0.01 dB: (P, NLNM acc, NHNM acc, NLNM vel, NLNM disp).
         let table = [
             (0.1, -168.00, -91.50, -203.96, -239.93),
@@ -333,7 +333,7 @@ mod tests {
 
     #[test]
     fn peterson_segments_join_continuously() {
-        // Built-in consistency check, REFERENCES.md §4: |jump| < 0.02 dB at every breakpoint.
+        // Built-in consistency check, docs/references.md#s4: |jump| < 0.02 dB at every breakpoint.
         for m in [ReferenceGround::Nlnm, ReferenceGround::Nhnm] {
             let t = m.table();
             for w in t.windows(2) {
@@ -347,7 +347,7 @@ mod tests {
 
     #[test]
     fn peterson_band_rms() {
-        // Band RMS table, REFERENCES.md §4 (computed from the published formula, 4 digits).
+        // Band RMS table, docs/references.md#s4 (computed from the published formula, 4 digits).
         let grid = FreqGrid::log(0.1, 10.0, 200_001).unwrap();
         let cases = [
             (ReferenceGround::Nlnm, 0.1, 3.6487e-8, 2.1524e-8, 1.5682e-8),
@@ -380,7 +380,7 @@ mod tests {
 
     #[test]
     fn flat_psd_at_vc_c_level_meets_limit() {
-        // REFERENCES.md §5 conversions: a flat velocity PSD S_v = v²/(B·fc) just meets level v in
+        // docs/references.md#s5 conversions: a flat velocity PSD S_v = v²/(B·fc) just meets level v in
         // the band at fc; base-10 third-octave bandwidth B = 0.230768 fc.
         let grid = FreqGrid::log(0.5, 100.0, 2000).unwrap();
         let v = 12.5e-6;
@@ -396,14 +396,14 @@ mod tests {
         assert!(!r.passes());
         assert_eq!(r.band_centre_hz.len(), 20);
         assert!(r.bands_not_covered_hz.is_empty());
-        // REFERENCES.md §5 (computed): VC-C at 10 Hz with base-2 bands, S_v = 6.7476e-11; the
+        // docs/references.md#s5 (computed): VC-C at 10 Hz with base-2 bands, S_v = 6.7476e-11; the
         // base-10 value differs by the bandwidth ratio 0.231563/0.230768.
         assert_relative_eq!(s, 6.7476e-11 * 0.231563 / 0.230768, max_relative = 1e-4);
     }
 
     #[test]
     fn criterion_names_and_levels() {
-        // Levels, REFERENCES.md §5 table (µm/s).
+        // Levels, docs/references.md#s5 table (µm/s).
         for (n, um) in [("vc-a", 50.0), ("VC-E", 3.12), ("operating_theatre", 100.0), ("workshop", 800.0)] {
             assert_relative_eq!(
                 CriterionCurve::from_name(n).unwrap().level_m_s(),

@@ -560,7 +560,7 @@ mod tests {
 
     #[test]
     fn parseval_white_noise() {
-        // Parseval / white-noise level (REFERENCES.md §12): for sigma = 2, fs = 100 Hz the
+        // Parseval / white-noise level (docs/references.md#s12): for sigma = 2, fs = 100 Hz the
         // one-sided level is 2 sigma²/fs = 0.08 and ∫P df ≈ var(x).
         let x = noise(65_536, 2.0, 7);
         let fs = 100.0;
@@ -577,7 +577,7 @@ mod tests {
 
     #[test]
     fn sine_peak_power_and_flattop_amplitude() {
-        // Bin-centred sine A = 3 at 20 fs/256 (REFERENCES.md §12): Hann density peak
+        // Bin-centred sine A = 3 at 20 fs/256 (docs/references.md#s12): Hann density peak
         // (A²/2)/(1.5 fs/256) = 7.68 at fs = 100; ∫P df = A²/2 = 4.5.
         let fs = 100.0;
         let (a, f0) = (3.0, 20.0 * 100.0 / 256.0);
@@ -602,7 +602,7 @@ mod tests {
 
     #[test]
     fn matches_naive_dft_definition_hann_half_overlap() {
-        // Textbook definition (REFERENCES.md §12): P_k = c_k/(fs Σw²)·mean|Σ w x e^{-2πikn/N}|².
+        // Textbook definition (docs/references.md#s12): P_k = c_k/(fs Σw²)·mean|Σ w x e^{-2πikn/N}|².
         let x = noise(40, 1.0, 3);
         let fs = 8.0;
         let n = 8;

@@ -114,7 +114,7 @@ mod tests {
 
     #[test]
     fn hann_sums_match_closed_form() {
-        // Periodic Hann: Σw = N/2, Σw² = 3N/8, ENBW = 1.5 bins (REFERENCES.md §12).
+        // Periodic Hann: Σw = N/2, Σw² = 3N/8, ENBW = 1.5 bins (docs/references.md#s12).
         let n = 256;
         let w = Window::Hann.weights(n).unwrap();
         let s1: f64 = w.iter().sum();
