@@ -394,7 +394,7 @@ fn no_import_cycle_between_top_level_modules() {
 }
 
 #[test]
-#[ignore = "until issue 18 restructure lands"]
+
 fn io_imports_only_the_error_module() {
     let (_, edges) = imports();
     let bad: Vec<String> = edges
@@ -406,7 +406,7 @@ fn io_imports_only_the_error_module() {
 }
 
 #[test]
-#[ignore = "until issue 18 restructure lands"]
+
 fn explicit_simd_lives_only_in_linalg() {
     let mut bad = Vec::new();
     for (path, src) in sources() {
@@ -423,7 +423,7 @@ fn explicit_simd_lives_only_in_linalg() {
 }
 
 #[test]
-#[ignore = "until issue 18 restructure lands"]
+
 fn architecture_page_names_every_core_module() {
     let doc =
         fs::read_to_string(core_src().join("../../docs/architecture.md")).expect("docs/architecture.md");

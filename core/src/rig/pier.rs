@@ -14,7 +14,7 @@ use serde::{Deserialize, Serialize};
 use std::f64::consts::PI;
 
 /// Default footing density (kg/m³): plain concrete, inside the 2300–2400 range of the reference
-/// notes §8.4.
+/// docs/references.md#s8-4.
 pub const DEFAULT_FOOTING_DENSITY_KG_M3: f64 = 2400.0;
 
 /// `[pier.footing]`: a rigid block under the pier, on the soil.
