@@ -8,7 +8,8 @@ use crate::wind::PyWind;
 use numpy::{IntoPyArray, PyArray1, PyArray2};
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyMapping};
-use stillsky::image::{Guiding, ImageMotion, ImageOptions};
+use stillsky::guider::GuideLoop;
+use stillsky::image::{ImageMotion, ImageOptions};
 use stillsky::response::Disturbances;
 use stillsky::spectrum::Psd;
 use stillsky::{Error, FreqGrid};
@@ -64,19 +65,52 @@ fn loads(obj: Option<&Bound<'_, PyAny>>) -> PyResult<Vec<(String, Psd)>> {
     Ok(pairs.into_iter().map(|(n, p)| (n, p.get().inner.clone())).collect())
 }
 
-/// Guiding: a cadence in seconds (gain 0.5) or a (cadence_s, gain) pair.
-fn guide(obj: Option<&Bound<'_, PyAny>>) -> PyResult<Option<Guiding>> {
+/// Guiding: a cadence in seconds (integral gain 0.5), a (cadence_s, gain) pair, or a mapping
+/// with `cadence_s`, `gain` and optionally `exposure_s`, `latency_s`, `proportional_gain`.
+fn guide(obj: Option<&Bound<'_, PyAny>>) -> PyResult<Option<GuideLoop>> {
     let Some(obj) = obj else { return Ok(None) };
     if obj.is_none() {
         return Ok(None);
     }
     if let Ok(cadence_s) = obj.extract::<f64>() {
-        return Ok(Some(Guiding { cadence_s, gain: 0.5 }));
+        return Ok(Some(GuideLoop::new(cadence_s, 0.5)));
+    }
+    if let Ok(map) = obj.cast::<PyMapping>() {
+        let get = |k: &str| -> PyResult<Option<f64>> {
+            match map.get_item(k) {
+                Ok(v) if !v.is_none() => Ok(Some(v.extract()?)),
+                _ => Ok(None),
+            }
+        };
+        for item in map.keys()?.iter() {
+            let k: String = item.extract()?;
+            if !["cadence_s", "gain", "exposure_s", "latency_s", "proportional_gain"].contains(&k.as_str()) {
+                return Err(to_pyerr(Error::UnknownName {
+                    kind: "guide setting".into(),
+                    name: k,
+                    known: "cadence_s, gain, exposure_s, latency_s, proportional_gain".into(),
+                }));
+            }
+        }
+        let need = |k: &str| -> PyResult<f64> {
+            get(k)?.ok_or_else(|| to_pyerr(Error::invalid("guide", format!("the mapping needs '{k}'"))))
+        };
+        let mut g = GuideLoop::new(need("cadence_s")?, need("gain")?);
+        if let Some(t) = get("exposure_s")? {
+            g = g.with_exposure(t);
+        }
+        if let Some(t) = get("latency_s")? {
+            g = g.with_latency(t);
+        }
+        if let Some(k) = get("proportional_gain")? {
+            g = g.with_proportional_gain(k);
+        }
+        return Ok(Some(g));
     }
     let (cadence_s, gain): (f64, f64) = obj.extract().map_err(|_| {
-        to_pyerr(Error::invalid("guide", "give a cadence in seconds or a (cadence_s, gain) pair"))
+        to_pyerr(Error::invalid("guide", "give a cadence in seconds, a (cadence_s, gain) pair or a mapping"))
     })?;
-    Ok(Some(Guiding { cadence_s, gain }))
+    Ok(Some(GuideLoop::new(cadence_s, gain)))
 }
 
 /// The disturbances of `Model.image_motion` / `Model.response` from their keyword arguments.
@@ -112,7 +146,7 @@ pub fn image_motion(
     let dist = disturbances(ground_obj, wind, loads_obj)?;
     let mut opts = ImageOptions::default();
     opts.exposure_s = exposure_s;
-    opts.guide = guide(guide_obj)?;
+    opts.guide_loop = guide(guide_obj)?;
     opts.radius_px = radius_px;
     opts.seeing_fwhm_arcsec = seeing_fwhm_arcsec;
     opts.skip_mode_shares = !mode_shares;
@@ -205,11 +239,47 @@ impl PyImageMotion {
             Some(r) => Err(to_pyerr(Error::invalid("radius_px", format!("must be finite and ≥ 0, got {r}")))),
         }
     }
+    /// The star image budget as a dict: `lines` (term, label, covariance_arcsec2, fwhm_arcsec,
+    /// in_exposure), `exposure` and `unregistered_stack` (fwhm_arcsec, fwhm_px, major/minor FWHM,
+    /// elongation, major_axis_deg), `exposure_s`, `wavelength_nm`, `notes`.
+    #[getter]
+    fn budget<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyAny>> {
+        py.import("json")?.call_method1("loads", (to_json(&self.inner.budget)?,))
+    }
+    /// Expected largest |excursion| per axis in one exposure (Davenport's peak factor) as a dict,
+    /// or None without an exposure length.
+    #[getter]
+    fn peak<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyAny>> {
+        py.import("json")?.call_method1("loads", (to_json(&self.inner.peak)?,))
+    }
+    /// PSD of image_x and image_y without the guider (arcsec²/Hz), shape (2, F); None unguided.
+    #[getter]
+    fn unguided_psd<'py>(&self, py: Python<'py>) -> PyResult<Option<Bound<'py, PyArray2<f64>>>> {
+        match &self.inner.guiding {
+            Some(g) => Ok(Some(rows2(py, &g.unguided_psd_arcsec2[0], &g.unguided_psd_arcsec2[1])?)),
+            None => Ok(None),
+        }
+    }
+    /// The aliased part of the guided PSD (arcsec²/Hz), shape (2, F); None unguided.
+    #[getter]
+    fn aliased_psd<'py>(&self, py: Python<'py>) -> PyResult<Option<Bound<'py, PyArray2<f64>>>> {
+        match &self.inner.guiding {
+            Some(g) => Ok(Some(rows2(py, &g.aliased_psd_arcsec2[0], &g.aliased_psd_arcsec2[1])?)),
+            None => Ok(None),
+        }
+    }
     /// Every scalar and small result as a dict (no per-frequency arrays).
     fn summary<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyDict>> {
         let d = to_dict(py, &self.inner)?;
         for key in ["freq_hz", "psd_arcsec2", "co_psd_arcsec2", "cumulative_rms_arcsec"] {
             d.del_item(key)?;
+        }
+        if let Some(g) = d.get_item("guiding")?
+            && let Ok(g) = g.cast::<PyDict>()
+        {
+            for key in ["unguided_psd_arcsec2", "unguided_co_psd_arcsec2", "aliased_psd_arcsec2"] {
+                g.del_item(key)?;
+            }
         }
         Ok(d)
     }

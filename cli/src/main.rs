@@ -9,7 +9,7 @@ use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig, SweepInputs, WindCase};
-use stillsky::image::Guiding;
+use stillsky::guider::GuideLoop;
 use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
 use stillsky::schema::ModelFile;
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
@@ -24,7 +24,7 @@ struct Cli {
 #[derive(Subcommand)]
 enum Cmd {
     /// Report on one model: modes, image motion, blur, ground spectrum; optional plots and JSON.
-    Report(ReportArgs),
+    Report(Box<ReportArgs>),
     /// Sweep an isolator catalogue over ground spectra and wind cases into a CSV.
     Sweep(SweepArgs),
     /// Print the generic-layer TOML a model file expands to.
@@ -113,9 +113,25 @@ struct ReportArgs {
     /// Guide camera cadence (s); needs --guide-gain.
     #[arg(long, requires = "guide_gain")]
     guide_cadence_s: Option<f64>,
-    /// Guider integrator gain in (0, 2).
+    /// Guider integral gain (> 0; the loop must be stable: below 2 for a pure integrator with
+    /// the default guide exposure and latency).
     #[arg(long, requires = "guide_cadence_s")]
     guide_gain: Option<f64>,
+    /// Guide camera exposure (s, at most the cadence; default the cadence).
+    #[arg(long, requires = "guide_cadence_s")]
+    guide_exposure_s: Option<f64>,
+    /// Time from the end of a guide exposure to the correction (s, default 0).
+    #[arg(long, requires = "guide_cadence_s")]
+    guide_latency_s: Option<f64>,
+    /// Guider proportional gain (default 0: a pure integrator).
+    #[arg(long, requires = "guide_cadence_s")]
+    guide_proportional_gain: Option<f64>,
+    /// Clear aperture (mm) for the diffraction line of the star budget, overrides the model's.
+    #[arg(long)]
+    aperture_mm: Option<f64>,
+    /// Wavelength (nm) for diffraction, overrides the model's (default 550).
+    #[arg(long)]
+    wavelength_nm: Option<f64>,
     /// Seeing FWHM (arcsec), overrides the model's.
     #[arg(long)]
     seeing_arcsec: Option<f64>,
@@ -303,8 +319,20 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     o.seeing_fwhm_arcsec = a.seeing_arcsec;
     o.exposure_s = a.exposure_s;
     if let (Some(cadence_s), Some(gain)) = (a.guide_cadence_s, a.guide_gain) {
-        o.guide = Some(Guiding { cadence_s, gain });
+        let mut g = GuideLoop::new(cadence_s, gain);
+        if let Some(t) = a.guide_exposure_s {
+            g = g.with_exposure(t);
+        }
+        if let Some(t) = a.guide_latency_s {
+            g = g.with_latency(t);
+        }
+        if let Some(k) = a.guide_proportional_gain {
+            g = g.with_proportional_gain(k);
+        }
+        o.guide_loop = Some(g);
     }
+    o.aperture_mm = a.aperture_mm;
+    o.wavelength_nm = a.wavelength_nm;
     Ok(o)
 }
 

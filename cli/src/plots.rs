@@ -140,7 +140,7 @@ pub fn report_plots(r: &Report, dir: &Path) -> PlotResult<Vec<PathBuf>> {
 
     let p = dir.join("image-psd.svg");
     let px2 = plate * plate;
-    let lines = vec![
+    let mut lines = vec![
         Line {
             label: "image_x (az)".into(),
             x: &im.freq_hz,
@@ -154,15 +154,20 @@ pub fn report_plots(r: &Report, dir: &Path) -> PlotResult<Vec<PathBuf>> {
             dashed: false,
         },
     ];
-    chart(
-        &p,
-        &format!("Image-motion PSD in pixels (plate scale {plate:.3} arcsec/px)"),
-        "frequency (Hz)",
-        "px^2/Hz",
-        &lines,
-        true,
-        true,
-    )?;
+    let mut title = format!("Image-motion PSD in pixels (plate scale {plate:.3} arcsec/px)");
+    if let Some(gm) = &im.guiding {
+        for (k, name) in ["image_x unguided", "image_y unguided"].iter().enumerate() {
+            lines.push(Line {
+                label: (*name).into(),
+                x: &im.freq_hz,
+                y: gm.unguided_psd_arcsec2[k].iter().map(|v| v / px2).collect(),
+                dashed: true,
+            });
+        }
+        title =
+            format!("Image-motion PSD in pixels, guided (solid) and unguided (thin); {plate:.3} arcsec/px");
+    }
+    chart(&p, &title, "frequency (Hz)", "px^2/Hz", &lines, true, true)?;
     out.push(p);
 
     let p = dir.join("cumulative-rms.svg");
@@ -218,6 +223,10 @@ pub fn report_plots(r: &Report, dir: &Path) -> PlotResult<Vec<PathBuf>> {
         out.push(p);
     }
 
+    let p = dir.join("budget.svg");
+    budget_chart(&p, r)?;
+    out.push(p);
+
     if let Some(g) = &r.gust {
         let p = dir.join("gust.svg");
         let lines = vec![
@@ -238,4 +247,59 @@ pub fn report_plots(r: &Report, dir: &Path) -> PlotResult<Vec<PathBuf>> {
         out.push(p);
     }
     Ok(out)
+}
+
+/// Horizontal bars: each budget line's FWHM-equivalent along x and y, then the star's FWHM.
+fn budget_chart(path: &Path, r: &Report) -> PlotResult<()> {
+    let b = &r.image.budget;
+    let mut rows: Vec<(String, [f64; 2])> =
+        b.lines.iter().filter(|l| l.in_exposure).map(|l| (l.label.clone(), l.fwhm_arcsec)).collect();
+    let one = if b.exposure_s.is_some() { "star FWHM, one exposure" } else { "star FWHM" };
+    rows.push((one.into(), b.exposure.fwhm_arcsec));
+    for l in b.lines.iter().filter(|l| !l.in_exposure) {
+        rows.push((format!("{} (not in one exposure)", l.label), l.fwhm_arcsec));
+        rows.push(("FWHM, unregistered stack".into(), b.unregistered_stack.fwhm_arcsec));
+    }
+    let n = rows.len();
+    let vmax = rows.iter().map(|(_, v)| v[0].max(v[1])).fold(0.0f64, f64::max).max(1e-6);
+    let root = SVGBackend::new(path, (960, 120 + 60 * n as u32)).into_drawing_area();
+    root.fill(&WHITE)?;
+    let mut c = ChartBuilder::on(&root)
+        .caption(
+            format!(
+                "Star image budget (Gaussian terms in quadrature); elongation {:.2}",
+                b.exposure.elongation
+            ),
+            ("sans-serif", 22),
+        )
+        .margin(14)
+        .x_label_area_size(48)
+        .y_label_area_size(10)
+        .build_cartesian_2d(0.0..vmax * 1.9, 0.0..n as f64)?;
+    c.configure_mesh()
+        .disable_y_mesh()
+        .y_labels(0)
+        .x_desc("FWHM-equivalent 2.355 sigma (arcsec)")
+        .x_label_formatter(&|v| format!("{v:.2}"))
+        .draw()?;
+    for (k, axis) in ["x (sensor)", "y (sensor)"].iter().enumerate() {
+        let col = COLOURS[k];
+        let bars = rows.iter().enumerate().map(move |(i, (_, v))| {
+            let top = (n - i) as f64 - 0.15 - 0.35 * k as f64;
+            Rectangle::new([(0.0, top), (v[k], top - 0.3)], col.filled())
+        });
+        c.draw_series(bars)?
+            .label(*axis)
+            .legend(move |(x, y)| Rectangle::new([(x, y - 5), (x + 16, y + 5)], col.filled()));
+    }
+    c.draw_series(rows.iter().enumerate().map(|(i, (name, v))| {
+        Text::new(
+            format!("{name}: {:.3} x {:.3}", v[0], v[1]),
+            (v[0].max(v[1]) + 0.02 * vmax, (n - i) as f64 - 0.45),
+            ("sans-serif", 15).into_font(),
+        )
+    }))?;
+    c.configure_series_labels().background_style(WHITE.mix(0.85)).border_style(BLACK).draw()?;
+    root.present()?;
+    Ok(())
 }

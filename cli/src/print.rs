@@ -50,25 +50,24 @@ pub fn report_text(model: &str, r: &Report) -> String {
             v / im.plate_scale_arcsec_per_px
         );
     }
-    let _ = writeln!(s, "  probability outside {} px: {:.3e}", im.radius_px, im.p_outside);
-    let (blur, seeing) = r.blur_vs_seeing();
-    match seeing {
-        Some(sv) => {
-            let [tx, ty] = im.total_fwhm_arcsec.unwrap_or([sv, sv]);
-            let _ = writeln!(
-                s,
-                "  blur FWHM {:.3} arcsec vs seeing {:.2} arcsec: star FWHM {:.3} x {:.3} arcsec ({:+.1} % on seeing)",
-                blur,
-                sv,
-                tx,
-                ty,
-                100.0 * (tx.max(ty) / sv.max(1e-300) - 1.0)
-            );
-        }
-        None => {
-            let _ = writeln!(s, "  blur FWHM {blur:.3} arcsec (no seeing given)");
-        }
+    if let Some(p) = &im.peak {
+        let _ = writeln!(
+            s,
+            "  expected peak |excursion| in a {} s exposure (Davenport 1964 peak factor): \
+             x {:.4} arcsec = {:.3} px ({:.2} RMS), y {:.4} arcsec = {:.3} px ({:.2} RMS)",
+            p.duration_s,
+            p.peak_arcsec[0],
+            p.peak_px[0],
+            p.peak_factor[0],
+            p.peak_arcsec[1],
+            p.peak_px[1],
+            p.peak_factor[1]
+        );
     }
+    let _ = writeln!(s, "  probability outside {} px: {:.3e}", im.radius_px, im.p_outside);
+    let ([bx, by], _) = r.blur_vs_seeing();
+    let _ =
+        writeln!(s, "  motion blur FWHM (2.355 sigma of each axis, all motion): x {bx:.3}, y {by:.3} arcsec");
     if let Some((label, f, share)) = r.dominant_mode() {
         let _ =
             writeln!(s, "  dominant mode: {label} at {f:.2} Hz ({:.0} % of the mean square)", 100.0 * share);
@@ -89,8 +88,21 @@ pub fn report_text(model: &str, r: &Report) -> String {
             e.exposure_s, e.wander_rms_arcsec, e.smear_rms_arcsec
         );
     }
-    if let Some(g) = &im.guide {
-        let _ = writeln!(s, "  guiding: cadence {} s, gain {} (applied)", g.cadence_s, g.gain);
+    if let (Some(g), Some(gm)) = (&im.guide, &im.guiding) {
+        let _ = writeln!(
+            s,
+            "  guiding (applied): cadence {} s, guide exposure {} s, latency {} s, integral gain {}, \
+             proportional gain {}; guide Nyquist {:.3} Hz",
+            g.cadence_s, g.exposure_s, g.latency_s, g.gain, g.proportional_gain, gm.nyquist_hz
+        );
+        let _ = writeln!(
+            s,
+            "  guiding: radial RMS {:.4} arcsec unguided -> {:.4} arcsec guided; aliased part x {:.4}, y {:.4} arcsec RMS",
+            gm.unguided_rms_arcsec,
+            im.rms_arcsec,
+            gm.aliased_per_axis_arcsec[0],
+            gm.aliased_per_axis_arcsec[1]
+        );
     }
     if let Some(g) = &r.gust {
         let settle = g.settle_s.map_or("not within the record".to_string(), |t| format!("{t:.2} s"));
@@ -100,6 +112,7 @@ pub fn report_text(model: &str, r: &Report) -> String {
             g.amplitude_m_s, g.peak_px
         );
     }
+    budget_text(&mut s, im);
     if !r.criteria.is_empty() {
         let _ = writeln!(s, "\nground vs criterion curves (third-octave RMS velocity, worst axis):");
         for c in &r.criteria {
@@ -130,6 +143,42 @@ pub fn report_text(model: &str, r: &Report) -> String {
         }
     }
     s
+}
+
+/// The star image budget: one line per term, the FWHM it makes, elongation and direction.
+fn budget_text(s: &mut String, im: &stillsky::image::ImageMotion) {
+    let b = &im.budget;
+    let _ = writeln!(
+        s,
+        "\nstar image budget (Gaussian terms in quadrature; FWHM-equivalent 2.355 sigma along each axis):"
+    );
+    let _ = writeln!(s, "  {:<48} {:>10} {:>10}", "term", "x arcsec", "y arcsec");
+    let row = |s: &mut String, name: &str, v: [f64; 2]| {
+        let _ = writeln!(s, "  {:<48} {:>10.3} {:>10.3}", name, v[0], v[1]);
+    };
+    for l in b.lines.iter().filter(|l| l.in_exposure) {
+        row(s, &l.label, l.fwhm_arcsec);
+    }
+    let one =
+        if b.exposure_s.is_some() { "= star FWHM in one exposure" } else { "= star FWHM (long exposure)" };
+    row(s, one, b.exposure.fwhm_arcsec);
+    for l in b.lines.iter().filter(|l| !l.in_exposure) {
+        row(s, &format!("{} (not in one exposure)", l.label), l.fwhm_arcsec);
+        row(s, "= FWHM of an unregistered stack", b.unregistered_stack.fwhm_arcsec);
+    }
+    let e = &b.exposure;
+    let seeing = im.seeing_fwhm_arcsec.map_or(String::new(), |sv| {
+        format!("; {:+.1} % on the seeing", 100.0 * (e.major_fwhm_arcsec / sv.max(1e-300) - 1.0))
+    });
+    let _ = writeln!(
+        s,
+        "  star: {:.3} x {:.3} px (x, y); elongation {:.3} (major {:.3}, minor {:.3} arcsec), major axis {:.1} deg \
+         from sensor x toward y{seeing}",
+        e.fwhm_px[0], e.fwhm_px[1], e.elongation, e.major_fwhm_arcsec, e.minor_fwhm_arcsec, e.major_axis_deg
+    );
+    for n in &b.notes {
+        let _ = writeln!(s, "  ({n})");
+    }
 }
 
 pub fn sweep_text(o: &SweepOutcome) -> String {

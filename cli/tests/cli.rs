@@ -93,6 +93,44 @@ fn report_prints_summary_plots_and_json() {
     let rms_arcsec = v["image"]["rms_arcsec"].as_f64().unwrap();
     assert!((rms_px * plate - rms_arcsec).abs() <= 1e-9 * rms_arcsec);
     assert!(v["modes"].as_array().unwrap().len() > 3);
+    // The star budget: a bar plot and the FWHM in the JSON, equal to the lines in quadrature.
+    let svg = std::fs::read_to_string(d.join("plots").join("budget.svg")).unwrap();
+    assert!(svg.starts_with("<svg") && svg.contains("<rect") && svg.contains("star FWHM"), "budget.svg");
+    let b = &v["image"]["budget"];
+    let fx = b["exposure"]["fwhm_arcsec"][0].as_f64().unwrap();
+    let sum: f64 = b["lines"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|l| l["in_exposure"].as_bool().unwrap())
+        .map(|l| l["fwhm_arcsec"][0].as_f64().unwrap().powi(2))
+        .sum();
+    assert!((fx - sum.sqrt()).abs() < 1e-9 * fx, "{fx} vs {}", sum.sqrt());
+    assert!(out.contains("star image budget") && out.contains("Davenport"), "{out}");
+}
+
+#[test]
+fn report_with_a_guide_loop_and_an_unstable_one() {
+    let model = examples().join("tripod-paver.toml");
+    let rec = examples().join("recordings").join("quiet-night.csv");
+    let base = ["report", s(&model), "--ground", s(&rec), "--wind-speed", "4", "--guide-cadence-s", "2"];
+    let o =
+        run(&[&base[..], &["--guide-gain", "0.5", "--guide-exposure-s", "1.5", "--guide-latency-s", "0.5"]]
+            .concat());
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    assert!(
+        out.contains("guiding (applied)") && out.contains("unguided") && out.contains("guiding residual"),
+        "{out}"
+    );
+    // A latency of one whole frame: the loop at the samples is z² − z + g = 0, stable only for
+    // g < 1 (Jury's conditions for a quadratic), so gain 1.5 is refused.
+    let o =
+        run(&[&base[..], &["--guide-gain", "1.5", "--guide-exposure-s", "1.5", "--guide-latency-s", "2"]]
+            .concat());
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("guide.gain") && err.contains("unstable"), "{err}");
 }
 
 #[test]

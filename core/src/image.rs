@@ -1,5 +1,5 @@
 //! Image motion on the sensor plane: arcsec, µm and pixels; probability of leaving a radius;
-//! blur against seeing; exposure and guiding.
+//! exposure split, guiding, the star image budget and the expected peak excursion.
 //!
 //! Conventions (docs/references.md#s11):
 //! - arcsec = rad × 206264.806; µm on the sensor = f_mm × 1000 × rad; plate scale
@@ -7,17 +7,24 @@
 //! - Motion is zero-mean Gaussian. Isotropic 2-D motion with per-axis σ leaves a radius R with
 //!   probability exp(−R²/2σ²) (Rayleigh); the anisotropic, correlated case is integrated
 //!   numerically over angle ([`p_outside`]).
-//! - Blur: FWHM = 2.35482 σ per axis, added in quadrature to the seeing FWHM (exact for Gaussian
-//!   profiles only; real seeing is closer to Moffat — common practice).
+//! - Blur: FWHM = 2.35482 σ per axis (of that axis' σ), added in quadrature to the seeing FWHM
+//!   (exact for Gaussian profiles only; real seeing is closer to Moffat — common practice). The
+//!   full budget (diffraction, pixel, guiding, smear, wander) is [`crate::budget`].
 //! - Exposure T (random start): centroid wander has weight sinc²(πfT), smear within the frame
 //!   1 − sinc²(πfT) (boxcar average; Bendat & Piersol, *Random Data*, from memory: verify).
-//! - Guiding at cadence T_g with integrator gain g and one frame of delay: residual =
-//!   |E(z)|² × PSD with E(z) = (1 − z⁻¹)/(1 − (1 − g)z⁻¹), z = e^{i2πfT_g} (Franklin, Powell &
-//!   Workman, *Digital Control of Dynamic Systems*; docs/references.md#s11). Stable for 0 < g < 2.
+//! - Guiding: the sampled-data loop of [`crate::guider`] (guide exposure, cadence, gains,
+//!   latency, zero-order hold, aliasing) turns each PSD into the time-averaged residual PSD; the
+//!   science exposure's start is taken as random against the guide clock. [`Guiding`] is the
+//!   integrator-only shorthand (guide exposure = cadence, latency 0).
+//! - Peak: the expected largest |excursion| per axis within an exposure, Davenport's peak factor
+//!   ([`crate::peak`]).
 
+use crate::budget::{BudgetInputs, StarBudget, star_budget};
 use crate::error::{Error, Result, require_positive};
 use crate::grid::{FreqGrid, trapezoid};
+use crate::guider::GuideLoop;
 use crate::model::Model;
+use crate::peak::PeakExcursion;
 use crate::response::{Disturbances, response_psd};
 use crate::spectrum::BandWidth;
 use serde::Serialize;
@@ -94,7 +101,11 @@ pub fn sinc2(f_hz: f64, t_s: f64) -> f64 {
     if u.abs() < 1e-8 { 1.0 } else { (u.sin() / u).powi(2) }
 }
 
-/// |E|² of a guider: discrete integrator with gain g at cadence T_g and one frame of delay.
+/// |E|² at the guide samples of a discrete integrator with gain g at cadence T_g and one frame
+/// of delay, E(z) = (1 − z⁻¹)/(1 − (1 − g)z⁻¹), z = e^{i2πfT_g} (Franklin, Powell & Workman,
+/// *Digital Control of Dynamic Systems*; REFERENCES §11). This is what the loop does to the frame
+/// averages; it repeats every 1/T_g and is not the rejection of continuous motion, which is
+/// [`GuideLoop::residual`].
 pub fn guide_rejection_sq(f_hz: f64, cadence_s: f64, gain: f64) -> f64 {
     let w = 2.0 * PI * f_hz * cadence_s;
     let num = 2.0 - 2.0 * w.cos(); // |1 − z⁻¹|²
@@ -103,7 +114,10 @@ pub fn guide_rejection_sq(f_hz: f64, cadence_s: f64, gain: f64) -> f64 {
     num / den
 }
 
-/// Guiding parameters.
+/// Guiding by a pure integrator (shorthand for [`GuideLoop::new`]): the guide exposure fills the
+/// cadence and the latency is 0, so at the guide samples the loop is the classic integrator with
+/// one frame of delay (the frame's own exposure), stable for 0 < g < 2. For a shorter guide
+/// exposure, a latency or a proportional gain use [`ImageOptions::guide_loop`].
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Guiding {
     /// Guide exposure cadence T_g (s).
@@ -112,14 +126,22 @@ pub struct Guiding {
     pub gain: f64,
 }
 
+impl From<Guiding> for GuideLoop {
+    fn from(g: Guiding) -> GuideLoop {
+        GuideLoop::new(g.cadence_s, g.gain)
+    }
+}
+
 /// Options of an image-motion evaluation.
 #[derive(Debug, Clone, PartialEq, Default)]
 #[non_exhaustive]
 pub struct ImageOptions {
     /// Split into centroid wander and smear for exposures of this length (s).
     pub exposure_s: Option<f64>,
-    /// Apply a guider's rejection to the PSD before statistics.
+    /// Guide with a pure integrator (exposure = cadence, latency 0) before statistics.
     pub guide: Option<Guiding>,
+    /// Guide with a full loop (guide exposure, latency, proportional gain); give this or `guide`.
+    pub guide_loop: Option<GuideLoop>,
     /// Radius for the probability of leaving it, in pixels (default ½ pixel).
     pub radius_px: Option<f64>,
     /// Seeing FWHM (arcsec); defaults to the model's optics.
@@ -134,11 +156,51 @@ impl ImageOptions {
         self.exposure_s = Some(t_s);
         self
     }
-    /// Set guiding.
+    /// Set guiding by a pure integrator.
     pub fn guiding(mut self, g: Guiding) -> Self {
         self.guide = Some(g);
         self
     }
+    /// Set guiding by a full loop.
+    pub fn guiding_loop(mut self, g: GuideLoop) -> Self {
+        self.guide_loop = Some(g);
+        self
+    }
+
+    /// The guide loop to apply, validated (stability included).
+    pub fn effective_guide(&self) -> Result<Option<GuideLoop>> {
+        let g = match (self.guide, self.guide_loop) {
+            (Some(_), Some(_)) => {
+                return Err(Error::invalid(
+                    "guide",
+                    "give either guide (integrator) or guide_loop, not both",
+                ));
+            }
+            (Some(g), None) => Some(GuideLoop::from(g)),
+            (None, g) => g,
+        };
+        if let Some(g) = &g {
+            g.validate()?;
+        }
+        Ok(g)
+    }
+}
+
+/// The motion without the guider and what the sampler folded in, when a guider is applied.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GuidedMotion {
+    /// Guide Nyquist frequency 1/(2T_g) (Hz).
+    pub nyquist_hz: f64,
+    /// PSD of image_x and image_y without the guider (arcsec²/Hz).
+    pub unguided_psd_arcsec2: [Vec<f64>; 2],
+    /// Co-spectrum without the guider (arcsec²/Hz).
+    pub unguided_co_psd_arcsec2: Vec<f64>,
+    /// RMS without the guider per axis and radial (arcsec).
+    pub unguided_per_axis_arcsec: [f64; 2],
+    pub unguided_rms_arcsec: f64,
+    /// The aliased part of the guided PSD per axis (arcsec²/Hz) and its RMS per axis (arcsec).
+    pub aliased_psd_arcsec2: [Vec<f64>; 2],
+    pub aliased_per_axis_arcsec: [f64; 2],
 }
 
 /// One mode's share of the image mean square.
@@ -185,15 +247,23 @@ pub struct ImageMotion {
     /// Covariance (arcsec²): [var_x, var_y, cov_xy].
     pub covariance_arcsec2: [f64; 3],
     pub seeing_fwhm_arcsec: Option<f64>,
-    /// Gaussian blur FWHM of the motion per axis (arcsec).
+    /// Blur FWHM of all the motion per axis, 2.35482 σ of that axis (arcsec; no exposure split).
     pub blur_fwhm_arcsec: [f64; 2],
-    /// Seeing and blur in quadrature, per axis (arcsec), when seeing is known.
+    /// Seeing and that blur in quadrature, per axis (arcsec), when seeing is known. The full
+    /// star size (diffraction, pixel, exposure split) is in `budget`.
     pub total_fwhm_arcsec: Option<[f64; 2]>,
+    /// The star image budget: each source's FWHM, the star's FWHM along x and y, elongation.
+    pub budget: StarBudget,
+    /// Expected largest |excursion| per axis within one exposure (with an exposure length).
+    pub peak: Option<PeakExcursion>,
     pub mode_share: Vec<ModeShare>,
     /// Share of the mean square per disturbance input.
     pub input_share: Vec<(String, f64)>,
     pub exposure: Option<ExposureSplit>,
-    pub guide: Option<Guiding>,
+    /// The guide loop applied (the PSDs and statistics above are after guiding).
+    pub guide: Option<GuideLoop>,
+    /// Unguided PSDs and the aliased part, when guided.
+    pub guiding: Option<GuidedMotion>,
     /// The third-octave band (centre Hz) holding the largest part of the mean square, and its share.
     pub dominant_band_hz: f64,
     pub dominant_band_share: f64,
@@ -234,41 +304,62 @@ impl Model {
         if let Some(t) = opts.exposure_s {
             require_positive("exposure_s", t)?;
         }
-        if let Some(g) = opts.guide {
-            require_positive("guide.cadence_s", g.cadence_s)?;
-            if !(g.gain.is_finite() && g.gain > 0.0 && g.gain < 2.0) {
-                return Err(Error::invalid(
-                    "guide.gain",
-                    format!("must lie in (0, 2) for a stable loop, got {}", g.gain),
-                ));
-            }
-        }
+        let guide = opts.effective_guide()?;
         let radius_px = opts.radius_px.unwrap_or(0.5);
         require_positive("radius_px", radius_px)?;
         let r = response_psd(self, grid, disturbances, &["image_x", "image_y"], !opts.skip_mode_shares)?;
         let f = &r.freq_hz;
         let a2 = ARCSEC_PER_RAD * ARCSEC_PER_RAD;
-        let guide_w: Vec<f64> = f
-            .iter()
-            .map(|&fh| opts.guide.map_or(1.0, |g| guide_rejection_sq(fh, g.cadence_s, g.gain)))
-            .collect();
-        let scale = |v: &[f64]| -> Vec<f64> { v.iter().zip(&guide_w).map(|(x, w)| x * w * a2).collect() };
-        let px = scale(&r.psd[0]);
-        let py = scale(&r.psd[1]);
-        let co = scale(&r.co_spectra[0].2);
+        // Every spectrum that enters a statistic, on the sky (arcsec²/Hz): the two axes, their
+        // co-spectrum, each input's part and each mode's part; guided together when guiding.
+        let mut parts: Vec<Vec<f64>> = vec![r.psd[0].clone(), r.psd[1].clone(), r.co_spectra[0].2.clone()];
+        let ni = r.inputs.len();
+        for ax in 0..2 {
+            parts.extend(r.by_input[ax].iter().cloned());
+        }
+        let nm = r.by_mode.as_ref().map_or(0, |bm| bm[0].len());
+        if let Some(bm) = &r.by_mode {
+            for ax in 0..2 {
+                parts.extend(bm[ax].iter().cloned());
+            }
+        }
+        parts.iter_mut().for_each(|p| p.iter_mut().for_each(|v| *v *= a2));
+        let mut guided_motion = None;
+        if let Some(g) = &guide {
+            let refs: Vec<&[f64]> = parts.iter().map(Vec::as_slice).collect();
+            let res = g.residual(f, &refs)?;
+            let rms = |p: &[f64]| trapezoid(f, p).sqrt();
+            let unguided_per_axis = [rms(&parts[0]), rms(&parts[1])];
+            guided_motion = Some(GuidedMotion {
+                nyquist_hz: g.nyquist_hz(),
+                unguided_per_axis_arcsec: unguided_per_axis,
+                unguided_rms_arcsec: unguided_per_axis[0].hypot(unguided_per_axis[1]),
+                aliased_per_axis_arcsec: [rms(&res[0].aliased), rms(&res[1].aliased)],
+                aliased_psd_arcsec2: [res[0].aliased.clone(), res[1].aliased.clone()],
+                unguided_psd_arcsec2: [parts[0].clone(), parts[1].clone()],
+                unguided_co_psd_arcsec2: parts[2].clone(),
+            });
+            parts = res.into_iter().map(|p| p.total).collect();
+        }
+        let by_input_at = |ax: usize, i: usize| &parts[3 + ax * ni + i];
+        let by_mode_at = |ax: usize, j: usize| &parts[3 + 2 * ni + ax * nm + j];
+        let (px, py, co) = (parts[0].clone(), parts[1].clone(), parts[2].clone());
         let (vx, vy, cxy) = (trapezoid(f, &px), trapezoid(f, &py), trapezoid(f, &co));
         let total = vx + vy;
         let plate = optics.plate_scale_arcsec_per_px();
         let rms = total.sqrt();
         let um_per_arcsec = optics.focal_length_mm * 1000.0 / ARCSEC_PER_RAD;
         let seeing = opts.seeing_fwhm_arcsec.or(optics.seeing_fwhm_arcsec);
+        if let Some(s) = seeing {
+            crate::error::require_non_negative("seeing_fwhm_arcsec", s)?;
+        }
         let blur = [FWHM_PER_SIGMA * vx.sqrt(), FWHM_PER_SIGMA * vy.sqrt()];
         let mode_share = match &r.by_mode {
-            Some(bm) if total > 0.0 => {
+            Some(_) if total > 0.0 => {
                 let n = r.mode_frequency_hz.len();
                 (0..=n)
                     .map(|j| {
-                        let s = trapezoid(f, &scale(&bm[0][j])) + trapezoid(f, &scale(&bm[1][j]));
+                        let s = trapezoid(f, by_mode_at(0, j)) + trapezoid(f, by_mode_at(1, j));
                         ModeShare {
                             label: if j < n { format!("mode {}", j + 1) } else { "quasi-static".into() },
                             frequency_hz: if j < n { r.mode_frequency_hz[j] } else { 0.0 },
@@ -284,10 +375,13 @@ impl Model {
             .iter()
             .enumerate()
             .map(|(i, name)| {
-                let s = trapezoid(f, &scale(&r.by_input[0][i])) + trapezoid(f, &scale(&r.by_input[1][i]));
+                let s = trapezoid(f, by_input_at(0, i)) + trapezoid(f, by_input_at(1, i));
                 (name.clone(), if total > 0.0 { s / total } else { 0.0 })
             })
             .collect();
+        let budget = self.star_budget(f, [&px, &py, &co], plate, seeing, opts.exposure_s, guide.as_ref())?;
+        let peak =
+            opts.exposure_s.map(|t| PeakExcursion::from_psd(f, [&px, &py], [vx.sqrt(), vy.sqrt()], t, plate));
         let exposure = opts.exposure_s.map(|t| {
             let wx: Vec<f64> =
                 f.iter().zip(px.iter().zip(&py)).map(|(&fh, (a, b))| (a + b) * sinc2(fh, t)).collect();
@@ -333,13 +427,56 @@ impl Model {
             seeing_fwhm_arcsec: seeing,
             blur_fwhm_arcsec: blur,
             total_fwhm_arcsec: seeing.map(|s| [s.hypot(blur[0]), s.hypot(blur[1])]),
+            budget,
+            peak,
             mode_share,
             input_share,
             exposure,
-            guide: opts.guide,
+            guide,
+            guiding: guided_motion,
             dominant_band_hz: best_c,
             dominant_band_share: if total > 0.0 { best_s / total } else { 0.0 },
             notes,
+        })
+    }
+}
+
+impl Model {
+    /// The star budget from the (guided) PSDs [x, y, co] (arcsec²/Hz) on `f`: the motion split
+    /// into guiding residual (below the guide Nyquist frequency), smear and wander (module docs of
+    /// [`crate::budget`]).
+    fn star_budget(
+        &self,
+        f: &[f64],
+        psd: [&[f64]; 3],
+        plate: f64,
+        seeing: Option<f64>,
+        exposure_s: Option<f64>,
+        guide: Option<&GuideLoop>,
+    ) -> Result<StarBudget> {
+        let optics =
+            self.optics().ok_or_else(|| Error::invalid("optics", "the model has no [optics] section"))?;
+        let (lo, hi) = (f[0], f[f.len() - 1]);
+        let smear_w: Vec<f64> = f.iter().map(|&fh| exposure_s.map_or(1.0, |t| 1.0 - sinc2(fh, t))).collect();
+        let cov = |w: &dyn Fn(usize) -> f64, a: f64, b: f64| -> [f64; 3] {
+            psd.map(|p| {
+                let y: Vec<f64> = p.iter().enumerate().map(|(k, v)| v * w(k)).collect();
+                band_integral(f, &y, a, b)
+            })
+        };
+        let smear = |k: usize| smear_w[k];
+        let wander = |k: usize| 1.0 - smear_w[k];
+        let split = guide.map_or(lo, |g| g.nyquist_hz().clamp(lo, hi));
+        star_budget(&BudgetInputs {
+            seeing_fwhm_arcsec: seeing,
+            aperture_mm: optics.aperture_mm,
+            wavelength_nm: optics.wavelength_nm,
+            plate_scale_arcsec_per_px: plate,
+            exposure_s,
+            guide_nyquist_hz: guide.map(GuideLoop::nyquist_hz),
+            guiding: guide.map(|_| cov(&smear, lo, split)),
+            smear: cov(&smear, split, hi),
+            wander: if exposure_s.is_some() { cov(&wander, lo, hi) } else { [0.0; 3] },
         })
     }
 }

@@ -37,6 +37,8 @@
 //! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
 //! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
+//! - [`guider`]: the sampled-data guide loop (exposure, cadence, gains, latency, hold, aliasing).
+//! - [`budget`], [`peak`]: the star image budget (FWHM, elongation); the expected peak excursion.
 //! - [`transient`]: time histories by FFT convolution (gusts, steps, random realisations) and a
 //!   Newmark check.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
@@ -49,10 +51,12 @@
 
 pub mod assembly;
 pub mod batch;
+pub mod budget;
 pub mod checks;
 pub mod error;
 pub mod frf;
 pub mod grid;
+pub mod guider;
 pub mod identify;
 pub mod image;
 pub mod io;
@@ -61,6 +65,7 @@ pub mod material;
 pub mod model;
 pub mod modes;
 pub mod monitor;
+pub mod peak;
 pub mod response;
 pub mod rig;
 pub mod schema;
@@ -68,6 +73,8 @@ pub mod section;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;
+#[cfg(test)]
+mod test_signals;
 pub mod transient;
 pub mod wind;
 

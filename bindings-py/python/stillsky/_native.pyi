@@ -169,7 +169,7 @@ class Model:
         wind: Wind | None = None,
         loads: Mapping[str, Psd] | Sequence[tuple[str, Psd]] | None = None,
         exposure_s: float | None = None,
-        guide: float | tuple[float, float] | None = None,
+        guide: float | tuple[float, float] | Mapping[str, float] | None = None,
         radius_px: float | None = None,
         seeing_fwhm_arcsec: float | None = None,
         mode_shares: bool = True,
@@ -188,9 +188,13 @@ class Model:
             loads: {input name: force PSD N²/Hz or moment PSD (N·m)²/Hz}, e.g.
                 ``{"force:payload:x": psd}`` (or a sequence of such pairs); uncorrelated.
             exposure_s: split the motion into centroid wander and smear for exposures of this
-                length (s).
-            guide: guider cadence (s), or ``(cadence_s, gain)`` with the integrator gain in
-                (0, 2) (default gain 0.5); applies the guider's rejection.
+                length (s); also sets the duration of ``peak``.
+            guide: the sampled-data guide loop applied to the motion: a cadence (s, integral
+                gain 0.5), ``(cadence_s, gain)``, or a mapping with ``cadence_s``, ``gain`` and
+                optionally ``exposure_s`` (guide exposure, ≤ cadence; default the cadence),
+                ``latency_s`` (default 0) and ``proportional_gain`` (default 0). Residual PSDs
+                include the motion the sampler folds in; an unstable loop raises
+                ``InvalidInputError`` naming ``guide.gain``.
             radius_px: radius (pixels) for ``p_outside()`` (default ½ pixel).
             seeing_fwhm_arcsec: seeing FWHM (arcsec); default from the model's optics.
             mode_shares: compute each mode's share of the mean square.
@@ -377,9 +381,28 @@ class ImageMotion:
     def p_outside(self, radius_px: float | None = None) -> float:
         """Probability the image is outside ``radius_px`` (px) at a random instant (default: the
         radius given to ``image_motion``, ½ px)."""
+    @property
+    def budget(self) -> dict[str, object]:
+        """The star image budget (Gaussian terms in quadrature, arcsec): ``lines`` (each with
+        ``term``, ``label``, ``covariance_arcsec2`` [var_x, var_y, cov_xy], ``fwhm_arcsec`` [x, y],
+        ``in_exposure``), ``exposure`` and ``unregistered_stack`` (``fwhm_arcsec``, ``fwhm_px``,
+        ``major_fwhm_arcsec``, ``minor_fwhm_arcsec``, ``elongation``, ``major_axis_deg`` from
+        sensor x toward y), ``exposure_s``, ``wavelength_nm``, ``notes``."""
+    @property
+    def peak(self) -> dict[str, object] | None:
+        """Expected largest |excursion| per axis in one exposure (Davenport 1964 peak factor):
+        ``duration_s``, ``crossing_rate_hz``, ``peak_factor``, ``peak_arcsec``, ``peak_px`` (each
+        [x, y]); None without ``exposure_s``."""
+    @property
+    def unguided_psd(self) -> _F64 | None:
+        """PSD of image_x and image_y without the guider (arcsec²/Hz), shape (2, F); None unguided."""
+    @property
+    def aliased_psd(self) -> _F64 | None:
+        """The part of the guided PSD folded in by the guide sampler (arcsec²/Hz), shape (2, F)."""
     def summary(self) -> dict[str, object]:
-        """All scalars and small results (RMS, blur vs seeing, covariance, shares, exposure split,
-        dominant band, notes) as a dict; no per-frequency arrays."""
+        """All scalars and small results (RMS, blur per axis, covariance, shares, exposure split,
+        budget, peak, guide loop and unguided RMS, dominant band, notes) as a dict; no
+        per-frequency arrays."""
 
 _Quantity = Literal["displacement", "velocity", "acceleration", "force", "moment", "angle"]
 

@@ -252,6 +252,12 @@ pub struct OpticsSpec {
     /// Rotation of the camera's axes about the line of sight from (azimuth, altitude) (deg).
     #[serde(default)]
     pub camera_rotation_deg: f64,
+    /// Clear aperture (mm), for the diffraction line of the star budget.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub aperture_mm: Option<f64>,
+    /// Wavelength for diffraction (nm); default 550.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub wavelength_nm: Option<f64>,
 }
 
 fn default_optics_body() -> String {
@@ -289,6 +295,12 @@ impl OpticsSpec {
         }
         if let Some(s) = self.seeing_fwhm_arcsec {
             require_non_negative("optics.seeing_fwhm_arcsec", s)?;
+        }
+        if let Some(d) = self.aperture_mm {
+            require_positive("optics.aperture_mm", d)?;
+        }
+        if let Some(w) = self.wavelength_nm {
+            require_positive("optics.wavelength_nm", w)?;
         }
         Ok(())
     }

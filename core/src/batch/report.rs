@@ -6,6 +6,7 @@ use super::ground::{GroundSource, GroundSpectrum};
 use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
+use crate::guider::GuideLoop;
 use crate::image::{ARCSEC_PER_RAD, Guiding, ImageMotion, ImageOptions};
 use crate::io::series::SeriesOptions;
 use crate::model::{GROUND_INPUTS, Model};
@@ -32,7 +33,13 @@ pub struct ReportOptions {
     pub azimuth_deg: Option<f64>,
     pub seeing_fwhm_arcsec: Option<f64>,
     pub exposure_s: Option<f64>,
+    /// Guide with a pure integrator (guide exposure = cadence, latency 0).
     pub guide: Option<Guiding>,
+    /// Guide with a full loop (give this or `guide`).
+    pub guide_loop: Option<GuideLoop>,
+    /// Clear aperture (mm) and wavelength (nm) for the budget's diffraction line.
+    pub aperture_mm: Option<f64>,
+    pub wavelength_nm: Option<f64>,
 }
 
 impl ReportOptions {
@@ -52,6 +59,9 @@ impl ReportOptions {
             seeing_fwhm_arcsec: None,
             exposure_s: None,
             guide: None,
+            guide_loop: None,
+            aperture_mm: None,
+            wavelength_nm: None,
         })
     }
 }
@@ -135,10 +145,10 @@ impl Report {
         self.image.dominant_mode().map(|m| (m.label.clone(), m.frequency_hz, m.share))
     }
 
-    /// Blur FWHM of the motion (radial: both axes in quadrature) against seeing, arcsec.
-    pub fn blur_vs_seeing(&self) -> (f64, Option<f64>) {
-        let [bx, by] = self.image.blur_fwhm_arcsec;
-        (bx.hypot(by), self.image.seeing_fwhm_arcsec)
+    /// Blur FWHM of all the motion along x and y (2.35482 σ of each axis, arcsec) and the
+    /// seeing. (Before, this was 2.35482 × the radial RMS: √2 too large for round motion.)
+    pub fn blur_vs_seeing(&self) -> ([f64; 2], Option<f64>) {
+        (self.image.blur_fwhm_arcsec, self.image.seeing_fwhm_arcsec)
     }
 }
 
@@ -148,7 +158,9 @@ pub fn apply_optics_overrides(spec: &mut ModelSpec, o: &ReportOptions) -> Result
         || o.pixel_um.is_some()
         || o.altitude_deg.is_some()
         || o.azimuth_deg.is_some()
-        || o.seeing_fwhm_arcsec.is_some();
+        || o.seeing_fwhm_arcsec.is_some()
+        || o.aperture_mm.is_some()
+        || o.wavelength_nm.is_some();
     let Some(op) = spec.optics.as_mut() else {
         return Err(Error::invalid(
             "optics",
@@ -173,6 +185,12 @@ pub fn apply_optics_overrides(spec: &mut ModelSpec, o: &ReportOptions) -> Result
     }
     if let Some(v) = o.seeing_fwhm_arcsec {
         op.seeing_fwhm_arcsec = Some(v);
+    }
+    if let Some(v) = o.aperture_mm {
+        op.aperture_mm = Some(v);
+    }
+    if let Some(v) = o.wavelength_nm {
+        op.wavelength_nm = Some(v);
     }
     Ok(())
 }
@@ -212,6 +230,7 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
     let io = ImageOptions {
         exposure_s: o.exposure_s,
         guide: o.guide,
+        guide_loop: o.guide_loop,
         seeing_fwhm_arcsec: o.seeing_fwhm_arcsec,
         ..ImageOptions::default()
     };
