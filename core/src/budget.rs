@@ -25,7 +25,7 @@
 //! Without an exposure length all motion counts as smear (a long exposure).
 
 use crate::error::{Result, require_positive};
-use crate::image::{ARCSEC_PER_RAD, FWHM_PER_SIGMA};
+use crate::units::{ARCSEC_PER_RAD, FWHM_PER_SIGMA};
 use serde::Serialize;
 
 /// FWHM of the Airy pattern in units of λ/D: 2x/π with [2J₁(x)/x]² = ½ at x = 1.6163399

@@ -328,10 +328,22 @@ pub fn schur_cohn_stable(a: &[f64]) -> bool {
     true
 }
 
+/// |E|² at the guide samples of a discrete integrator with gain g at cadence T_g and one frame
+/// of delay, E(z) = (1 − z⁻¹)/(1 − (1 − g)z⁻¹), z = e^{i2πfT_g} (Franklin, Powell & Workman,
+/// *Digital Control of Dynamic Systems*; docs/references.md#s11). This is what the loop does to the frame
+/// averages; it repeats every 1/T_g and is not the rejection of continuous motion, which is
+/// [`GuideLoop::residual`].
+pub fn guide_rejection_sq(f_hz: f64, cadence_s: f64, gain: f64) -> f64 {
+    let w = 2.0 * PI * f_hz * cadence_s;
+    let num = 2.0 - 2.0 * w.cos(); // |1 − z⁻¹|²
+    let a = 1.0 - gain;
+    let den = 1.0 + a * a - 2.0 * a * w.cos(); // |1 − a z⁻¹|²
+    num / den
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::image::guide_rejection_sq;
     use crate::spectrum::welch::{WelchConfig, welch};
     use crate::test_signals::synthesise;
     use approx::assert_relative_eq;
@@ -396,7 +408,7 @@ mod tests {
     #[test]
     fn samples_reproduce_the_discrete_integrator() {
         // Exposure = cadence, no latency: at the samples E(z) = (1 − z⁻¹)/(1 − (1 − g)z⁻¹)
-        // (REFERENCES §11 check values, through the older guide_rejection_sq).
+        // (docs/references.md#s11 check values, through the older guide_rejection_sq).
         for (g, f) in [(0.5, 0.1), (0.3, 0.05), (0.5, 0.5), (0.3, 0.01)] {
             let e = GuideLoop::new(1.0, g).sample_rejection(f).norm_sqr();
             assert_relative_eq!(e, guide_rejection_sq(f, 1.0, g), max_relative = 1e-9);
@@ -510,5 +522,14 @@ mod tests {
         }
         // Without the aliased part the formula would miss by more than the tolerance.
         assert!(aliased_share > 0.15, "the test should exercise aliasing: {aliased_share}");
+    }
+
+    #[test]
+    fn guider_rejection_check_values() {
+        // docs/references.md#s11 table, one-frame delay: g = 0.5 at f/fs = 0.1 → 0.930682;
+        // g = 0.3 at 0.05 → 0.785813.
+        assert_relative_eq!(guide_rejection_sq(0.1, 1.0, 0.5).sqrt(), 0.930682, max_relative = 1e-6);
+        assert_relative_eq!(guide_rejection_sq(0.05, 1.0, 0.3).sqrt(), 0.785813, max_relative = 1e-6);
+        assert_relative_eq!(guide_rejection_sq(0.5, 1.0, 0.5).sqrt(), 4.0 / 3.0, max_relative = 1e-12);
     }
 }

@@ -30,11 +30,7 @@ use crate::spectrum::BandWidth;
 use serde::Serialize;
 use std::f64::consts::PI;
 
-/// Arcseconds per radian (180 × 3600 / π).
-pub const ARCSEC_PER_RAD: f64 = 206_264.806_247_096_36;
-
-/// FWHM of a Gaussian per unit σ: 2√(2 ln 2).
-pub const FWHM_PER_SIGMA: f64 = 2.354_820_045_030_949_3;
+pub use crate::units::{ARCSEC_PER_RAD, FWHM_PER_SIGMA};
 
 /// Plate scale (arcsec per pixel).
 pub fn plate_scale_arcsec_per_px(pixel_um: f64, focal_length_mm: f64) -> f64 {
@@ -99,19 +95,6 @@ fn erfc(x: f64) -> f64 {
 pub fn sinc2(f_hz: f64, t_s: f64) -> f64 {
     let u = PI * f_hz * t_s;
     if u.abs() < 1e-8 { 1.0 } else { (u.sin() / u).powi(2) }
-}
-
-/// |E|² at the guide samples of a discrete integrator with gain g at cadence T_g and one frame
-/// of delay, E(z) = (1 − z⁻¹)/(1 − (1 − g)z⁻¹), z = e^{i2πfT_g} (Franklin, Powell & Workman,
-/// *Digital Control of Dynamic Systems*; REFERENCES §11). This is what the loop does to the frame
-/// averages; it repeats every 1/T_g and is not the rejection of continuous motion, which is
-/// [`GuideLoop::residual`].
-pub fn guide_rejection_sq(f_hz: f64, cadence_s: f64, gain: f64) -> f64 {
-    let w = 2.0 * PI * f_hz * cadence_s;
-    let num = 2.0 - 2.0 * w.cos(); // |1 − z⁻¹|²
-    let a = 1.0 - gain;
-    let den = 1.0 + a * a - 2.0 * a * w.cos(); // |1 − a z⁻¹|²
-    num / den
 }
 
 /// Guiding by a pure integrator (shorthand for [`GuideLoop::new`]): the guide exposure fills the
@@ -550,15 +533,6 @@ mod tests {
         let mc = out as f64 / n as f64;
         let p = p_outside(r, sx * sx, sy * sy, rho * sx * sy);
         assert_relative_eq!(p, mc, max_relative = 0.01);
-    }
-
-    #[test]
-    fn guider_rejection_check_values() {
-        // docs/references.md#s11 table, one-frame delay: g = 0.5 at f/fs = 0.1 → 0.930682;
-        // g = 0.3 at 0.05 → 0.785813.
-        assert_relative_eq!(guide_rejection_sq(0.1, 1.0, 0.5).sqrt(), 0.930682, max_relative = 1e-6);
-        assert_relative_eq!(guide_rejection_sq(0.05, 1.0, 0.3).sqrt(), 0.785813, max_relative = 1e-6);
-        assert_relative_eq!(guide_rejection_sq(0.5, 1.0, 0.5).sqrt(), 4.0 / 3.0, max_relative = 1e-12);
     }
 
     #[test]

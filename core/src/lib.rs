@@ -76,6 +76,7 @@ pub mod stiffness;
 #[cfg(test)]
 mod test_signals;
 pub mod transient;
+pub mod units;
 pub mod wind;
 
 pub use error::{Error, Result};

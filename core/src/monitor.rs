@@ -40,10 +40,11 @@
 //!   coverage and the fraction of time above threshold.
 
 use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
-use crate::image::{ARCSEC_PER_RAD, ImageOptions, p_outside_isotropic};
+use crate::image::{ImageOptions, p_outside_isotropic};
 use crate::model::{GROUND_INPUTS, Model};
 use crate::response::Disturbances;
 use crate::spectrum::{Psd, Quantity};
+use crate::units::ARCSEC_PER_RAD;
 use num_complex::Complex64;
 use std::f64::consts::PI;
 

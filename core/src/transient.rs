@@ -68,9 +68,9 @@ use crate::error::{
 };
 use crate::frf::{FrfPlan, build_dynamic_stiffness};
 use crate::grid::FreqGrid;
-use crate::image::ARCSEC_PER_RAD;
 use crate::linalg::{ComplexLu, RealLu};
 use crate::model::{Input, Model};
+use crate::units::ARCSEC_PER_RAD;
 use num_complex::Complex64;
 use rand::{Rng, SeedableRng, rngs::StdRng};
 use realfft::RealFftPlanner;

@@ -7,11 +7,12 @@ use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::guider::GuideLoop;
-use crate::image::{ARCSEC_PER_RAD, Guiding, ImageMotion, ImageOptions};
+use crate::image::{Guiding, ImageMotion, ImageOptions};
 use crate::io::series::SeriesOptions;
 use crate::model::{GROUND_INPUTS, Model};
 use crate::response::Disturbances;
 use crate::spectrum::{CriterionCurve, Extrapolate, Quantity, ReferenceGround};
+use crate::units::ARCSEC_PER_RAD;
 use crate::wind::WindSpec;
 use serde::Serialize;
 
