@@ -8,9 +8,16 @@ import pathlib
 import subprocess
 import sys
 
+import pytest
+
 ALLOWLIST = pathlib.Path(__file__).resolve().parents[1] / "stubtest-allowlist.txt"
 
 
+@pytest.mark.xfail(
+    strict=True,
+    reason="known disagreement, open: _sweep.pyi lacks helpers that distributed.py uses (wind_list and "
+    "others), so mypy stops before comparing; strict, so this turns red once the stubs are fixed",
+)
 def test_stubs_match_the_built_module():
     cmd = [sys.executable, "-m", "mypy.stubtest", "stillsky"]
     if ALLOWLIST.exists():

@@ -82,10 +82,10 @@ def sweep(
     c, cn = catalogue_text(specs)
     w = wind_list(wind)
     # Checked here, before any task: the same errors as on one machine.
-    plan = _native.sweep_plan(m, mn, c, cn, sp, w, **options)
+    plan = _native.sweep_plan(m, mn, c, cn, sp, w, **options)  # type: ignore[arg-type]  # options is a dict of mixed keyword values
     labels, winds, spec_names = plan["labels"], plan["winds"], plan["specs"]
     parts = _native.catalogue_parts(c, cn, specs_per_task)
-    part_specs = [_native.sweep_plan(m, mn, p, cn, sp[:1], w, **options)["specs"] for p in parts]
+    part_specs = [_native.sweep_plan(m, mn, p, cn, sp[:1], w, **options)["specs"] for p in parts]  # type: ignore[arg-type]
     token = uuid.uuid4().hex[:12]
     tasks = []
     for g0 in range(0, len(sp), spectra_per_task):
