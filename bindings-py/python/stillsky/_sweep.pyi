@@ -42,3 +42,19 @@ def sweep(
     Computed in Rust with the GIL released. Bad input raises InvalidInputError; a recording
     that cannot be read gives error rows (one per spec and wind case) naming file and line.
     """
+
+# Helpers shared with stillsky.distributed (text-only sweep inputs and one task's rows).
+def model_text(model: Any) -> tuple[str, str]: ...
+def catalogue_text(specs: Any) -> tuple[str, str]: ...
+def spectra_list(spectra: Any) -> list[str]: ...
+def wind_list(wind: Any) -> list[str]: ...
+def run_part(
+    model: str,
+    model_name: str,
+    cat: str,
+    cat_name: str,
+    spectra: Sequence[str],
+    labels: Sequence[str],
+    wind: Sequence[str],
+    options: dict[str, Any],
+) -> list[dict[str, Any]]: ...
