@@ -10,12 +10,14 @@ release the GIL: do not modify an input array from another thread during a call.
 """
 
 from os import PathLike
-from typing import Literal, Mapping, Sequence, overload
+from typing import Literal, Mapping, Sequence, final, overload
 
 import numpy as np
 import numpy.typing as npt
 
 __version__: str
+def _model_from_toml(text: str, label: str) -> Model:
+    """Restore a pickled Model (used by Model.__reduce__)."""
 
 _F64In = npt.ArrayLike
 _F64 = npt.NDArray[np.float64]
@@ -43,6 +45,7 @@ class ConvergenceError(StillskyError, RuntimeError):
 class StillskyIOError(StillskyError, OSError):
     """Reading or writing a file failed; the message names the path."""
 
+@final
 class Modes:
     """Natural modes of a :class:`Model`, ascending in frequency.
 
@@ -73,6 +76,7 @@ class Modes:
         """For each mode, the DOF label with the largest kinetic-energy share."""
     def __len__(self) -> int: ...
 
+@final
 class Model:
     """An assembled linear structure: mass, damping and complex stiffness over its free DOFs,
     with named inputs and outputs. Immutable; safe to share between threads.
@@ -99,7 +103,7 @@ class Model:
             UnsupportedModelError: e.g. a body free to move (named).
         """
     @staticmethod
-    def from_toml_str(text: str, label: str = "<string>") -> Model:
+    def from_toml_str(text: str, label: str = ...) -> Model:
         """Build a model from TOML text.
 
         Args:
@@ -315,11 +319,12 @@ class Model:
     def __reduce__(self) -> tuple[object, tuple[str, str]]:
         """Pickle as the model-file text it was built from (bit-identical results after loading)."""
 
+@final
 class Wind:
     """Mean wind and its turbulence at a height (a ``wind=`` disturbance)."""
 
-    def __init__(
-        self,
+    def __new__(
+        cls,
         kind: Literal["kaimal", "kaimal-iec", "von-karman", "davenport"] | str,
         mean_speed_m_s: float,
         height_m: float,
@@ -328,7 +333,7 @@ class Wind:
         roughness_length_m: float | None = None,
         shelter_factor: float = 1.0,
         air_density_kg_m3: float | None = None,
-    ) -> None:
+    ) -> Wind:
         """Args:
         kind: along-wind spectrum shape (see ``wind_spectrum``).
         mean_speed_m_s: mean speed U at ``height_m`` (m/s), > 0.
@@ -344,6 +349,7 @@ class Wind:
     def spectrum(self, freq_hz: _F64In) -> Psd:
         """Along-wind velocity PSD ((m/s)²/Hz) on ``freq_hz``."""
 
+@final
 class ImageMotion:
     """Image motion on the sky (arcsec) and sensor (µm, px): the result of ``Model.image_motion``."""
 
@@ -406,6 +412,7 @@ class ImageMotion:
 
 _Quantity = Literal["displacement", "velocity", "acceleration", "force", "moment", "angle"]
 
+@final
 class Psd:
     """A one-sided power spectral density per Hz (mean square = ∫ S df) on a strictly
     increasing, positive frequency grid, carrying its physical quantity.
@@ -416,7 +423,7 @@ class Psd:
         quantity: what the PSD describes.
     """
 
-    def __init__(self, freq_hz: _F64In, values: _F64In, quantity: _Quantity = "acceleration") -> None: ...
+    def __new__(cls, freq_hz: _F64In, values: _F64In, quantity: _Quantity = "acceleration") -> Psd: ...
     @staticmethod
     def from_csv(path: str | PathLike[str]) -> Psd:
         """Read a PSD CSV file (format: docs of the core's PSD file reader)."""
@@ -453,8 +460,8 @@ def welch(
     *,
     nperseg: int = 256,
     noverlap: int | None = None,
-    window: str | _F64In = "hann",
-    detrend: Literal["constant", "linear", "none", False] = "constant",
+    window: str | _F64In | None = None,
+    detrend: Literal["constant", "linear", "none", False] | None = None,
 ) -> tuple[_F64, _F64]:
     """Welch PSD estimate with the meaning of ``scipy.signal.welch`` (one-sided, density).
 
@@ -479,8 +486,8 @@ def csd(
     *,
     nperseg: int = 256,
     noverlap: int | None = None,
-    window: str | _F64In = "hann",
-    detrend: Literal["constant", "linear", "none", False] = "constant",
+    window: str | _F64In | None = None,
+    detrend: Literal["constant", "linear", "none", False] | None = None,
 ) -> tuple[_F64, _C128]:
     """Cross spectral density Pxy = conj(X)·Y (meaning of ``scipy.signal.csd``); units u_x·u_y/Hz."""
 
@@ -491,8 +498,8 @@ def coherence(
     *,
     nperseg: int = 256,
     noverlap: int | None = None,
-    window: str | _F64In = "hann",
-    detrend: Literal["constant", "linear", "none", False] = "constant",
+    window: str | _F64In | None = None,
+    detrend: Literal["constant", "linear", "none", False] | None = None,
 ) -> tuple[_F64, _F64]:
     """Magnitude-squared coherence |Pxy|²/(Pxx Pyy) (meaning of ``scipy.signal.coherence``)."""
 
@@ -503,8 +510,8 @@ def transfer_estimate(
     *,
     nperseg: int = 256,
     noverlap: int | None = None,
-    window: str | _F64In = "hann",
-    detrend: Literal["constant", "linear", "none", False] = "constant",
+    window: str | _F64In | None = None,
+    detrend: Literal["constant", "linear", "none", False] | None = None,
 ) -> dict[str, object]:
     """Two-channel FRF estimates from input ``x`` (e.g. hammer force, N, or ground motion) to
     output ``y`` (e.g. payload acceleration), both sampled at ``fs`` (Hz), Welch arguments as
@@ -599,6 +606,7 @@ def wind_spectrum(
 
 _UnitToken = Literal["m_s2", "g", "m_s", "mm_s", "um_s", "m", "mm", "um"]
 
+@final
 class Series:
     """A recording: samples in SI units (or counts), sample rate and timing report."""
 
@@ -673,6 +681,7 @@ def identify_ringdown(
         GIL released.
     """
 
+@final
 class RingdownId:
     """Result of ``identify_ringdown``."""
     @property
@@ -746,6 +755,7 @@ def compare_ringdowns(
         damping_ratio) and after/before ratios. GIL released.
     """
 
+@final
 class RingdownComparison:
     @property
     def before(self) -> dict[str, object]: ...
@@ -759,6 +769,7 @@ class RingdownComparison:
     def settle_time_ratio(self) -> float | None: ...
     def summary(self) -> dict[str, object]: ...
 
+@final
 class Transient:
     """Output histories of ``Model.transient`` (SI: m or rad)."""
     @property
@@ -786,10 +797,11 @@ class Transient:
         """First time (s) from which the image stays within ``radius_px``; None if it ends outside."""
     @property
     def fraction_outside(self) -> float | None: ...
-    def __getitem__(self, name: str) -> _F64:
+    def __getitem__(self, name: str, /) -> _F64:
         """One output's history (m or rad)."""
     def summary(self) -> dict[str, object]: ...
 
+@final
 class ImageTransient:
     """Sensor-plane history of ``Model.image_response`` / ``Model.gust_response``."""
     @property
@@ -817,6 +829,7 @@ class ImageTransient:
     def fraction_outside(self) -> float: ...
     def summary(self) -> dict[str, object]: ...
 
+@final
 class Gust:
     """A wind-speed fluctuation history u′(t) (m/s) about the mean speed."""
     @staticmethod
@@ -868,9 +881,10 @@ def static_checks(
         engineer for piers, footings and observatory structures.
     """
 
+@final
 class StaticChecks:
     def __len__(self) -> int: ...
-    def __getitem__(self, i: int) -> dict[str, object]: ...
+    def __getitem__(self, i: int, /) -> dict[str, object]: ...
     @property
     def checks(self) -> list[dict[str, object]]: ...
     @property
