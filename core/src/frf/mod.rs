@@ -77,11 +77,7 @@ pub(crate) fn trapezoid_psd_weights(grid: &FreqGrid, input_psd: &[f64], len: usi
         crate::error::require_non_negative(|| format!("input_psd[{i}]"), v)?;
     }
     let mut wts = vec![0.0; len.max(nf)];
-    for i in 1..nf {
-        let h = 0.5 * (f[i] - f[i - 1]);
-        wts[i - 1] += h * input_psd[i - 1];
-        wts[i] += h * input_psd[i];
-    }
+    crate::grid::add_trapezoid_weights(f, Some(input_psd), &mut wts[..nf]);
     Ok(wts)
 }
 
