@@ -165,7 +165,7 @@ def spec_arrays(specs):
 
 
 def spec_stiffness(z, hy, kv, w):
-    """k*(f) of the three springs, shape (n_spec, n_freq, 3); DESIGN.md conventions (e^{+iwt})."""
+    """k*(f) of the three springs, shape (n_spec, n_freq, 3); docs/conventions.md conventions (e^{+iwt})."""
     ix = 1j * w[None, :] * z[:, 2:3]
     kz = (z[:, 0:1] + z[:, 1:2] * ix) / (1 + ix)
     kh = np.broadcast_to((hy[:, 0] * (1 + 1j * hy[:, 1]))[:, None], kz.shape)

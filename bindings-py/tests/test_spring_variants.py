@@ -30,7 +30,7 @@ BASE = ["stiffness_n_per_m = 1e6\nloss_factor = 0.02"] * 3
 
 def test_matches_rebuilt_models_and_numpy_rms():
     # Oracle: the direct FRF of a model file written with the replacement springs, and the RMS
-    # as numpy's trapezoid integral of |H|^2 S (DESIGN.md: RMS by the trapezoid rule).
+    # as numpy's trapezoid integral of |H|^2 S (docs/conventions.md: RMS by the trapezoid rule).
     f = np.linspace(1.0, 300.0, 500)
     psd = 1e-12 * np.ones_like(f)
     variants = [

@@ -2,7 +2,7 @@
 //! (head body on splayed legs, foot nodes on soil springs), built as model-file TOML text with
 //! parameters in physical ranges. Case counts are bounded (`CASES`) so `cargo test` stays quick.
 //!
-//! Conventions (DESIGN.md): e^{+iωt}, Z(ω) = K*(ω) + iωC − ω²M, K* = K′(1 + iη).
+//! Conventions (docs/conventions.md): e^{+iωt}, Z(ω) = K*(ω) + iωC − ω²M, K* = K′(1 + iη).
 
 use std::f64::consts::PI;
 

@@ -728,7 +728,7 @@ mod tests {
                 let e = max_rel_diff(g.as_slice().unwrap(), direct.data.as_slice().unwrap());
                 assert!(e < 1e-9, "{path}, variant {v}: {e}");
             }
-            // The RMS-only evaluation against the trapezoid rule on the direct FRFs (DESIGN.md rule).
+            // The RMS-only evaluation against the trapezoid rule on the direct FRFs (docs/conventions.md rule).
             for (o, j) in (0..outs.len()).flat_map(|o| (0..ins.len()).map(move |j| (o, j))) {
                 let y = |k: usize| direct.data[[k, o, j]].norm_sqr() * psd[k];
                 let ms: f64 = (1..f.len()).map(|k| 0.5 * (f[k] - f[k - 1]) * (y(k) + y(k - 1))).sum();
@@ -745,7 +745,7 @@ mod tests {
     #[test]
     fn rms_matches_direct_path_when_the_spring_is_unchanged() {
         // Oracle: replacing s0 by its own model must give the direct dense FRF of the base model;
-        // the RMS is then the trapezoid integral of |H|²·S of that direct FRF (DESIGN.md rule).
+        // the RMS is then the trapezoid integral of |H|²·S of that direct FRF (docs/conventions.md rule).
         let base = chain(6, &[]);
         let f: Vec<f64> = (0..300).map(|k| 0.5 + k as f64 * 1.3).collect();
         let g = FreqGrid::new(f.clone()).unwrap();
@@ -813,7 +813,7 @@ mod tests {
             let g = got.index_axis(ndarray::Axis(0), v).to_owned();
             let d = direct.data.as_slice().unwrap();
             assert!(max_rel_diff(g.as_slice().unwrap(), d) < 1e-9, "variant {v}");
-            // Trapezoid rule of |H|² S on the grid (DESIGN.md).
+            // Trapezoid rule of |H|² S on the grid (docs/conventions.md).
             let ms: f64 = (1..f.len())
                 .map(|k| 0.5 * (f[k] - f[k - 1]) * 1e-12 * (d[k].norm_sqr() + d[k - 1].norm_sqr()))
                 .sum();

@@ -458,7 +458,7 @@ mod tests {
 
     #[test]
     fn acceleration_to_displacement_is_omega_to_minus_four() {
-        // Definition of the one-sided PSD of a derivative: S_a = ω⁴ S_x (DESIGN.md conventions).
+        // Definition of the one-sided PSD of a derivative: S_a = ω⁴ S_x (docs/conventions.md conventions).
         let g = FreqGrid::log(0.1, 100.0, 50).unwrap();
         let vals: Vec<f64> = g.hz().iter().map(|f| 1e-9 * (1.0 + f)).collect();
         let a = Psd::on_grid(&g, vals.clone(), Quantity::Acceleration).unwrap();
