@@ -118,6 +118,19 @@ impl PyModel {
         )
     }
 
+    /// The wind case's gust family: a dict with ``cases`` (duration_s, amplitude_m_s, peak_px,
+    /// peak_after_start_s, ringdown_s or None), ``worst_peak``, ``worst_ringdown`` (indices),
+    /// ``fs_hz`` and ``record_s``. GIL released.
+    fn gust_family<'py>(
+        &self,
+        py: Python<'py>,
+        wind: PyRef<'_, crate::wind::PyWind>,
+    ) -> PyResult<Bound<'py, pyo3::types::PyDict>> {
+        let w = wind.inner.clone();
+        let f = py.detach(|| stillsky::batch::gust_family(&self.inner, &w)).py_err()?;
+        crate::convert::to_dict(py, &f)
+    }
+
     #[pyo3(signature = (gust, *, mean_speed_m_s, fs, duration_s, air_density_kg_m3 = 1.225,
                         drag_law = "quadratic", decay_tolerance = 1e-6, radius_px = 0.5))]
     #[allow(clippy::too_many_arguments)]
@@ -169,12 +182,14 @@ impl PyModel {
 
     fn modes(&self, py: Python<'_>) -> PyResult<PyModes> {
         let m = &self.inner;
-        let (modes, dominant) = py
+        let (modes, dominant, labels, energy) = py
             .detach(|| {
-                m.modes().map(|x| {
-                    let d = x.dominant_dofs(m);
-                    (x, d)
-                })
+                let x = m.modes()?;
+                let d = x.dominant_dofs(m);
+                let n = x.frequency_hz.len();
+                let labels = (0..n).map(|j| x.label(m, j)).collect::<stillsky::Result<Vec<_>>>()?;
+                let energy = (0..n).map(|j| x.energy(m, j)).collect::<stillsky::Result<Vec<_>>>()?;
+                Ok::<_, stillsky::Error>((x, d, labels, energy))
             })
             .py_err()?;
         Ok(PyModes {
@@ -184,6 +199,8 @@ impl PyModel {
             participation: modes.participation.into_pyarray(py).unbind(),
             effective_mass_kg: modes.effective_mass_kg.into_pyarray(py).unbind(),
             dominant_dofs: dominant,
+            labels,
+            energy,
         })
     }
 
@@ -291,6 +308,8 @@ pub struct PyModes {
     participation: Py<PyArray2<f64>>,
     effective_mass_kg: Py<PyArray2<f64>>,
     dominant_dofs: Vec<String>,
+    labels: Vec<String>,
+    energy: Vec<stillsky::modes::ModeEnergy>,
 }
 
 #[pymethods]
@@ -318,6 +337,17 @@ impl PyModes {
     #[getter]
     fn dominant_dofs(&self) -> Vec<String> {
         self.dominant_dofs.clone()
+    }
+    /// Each mode named in the mount's axes, e.g. "payload: altitude nod".
+    #[getter]
+    fn labels(&self) -> Vec<String> {
+        self.labels.clone()
+    }
+    /// Per mode: {"bodies": [(owner, kinetic share)], "connectors": [(name, strain share)]},
+    /// largest first; each list sums to 1.
+    #[getter]
+    fn energy<'py>(&self, py: Python<'py>) -> PyResult<Vec<Bound<'py, pyo3::types::PyDict>>> {
+        self.energy.iter().map(|e| crate::convert::to_dict(py, e)).collect()
     }
     fn __len__(&self) -> usize {
         self.dominant_dofs.len()

@@ -51,3 +51,38 @@ def test_effective_mass_sum_rule_chain():
     m = stillsky.Model.from_toml_str(text)
     total = np.trace(m.matrices(0.0)["mass"]) / 3
     np.testing.assert_allclose(m.modes().effective_mass_kg.sum(axis=0), [total] * 3, rtol=1e-8)
+
+
+def test_energy_shares_equal_numpy_from_scipy_shapes():
+    # Kinetic share per owner m φ_i² over its DOFs and strain share per spring k (bᵀφ)² / λ,
+    # with φ and λ from scipy.linalg.eigh(K', M) (point masses: M is diagonal), b = +d on the
+    # spring's `to` DOFs and −d on its `from` DOFs (elementary structural mechanics).
+    import tomllib
+
+    text = random_chain_toml(11)
+    doc = tomllib.loads(text)
+    m = stillsky.Model.from_toml_str(text)
+    mats = m.matrices(0.0)
+    lam, vec = scipy.linalg.eigh(mats["stiffness"].real, mats["mass"])
+    labels = m.dof_labels
+    index = {lab: i for i, lab in enumerate(labels)}
+    modes = m.modes()
+    assert len(modes.labels) == len(lam) and all(":" in s for s in modes.labels)
+    for j in range(len(lam)):
+        phi = vec[:, j]
+        e = modes.energy[j]
+        bodies = dict(e["bodies"])
+        for owner in {lab.split(":")[0] for lab in labels}:
+            idx = [index[f"{owner}:{a}"] for a in "xyz"]
+            want = sum(mats["mass"][i, i] * phi[i] ** 2 for i in idx)
+            assert abs(bodies[owner] - want) < 1e-9, (owner, bodies[owner], want)
+        conns = dict(e["connectors"])
+        for s in doc["spring"]:
+            d = np.array(s["direction"], dtype=float)
+            d /= np.linalg.norm(d)
+            q = sum(d[k] * phi[index[f"{s['to']}:{a}"]] for k, a in enumerate("xyz"))
+            if s["from"] != "ground":
+                q -= sum(d[k] * phi[index[f"{s['from']}:{a}"]] for k, a in enumerate("xyz"))
+            want = s["stiffness_n_per_m"] * q**2 / lam[j]
+            assert abs(conns[s["name"]] - want) < 1e-8, (s["name"], conns[s["name"]], want)
+        assert abs(sum(conns.values()) - 1) < 1e-9 and abs(sum(bodies.values()) - 1) < 1e-9

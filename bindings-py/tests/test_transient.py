@@ -188,3 +188,69 @@ def test_fft_convolution_matches_newmark_on_three_dof():
         assert np.max(np.abs(fft[o][keep] - nm[o][keep])) < 1e-3 * peak
     with pytest.raises(stillsky.UnsupportedModelError, match="Newmark"):
         stillsky.Model.from_toml_str(sdof_toml(loss=0.05)).newmark("force:mass:z", u[:10], fs, outputs="mass:z")
+
+
+TUBE = """
+[[body]]
+name = "tube"
+mass_kg = 5
+cg_m = [0, 0, 1]
+inertia_kgm2 = [20, 20, 20]
+dofs = ["ry"]
+[[torsion_spring]]
+name = "axis"
+from = "ground"
+to = "tube"
+axis = [0, 1, 0]
+stiffness_nm_per_rad = 5.0e4
+damping_nms_per_rad = 10.0
+[wind]
+body = "tube"
+centre_of_pressure_m = [0, 0, 1.4]
+direction = [1, 0, 0]
+area_m2 = 0.1
+drag_coefficient = 1.0
+[optics]
+body = "tube"
+focal_length_mm = 2800
+pixel_um = 3.76
+altitude_deg = 0
+azimuth_deg = 90
+"""
+
+
+def test_gust_family_amplitudes_and_ring_down_against_numpy_and_scipy():
+    m = stillsky.Model.from_toml_str(TUBE, "tube")
+    wind = stillsky.Wind("von-karman", 5.0, 2.0, turbulence_intensity=0.2)
+    fam = m.gust_family(wind)
+    cases = fam["cases"]
+    fn = np.sqrt(5.0e4 / 20.0) / (2 * np.pi)
+    assert abs(cases[0]["duration_s"] - 0.5 / fn) < 1e-9
+    assert abs(cases[-1]["duration_s"] - 4.0) < 1e-9
+    # Amplitude: 3 √(σ² − R(T/2)), R(τ) = ∫ S(f) cos 2πfτ df (Wiener–Khinchin), by numpy on a
+    # fine grid of the same spectrum.
+    f = np.geomspace(1e-6, 1e4, 200_000)
+    s = wind.spectrum(f).values
+    for c in cases:
+        tau = c["duration_s"] / 2
+        want = 3 * np.sqrt(np.trapezoid(s * (1 - np.cos(2 * np.pi * f * tau)), f))
+        assert abs(c["amplitude_m_s"] / want - 1) < 5e-3, (c, want)
+    # Ring-down of the shortest gust: the torsion oscillator J θ'' + c θ' + k θ = h F(t) by
+    # scipy.signal.lsim (h = 0.4 m lever arm); the image moves by θ on the sky.
+    c0 = cases[0]
+    fs, n = fam["fs_hz"], int(round(fam["record_s"] * fam["fs_hz"]))
+    g = stillsky.Gust.one_minus_cosine(c0["amplitude_m_s"], duration_s=c0["duration_s"], start_s=0.5)
+    fine = 20
+    t = np.arange(n * fine) / (fs * fine)
+    u = g.velocity_history(5.0, fs * fine, n * fine)
+    force = 0.5 * 1.225 * 1.0 * 0.1 * ((5.0 + u) ** 2 - 25.0)
+    sys = scipy.signal.lti([0.4], [20.0, 10.0, 5.0e4])
+    _, theta, _ = scipy.signal.lsim(sys, force, t)
+    px = np.abs(theta) * ARCSEC_PER_RAD / (3.76e-3 / 2800 * ARCSEC_PER_RAD)
+    assert abs(px.max() / c0["peak_px"] - 1) < 0.01, (px.max(), c0["peak_px"])
+    last_out = np.nonzero(px > 0.5)[0][-1]
+    ring = t[last_out + 1] - 0.5 - c0["duration_s"]
+    assert abs(ring - c0["ringdown_s"]) < 2.0 / fs + 0.01 * ring, (ring, c0["ringdown_s"])
+    rings = [c["ringdown_s"] for c in cases]
+    assert rings[fam["worst_ringdown"]] == max(rings)
+    assert cases[fam["worst_peak"]]["peak_px"] == max(c["peak_px"] for c in cases)

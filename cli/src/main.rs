@@ -135,6 +135,9 @@ struct ReportArgs {
     /// Seeing FWHM (arcsec), overrides the model's.
     #[arg(long)]
     seeing_arcsec: Option<f64>,
+    /// Isolator catalogue (TOML): the gust table and plot show the rig with each pad beside it.
+    #[arg(long)]
+    catalogue: Option<PathBuf>,
     /// Write SVG plots into this folder.
     #[arg(long)]
     plots: Option<PathBuf>,
@@ -336,10 +339,21 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     Ok(o)
 }
 
-fn run_report(model: &Path, o: &ReportOptions, plots: Option<&Path>, json: Option<&Path>) -> CliResult {
+fn run_report(
+    model: &Path,
+    o: &ReportOptions,
+    catalogue: Option<&Path>,
+    plots: Option<&Path>,
+    json: Option<&Path>,
+) -> CliResult {
     let file = ModelFile::read(model)?;
     let spec = file.expanded()?;
-    let r = batch::build_report(&spec, o)?;
+    let mut o = o.clone();
+    if o.wind.is_some() {
+        let cat = catalogue.map(batch::Catalogue::read).transpose()?;
+        o.alternatives = batch::pad_alternatives(&file, cat.as_ref(), batch::DEFAULT_PAD_PREFIX)?;
+    }
+    let r = batch::build_report(&spec, &o)?;
     print!("{}", print::report_text(&model.display().to_string(), &r));
     if file.rig.tripod.is_some() || file.rig.pier.is_some() {
         let c = stillsky::checks::rig_checks(&file, &stillsky::checks::StaticWind::default())?;
@@ -362,7 +376,7 @@ fn run_report(model: &Path, o: &ReportOptions, plots: Option<&Path>, json: Optio
 
 fn report(a: &ReportArgs) -> CliResult {
     let o = report_options(a)?;
-    run_report(&a.model, &o, a.plots.as_deref(), a.json.as_deref())
+    run_report(&a.model, &o, a.catalogue.as_deref(), a.plots.as_deref(), a.json.as_deref())
 }
 
 /// Expand folders into their files (sorted), keep other arguments.
@@ -476,7 +490,8 @@ fn demo(out: &Path) -> CliResult {
     o.ground = Some(GroundSource::Recording(rec("quiet-night.csv")));
     o.wind = Some(WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2)));
     o.exposure_s = Some(2.0);
-    run_report(&model, &o, Some(&out.join("plots")), Some(&out.join("report.json")))?;
+    let catalogue = ex.join("isolators.toml");
+    run_report(&model, &o, Some(&catalogue), Some(&out.join("plots")), Some(&out.join("report.json")))?;
     println!();
     println!("== sweep: isolators × three recordings × (calm, 4 m/s) ==");
     let grounds = ["quiet-night.csv", "road-nearby.csv", "footsteps.csv"]
@@ -485,7 +500,7 @@ fn demo(out: &Path) -> CliResult {
         .collect();
     run_sweep(&SweepRun {
         model: &model,
-        catalogue: &ex.join("isolators.toml"),
+        catalogue: &catalogue,
         grounds,
         winds: vec![WindCase::calm(), WindCase::parse("4")?],
         out: &out.join("sweep.csv"),

@@ -229,22 +229,37 @@ pub fn report_plots(r: &Report, dir: &Path) -> PlotResult<Vec<PathBuf>> {
 
     if let Some(g) = &r.gust {
         let p = dir.join("gust.svg");
-        let lines = vec![
-            Line { label: "image_x (az)".into(), x: &g.time_s, y: g.image_x_px.clone(), dashed: false },
-            Line { label: "image_y (alt)".into(), x: &g.time_s, y: g.image_y_px.clone(), dashed: false },
-            flat("+1/2 px", &g.time_s, 0.5),
-            flat("-1/2 px", &g.time_s, -0.5),
-        ];
-        chart(
-            &p,
-            &format!("Design gust ({:.2} m/s 1-cosine from {} s): image motion", g.amplitude_m_s, g.start_s),
-            "time (s)",
-            "px",
-            &lines,
-            false,
-            false,
-        )?;
-        out.push(p);
+        let mut lines: Vec<Line> = g
+            .traces
+            .iter()
+            .enumerate()
+            .map(|(k, t)| Line {
+                label: format!(
+                    "{} (ring-down {})",
+                    t.label,
+                    t.ringdown_s.map_or("> record".into(), |v| format!("{v:.2} s"))
+                ),
+                x: &t.time_s,
+                y: t.image_x_px.iter().zip(&t.image_y_px).map(|(x, y)| x.hypot(*y)).collect(),
+                dashed: k > 0 && k % 2 == 0,
+            })
+            .collect();
+        if let Some(t) = g.traces.first() {
+            lines.push(flat("1/2 px", &t.time_s, 0.5));
+            chart(
+                &p,
+                &format!(
+                    "Gust of {:.2} s, {:.2} m/s (1-cosine from {} s): radial image excursion",
+                    t.duration_s, t.amplitude_m_s, g.start_s
+                ),
+                "time (s)",
+                "px",
+                &lines,
+                false,
+                false,
+            )?;
+            out.push(p);
+        }
     }
     Ok(out)
 }

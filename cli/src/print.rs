@@ -22,15 +22,34 @@ pub fn report_text(model: &str, r: &Report) -> String {
     let _ = writeln!(s, "\nmodes (first {} of {}):", r.modes.len().min(12), r.modes.len());
     let _ = writeln!(
         s,
-        "  {:>3} {:>10} {:>8}  {:<16} {:>26}",
-        "#", "f (Hz)", "zeta", "dominant DOF", "eff. mass x/y/z (kg)"
+        "  {:>3} {:>9} {:>7} {:>8}  {:<40} {:<26} {:<30} {:>26}",
+        "#",
+        "f (Hz)",
+        "zeta",
+        "image %",
+        "mode (mount axes)",
+        "moving most",
+        "flexing most",
+        "eff. mass x/y/z (kg)"
     );
+    let top =
+        |v: &[(String, f64)]| v.first().map_or(String::new(), |(n, f)| format!("{n} {:.0} %", 100.0 * f));
     for m in r.modes.iter().take(12) {
         let [a, b, c] = m.effective_mass_kg;
+        let share = m.image_share.map_or("-".to_string(), |x| format!("{:.1}", 100.0 * x));
         let _ = writeln!(
             s,
-            "  {:>3} {:>10.3} {:>8.4}  {:<16} {:>8.2} {:>8.2} {:>8.2}",
-            m.index, m.frequency_hz, m.damping_ratio, m.dominant_dof, a, b, c
+            "  {:>3} {:>9.3} {:>7.4} {:>8}  {:<40} {:<26} {:<30} {:>8.2} {:>8.2} {:>8.2}",
+            m.index,
+            m.frequency_hz,
+            m.damping_ratio,
+            share,
+            m.label,
+            top(&m.moving),
+            top(&m.flexing),
+            a,
+            b,
+            c
         );
     }
     let um_per_arcsec = im.rms_um / im.rms_arcsec.max(1e-300);
@@ -105,12 +124,7 @@ pub fn report_text(model: &str, r: &Report) -> String {
         );
     }
     if let Some(g) = &r.gust {
-        let settle = g.settle_s.map_or("not within the record".to_string(), |t| format!("{t:.2} s"));
-        let _ = writeln!(
-            s,
-            "  design gust (1-cosine, {:.2} m/s over 2 s): peak {:.3} px, back inside 1/2 px after {settle}",
-            g.amplitude_m_s, g.peak_px
-        );
+        gust_text(&mut s, g);
     }
     budget_text(&mut s, im);
     if !r.criteria.is_empty() {
@@ -191,34 +205,65 @@ pub fn sweep_text(o: &SweepOutcome) -> String {
         o.kept,
         o.path.display()
     );
-    let table = |s: &mut String, t: &stillsky::batch::RankTable| {
-        let _ = writeln!(s, "\nranking, {} (mean ratio to no pad; lower is better):", t.scope);
+    let v = &o.summary.visibility;
+    let _ = writeln!(
+        s,
+        "\nverdicts against no pad: no visible difference when both stay below {} px RMS and P(>1/2 px) {} %, or differ by less than that",
+        v.rms_px,
+        100.0 * v.p_outside
+    );
+    for t in &o.summary.per_wind {
+        let windy = t.entries.iter().any(|e| e.gust_peak_px.is_finite());
         let _ = writeln!(
             s,
-            "  {:>2} {:<20} {:>8} {:>10} {:>12} {:>8}",
-            "", "isolator", "ratio", "rms px", "P(>1/2 px)", "worse"
+            "\nranking, wind {}, {} (mean ratio of image RMS to no pad; lower is better):",
+            t.wind, t.spectrum
         );
+        let _ = write!(
+            s,
+            "  {:>2} {:<20} {:>8} {:>10} {:>12} {:>13}",
+            "", "isolator", "ratio", "rms px", "P(>1/2 px)", "better/same/worse"
+        );
+        if windy {
+            let _ = write!(s, " {:>10} {:>11}", "gust px", "ring-down s");
+        }
+        let _ = writeln!(s, "  verdict");
         for (k, e) in t.entries.iter().enumerate() {
-            let mark = if e.worse_than_none { "WORSE THAN NO PAD" } else { "" };
-            let _ = writeln!(
+            let _ = write!(
                 s,
-                "  {:>2} {:<20} {:>8.3} {:>10.4} {:>12.3e} {:>4}/{:<3} {}{}",
+                "  {:>2} {:<20} {:>8.3} {:>10.4} {:>12.3e} {:>7}/{}/{:<7}",
                 k + 1,
                 e.spec,
                 e.mean_ratio,
                 e.mean_rms_px,
                 e.mean_p_outside_half_px,
-                e.cases_worse,
-                e.cases,
-                mark,
-                if e.overloaded { " (over rated load)" } else { "" }
+                e.cases_better,
+                e.cases_same,
+                e.cases_worse
             );
+            if windy {
+                let _ = write!(s, " {:>10.3} {:>11.2}", e.gust_peak_px, e.gust_ringdown_s);
+            }
+            let verdict = if e.spec == stillsky::batch::NO_PAD { "(baseline)" } else { e.verdict.words() };
+            let _ = writeln!(s, "  {}{}", verdict, if e.overloaded { " (over rated load)" } else { "" });
         }
-    };
-    for t in &o.summary.per_spectrum {
-        table(&mut s, t);
     }
-    table(&mut s, &o.summary.overall);
+    if o.summary.per_wind_spectrum.len() > o.summary.per_wind.len() {
+        let _ = writeln!(s, "\nbest per wind case and spectrum:");
+        for t in &o.summary.per_wind_spectrum {
+            let best = t.entries.iter().find(|e| e.spec != stillsky::batch::NO_PAD);
+            let line = match (t.entries.first(), best) {
+                (Some(first), Some(b)) if first.spec == stillsky::batch::NO_PAD => {
+                    format!("none ranks first; best pad {}: {}", b.spec, b.verdict.words())
+                }
+                (Some(first), _) => {
+                    format!("{} (ratio {:.3}: {})", first.spec, first.mean_ratio, first.verdict.words())
+                }
+                _ => "no rows".into(),
+            };
+            let _ = writeln!(s, "  {:<28} {:<22} {line}", t.wind, t.spectrum);
+        }
+    }
     if !o.summary.failures.is_empty() {
         let _ = writeln!(s, "\nfailed inputs:");
         for (k, e) in &o.summary.failures {
@@ -305,4 +350,66 @@ pub fn calibration_text(model: &str, c: &stillsky::identify::Calibration) -> Str
     ));
     t.push_str("Each target is tied to the model mode nearest to it at the start; check the ties above.\n");
     t
+}
+
+fn ringdown_text(t: Option<f64>) -> String {
+    t.map_or("not within the record".to_string(), |t| format!("{t:.2} s"))
+}
+
+/// The gust family: one line per gust, then the worst cases of the rig and its alternatives.
+fn gust_text(s: &mut String, g: &stillsky::batch::GustReport) {
+    let f = &g.family;
+    let _ = writeln!(
+        s,
+        "\ngust family (1-cosine gusts from half the first period to {:.0} s; amplitude 3 x the RMS velocity change over the rise; ring-down from the gust's end until within 1/2 px):",
+        stillsky::batch::gust::GUST_LONGEST_S
+    );
+    let _ = writeln!(
+        s,
+        "  {:>10} {:>10} {:>10} {:>12} {:>14}",
+        "duration s", "gust m/s", "peak px", "peak after s", "ring-down"
+    );
+    for (k, c) in f.cases.iter().enumerate() {
+        let mark = match (k == f.worst_peak, k == f.worst_ringdown) {
+            (true, true) => "  <- worst peak and ring-down",
+            (true, false) => "  <- worst peak",
+            (false, true) => "  <- longest ring-down",
+            _ => "",
+        };
+        let _ = writeln!(
+            s,
+            "  {:>10.3} {:>10.3} {:>10.3} {:>12.3} {:>14}{mark}",
+            c.duration_s,
+            c.amplitude_m_s,
+            c.peak_px,
+            c.peak_after_start_s,
+            ringdown_text(c.ringdown_s)
+        );
+    }
+    if g.rigs.len() > 1 {
+        let _ = writeln!(s, "  alternatives (each over its own gust family):");
+        let _ = writeln!(
+            s,
+            "    {:<24} {:>14} {:>12} {:>16} {:>12}",
+            "rig", "worst peak px", "at gust s", "ring-down", "at gust s"
+        );
+        for o in &g.rigs {
+            match &o.error {
+                Some(e) => {
+                    let _ = writeln!(s, "    {:<24} not computed: {e}", o.label);
+                }
+                None => {
+                    let _ = writeln!(
+                        s,
+                        "    {:<24} {:>14.3} {:>12.3} {:>16} {:>12.3}",
+                        o.label,
+                        o.worst_peak_px,
+                        o.worst_peak_duration_s,
+                        ringdown_text(o.worst_ringdown_s),
+                        o.worst_ringdown_duration_s
+                    );
+                }
+            }
+        }
+    }
 }

@@ -687,11 +687,34 @@ impl Model {
         outputs: &[&str],
         opts: &TransientOptions,
     ) -> Result<TransientResult> {
+        let mut r = self.transient_many(input, &[history], fs_hz, outputs, opts)?;
+        r.pop().ok_or_else(|| Error::invalid("history", "is empty"))
+    }
+
+    /// [`Model::transient`] for several histories of one length on the same input: the FRF on
+    /// the FFT bins is evaluated once and shared (one result per history, in order).
+    pub fn transient_many(
+        &self,
+        input: &str,
+        histories: &[&[f64]],
+        fs_hz: f64,
+        outputs: &[&str],
+        opts: &TransientOptions,
+    ) -> Result<Vec<TransientResult>> {
         opts.validate()?;
         let inp = self.input(input)?;
-        let x = prepare_history(&inp, input, history, fs_hz, opts.ground)?;
+        let n = match histories.first() {
+            Some(h) => h.len(),
+            None => return Err(Error::invalid("histories", "is empty")),
+        };
+        if let Some(h) = histories.iter().find(|h| h.len() != n) {
+            return Err(Error::shape("history (all histories share one length)", n, h.len()));
+        }
+        let xs_time = histories
+            .iter()
+            .map(|h| prepare_history(&inp, input, h, fs_hz, opts.ground))
+            .collect::<Result<Vec<_>>>()?;
         let plan = FrfPlan::new(self, &[input], outputs)?;
-        let n = x.len();
         let limit = opts.max_fft_len.min(MAX_FFT_LEN);
         let pad = (self.decay_time_s(opts.decay_tolerance)? * fs_hz).ceil();
         let too_large = |value: usize| Error::TooLarge {
@@ -727,29 +750,34 @@ impl Model {
         let c2r = planner.plan_fft_inverse(l);
         let fft_err = |e: realfft::FftError| Error::invalid("transient FFT", e.to_string());
         let mut buf = vec![0.0; l];
-        buf[..n].copy_from_slice(&x);
         let mut xs = vec![Complex64::default(); nb];
-        r2c.process(&mut buf, &mut xs).map_err(fft_err)?;
-        let mut values = Vec::with_capacity(no);
         let mut ys = vec![Complex64::default(); nb];
-        for o in 0..no {
-            for j in 0..nb {
-                ys[j] = h[j * no + o] * xs[j];
+        let mut results = Vec::with_capacity(xs_time.len());
+        for x in &xs_time {
+            buf.fill(0.0);
+            buf[..n].copy_from_slice(x);
+            r2c.process(&mut buf, &mut xs).map_err(fft_err)?;
+            let mut values = Vec::with_capacity(no);
+            for o in 0..no {
+                for j in 0..nb {
+                    ys[j] = h[j * no + o] * xs[j];
+                }
+                ys[0].im = 0.0;
+                if l.is_multiple_of(2) {
+                    ys[nb - 1].im = 0.0;
+                }
+                c2r.process(&mut ys, &mut buf).map_err(fft_err)?;
+                let scale = 1.0 / l as f64;
+                values.push(buf[..n].iter().map(|v| v * scale).collect());
             }
-            ys[0].im = 0.0;
-            if l.is_multiple_of(2) {
-                ys[nb - 1].im = 0.0;
-            }
-            c2r.process(&mut ys, &mut buf).map_err(fft_err)?;
-            let scale = 1.0 / l as f64;
-            values.push(buf[..n].iter().map(|v| v * scale).collect());
+            results.push(TransientResult {
+                time_s: (0..n).map(|k| k as f64 / fs_hz).collect(),
+                outputs: outputs.iter().map(|s| s.to_string()).collect(),
+                values,
+                fft_len: l,
+            });
         }
-        Ok(TransientResult {
-            time_s: (0..n).map(|k| k as f64 / fs_hz).collect(),
-            outputs: outputs.iter().map(|s| s.to_string()).collect(),
-            values,
-            fft_len: l,
-        })
+        Ok(results)
     }
 
     /// Re H(0) of one input to each output, by an exact f = 0 solve.
@@ -779,19 +807,36 @@ impl Model {
         fs_hz: f64,
         opts: &TransientOptions,
     ) -> Result<ImageTransient> {
+        let mut r = self.image_responses(input, &[history], fs_hz, opts)?;
+        r.pop().ok_or_else(|| Error::invalid("history", "is empty"))
+    }
+
+    /// [`Model::image_response`] for several histories of one length (one FRF evaluation).
+    pub fn image_responses(
+        &self,
+        input: &str,
+        histories: &[&[f64]],
+        fs_hz: f64,
+        opts: &TransientOptions,
+    ) -> Result<Vec<ImageTransient>> {
         let optics = self
             .optics()
             .ok_or_else(|| Error::invalid("image response", "the model has no [optics] section"))?;
-        let r = self.transient(input, history, fs_hz, &["image_x", "image_y"], opts)?;
-        let metrics = r.image_metrics(optics, opts.radius_px)?;
-        Ok(ImageTransient {
-            image_x_arcsec: r.arcsec("image_x")?,
-            image_y_arcsec: r.arcsec("image_y")?,
-            time_s: r.time_s,
-            input_history: history.to_vec(),
-            plate_scale_arcsec_per_px: optics.plate_scale_arcsec_per_px(),
-            metrics,
-        })
+        let rs = self.transient_many(input, histories, fs_hz, &["image_x", "image_y"], opts)?;
+        rs.into_iter()
+            .zip(histories)
+            .map(|(r, history)| {
+                let metrics = r.image_metrics(optics, opts.radius_px)?;
+                Ok(ImageTransient {
+                    image_x_arcsec: r.arcsec("image_x")?,
+                    image_y_arcsec: r.arcsec("image_y")?,
+                    time_s: r.time_s,
+                    input_history: history.to_vec(),
+                    plate_scale_arcsec_per_px: optics.plate_scale_arcsec_per_px(),
+                    metrics,
+                })
+            })
+            .collect()
     }
 
     /// Image response to a gust on the model's `wind` input over `duration_s` at `fs_hz`
@@ -805,6 +850,19 @@ impl Model {
         duration_s: f64,
         opts: &TransientOptions,
     ) -> Result<ImageTransient> {
+        let mut r = self.gust_responses(std::slice::from_ref(gust), wind, fs_hz, duration_s, opts)?;
+        r.pop().ok_or_else(|| Error::invalid("gusts", "is empty"))
+    }
+
+    /// [`Model::gust_response`] for several gusts over one record (one FRF evaluation).
+    pub fn gust_responses(
+        &self,
+        gusts: &[Gust],
+        wind: &GustWind,
+        fs_hz: f64,
+        duration_s: f64,
+        opts: &TransientOptions,
+    ) -> Result<Vec<ImageTransient>> {
         let w =
             self.wind().ok_or_else(|| Error::invalid("gust response", "the model has no [wind] section"))?;
         require_positive("fs_hz", fs_hz)?;
@@ -817,9 +875,15 @@ impl Model {
                 limit: MAX_FFT_LEN,
             });
         }
-        let u = gust.velocity_history(wind.mean_speed_m_s, fs_hz, n_f as usize)?;
-        let f = wind.drag_fluctuation(&u, w.area_m2, w.drag_coefficient)?;
-        self.image_response("wind", &f, fs_hz, opts)
+        let forces = gusts
+            .iter()
+            .map(|g| {
+                let u = g.velocity_history(wind.mean_speed_m_s, fs_hz, n_f as usize)?;
+                wind.drag_fluctuation(&u, w.area_m2, w.drag_coefficient)
+            })
+            .collect::<Result<Vec<_>>>()?;
+        let refs: Vec<&[f64]> = forces.iter().map(|f| f.as_slice()).collect();
+        self.image_responses("wind", &refs, fs_hz, opts)
     }
 
     // -----------------------------------------------------------------------------------------

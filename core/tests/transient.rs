@@ -463,3 +463,84 @@ fn bad_inputs_give_named_errors() {
         Err(Error::InvalidGrid { .. })
     ));
 }
+
+#[test]
+fn gust_family_ring_down_matches_newmark_and_the_free_decay_envelope() {
+    // The tube of the test above with light damping: ζ = c/(2√(kJ)) = 10/(2·1000) = 0.005,
+    // f_n = √(k/J)/2π = 7.958 Hz. After a gust ends the tube swings freely, |θ| ≤ A e^(−ζωt)
+    // (Chopra, Dynamics of Structures, free vibration of a damped SDOF), so the image stays
+    // within R after ln(A/R)/(ζω), A the swing at the gust's end (within a period).
+    let text = r#"
+[[body]]
+name = "tube"
+mass_kg = 5
+cg_m = [0, 0, 1]
+inertia_kgm2 = [20, 20, 20]
+dofs = ["ry"]
+[[torsion_spring]]
+name = "axis"
+from = "ground"
+to = "tube"
+axis = [0, 1, 0]
+stiffness_nm_per_rad = 5.0e4
+damping_nms_per_rad = 10.0
+[wind]
+body = "tube"
+centre_of_pressure_m = [0, 0, 1.4]
+direction = [1, 0, 0]
+area_m2 = 0.1
+drag_coefficient = 1.0
+[optics]
+body = "tube"
+focal_length_mm = 2800
+pixel_um = 3.76
+altitude_deg = 0
+azimuth_deg = 90
+"#;
+    use stillsky::batch::gust::{GUST_START_S, GustPlan, gust_family_with};
+    use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+    let model = Model::from_toml_str(text, "tube").unwrap();
+    let wind = WindSpec::new(WindSpectrum::VonKarman, 5.0, 2.0, Turbulence::Intensity(0.2));
+    let plan = GustPlan::for_model(&model).unwrap();
+    let fn_hz = (5.0e4f64 / 20.0).sqrt() / (2.0 * PI);
+    assert!((plan.durations_s[0] - 0.5 / fn_hz).abs() < 1e-6 * plan.durations_s[0]);
+    let (family, traces) = gust_family_with(&model, &wind, &plan).unwrap();
+    let (zeta, w) = (0.005, 2.0 * PI * fn_hz);
+    let scale = traces[0].plate_scale_arcsec_per_px;
+    for (c, r) in family.cases.iter().zip(&traces) {
+        // Newmark on the same drag history at ten times the rate (period error (ωΔt)²/12 ≈ 5e-5).
+        let fs = 10.0 * plan.fs_hz;
+        let n = 10 * r.time_s.len();
+        let t_fine: Vec<f64> = (0..n).map(|k| k as f64 / fs).collect();
+        let u = stillsky::transient::Gust::one_minus_cosine_duration(c.amplitude_m_s, c.duration_s)
+            .starting_at(GUST_START_S)
+            .velocity_history(5.0, fs, n)
+            .unwrap();
+        let f = GustWind::new(5.0).drag_fluctuation(&u, 0.1, 1.0).unwrap();
+        let nm =
+            model.newmark("wind", &f, fs, &["image_x", "image_y"], GroundQuantity::Displacement).unwrap();
+        let y: Vec<f64> = nm.series("image_y").unwrap().iter().map(|v| v * ARCSEC_PER_RAD).collect();
+        let m = image_metrics(&t_fine, &vec![0.0; n], &y, scale, 0.5).unwrap();
+        assert!((m.peak_px / c.peak_px - 1.0).abs() < 0.01, "{} vs {}", m.peak_px, c.peak_px);
+        let ring_nm = m.settle_time_s.map(|t| (t - GUST_START_S - c.duration_s).max(0.0));
+        let (a, b) = (ring_nm.unwrap(), c.ringdown_s.unwrap());
+        assert!(
+            (a - b).abs() <= 2.0 / plan.fs_hz + 0.01 * b,
+            "duration {}: Newmark {a} vs {b}",
+            c.duration_s
+        );
+        // The envelope: the largest swing in the first period after the gust's end.
+        let end = GUST_START_S + c.duration_s;
+        let i0 = r.time_s.partition_point(|t| *t < end);
+        let i1 = r.time_s.partition_point(|t| *t < end + 1.0 / fn_hz);
+        let amp = r.image_y_arcsec[i0..i1].iter().fold(0.0f64, |m, v| m.max(v.abs())) / scale;
+        if amp > 0.5 {
+            let want = (amp / 0.5).ln() / (zeta * w);
+            assert!((b - want).abs() < 1.5 / fn_hz, "duration {}: {b} vs envelope {want}", c.duration_s);
+        } else {
+            assert!(b < 1.0 / fn_hz, "{b}");
+        }
+    }
+    // Long gusts lean the tube quasi-statically and leave little swing; the shortest kicks it.
+    assert!(family.cases[0].ringdown_s.unwrap() > family.cases[family.cases.len() - 1].ringdown_s.unwrap());
+}

@@ -74,6 +74,13 @@ class Modes:
     @property
     def dominant_dofs(self) -> list[str]:
         """For each mode, the DOF label with the largest kinetic-energy share."""
+    @property
+    def labels(self) -> list[str]:
+        """Each mode named in the mount's axes, e.g. ``"payload: altitude nod"``."""
+    @property
+    def energy(self) -> list[dict[str, object]]:
+        """Per mode: ``{"bodies": [(owner, kinetic share)], "connectors": [(name, strain
+        share)]}``, largest first; each list sums to 1 ("which part rings")."""
     def __len__(self) -> int: ...
 
 @final
@@ -289,6 +296,11 @@ class Model:
         """Sensor-plane response (arcsec) to a history of ``input`` (unit as in ``transient``),
         sampled at ``fs`` (Hz); needs ``[optics]``. Metrics use ``radius_px`` (pixels).
         GIL released."""
+    def gust_family(self, wind: Wind) -> dict[str, object]:
+        """The wind case's family of 1-cosine gusts (half the first period to 4 s): ``cases``
+        (each ``duration_s``, ``amplitude_m_s``, ``peak_px``, ``peak_after_start_s``,
+        ``ringdown_s`` from the gust's end until within 1/2 px, or None), ``worst_peak`` and
+        ``worst_ringdown`` (indices into ``cases``), ``fs_hz``, ``record_s``. GIL released."""
     def gust_response(
         self,
         gust: Gust,

@@ -3,6 +3,7 @@
 //! from [`build_report`].
 
 use super::ground::{GroundSource, GroundSpectrum};
+use super::gust::{GUST_START_S, GustCase, GustFamily, GustPlan, gust_family_responses, gust_family_with};
 use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
@@ -12,6 +13,7 @@ use crate::io::series::SeriesOptions;
 use crate::model::{GROUND_INPUTS, Model};
 use crate::response::Disturbances;
 use crate::spectrum::{CriterionCurve, Extrapolate, Quantity, ReferenceGround};
+use crate::transient::ImageTransient;
 use crate::units::ARCSEC_PER_RAD;
 use crate::wind::WindSpec;
 use serde::Serialize;
@@ -41,6 +43,9 @@ pub struct ReportOptions {
     /// Clear aperture (mm) and wavelength (nm) for the budget's diffraction line.
     pub aperture_mm: Option<f64>,
     pub wavelength_nm: Option<f64>,
+    /// Alternative rigs (label, generic-layer spec) whose gust response is shown beside the
+    /// rig's: e.g. without pads, or each pad of a catalogue ([`super::pad_alternatives`]).
+    pub alternatives: Vec<(String, ModelSpec)>,
 }
 
 impl ReportOptions {
@@ -63,6 +68,7 @@ impl ReportOptions {
             guide_loop: None,
             aperture_mm: None,
             wavelength_nm: None,
+            alternatives: Vec::new(),
         })
     }
 }
@@ -76,6 +82,15 @@ pub struct ModeRow {
     pub damping_ratio: f64,
     /// The DOF with the largest kinetic-energy share, e.g. `payload:rx`.
     pub dominant_dof: String,
+    /// The mode in the mount's own axes, e.g. `payload: altitude nod` ([`crate::modes::Modes::label`]).
+    pub label: String,
+    /// Share of the image mean square (radial) carried by this mode; None when the report's
+    /// image motion has no per-mode split.
+    pub image_share: Option<f64>,
+    /// Kinetic-energy shares per body and strain-energy shares per connector (largest first,
+    /// the first three each): which part moves and which part flexes.
+    pub moving: Vec<(String, f64)>,
+    pub flexing: Vec<(String, f64)>,
     /// Effective modal mass for ground x, y, z (kg).
     pub effective_mass_kg: [f64; 3],
 }
@@ -122,23 +137,137 @@ pub struct Report {
     /// third octave, 10^(1/20) − 10^(−1/20) = 0.2316 of the centre).
     pub criterion_accel_psd: Vec<Curve>,
     pub criteria: Vec<CriterionVerdict>,
-    /// Response to the wind case's design gust (with wind only; see [`super::GUST_START_S`]).
-    pub gust: Option<GustTrace>,
+    /// The wind case's gust family: worst peak and ring-down, for the rig and its alternatives.
+    pub gust: Option<GustReport>,
     pub notes: Vec<String>,
 }
 
-/// The image history under the design gust.
+/// The gust family's outcome (see [`super::gust`]) for the rig and its alternatives.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GustReport {
+    /// Time of each gust's start in the records (s).
+    pub start_s: f64,
+    /// The rig as given: every gust of its family.
+    pub family: GustFamily,
+    /// Worst peak and ring-down of the rig (first) and each alternative, each over its own family.
+    pub rigs: Vec<GustOutcome>,
+    /// The rig's worst-ring-down gust applied to the rig (first) and each alternative.
+    pub traces: Vec<GustTrace>,
+}
+
+/// Worst peak and ring-down of one rig over its gust family.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GustOutcome {
+    pub label: String,
+    pub worst_peak_px: f64,
+    pub worst_peak_duration_s: f64,
+    /// None: some gust leaves the image outside ½ px past the record.
+    pub worst_ringdown_s: Option<f64>,
+    pub worst_ringdown_duration_s: f64,
+    /// Why the family could not be run for this rig (then the numbers are NaN).
+    pub error: Option<String>,
+}
+
+/// The image history of one rig under one gust.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct GustTrace {
+    pub label: String,
+    pub duration_s: f64,
+    pub amplitude_m_s: f64,
     pub time_s: Vec<f64>,
     pub image_x_px: Vec<f64>,
     pub image_y_px: Vec<f64>,
-    pub amplitude_m_s: f64,
-    pub start_s: f64,
     pub peak_px: f64,
-    /// From the gust's start until the image stays within ½ px; None if it never does.
-    pub settle_s: Option<f64>,
+    /// From the end of the gust until the image stays within ½ px; None if it never does.
+    pub ringdown_s: Option<f64>,
 }
+
+impl GustOutcome {
+    fn of(label: &str, f: &GustFamily) -> GustOutcome {
+        let (p, r) = (&f.cases[f.worst_peak], &f.cases[f.worst_ringdown]);
+        GustOutcome {
+            label: label.into(),
+            worst_peak_px: p.peak_px,
+            worst_peak_duration_s: p.duration_s,
+            worst_ringdown_s: r.ringdown_s,
+            worst_ringdown_duration_s: r.duration_s,
+            error: None,
+        }
+    }
+    fn failed(label: &str, e: &Error) -> GustOutcome {
+        GustOutcome {
+            label: label.into(),
+            worst_peak_px: f64::NAN,
+            worst_peak_duration_s: f64::NAN,
+            worst_ringdown_s: None,
+            worst_ringdown_duration_s: f64::NAN,
+            error: Some(e.to_string()),
+        }
+    }
+}
+
+fn gust_trace(label: &str, case: &GustCase, r: &ImageTransient) -> GustTrace {
+    let px = |v: &[f64]| v.iter().map(|a| a / r.plate_scale_arcsec_per_px).collect();
+    GustTrace {
+        label: label.into(),
+        duration_s: case.duration_s,
+        amplitude_m_s: case.amplitude_m_s,
+        time_s: r.time_s.clone(),
+        image_x_px: px(&r.image_x_arcsec),
+        image_y_px: px(&r.image_y_arcsec),
+        peak_px: case.peak_px,
+        ringdown_s: case.ringdown_s,
+    }
+}
+
+/// The gust family of the rig and of each alternative (built with the report's optics).
+fn gust_report(
+    model: &Model,
+    wind: &WindSpec,
+    alternatives: &[(String, ModelSpec)],
+    o: &ReportOptions,
+) -> Result<GustReport> {
+    let (family, traces) = gust_family_responses(model, wind)?;
+    let worst = family.worst_ringdown;
+    let own = GUST_RIG_LABEL;
+    let mut rigs = vec![GustOutcome::of(own, &family)];
+    let mut plotted = vec![gust_trace(own, &family.cases[worst], &traces[worst])];
+    let plot_plan = GustPlan {
+        durations_s: vec![family.cases[worst].duration_s],
+        fs_hz: family.fs_hz,
+        record_s: family.record_s,
+    };
+    for (label, spec) in alternatives {
+        let run = || -> Result<(GustFamily, GustTrace)> {
+            let mut spec = spec.clone();
+            apply_optics_overrides(&mut spec, o)?;
+            let m = Model::from_spec(&spec)?;
+            let (f, _) = gust_family_responses(&m, wind)?;
+            let (g, t) = gust_family_with(&m, wind, &plot_plan)?;
+            Ok((f, gust_trace(label, &g.cases[0], &t[0])))
+        };
+        match run() {
+            Ok((f, t)) => {
+                rigs.push(GustOutcome::of(label, &f));
+                plotted.push(t);
+            }
+            Err(e) => rigs.push(GustOutcome::failed(label, &e)),
+        }
+    }
+    // Keep the part of the records that shows something: to 1 s after the longest ring-down.
+    let ring = plotted.iter().filter_map(|t| t.ringdown_s).fold(0.0, f64::max);
+    let end = GUST_START_S + plot_plan.durations_s[0] + (ring + 1.0).max(2.0);
+    for t in &mut plotted {
+        let n = t.time_s.partition_point(|x| *x <= end);
+        t.time_s.truncate(n);
+        t.image_x_px.truncate(n);
+        t.image_y_px.truncate(n);
+    }
+    Ok(GustReport { start_s: GUST_START_S, family, rigs, traces: plotted })
+}
+
+/// Label of the rig as given in the gust table and plot.
+pub const GUST_RIG_LABEL: &str = "as given";
 
 impl Report {
     /// The mode with the largest share of the image mean square, with its frequency.
@@ -241,14 +370,26 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
     let modes = model.modes()?;
     let dom = modes.dominant_dofs(&model);
     let mode_rows = (0..modes.frequency_hz.len())
-        .map(|j| ModeRow {
-            index: j + 1,
-            frequency_hz: modes.frequency_hz[j],
-            damping_ratio: modes.damping_ratio[j],
-            dominant_dof: dom[j].clone(),
-            effective_mass_kg: std::array::from_fn(|d| modes.effective_mass_kg[[j, d]]),
+        .map(|j| {
+            let e = modes.energy(&model, j)?;
+            let image_share = image
+                .mode_share
+                .get(j)
+                .filter(|m| (m.frequency_hz - modes.frequency_hz[j]).abs() <= 1e-6 * modes.frequency_hz[j])
+                .map(|m| m.share);
+            Ok(ModeRow {
+                index: j + 1,
+                frequency_hz: modes.frequency_hz[j],
+                damping_ratio: modes.damping_ratio[j],
+                dominant_dof: dom[j].clone(),
+                label: modes.label(&model, j)?,
+                image_share,
+                moving: e.bodies.into_iter().take(3).collect(),
+                flexing: e.connectors.into_iter().take(3).collect(),
+                effective_mass_kg: std::array::from_fn(|d| modes.effective_mass_kg[[j, d]]),
+            })
         })
-        .collect();
+        .collect::<Result<Vec<_>>>()?;
 
     // Transmissibility and image per ground motion.
     let axes = ["x", "y", "z"];
@@ -342,21 +483,10 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         })
         .collect();
     let gust = match &o.wind {
-        Some(w) => match super::gust::design_gust_response(&model, w) {
-            Ok(g) => {
-                let px = |v: &[f64]| v.iter().map(|a| a / g.plate_scale_arcsec_per_px).collect();
-                Some(GustTrace {
-                    image_x_px: px(&g.image_x_arcsec),
-                    image_y_px: px(&g.image_y_arcsec),
-                    time_s: g.time_s.clone(),
-                    amplitude_m_s: 3.0 * w.sigma_u_m_s()?,
-                    start_s: super::GUST_START_S,
-                    peak_px: g.metrics.peak_px,
-                    settle_s: g.metrics.settle_time_s.map(|t| (t - super::GUST_START_S).max(0.0)),
-                })
-            }
+        Some(w) => match gust_report(&model, w, &o.alternatives, o) {
+            Ok(g) => Some(g),
             Err(e) => {
-                notes.push(format!("design gust not computed: {e}"));
+                notes.push(format!("gust family not computed: {e}"));
                 None
             }
         },

@@ -27,7 +27,8 @@
 
 use super::catalogue::{self, Catalogue, DEFAULT_PAD_PREFIX, Isolator, PadDirection, PadSite};
 use super::ground::{GroundSource, GroundSpectrum};
-use super::gust::design_gust;
+use super::gust::gust_family;
+use super::ranking::{SweepSummary, Visibility, summarize};
 use super::sweep_row::{SWEEP_COLUMNS, SweepRow, read_sweep_csv};
 use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
@@ -117,6 +118,8 @@ pub struct SweepConfig {
     /// Threads of the sweep's own rayon pool; None: the global pool (all cores). The rows do
     /// not depend on it.
     pub threads: Option<usize>,
+    /// When a difference from no pad counts as visible (the summary's verdicts only).
+    pub visibility: Visibility,
 }
 
 impl SweepConfig {
@@ -128,6 +131,7 @@ impl SweepConfig {
             ground_scale: [1.0; 3],
             series: SeriesOptions::default(),
             threads: None,
+            visibility: Visibility::default(),
         })
     }
     /// Replace the grid.
@@ -247,6 +251,35 @@ impl PadMechanism {
             PadMechanism::Generic { spec, .. } => spec.wind.is_some(),
         }
     }
+}
+
+/// Alternative rigs for the report's gust comparison: without pads when the model has them
+/// (rig `[pads]`, or generic springs named `prefix*`), and each pad of `catalogue` (its "none"
+/// entry only when the model has pads). Labels are the isolator names ("none" reads "without
+/// pads").
+pub fn pad_alternatives(
+    file: &ModelFile,
+    catalogue: Option<&Catalogue>,
+    prefix: &str,
+) -> Result<Vec<(String, ModelSpec)>> {
+    let has_pads = match &file.rig.tripod {
+        Some(_) => file.rig.pads.is_some(),
+        None => file.generic.springs.iter().any(|s| s.name.starts_with(prefix)),
+    };
+    if !has_pads && catalogue.is_none() {
+        return Ok(Vec::new());
+    }
+    let mech = PadMechanism::for_file(file, prefix)?;
+    let mut out = Vec::new();
+    if has_pads {
+        out.push(("without pads".to_string(), mech.spec_with(&Isolator::none())?));
+    }
+    for iso in catalogue.map(|c| c.isolators.as_slice()).unwrap_or_default() {
+        if !iso.is_none() {
+            out.push((iso.name.clone(), mech.spec_with(iso)?));
+        }
+    }
+    Ok(out)
 }
 
 /// A built spec: its model (or why it failed), first mode and pad load.
@@ -466,7 +499,7 @@ impl<'a> PreparedSweep<'a> {
             .filter_map(|(si, wi)| {
                 let m = built[si].model.as_ref().ok()?;
                 let w = winds[wi].wind.as_ref()?;
-                design_gust(m, w).ok().map(|g| ((si, wi), g))
+                gust_family(m, w).ok().map(|g| ((si, wi), (g.worst_peak_px(), g.worst_ringdown_s())))
             })
             .collect();
         Ok(PreparedSweep {
@@ -529,7 +562,7 @@ impl<'a> PreparedSweep<'a> {
                         .filter(|_| b.pad_load_n.is_finite())
                         .map(|r| b.pad_load_n > r),
                     gust_peak_px: gust.map_or(f64::NAN, |g| g.0),
-                    gust_settle_s: gust.map_or(f64::NAN, |g| g.1),
+                    gust_ringdown_s: gust.map_or(f64::NAN, |g| g.1),
                 }
             }
         }
@@ -636,96 +669,9 @@ pub fn run_sweep(
         }
         let path = writer.finish()?;
         let rows = read_sweep_csv(&path)?;
-        let summary = summarize(&rows);
+        let summary = summarize(&rows, &cfg.visibility);
         Ok(SweepOutcome { path, computed: todo.len(), kept, rows, summary })
     })
-}
-
-/// One isolator's standing in a summary table.
-#[derive(Debug, Clone, PartialEq)]
-pub struct RankEntry {
-    pub spec: String,
-    /// Mean of `ratio_to_none` over the cases.
-    pub mean_ratio: f64,
-    pub mean_rms_px: f64,
-    pub mean_p_outside_half_px: f64,
-    pub cases: usize,
-    /// Cases with ratio > 1.
-    pub cases_worse: usize,
-    /// Mean ratio > 1.
-    pub worse_than_none: bool,
-    pub overloaded: bool,
-}
-
-/// A ranked table (best first: smallest mean ratio).
-#[derive(Debug, Clone, PartialEq)]
-pub struct RankTable {
-    /// A spectrum label, or "all spectra".
-    pub scope: String,
-    pub entries: Vec<RankEntry>,
-}
-
-/// Ranked summary per spectrum and overall.
-#[derive(Debug, Clone, PartialEq)]
-pub struct SweepSummary {
-    pub per_spectrum: Vec<RankTable>,
-    pub overall: RankTable,
-    /// Error rows (key and message).
-    pub failures: Vec<(String, String)>,
-}
-
-fn rank(scope: &str, rows: &[&SweepRow]) -> RankTable {
-    let mut specs: Vec<String> = Vec::new();
-    for r in rows {
-        if !specs.contains(&r.spec) {
-            specs.push(r.spec.clone());
-        }
-    }
-    let mut entries: Vec<RankEntry> = specs
-        .iter()
-        .map(|s| {
-            let mine: Vec<&&SweepRow> =
-                rows.iter().filter(|r| &r.spec == s && r.ratio_to_none.is_finite()).collect();
-            let n = mine.len().max(1) as f64;
-            let mean_ratio = mine.iter().map(|r| r.ratio_to_none).sum::<f64>() / n;
-            RankEntry {
-                spec: s.clone(),
-                mean_ratio,
-                mean_rms_px: mine.iter().map(|r| r.rms_px).sum::<f64>() / n,
-                mean_p_outside_half_px: mine.iter().map(|r| r.p_outside_half_px).sum::<f64>() / n,
-                cases: mine.len(),
-                cases_worse: mine.iter().filter(|r| r.worse_than_none).count(),
-                worse_than_none: mean_ratio > 1.0,
-                overloaded: mine.iter().any(|r| r.overloaded == Some(true)),
-            }
-        })
-        .filter(|e| e.cases > 0)
-        .collect();
-    entries.sort_by(|a, b| a.mean_ratio.total_cmp(&b.mean_ratio).then_with(|| a.spec.cmp(&b.spec)));
-    RankTable { scope: scope.into(), entries }
-}
-
-/// Rank the isolators of a sweep's rows per spectrum (mean ratio over wind cases) and overall.
-pub fn summarize(rows: &[SweepRow]) -> SweepSummary {
-    let good: Vec<&SweepRow> = rows.iter().filter(|r| !r.is_error()).collect();
-    let mut spectra: Vec<String> = Vec::new();
-    for r in &good {
-        if !spectra.contains(&r.spectrum) {
-            spectra.push(r.spectrum.clone());
-        }
-    }
-    let per_spectrum = spectra
-        .iter()
-        .map(|s| {
-            let mine: Vec<&SweepRow> = good.iter().copied().filter(|r| &r.spectrum == s).collect();
-            rank(s, &mine)
-        })
-        .collect();
-    SweepSummary {
-        per_spectrum,
-        overall: rank("all spectra", &good),
-        failures: rows.iter().filter_map(|r| r.error.as_ref().map(|e| (r.key.clone(), e.clone()))).collect(),
-    }
 }
 
 #[cfg(test)]
@@ -809,9 +755,16 @@ mod tests {
         assert!(row("soft-elastomer").rms_arcsec > row("none").rms_arcsec);
         assert!(row("soft-elastomer").worse_than_none);
         assert!(row("soft-elastomer").first_mode_hz < row("none").first_mode_hz);
-        // The overall ranking marks it.
-        let e = r.summary.overall.entries.iter().find(|e| e.spec == "soft-elastomer").unwrap();
-        assert!(e.worse_than_none);
+        // This flat PSD moves the image by less than 0.1 px with or without the pad: the
+        // ranking reads "no visible difference"; with a finer visibility level it reads worse.
+        let soft = |s: &SweepSummary| {
+            s.per_wind[0].entries.iter().find(|e| e.spec == "soft-elastomer").unwrap().clone()
+        };
+        let e = soft(&r.summary);
+        assert!(e.mean_rms_px < 0.1, "{}", e.mean_rms_px);
+        assert_eq!(e.verdict, crate::batch::Verdict::NoVisibleDifference);
+        let fine = summarize(&r.rows, &Visibility { rms_px: 0.01, p_outside: 0.01 });
+        assert_eq!(soft(&fine).verdict, crate::batch::Verdict::Worse);
     }
 
     #[test]

@@ -41,7 +41,7 @@ pub const SWEEP_ROW: [(&str, ColumnKind); 17] = [
     ("pad_load_n", ColumnKind::Number),
     ("overloaded", ColumnKind::Flag),
     ("gust_peak_px", ColumnKind::Number),
-    ("gust_settle_s", ColumnKind::Number),
+    ("gust_ringdown_s", ColumnKind::Number),
     ("error", ColumnKind::Message),
 ];
 
@@ -75,12 +75,13 @@ pub struct SweepRow {
     pub pad_load_n: f64,
     /// None when the isolator has no rated load (or for the baseline).
     pub overloaded: Option<bool>,
-    /// Peak image excursion (px) under the wind case's design gust ([`design_gust`]); NaN when
-    /// calm.
+    /// Worst peak image excursion (px) over the wind case's gust family ([`super::gust::gust_family`]); NaN
+    /// when calm or when the family could not be run.
     pub gust_peak_px: f64,
-    /// Time from the gust's start until the image stays within ½ px (s); NaN when calm or when
-    /// the record ends outside.
-    pub gust_settle_s: f64,
+    /// Longest ring-down over the gust family: from the end of a gust until the image stays
+    /// within ½ px (s); infinite if some gust leaves the image ringing past the record; NaN when
+    /// calm or when the family could not be run.
+    pub gust_ringdown_s: f64,
 }
 
 /// Six significant digits, plain for ordinary magnitudes, exponent form otherwise.
@@ -154,7 +155,7 @@ impl SweepRow {
             pad_load_n: f64::NAN,
             overloaded: None,
             gust_peak_px: f64::NAN,
-            gust_settle_s: f64::NAN,
+            gust_ringdown_s: f64::NAN,
         }
     }
 
@@ -183,7 +184,7 @@ impl SweepRow {
             Number(self.pad_load_n),
             Flag(self.overloaded),
             Number(self.gust_peak_px),
-            Number(self.gust_settle_s),
+            Number(self.gust_ringdown_s),
             Message(self.error.clone()),
         ]
     }
@@ -231,7 +232,7 @@ impl SweepRow {
             pad_load_n: num[6],
             overloaded: flag[1],
             gust_peak_px: num[7],
-            gust_settle_s: num[8],
+            gust_ringdown_s: num[8],
         })
     }
 
@@ -309,7 +310,7 @@ mod tests {
         r.error = None;
         (r.rms_arcsec, r.rms_px, r.p_outside_half_px, r.first_mode_hz, r.first_mode_zeta) =
             (0.125, 0.5, 0.01, 9.5, 0.04);
-        (r.ratio_to_none, r.pad_load_n, r.gust_peak_px, r.gust_settle_s) = (1.5, 30.0, 0.7, 1.25);
+        (r.ratio_to_none, r.pad_load_n, r.gust_peak_px, r.gust_ringdown_s) = (1.5, 30.0, 0.7, 1.25);
         r.worse_than_none = true;
         r.overloaded = Some(false);
         assert_eq!(SweepRow::from_values(r.values()).unwrap(), r);
