@@ -1,15 +1,15 @@
 #!/usr/bin/env python3
-"""Load the demo's HTML report in a real browser (headless Chromium) and check it.
+"""Load the demo's HTML report in a real browser (headless, the distribution's `chromium`
+package) and check it.
 
-Steps: find Chromium, installing the distribution's package when missing (as root, with
-apt-get); write the demo report with the stillsky binary; check that the file is well-formed
+Steps: find the browser, installing the package when missing (as root, with apt-get); write the demo report with the stillsky binary; check that the file is well-formed
 (a strict XML parse and an HTML tag-balance pass) and names nothing outside itself; load it
 headless through a recording proxy and check that the browser asked the network for nothing (a
 probe page with one external image first proves the proxy sees requests); check the rendered
 text (verdict, budget, image-motion, modes, checks and input tables, one <svg> per plot) and
 save a screenshot.
 
-Without Chromium the script fails, unless STILLSKY_BROWSER_OPTIONAL=1, when it says so and
+Without the browser the script fails, unless STILLSKY_BROWSER_OPTIONAL=1, when it says so and
 skips. Standard library only.
 """
 
@@ -49,7 +49,7 @@ def find_chromium() -> str | None:
 
 
 def ensure_chromium() -> str | None:
-    """The Chromium binary, installed from the distribution's packages when missing."""
+    """The browser binary, installed from the distribution's packages when missing."""
     found = find_chromium()
     if found:
         return found
@@ -250,7 +250,7 @@ def external_references(doc: str) -> list[str]:
 
 def png_facts(path: Path) -> tuple[int, int, float, int]:
     """Width, height, share of pixels that are not white, and distinct colours in a sample.
-    Decodes 8-bit non-interlaced RGB/RGBA PNGs (what Chromium writes)."""
+    Decodes 8-bit non-interlaced RGB/RGBA PNGs (what the browser writes)."""
     data = path.read_bytes()
     if data[:8] != b"\x89PNG\r\n\x1a\n":
         fail(f"{path} is not a PNG")
@@ -307,11 +307,11 @@ def main() -> None:
     chromium = ensure_chromium()
     if chromium is None:
         if os.environ.get("STILLSKY_BROWSER_OPTIONAL") == "1":
-            print("browser check SKIPPED: Chromium is not installed and could not be installed "
+            print("browser check SKIPPED: the chromium package is not installed and could not be installed "
                   "(STILLSKY_BROWSER_OPTIONAL=1 allows this)")
             return
-        fail("Chromium is not installed and could not be installed (run as root with apt-get, install "
-             "the 'chromium' package, or set STILLSKY_BROWSER_OPTIONAL=1 to skip)")
+        fail("the chromium package is not installed and could not be installed (run as root with apt-get, "
+             "install it yourself, or set STILLSKY_BROWSER_OPTIONAL=1 to skip)")
     version = subprocess.run([chromium, "--version"], capture_output=True, text=True).stdout.strip()
     print(f"browser check: using {chromium} ({version})")
 
