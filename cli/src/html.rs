@@ -137,6 +137,10 @@ pub fn list(class: &str, items: &[String]) -> String {
 
 /// A table of plain-text cells; cells that read as numbers are right-aligned.
 pub fn table(id: &str, head: &[&str], rows: &[Vec<String>]) -> String {
+    table_aligned(id, head, rows, true)
+}
+
+fn table_aligned(id: &str, head: &[&str], rows: &[Vec<String>], align_numbers: bool) -> String {
     let mut o = format!("<table id=\"{}\">\n<thead><tr>", escape(id));
     for h in head {
         let _ = write!(o, "<th>{}</th>", escape(h));
@@ -145,7 +149,7 @@ pub fn table(id: &str, head: &[&str], rows: &[Vec<String>]) -> String {
     for r in rows {
         o.push_str("<tr>");
         for c in r {
-            let numeric = c.trim().parse::<f64>().is_ok();
+            let numeric = align_numbers && c.trim().parse::<f64>().is_ok();
             let class = if numeric { " class=\"num\"" } else { "" };
             let _ = write!(o, "<td{class}>{}</td>", escape(c));
         }
@@ -155,10 +159,10 @@ pub fn table(id: &str, head: &[&str], rows: &[Vec<String>]) -> String {
     o
 }
 
-/// Two-column table of names and values.
+/// Two-column table of names and values (all left-aligned: the values mix numbers and text).
 pub fn pairs(id: &str, head: [&str; 2], rows: &[(String, String)]) -> String {
     let rows: Vec<Vec<String>> = rows.iter().map(|(a, b)| vec![a.clone(), b.clone()]).collect();
-    table(id, &head, &rows)
+    table_aligned(id, &head, &rows, false)
 }
 
 /// A plot as a figure with its caption. The SVG text comes from our plot code, which escapes

@@ -6,7 +6,7 @@ use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use std::path::{Path, PathBuf};
-use stillsky::batch::{Curve, RankTable, Report};
+use stillsky::batch::{Curve, NO_PAD, RankTable, Report};
 
 type PlotResult<T> = Result<T, Box<dyn std::error::Error>>;
 
@@ -538,7 +538,8 @@ fn budget_chart(r: &Report) -> PlotResult<String> {
 }
 
 /// The isolator ranking of a sweep: one bar per spec (mean ratio of the image RMS to no pads),
-/// filled when better than no pads and outlined when worse, with the value written beside it.
+/// filled when better than no pads, outlined when worse, grey for no pads itself, with the value
+/// and the words written beside it.
 pub fn ranking_svg(t: &RankTable) -> PlotResult<Plot> {
     let n = t.entries.len();
     if n == 0 {
@@ -555,7 +556,7 @@ pub fn ranking_svg(t: &RankTable) -> PlotResult<Plot> {
             .margin(16)
             .x_label_area_size(64)
             .y_label_area_size(10)
-            .build_cartesian_2d(0.0..vmax * 1.6, 0.0..n as f64)?;
+            .build_cartesian_2d(0.0..vmax * 1.6, 0.0..n as f64 + 0.6)?;
         c.configure_mesh()
             .disable_y_mesh()
             .y_labels(0)
@@ -566,13 +567,26 @@ pub fn ranking_svg(t: &RankTable) -> PlotResult<Plot> {
             .draw()?;
         let better = COLOURS[2].filled();
         let worse = COLOURS[1].stroke_width(2);
+        let baseline = RGBColor(160, 160, 160).filled();
         c.draw_series(t.entries.iter().enumerate().map(|(i, e)| {
             let top = (n - i) as f64 - 0.15;
-            let style = if e.mean_ratio > 1.0 { worse } else { better };
+            let style = if e.spec == NO_PAD {
+                baseline
+            } else if e.mean_ratio > 1.0 {
+                worse
+            } else {
+                better
+            };
             Rectangle::new([(0.0, top), (e.mean_ratio.max(0.0), top - 0.7)], style)
         }))?;
         c.draw_series(t.entries.iter().enumerate().map(|(i, e)| {
-            let verdict = if e.mean_ratio > 1.0 { "worse than no pads" } else { "better" };
+            let verdict = if e.spec == NO_PAD {
+                "baseline"
+            } else if e.mean_ratio > 1.0 {
+                "worse than no pads"
+            } else {
+                "better"
+            };
             Text::new(
                 format!("{}. {}: {:.3} ({verdict})", i + 1, e.spec, e.mean_ratio),
                 (e.mean_ratio.max(0.0) + 0.02 * vmax, (n - i) as f64 - 0.5),
@@ -580,10 +594,10 @@ pub fn ranking_svg(t: &RankTable) -> PlotResult<Plot> {
             )
         }))?;
         let one = ShapeStyle { color: BLACK.to_rgba(), filled: false, stroke_width: 1 };
-        c.draw_series(DashedLineSeries::new(vec![(1.0, 0.0), (1.0, n as f64)], 14, 5, one))?;
+        c.draw_series(DashedLineSeries::new(vec![(1.0, 0.0), (1.0, n as f64 + 0.6)], 14, 5, one))?;
         c.draw_series(std::iter::once(Text::new(
-            "no pads = 1",
-            (1.0, n as f64),
+            " no pads = 1",
+            (1.0, n as f64 + 0.55),
             TextStyle::from((FONT, LEGEND_PT).into_font()).pos(Pos::new(HPos::Left, VPos::Top)),
         )))?;
         root.present()?;
