@@ -601,7 +601,8 @@ pub fn sweep_page(c: &SweepContent) -> String {
     page.finish()
 }
 
-fn grid_text(hz: &[f64]) -> String {
+/// A frequency grid in words: number of points and range.
+pub fn grid_text(hz: &[f64]) -> String {
     match (hz.first(), hz.last()) {
         (Some(a), Some(b)) => format!("{} points, {a} to {b} Hz (log-spaced)", hz.len()),
         _ => "empty".into(),

@@ -506,11 +506,6 @@ fn sweep_failures(outcome: &batch::SweepOutcome) -> CliResult {
 
 /// The inputs and defaults of a sweep run, for the page's last table.
 fn sweep_inputs(s: &SweepRun) -> Vec<(String, String)> {
-    let hz = s.cfg.grid.hz();
-    let grid = match (hz.first(), hz.last()) {
-        (Some(a), Some(b)) => format!("{} points, {a} to {b} Hz (log-spaced)", hz.len()),
-        _ => "empty".into(),
-    };
     vec![
         ("program".into(), format!("stillsky {}", env!("CARGO_PKG_VERSION"))),
         ("model file".into(), s.model.display().to_string()),
@@ -522,7 +517,7 @@ fn sweep_inputs(s: &SweepRun) -> Vec<(String, String)> {
         ),
         ("output CSV".into(), s.out.display().to_string()),
         ("resume".into(), s.resume.to_string()),
-        ("frequency grid".into(), grid),
+        ("frequency grid".into(), html::grid_text(s.cfg.grid.hz())),
         ("ground scale x, y, z".into(), format!("{:?}", s.cfg.ground_scale)),
         ("pad prefix (generic models)".into(), s.cfg.pad_prefix.clone()),
         ("recording options".into(), format!("{:?}", s.cfg.series)),
