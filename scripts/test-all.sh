@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Runs every test of the project from a fresh clone: Rust (fmt, clippy, unit, reference, C ABI),
 # Python (builds the wheel into a private venv, then pytest against numpy/scipy/ObsPy/Dask and the
-# notebook), and compiles the benches. Needs Rust and Python 3; installs the rest.
+# notebook), loads the demo's HTML report in a headless browser (tests/browser), and compiles the
+# benches. Needs Rust and Python 3; installs the rest (the chromium package with apt-get when run as root).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 root=$(pwd)
@@ -20,6 +21,11 @@ CARGO_TARGET_DIR="$root/target" "$venv/bin/python" -m pip install --quiet --forc
 # The Python tests that compare with the command line run this one binary.
 cargo build --release --locked -p stillsky-cli
 STILLSKY_BIN="$root/target/release/stillsky" "$venv/bin/python" -m pytest -q "$root/bindings-py/tests"
+
+echo "== Browser: the demo's HTML report in a headless browser"
+# Installs the distribution's chromium package when missing (as root); fails without it unless
+# STILLSKY_BROWSER_OPTIONAL=1.
+"$venv/bin/python" "$root/tests/browser/check_report.py" --bin "$root/target/release/stillsky"
 
 echo "== Benches compile"
 cargo bench --workspace --no-run --locked

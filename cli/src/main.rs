@@ -1,14 +1,17 @@
 //! `stillsky`: command-line front end. Parses arguments, calls the core library, prints and
 //! plots; all computation lives in the `stillsky` crate.
 
+mod html;
 mod plots;
 mod print;
+mod verdict;
 
 use clap::{Args, Parser, Subcommand};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig, SweepInputs, WindCase};
+use stillsky::checks::{CheckReport, StaticWind};
 use stillsky::guider::GuideLoop;
 use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
 use stillsky::schema::ModelFile;
@@ -34,7 +37,7 @@ enum Cmd {
     },
     /// Run report and sweep on the bundled demo scenario (docs/examples).
     Demo {
-        /// Output folder for plots, JSON and CSV.
+        /// Output folder for plots, JSON, CSV and report.html.
         #[arg(long, default_value = "out/demo")]
         out: PathBuf,
     },
@@ -144,6 +147,9 @@ struct ReportArgs {
     /// Write the full result as JSON.
     #[arg(long)]
     json: Option<PathBuf>,
+    /// Write one self-contained HTML page (verdict, tables, plots, checks, inputs).
+    #[arg(long)]
+    html: Option<PathBuf>,
 }
 
 #[derive(Args)]
@@ -163,6 +169,9 @@ struct SweepArgs {
     /// Output CSV.
     #[arg(long)]
     out: PathBuf,
+    /// Write one self-contained HTML page (verdict, rankings, plot, inputs).
+    #[arg(long)]
+    html: Option<PathBuf>,
     /// Continue an interrupted run, keeping its complete rows.
     #[arg(long)]
     resume: bool,
@@ -339,13 +348,20 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     Ok(o)
 }
 
+/// What a report run computed, for the HTML page.
+struct ReportRun {
+    report: batch::Report,
+    title: Option<String>,
+    checks: Option<(StaticWind, CheckReport)>,
+}
+
 fn run_report(
     model: &Path,
     o: &ReportOptions,
     catalogue: Option<&Path>,
     plots: Option<&Path>,
     json: Option<&Path>,
-) -> CliResult {
+) -> Result<ReportRun, Failure> {
     let file = ModelFile::read(model)?;
     let spec = file.expanded()?;
     let mut o = o.clone();
@@ -355,9 +371,12 @@ fn run_report(
     }
     let r = batch::build_report(&spec, &o)?;
     print!("{}", print::report_text(&model.display().to_string(), &r));
+    let mut checks = None;
     if file.rig.tripod.is_some() || file.rig.pier.is_some() {
-        let c = stillsky::checks::rig_checks(&file, &stillsky::checks::StaticWind::default())?;
-        print!("{}", print::checks_text(&stillsky::checks::StaticWind::default(), &c));
+        let wind = StaticWind::default();
+        let c = stillsky::checks::rig_checks(&file, &wind)?;
+        print!("{}", print::checks_text(&wind, &c));
+        checks = Some((wind, c));
     }
     if let Some(dir) = plots {
         std::fs::create_dir_all(dir).map_err(|e| Failure::io(&dir.display().to_string(), e))?;
@@ -371,12 +390,55 @@ fn run_report(
         stillsky::io::atomic::write_atomic(j, text.as_bytes())?;
         println!("json: {}", j.display());
     }
+    Ok(ReportRun { report: r, title: file.title.clone(), checks })
+}
+
+/// Write the report page (with a sweep run alongside, as in the demo).
+fn write_report_html(
+    path: &Path,
+    model: &Path,
+    o: &ReportOptions,
+    run: &ReportRun,
+    sweep: Option<&batch::SweepOutcome>,
+) -> CliResult {
+    let plot_err = |e| Failure::io("plots", e);
+    let plots = plots::report_svgs(&run.report).map_err(plot_err)?;
+    let sweep_plots = match sweep {
+        Some(s) => sweep_svgs(s)?,
+        None => Vec::new(),
+    };
+    let model_path = model.display().to_string();
+    let inputs = html::report_inputs(&model_path, o, &run.report, run.checks.as_ref().map(|(w, _)| w));
+    let page = html::report_page(&html::ReportContent {
+        model_path: &model_path,
+        model_title: run.title.as_deref(),
+        report: &run.report,
+        plots: &plots,
+        checks: run.checks.as_ref().map(|(w, c)| (w, c)),
+        inputs: &inputs,
+        sweep: sweep.map(|s| (s, sweep_plots.as_slice())),
+    });
+    stillsky::io::atomic::write_atomic(path, page.as_bytes())?;
+    println!("html: {}", path.display());
     Ok(())
+}
+
+fn sweep_svgs(s: &batch::SweepOutcome) -> Result<Vec<plots::Plot>, Failure> {
+    s.summary
+        .per_wind
+        .iter()
+        .filter(|t| !t.entries.is_empty())
+        .map(|t| plots::ranking_svg(t).map_err(|e| Failure::io("plots", e)))
+        .collect()
 }
 
 fn report(a: &ReportArgs) -> CliResult {
     let o = report_options(a)?;
-    run_report(&a.model, &o, a.catalogue.as_deref(), a.plots.as_deref(), a.json.as_deref())
+    let run = run_report(&a.model, &o, a.catalogue.as_deref(), a.plots.as_deref(), a.json.as_deref())?;
+    if let Some(h) = &a.html {
+        write_report_html(h, &a.model, &o, &run, None)?;
+    }
+    Ok(())
 }
 
 /// Expand folders into their files (sorted), keep other arguments.
@@ -412,7 +474,7 @@ struct SweepRun<'a> {
     cfg: SweepConfig,
 }
 
-fn run_sweep(s: &SweepRun) -> CliResult {
+fn run_sweep(s: &SweepRun) -> Result<batch::SweepOutcome, Failure> {
     let file = ModelFile::read(s.model)?;
     let cat = Catalogue::read(s.catalogue)?;
     let inputs = SweepInputs { model: &file, catalogue: &cat, grounds: &s.grounds, winds: &s.winds };
@@ -434,6 +496,11 @@ fn run_sweep(s: &SweepRun) -> CliResult {
     let outcome = batch::run_sweep(&inputs, &s.cfg, s.out, s.resume, &progress)?;
     bar.finish_and_clear();
     print!("{}", print::sweep_text(&outcome));
+    Ok(outcome)
+}
+
+/// Exit code 1 when rows failed (after everything was written).
+fn sweep_failures(outcome: &batch::SweepOutcome) -> CliResult {
     let failures = outcome.failures();
     if !failures.is_empty() {
         return Err(Failure {
@@ -448,6 +515,26 @@ fn run_sweep(s: &SweepRun) -> CliResult {
     Ok(())
 }
 
+/// The inputs and defaults of a sweep run, for the page's last table.
+fn sweep_inputs(s: &SweepRun) -> Vec<(String, String)> {
+    vec![
+        ("program".into(), format!("stillsky {}", env!("CARGO_PKG_VERSION"))),
+        ("model file".into(), s.model.display().to_string()),
+        ("isolator catalogue".into(), s.catalogue.display().to_string()),
+        ("ground spectra".into(), s.grounds.iter().map(|g| format!("{g:?}")).collect::<Vec<_>>().join("; ")),
+        (
+            "wind cases".into(),
+            s.winds.iter().map(|w| format!("{}: {:?}", w.label, w.wind)).collect::<Vec<_>>().join("; "),
+        ),
+        ("output CSV".into(), s.out.display().to_string()),
+        ("resume".into(), s.resume.to_string()),
+        ("frequency grid".into(), html::grid_text(s.cfg.grid.hz())),
+        ("ground scale x, y, z".into(), format!("{:?}", s.cfg.ground_scale)),
+        ("pad prefix (generic models)".into(), s.cfg.pad_prefix.clone()),
+        ("recording options".into(), format!("{:?}", s.cfg.series)),
+    ]
+}
+
 fn sweep(a: &SweepArgs) -> CliResult {
     let mut cfg = SweepConfig::new()?.with_pad_prefix(a.pad_prefix.clone());
     if let Some(s) = a.ground_scale {
@@ -455,7 +542,7 @@ fn sweep(a: &SweepArgs) -> CliResult {
     }
     cfg.series = series_options(a.fs, a.sensitivity);
     let winds = a.wind.iter().map(|w| WindCase::parse(w)).collect::<Result<Vec<_>, _>>()?;
-    run_sweep(&SweepRun {
+    let run = SweepRun {
         model: &a.model,
         catalogue: &a.catalogue,
         grounds: ground_sources(&a.ground)?,
@@ -463,7 +550,17 @@ fn sweep(a: &SweepArgs) -> CliResult {
         out: &a.out,
         resume: a.resume,
         cfg,
-    })
+    };
+    let outcome = run_sweep(&run)?;
+    if let Some(h) = &a.html {
+        let plots = sweep_svgs(&outcome)?;
+        let inputs = sweep_inputs(&run);
+        let page =
+            html::sweep_page(&html::SweepContent { outcome: &outcome, plots: &plots, inputs: &inputs });
+        stillsky::io::atomic::write_atomic(h, page.as_bytes())?;
+        println!("html: {}", h.display());
+    }
+    sweep_failures(&outcome)
 }
 
 fn expand(model: &Path) -> CliResult {
@@ -491,14 +588,15 @@ fn demo(out: &Path) -> CliResult {
     o.wind = Some(WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2)));
     o.exposure_s = Some(2.0);
     let catalogue = ex.join("isolators.toml");
-    run_report(&model, &o, Some(&catalogue), Some(&out.join("plots")), Some(&out.join("report.json")))?;
+    let report_run =
+        run_report(&model, &o, Some(&catalogue), Some(&out.join("plots")), Some(&out.join("report.json")))?;
     println!();
     println!("== sweep: isolators × three recordings × (calm, 4 m/s) ==");
     let grounds = ["quiet-night.csv", "road-nearby.csv", "footsteps.csv"]
         .iter()
         .map(|n| GroundSource::Recording(rec(n)))
         .collect();
-    run_sweep(&SweepRun {
+    let outcome = run_sweep(&SweepRun {
         model: &model,
         catalogue: &catalogue,
         grounds,
@@ -508,7 +606,8 @@ fn demo(out: &Path) -> CliResult {
         cfg: SweepConfig::new()?,
     })?;
     println!("sweep: {}", out.join("sweep.csv").display());
-    Ok(())
+    write_report_html(&out.join("report.html"), &model, &o, &report_run, Some(&outcome))?;
+    sweep_failures(&outcome)
 }
 
 /// The chosen axis of a recording (default the first).

@@ -142,14 +142,8 @@ pub fn report_text(model: &str, r: &Report) -> String {
             );
         }
     }
-    let verdict = if im.p_outside < 0.01 {
-        "holds (outside 1/2 px less than 1 % of the time)"
-    } else if im.p_outside < 0.5 {
-        "marginal (outside 1/2 px 1-50 % of the time)"
-    } else {
-        "does not hold (outside 1/2 px most of the time)"
-    };
-    let _ = writeln!(s, "\nverdict: {verdict}; radial RMS {:.3} px", im.rms_px);
+    let level = crate::verdict::Level::from_p_outside(im.p_outside);
+    let _ = writeln!(s, "\nverdict: {} ({}); radial RMS {:.3} px", level.words(), level.rule(), im.rms_px);
     if !r.notes.is_empty() {
         let _ = writeln!(s, "notes:");
         for n in &r.notes {

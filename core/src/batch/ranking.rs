@@ -104,6 +104,13 @@ pub struct RankTable {
     pub entries: Vec<RankEntry>,
 }
 
+impl RankTable {
+    /// "wind calm, all spectra" and the like.
+    pub fn scope(&self) -> String {
+        format!("wind {}, {}", self.wind, self.spectrum)
+    }
+}
+
 /// Ranked summary: per wind case over all spectra, and per wind case and spectrum.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct SweepSummary {

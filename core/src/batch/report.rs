@@ -271,8 +271,16 @@ pub const GUST_RIG_LABEL: &str = "as given";
 
 impl Report {
     /// The mode with the largest share of the image mean square, with its frequency.
+    /// The label names the mode in the mount's axes, e.g. "mode 3 (payload: altitude nod)".
     pub fn dominant_mode(&self) -> Option<(String, f64, f64)> {
-        self.image.dominant_mode().map(|m| (m.label.clone(), m.frequency_hz, m.share))
+        self.image.dominant_mode().map(|m| {
+            let named = self
+                .modes
+                .iter()
+                .find(|r| format!("mode {}", r.index) == m.label)
+                .map_or(m.label.clone(), |r| format!("{} ({})", m.label, r.label));
+            (named, m.frequency_hz, m.share)
+        })
     }
 
     /// Blur FWHM of all the motion along x and y (2.35482 σ of each axis, arcsec) and the
