@@ -11,7 +11,7 @@ use std::process::ExitCode;
 use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig, SweepInputs, WindCase};
 use stillsky::guider::GuideLoop;
 use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
-use stillsky::schema::ModelFile;
+use stillsky::schema::{ModelFile, Pointing};
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 
 #[derive(Parser)]
@@ -103,8 +103,10 @@ struct ReportArgs {
     focal_length_mm: Option<f64>,
     #[arg(long)]
     pixel_um: Option<f64>,
+    /// Pointing altitude (deg); the payload is posed for it as if the file said so.
     #[arg(long)]
     altitude_deg: Option<f64>,
+    /// Pointing azimuth (deg from north through east); poses the payload like --altitude-deg.
     #[arg(long)]
     azimuth_deg: Option<f64>,
     /// Exposure length (s): splits the motion into centroid wander and smear.
@@ -314,8 +316,6 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     o.wind = wind_spec(&a.wind)?;
     o.focal_length_mm = a.focal_length_mm;
     o.pixel_um = a.pixel_um;
-    o.altitude_deg = a.altitude_deg;
-    o.azimuth_deg = a.azimuth_deg;
     o.seeing_fwhm_arcsec = a.seeing_arcsec;
     o.exposure_s = a.exposure_s;
     if let (Some(cadence_s), Some(gain)) = (a.guide_cadence_s, a.guide_gain) {
@@ -336,8 +336,15 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     Ok(o)
 }
 
-fn run_report(model: &Path, o: &ReportOptions, plots: Option<&Path>, json: Option<&Path>) -> CliResult {
-    let file = ModelFile::read(model)?;
+fn run_report(
+    model: &Path,
+    pointing: &Pointing,
+    o: &ReportOptions,
+    plots: Option<&Path>,
+    json: Option<&Path>,
+) -> CliResult {
+    let mut file = ModelFile::read(model)?;
+    file.repoint(pointing)?;
     let spec = file.expanded()?;
     let r = batch::build_report(&spec, o)?;
     print!("{}", print::report_text(&model.display().to_string(), &r));
@@ -362,7 +369,8 @@ fn run_report(model: &Path, o: &ReportOptions, plots: Option<&Path>, json: Optio
 
 fn report(a: &ReportArgs) -> CliResult {
     let o = report_options(a)?;
-    run_report(&a.model, &o, a.plots.as_deref(), a.json.as_deref())
+    let pointing = Pointing { altitude_deg: a.altitude_deg, azimuth_deg: a.azimuth_deg };
+    run_report(&a.model, &pointing, &o, a.plots.as_deref(), a.json.as_deref())
 }
 
 /// Expand folders into their files (sorted), keep other arguments.
@@ -476,7 +484,7 @@ fn demo(out: &Path) -> CliResult {
     o.ground = Some(GroundSource::Recording(rec("quiet-night.csv")));
     o.wind = Some(WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2)));
     o.exposure_s = Some(2.0);
-    run_report(&model, &o, Some(&out.join("plots")), Some(&out.join("report.json")))?;
+    run_report(&model, &Pointing::default(), &o, Some(&out.join("plots")), Some(&out.join("report.json")))?;
     println!();
     println!("== sweep: isolators × three recordings × (calm, 4 m/s) ==");
     let grounds = ["quiet-night.csv", "road-nearby.csv", "footsteps.csv"]

@@ -581,10 +581,10 @@ pub fn pointing_map(
         .par_iter()
         .map(|&(i, j)| {
             let mut f = file.clone();
-            if let Some(o) = f.generic.optics.as_mut() {
-                o.altitude_deg = altitude_deg[i];
-                o.azimuth_deg = azimuth_deg[j];
-            }
+            f.repoint(&crate::schema::Pointing {
+                altitude_deg: Some(altitude_deg[i]),
+                azimuth_deg: Some(azimuth_deg[j]),
+            })?;
             let m = f.to_model()?;
             let im = m.image_motion(grid, disturbances, &opts)?;
             Ok((im.rms_arcsec, im.rms_px))

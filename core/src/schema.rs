@@ -31,6 +31,21 @@ pub struct ModelFile {
     pub rig: RigSpec,
 }
 
+/// A pointing that replaces the file's own (`[optics]`) before the rig layer is expanded, so the
+/// payload is posed for it exactly as if the file had been edited. `None` keeps the file's value.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Pointing {
+    pub altitude_deg: Option<f64>,
+    pub azimuth_deg: Option<f64>,
+}
+
+impl Pointing {
+    /// True when nothing is overridden.
+    pub fn is_empty(&self) -> bool {
+        self == &Pointing::default()
+    }
+}
+
 /// The one top-level key outside the two layers.
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -66,6 +81,24 @@ impl ModelFile {
     pub fn read(path: &std::path::Path) -> Result<ModelFile> {
         let text = read_text_capped(path, MAX_MODEL_FILE_BYTES)?;
         Self::parse(&text, &path.display().to_string())
+    }
+
+    /// Replace the pointing of `[optics]` (see [`Pointing`]); the rig layer poses the payload for
+    /// it when the file is expanded. An empty override changes nothing.
+    pub fn repoint(&mut self, p: &Pointing) -> Result<()> {
+        if p.is_empty() {
+            return Ok(());
+        }
+        let o = self.generic.optics.as_mut().ok_or_else(|| {
+            Error::invalid("optics", "the model has no [optics] section to take a pointing")
+        })?;
+        if let Some(h) = p.altitude_deg {
+            o.altitude_deg = h;
+        }
+        if let Some(a) = p.azimuth_deg {
+            o.azimuth_deg = a;
+        }
+        o.validate()
     }
 
     /// The generic model: the rig layer expanded, followed by the file's own generic entries.

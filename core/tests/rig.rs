@@ -118,12 +118,15 @@ fn pad_in_series_lowers_vertical_mode_by_series_rule() {
     assert!(modes.frequency_hz[j] < 0.2 * bare.frequency_hz[mode_along(&bare, 2)]);
 }
 
-fn posed(alt: f64, az: f64) -> ModelSpec {
-    let text = std::fs::read_to_string(example("tripod-paver.toml"))
+fn posed_text(alt: f64, az: f64) -> String {
+    std::fs::read_to_string(example("tripod-paver.toml"))
         .unwrap()
         .replace("altitude_deg = 45", &format!("altitude_deg = {alt}"))
-        .replace("azimuth_deg = 135", &format!("azimuth_deg = {az}"));
-    spec(&text)
+        .replace("azimuth_deg = 135", &format!("azimuth_deg = {az}"))
+}
+
+fn posed(alt: f64, az: f64) -> ModelSpec {
+    spec(&posed_text(alt, az))
 }
 
 /// Invariants of a symmetric 3 × 3 tensor: trace, sum of principal 2 × 2 minors, determinant.
@@ -385,4 +388,45 @@ fn beam_legs_vertical_mode_matches_rayleigh() {
     let modes = Model::from_spec(&s).unwrap().modes().unwrap();
     let j = mode_along(&modes, 2);
     assert_relative_eq!(modes.frequency_hz[j], (kv / m).sqrt() / (2.0 * PI), max_relative = 1e-2);
+}
+
+/// Modes (frequency, damping) and wind image RMS of a model file.
+fn modes_and_wind_rms(f: &ModelFile) -> (Vec<f64>, Vec<f64>, f64) {
+    use stillsky::response::Disturbances;
+    use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+    let m = f.to_model().unwrap();
+    let modes = m.modes().unwrap();
+    let grid = stillsky::FreqGrid::log(0.2, 100.0, 300).unwrap();
+    let w = WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2));
+    let d = Disturbances { wind: Some(w), ..Default::default() };
+    let im = m.image_motion(&grid, &d, &stillsky::image::ImageOptions::default()).unwrap();
+    (modes.frequency_hz.to_vec(), modes.damping_ratio.to_vec(), im.rms_arcsec)
+}
+
+#[test]
+fn a_pointing_override_poses_the_payload_as_editing_the_file_does() {
+    use stillsky::schema::Pointing;
+    let mut given = ModelFile::read(&example("tripod-paver.toml")).unwrap();
+    given.repoint(&Pointing { altitude_deg: Some(80.0), azimuth_deg: Some(250.0) }).unwrap();
+    let edited = ModelFile::parse(&posed_text(80.0, 250.0), "edited").unwrap();
+    assert_eq!(given.expanded().unwrap(), edited.expanded().unwrap());
+    let (fa, za, ra) = modes_and_wind_rms(&given);
+    let (fb, zb, rb) = modes_and_wind_rms(&edited);
+    for (a, b) in fa.iter().zip(&fb).chain(za.iter().zip(&zb)) {
+        assert_relative_eq!(*a, *b, max_relative = 1e-12);
+    }
+    assert_relative_eq!(ra, rb, max_relative = 1e-12);
+    // The pose matters: at 45° (the file's own pointing) the modes differ.
+    let (f45, _, _) = modes_and_wind_rms(&ModelFile::read(&example("tripod-paver.toml")).unwrap());
+    assert!(f45.iter().zip(&fa).any(|(a, b)| (a - b).abs() > 1e-3 * a), "{f45:?} vs {fa:?}");
+    // Without optics there is nothing to point.
+    let mut bare = ModelFile::parse(
+        "[[body]]\nname = \"a\"\nmass_kg = 1\ncg_m = [0, 0, 0]\ninertia_kgm2 = [1, 1, 1]\n",
+        "t",
+    )
+    .unwrap();
+    let e = bare.repoint(&Pointing { altitude_deg: Some(30.0), azimuth_deg: None }).unwrap_err();
+    assert!(matches!(e, Error::InvalidArgument { ref name, .. } if name == "optics"), "{e:?}");
+    let e = given.repoint(&Pointing { altitude_deg: Some(95.0), azimuth_deg: None }).unwrap_err();
+    assert!(e.to_string().contains("optics.altitude_deg"), "{e}");
 }

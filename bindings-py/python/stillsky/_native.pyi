@@ -90,11 +90,15 @@ class Model:
     """
 
     @staticmethod
-    def from_toml(path: str | PathLike[str]) -> Model:
+    def from_toml(
+        path: str | PathLike[str], *, altitude_deg: float | None = None, azimuth_deg: float | None = None
+    ) -> Model:
         """Read a TOML model file.
 
         Args:
             path: file path.
+            altitude_deg, azimuth_deg: a pointing that replaces the file's ``[optics]`` one; the
+                payload of a rig is posed for it exactly as if the file had been edited.
 
         Raises:
             StillskyIOError: the file cannot be read (also an ``OSError``).
@@ -103,12 +107,16 @@ class Model:
             UnsupportedModelError: e.g. a body free to move (named).
         """
     @staticmethod
-    def from_toml_str(text: str, label: str = ...) -> Model:
+    def from_toml_str(
+        text: str, label: str = ..., *, altitude_deg: float | None = None, azimuth_deg: float | None = None
+    ) -> Model:
         """Build a model from TOML text.
 
         Args:
             text: the model file contents.
             label: name of the source used in error messages (e.g. a file name).
+            altitude_deg, azimuth_deg: a pointing that replaces the file's ``[optics]`` one (see
+                ``from_toml``).
         """
     @property
     def dof_count(self) -> int:
