@@ -39,3 +39,27 @@ def test_pointing_keywords_equal_an_edited_file():
 def test_pointing_out_of_range_is_a_named_error():
     with pytest.raises(stillsky.InvalidInputError, match="optics.altitude_deg"):
         stillsky.Model.from_toml(EXAMPLE, altitude_deg=95.0)
+
+
+EQUATORIAL = EXAMPLE.parent / "equatorial-pier.toml"
+
+
+def test_equatorial_pointing_keywords_equal_an_edited_file():
+    text = EQUATORIAL.read_text()
+    edited = (
+        text.replace("hour_angle_deg = 22.5", "hour_angle_deg = -40")
+        .replace("declination_deg = 35", "declination_deg = 60")
+        .replace('pier_side = "east"', 'pier_side = "west"')
+    )
+    a = stillsky.Model.from_toml(EQUATORIAL, hour_angle_deg=-40.0, declination_deg=60.0, pier_side="west")
+    b = stillsky.Model.from_toml_str(edited, "edited")
+    fa, za, ra = summary(a)
+    fb, zb, rb = summary(b)
+    np.testing.assert_allclose(fa, fb, rtol=1e-12)
+    np.testing.assert_allclose(za, zb, rtol=1e-12)
+    assert ra == pytest.approx(rb, rel=1e-12)
+    assert {"image_ra", "image_dec"} <= set(a.output_names)
+    with pytest.raises(stillsky.InvalidInputError, match="pier_side"):
+        stillsky.Model.from_toml(EQUATORIAL, pier_side="north")
+    with pytest.raises(stillsky.InvalidInputError, match="hour angle"):
+        stillsky.Model.from_toml(EQUATORIAL, altitude_deg=30.0)

@@ -12,6 +12,7 @@ use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig,
 use stillsky::guider::GuideLoop;
 use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
 use stillsky::schema::{ModelFile, Pointing};
+use stillsky::sky::PierSide;
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 
 #[derive(Parser)]
@@ -109,6 +110,15 @@ struct ReportArgs {
     /// Pointing azimuth (deg from north through east); poses the payload like --altitude-deg.
     #[arg(long)]
     azimuth_deg: Option<f64>,
+    /// Equatorial rigs: hour angle (deg, positive west); poses the payload and counterweights.
+    #[arg(long)]
+    hour_angle_deg: Option<f64>,
+    /// Equatorial rigs: declination (deg).
+    #[arg(long)]
+    declination_deg: Option<f64>,
+    /// Equatorial rigs: side of the pier the tube is on, east or west (default by hour angle).
+    #[arg(long, value_parser = parse_pier_side)]
+    pier_side: Option<PierSide>,
     /// Exposure length (s): splits the motion into centroid wander and smear.
     #[arg(long)]
     exposure_s: Option<f64>,
@@ -222,6 +232,14 @@ fn parse_target(s: &str) -> Result<stillsky::identify::ModalTarget, String> {
         Some((f, z)) => stillsky::identify::ModalTarget::frequency(num(f)?).with_damping(num(z)?),
         None => stillsky::identify::ModalTarget::frequency(num(s)?),
     })
+}
+
+fn parse_pier_side(s: &str) -> Result<PierSide, String> {
+    match s {
+        "east" => Ok(PierSide::East),
+        "west" => Ok(PierSide::West),
+        _ => Err(format!("expected east or west, got '{s}'")),
+    }
 }
 
 fn parse_triple(s: &str) -> Result<[f64; 3], String> {
@@ -369,7 +387,13 @@ fn run_report(
 
 fn report(a: &ReportArgs) -> CliResult {
     let o = report_options(a)?;
-    let pointing = Pointing { altitude_deg: a.altitude_deg, azimuth_deg: a.azimuth_deg };
+    let pointing = Pointing {
+        altitude_deg: a.altitude_deg,
+        azimuth_deg: a.azimuth_deg,
+        hour_angle_deg: a.hour_angle_deg,
+        declination_deg: a.declination_deg,
+        pier_side: a.pier_side,
+    };
     run_report(&a.model, &pointing, &o, a.plots.as_deref(), a.json.as_deref())
 }
 

@@ -584,6 +584,7 @@ pub fn pointing_map(
             f.repoint(&crate::schema::Pointing {
                 altitude_deg: Some(altitude_deg[i]),
                 azimuth_deg: Some(azimuth_deg[j]),
+                ..Default::default()
             })?;
             let m = f.to_model()?;
             let im = m.image_motion(grid, disturbances, &opts)?;

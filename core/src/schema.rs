@@ -11,7 +11,8 @@ use crate::error::{Error, Result};
 use crate::io::read_text_capped;
 use crate::io::toml_doc::{read_shared, struct_fields};
 use crate::model::Model;
-use crate::rig::RigSpec;
+use crate::rig::{MountKind, RigSpec};
+use crate::sky::PierSide;
 use serde::{Deserialize, Serialize};
 
 /// Largest model file accepted (bytes).
@@ -33,10 +34,15 @@ pub struct ModelFile {
 
 /// A pointing that replaces the file's own (`[optics]`) before the rig layer is expanded, so the
 /// payload is posed for it exactly as if the file had been edited. `None` keeps the file's value.
+/// Alt-azimuth pointings take `altitude_deg`/`azimuth_deg`, equatorial ones `hour_angle_deg`,
+/// `declination_deg` and `pier_side`.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct Pointing {
     pub altitude_deg: Option<f64>,
     pub azimuth_deg: Option<f64>,
+    pub hour_angle_deg: Option<f64>,
+    pub declination_deg: Option<f64>,
+    pub pier_side: Option<PierSide>,
 }
 
 impl Pointing {
@@ -92,11 +98,43 @@ impl ModelFile {
         let o = self.generic.optics.as_mut().ok_or_else(|| {
             Error::invalid("optics", "the model has no [optics] section to take a pointing")
         })?;
-        if let Some(h) = p.altitude_deg {
-            o.altitude_deg = h;
+        let altaz = p.altitude_deg.is_some() || p.azimuth_deg.is_some();
+        let equatorial = p.hour_angle_deg.is_some() || p.declination_deg.is_some() || p.pier_side.is_some();
+        let file_equatorial = o.hour_angle_deg.is_some()
+            || self.rig.mount.as_ref().is_some_and(|m| m.kind == Some(MountKind::Equatorial));
+        if altaz && (equatorial || file_equatorial) {
+            return Err(Error::invalid(
+                "pointing",
+                "this model is pointed by hour angle, declination and pier side, not altitude and azimuth",
+            ));
         }
-        if let Some(a) = p.azimuth_deg {
-            o.azimuth_deg = a;
+        if equatorial && !file_equatorial {
+            return Err(Error::invalid(
+                "pointing",
+                "this model is pointed by altitude and azimuth (hour angle and declination need an equatorial mount or optics.latitude_deg)",
+            ));
+        }
+        if p.altitude_deg.is_some() {
+            o.altitude_deg = p.altitude_deg;
+        }
+        if p.azimuth_deg.is_some() {
+            o.azimuth_deg = p.azimuth_deg;
+        }
+        if equatorial {
+            o.hour_angle_deg = p.hour_angle_deg.or(o.hour_angle_deg);
+            o.declination_deg = p.declination_deg.or(o.declination_deg);
+            o.pier_side = p.pier_side.or(o.pier_side);
+            if p.hour_angle_deg.is_some() && p.pier_side.is_none() && self.rig.mount.is_some() {
+                // A new hour angle takes its usual side unless one is given.
+                o.pier_side = None;
+            }
+            // Derived values of the old pointing (as an expanded file carries them) go.
+            o.altitude_deg = None;
+            o.azimuth_deg = None;
+        }
+        if file_equatorial && self.rig.mount.is_some() {
+            // The rig layer checks an equatorial pointing against the mount when it expands.
+            return Ok(());
         }
         o.validate()
     }
@@ -111,9 +149,8 @@ impl ModelFile {
         spec.torsion_springs.extend(g.torsion_springs.iter().cloned());
         spec.general_springs.extend(g.general_springs.iter().cloned());
         spec.beams.extend(g.beams.iter().cloned());
-        if g.optics.is_some() {
-            spec.optics = g.optics.clone();
-        }
+        // The optics come back from the rig layer (with an equatorial pointing's altitude and
+        // azimuth filled in).
         if g.wind.is_some() {
             spec.wind = g.wind.clone();
         }
@@ -156,8 +193,13 @@ impl Model {
 mod tests {
     use super::*;
 
-    const EXAMPLES: [&str; 4] =
-        ["tripod-lawn.toml", "tripod-paver.toml", "tripod-paver-generic.toml", "pier.toml"];
+    const EXAMPLES: [&str; 5] = [
+        "tripod-lawn.toml",
+        "tripod-paver.toml",
+        "tripod-paver-generic.toml",
+        "pier.toml",
+        "equatorial-pier.toml",
+    ];
 
     fn example(name: &str) -> std::path::PathBuf {
         std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/examples").join(name)

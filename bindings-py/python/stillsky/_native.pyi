@@ -91,7 +91,13 @@ class Model:
 
     @staticmethod
     def from_toml(
-        path: str | PathLike[str], *, altitude_deg: float | None = None, azimuth_deg: float | None = None
+        path: str | PathLike[str],
+        *,
+        altitude_deg: float | None = None,
+        azimuth_deg: float | None = None,
+        hour_angle_deg: float | None = None,
+        declination_deg: float | None = None,
+        pier_side: Literal["east", "west"] | None = None,
     ) -> Model:
         """Read a TOML model file.
 
@@ -99,6 +105,8 @@ class Model:
             path: file path.
             altitude_deg, azimuth_deg: a pointing that replaces the file's ``[optics]`` one; the
                 payload of a rig is posed for it exactly as if the file had been edited.
+            hour_angle_deg, declination_deg, pier_side: the same for an equatorial pointing
+                (hour angle positive west; the side of the pier the tube is on).
 
         Raises:
             StillskyIOError: the file cannot be read (also an ``OSError``).
@@ -108,7 +116,14 @@ class Model:
         """
     @staticmethod
     def from_toml_str(
-        text: str, label: str = ..., *, altitude_deg: float | None = None, azimuth_deg: float | None = None
+        text: str,
+        label: str = ...,
+        *,
+        altitude_deg: float | None = None,
+        azimuth_deg: float | None = None,
+        hour_angle_deg: float | None = None,
+        declination_deg: float | None = None,
+        pier_side: Literal["east", "west"] | None = None,
     ) -> Model:
         """Build a model from TOML text.
 
