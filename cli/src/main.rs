@@ -79,6 +79,9 @@ struct WindArgs {
     /// Turbulence intensity σ_u / U.
     #[arg(long, default_value_t = 0.2)]
     turbulence: f64,
+    /// Quasi-steady drag: leave out the aerodynamic admittance of the wind load (on by default).
+    #[arg(long)]
+    quasi_steady_wind: bool,
 }
 
 #[derive(Args)]
@@ -315,7 +318,8 @@ fn parse_sensitivity(s: &str) -> Result<Sensitivity, String> {
 fn wind_spec(w: &WindArgs) -> Result<Option<WindSpec>, Failure> {
     let Some(u) = w.wind_speed else { return Ok(None) };
     let kind = WindSpectrum::from_name(&w.wind_spectrum)?;
-    let spec = WindSpec::new(kind, u, w.wind_height, Turbulence::Intensity(w.turbulence));
+    let spec = WindSpec::new(kind, u, w.wind_height, Turbulence::Intensity(w.turbulence))
+        .with_admittance(!w.quasi_steady_wind);
     spec.validate()?;
     Ok(Some(spec))
 }

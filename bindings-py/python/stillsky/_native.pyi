@@ -356,6 +356,7 @@ class Wind:
         roughness_length_m: float | None = None,
         shelter_factor: float = 1.0,
         air_density_kg_m3: float | None = None,
+        admittance: bool = True,
     ) -> Wind:
         """Args:
         kind: along-wind spectrum shape (see ``wind_spectrum``).
@@ -364,7 +365,12 @@ class Wind:
         turbulence_intensity: σ_u / U; give this or ``roughness_length_m`` (m), not both.
         shelter_factor: factor in (0, 1] on the mean speed for a sheltered site.
         air_density_kg_m3: ρ (kg/m³), default 1.225 (ISA sea level).
+        admittance: reduce the drag at the model's ``[wind]`` load by the aerodynamic admittance
+            of a compact body, |χ|² = 1/[1 + (2 f √A / U)^{4/3}]² (Vickery's form); ``False``
+            gives the quasi-steady drag.
         """
+    @property
+    def admittance(self) -> bool: ...
     @property
     def mean_speed_m_s(self) -> float: ...
     @property
