@@ -82,6 +82,12 @@ struct WindArgs {
     /// Quasi-steady drag: leave out the aerodynamic admittance of the wind load (on by default).
     #[arg(long)]
     quasi_steady_wind: bool,
+    /// Site elevation (m) for the air density (ISA pressure; default sea level, 1.225 kg/m³).
+    #[arg(long, allow_negative_numbers = true)]
+    site_elevation_m: Option<f64>,
+    /// Air temperature (°C) for the air density (default the ISA temperature of the elevation).
+    #[arg(long, allow_negative_numbers = true)]
+    air_temperature_c: Option<f64>,
 }
 
 #[derive(Args)]
@@ -108,16 +114,16 @@ struct ReportArgs {
     #[arg(long)]
     pixel_um: Option<f64>,
     /// Pointing altitude (deg); the payload is posed for it as if the file said so.
-    #[arg(long)]
+    #[arg(long, allow_negative_numbers = true)]
     altitude_deg: Option<f64>,
     /// Pointing azimuth (deg from north through east); poses the payload like --altitude-deg.
-    #[arg(long)]
+    #[arg(long, allow_negative_numbers = true)]
     azimuth_deg: Option<f64>,
     /// Equatorial rigs: hour angle (deg, positive west); poses the payload and counterweights.
-    #[arg(long)]
+    #[arg(long, allow_negative_numbers = true)]
     hour_angle_deg: Option<f64>,
     /// Equatorial rigs: declination (deg).
-    #[arg(long)]
+    #[arg(long, allow_negative_numbers = true)]
     declination_deg: Option<f64>,
     /// Equatorial rigs: side of the pier the tube is on, east or west (default by hour angle).
     #[arg(long, value_parser = parse_pier_side)]
@@ -318,8 +324,13 @@ fn parse_sensitivity(s: &str) -> Result<Sensitivity, String> {
 fn wind_spec(w: &WindArgs) -> Result<Option<WindSpec>, Failure> {
     let Some(u) = w.wind_speed else { return Ok(None) };
     let kind = WindSpectrum::from_name(&w.wind_spectrum)?;
-    let spec = WindSpec::new(kind, u, w.wind_height, Turbulence::Intensity(w.turbulence))
+    let mut spec = WindSpec::new(kind, u, w.wind_height, Turbulence::Intensity(w.turbulence))
         .with_admittance(!w.quasi_steady_wind);
+    if w.site_elevation_m.is_some() || w.air_temperature_c.is_some() {
+        let h = w.site_elevation_m.unwrap_or(0.0);
+        let t = w.air_temperature_c.unwrap_or(15.0 - 0.0065 * h);
+        spec = spec.with_air_density(stillsky::wind::air_density_kg_m3(h, t)?);
+    }
     spec.validate()?;
     Ok(Some(spec))
 }

@@ -390,6 +390,7 @@ fn pointing_on_the_command_line_equals_editing_the_file() {
         .replace("altitude_deg = 45", "altitude_deg = 80")
         .replace("azimuth_deg = 135", "azimuth_deg = 250");
     std::fs::write(&edited, body).unwrap();
+    let rms = |v: &serde_json::Value| v["image"]["rms_arcsec"].as_f64().unwrap();
     let json = |m: &Path, extra: &[&str], tag: &str| -> serde_json::Value {
         let j = d.join(format!("{tag}.json"));
         let mut args = vec!["report", s(m), "--ground", "none", "--wind-speed", "4", "--json", s(&j)];
@@ -399,6 +400,10 @@ fn pointing_on_the_command_line_equals_editing_the_file() {
         serde_json::from_str(&std::fs::read_to_string(&j).unwrap()).unwrap()
     };
     let a = json(&model, &["--altitude-deg", "80", "--azimuth-deg", "250"], "flags");
+    // Negative angles are values, not options.
+    let eq = examples().join("equatorial-pier.toml");
+    let e = json(&eq, &["--hour-angle-deg", "-30", "--declination-deg", "-5", "--pier-side", "west"], "eq");
+    assert!(rms(&e) > 0.0);
     let b = json(&edited, &[], "file");
     let c = json(&model, &[], "own");
     let close = |x: f64, y: f64| (x - y).abs() <= 1e-12 * x.abs().max(y.abs());
@@ -410,7 +415,6 @@ fn pointing_on_the_command_line_equals_editing_the_file() {
         assert_eq!(ma.len(), mb.len());
         assert!(ma.iter().zip(&mb).all(|(x, y)| close(*x, *y)), "{k}: {ma:?} vs {mb:?}");
     }
-    let rms = |v: &serde_json::Value| v["image"]["rms_arcsec"].as_f64().unwrap();
     assert!(close(rms(&a), rms(&b)), "{} vs {}", rms(&a), rms(&b));
     // And it is a different pose from the file's own 45°.
     let (fa, fc) = (modes(&a, "frequency_hz"), modes(&c, "frequency_hz"));

@@ -26,7 +26,7 @@
 //! # Ok::<(), stillsky::Error>(())
 //! ```
 
-use crate::error::{Error, Result, require_positive};
+use crate::error::{Error, Result, require_finite, require_positive};
 use crate::grid::FreqGrid;
 use crate::spectrum::{Psd, Quantity};
 
@@ -91,6 +91,23 @@ pub fn isa_air_density_kg_m3(altitude_m: f64) -> Result<f64> {
     let t = 288.15 - 0.0065 * altitude_m;
     let p = 101_325.0 * (t / 288.15).powf(5.25588);
     Ok(p / (287.05287 * t))
+}
+
+/// Air density at a site's elevation and air temperature: the ISA pressure at `elevation_m`
+/// (as [`isa_air_density_kg_m3`]) with the ideal gas law at the actual temperature,
+/// ρ = p_ISA(h) / (287.05287 (T + 273.15)) (dry air). At the ISA temperature of that height it
+/// is the ISA density.
+pub fn air_density_kg_m3(elevation_m: f64, temperature_c: f64) -> Result<f64> {
+    require_finite("temperature_c", temperature_c)?;
+    if !(-80.0..=60.0).contains(&temperature_c) {
+        return Err(Error::invalid(
+            "temperature_c",
+            format!("must lie in [-80, 60] °C, got {temperature_c}"),
+        ));
+    }
+    let t_isa = 288.15 - 0.0065 * elevation_m;
+    let p = isa_air_density_kg_m3(elevation_m)? * 287.05287 * t_isa;
+    Ok(p / (287.05287 * (temperature_c + 273.15)))
 }
 
 /// Which along-wind spectrum shape to use.
@@ -565,5 +582,23 @@ mod tests {
             let want = 1.0 - (1.0 + 6.0 * f * l / 4.0).powf(-2.0 / 3.0);
             assert_relative_eq!(s.variance_share_below(f).unwrap(), want, max_relative = 1e-4);
         }
+    }
+
+    #[test]
+    fn air_density_from_elevation_and_temperature() {
+        // At the ISA temperature of the height it is the ISA density; at 1000 m and 15 °C it is
+        // the ISA pressure there, 89 874.6 Pa (ISA tables, from memory), over R T:
+        // 89 874.6 / (287.05287 × 288.15) = 1.08656 kg/m³.
+        for h in [0.0, 1000.0, 2500.0] {
+            let t = 15.0 - 0.0065 * h;
+            assert_relative_eq!(
+                air_density_kg_m3(h, t).unwrap(),
+                isa_air_density_kg_m3(h).unwrap(),
+                max_relative = 1e-12
+            );
+        }
+        assert_relative_eq!(air_density_kg_m3(1000.0, 15.0).unwrap(), 1.08656, max_relative = 1e-4);
+        assert!(air_density_kg_m3(0.0, -10.0).unwrap() > air_density_kg_m3(0.0, 30.0).unwrap());
+        assert!(air_density_kg_m3(0.0, 99.0).is_err() && air_density_kg_m3(20_000.0, 0.0).is_err());
     }
 }
