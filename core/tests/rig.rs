@@ -601,3 +601,39 @@ fn alt_azimuth_files_expand_as_before_the_mount_kinds() {
     let out = spec_to_toml(&spec(&text)).unwrap();
     assert!(!out.contains("hour_angle") && !out.contains("latitude") && out.contains("altitude_deg = 45"));
 }
+
+#[test]
+fn equatorial_sky_map_cells_equal_single_runs() {
+    // Each cell of the hour angle × declination map is the model re-pointed there (usual pier
+    // side) and evaluated on its own.
+    use stillsky::response::Disturbances;
+    use stillsky::schema::Pointing;
+    use stillsky::sky::PierSide;
+    use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+    let f = ModelFile::read(&example("equatorial-pier.toml")).unwrap();
+    let grid = stillsky::FreqGrid::log(0.2, 100.0, 200).unwrap();
+    let w = WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2));
+    let d = Disturbances { wind: Some(w), ..Default::default() };
+    let o = stillsky::image::ImageOptions::default();
+    let (ha, dec) = ([-60.0, 0.0, 45.0], [-10.0, 30.0, 80.0]);
+    let map = stillsky::image::equatorial_map(&f, &ha, &dec, &grid, &d, &o).unwrap();
+    for (i, h) in ha.iter().enumerate() {
+        for (j, de) in dec.iter().enumerate() {
+            let mut g = f.clone();
+            let p = Pointing {
+                hour_angle_deg: Some(*h),
+                declination_deg: Some(*de),
+                pier_side: Some(PierSide::usual(*h)),
+                ..Default::default()
+            };
+            g.repoint(&p).unwrap();
+            let im = g.to_model().unwrap().image_motion(&grid, &d, &o).unwrap();
+            assert_relative_eq!(map.rms_arcsec[i][j], im.rms_arcsec, max_relative = 1e-12);
+            assert_relative_eq!(map.rms_px[i][j], im.rms_px, max_relative = 1e-12);
+        }
+    }
+    // The pointing moves the image: the map is not flat.
+    let all: Vec<f64> = map.rms_arcsec.iter().flatten().copied().collect();
+    let (lo, hi) = all.iter().fold((f64::MAX, 0.0f64), |(a, b), x| (a.min(*x), b.max(*x)));
+    assert!(hi > 1.05 * lo, "{all:?}");
+}
