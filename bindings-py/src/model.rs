@@ -7,11 +7,12 @@ use numpy::{IntoPyArray, PyArray1, PyArray2};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 use pyo3::types::PyTuple;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::sync::Arc;
 use stillsky::io::read_text_capped;
 use stillsky::model::Model;
-use stillsky::schema::{MAX_MODEL_FILE_BYTES, spec_to_toml};
+use stillsky::schema::{MAX_MODEL_FILE_BYTES, ModelFile, Pointing, spec_to_toml};
+use stillsky::sky::PierSide;
 
 /// An assembled linear structure (immutable; safe to share between threads).
 #[pyclass(name = "Model", module = "stillsky._native", frozen)]
@@ -24,14 +25,39 @@ pub struct PyModel {
 #[pymethods]
 impl PyModel {
     #[staticmethod]
-    fn from_toml(py: Python<'_>, path: PathBuf) -> PyResult<Self> {
-        model_from_path(py, &path)
+    #[pyo3(signature = (path, *, altitude_deg = None, azimuth_deg = None, hour_angle_deg = None,
+                        declination_deg = None, pier_side = None))]
+    fn from_toml(
+        py: Python<'_>,
+        path: PathBuf,
+        altitude_deg: Option<f64>,
+        azimuth_deg: Option<f64>,
+        hour_angle_deg: Option<f64>,
+        declination_deg: Option<f64>,
+        pier_side: Option<&str>,
+    ) -> PyResult<Self> {
+        let p = pointing(altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side)?;
+        let label = path.display().to_string();
+        let text = py.detach(|| read_text_capped(&path, MAX_MODEL_FILE_BYTES)).py_err()?;
+        model_pointed(py, text, label, &p)
     }
 
     #[staticmethod]
-    #[pyo3(signature = (text, label = String::from("<string>")))]
-    fn from_toml_str(py: Python<'_>, text: String, label: String) -> PyResult<Self> {
-        model_from_text(py, text, label)
+    #[pyo3(signature = (text, label = String::from("<string>"), *, altitude_deg = None, azimuth_deg = None,
+                        hour_angle_deg = None, declination_deg = None, pier_side = None))]
+    #[allow(clippy::too_many_arguments)]
+    fn from_toml_str(
+        py: Python<'_>,
+        text: String,
+        label: String,
+        altitude_deg: Option<f64>,
+        azimuth_deg: Option<f64>,
+        hour_angle_deg: Option<f64>,
+        declination_deg: Option<f64>,
+        pier_side: Option<&str>,
+    ) -> PyResult<Self> {
+        let p = pointing(altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side)?;
+        model_pointed(py, text, label, &p)
     }
 
     fn __reduce__<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, pyo3::types::PyTuple>> {
@@ -371,11 +397,43 @@ pub fn model_from_text(py: Python<'_>, text: String, label: String) -> PyResult<
     Ok(PyModel { inner, source: Some(Arc::new(ModelSource { text, label })) })
 }
 
-/// Read a model file's text (I/O errors name the path) and build the model from it.
-pub fn model_from_path(py: Python<'_>, path: &Path) -> PyResult<PyModel> {
-    let label = path.display().to_string();
-    let text = py.detach(|| read_text_capped(path, MAX_MODEL_FILE_BYTES)).py_err()?;
-    model_from_text(py, text, label)
+/// The pointing override of the keyword arguments.
+fn pointing(
+    altitude_deg: Option<f64>,
+    azimuth_deg: Option<f64>,
+    hour_angle_deg: Option<f64>,
+    declination_deg: Option<f64>,
+    pier_side: Option<&str>,
+) -> PyResult<Pointing> {
+    let pier_side = match pier_side {
+        None => None,
+        Some("east") => Some(PierSide::East),
+        Some("west") => Some(PierSide::West),
+        Some(other) => {
+            return Err(stillsky::Error::invalid(
+                "pier_side",
+                format!("expected 'east' or 'west', got '{other}'"),
+            ))
+            .py_err();
+        }
+    };
+    Ok(Pointing { altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side })
+}
+
+/// Build a model from text with a pointing override (the core's `ModelFile::repoint`); the kept
+/// text is the re-pointed file, so a pickled copy has the same pose.
+fn model_pointed(py: Python<'_>, text: String, label: String, p: &Pointing) -> PyResult<PyModel> {
+    if p.is_empty() {
+        return model_from_text(py, text, label);
+    }
+    let (inner, text) = py
+        .detach(|| -> stillsky::Result<(Model, String)> {
+            let mut f = ModelFile::parse(&text, &label)?;
+            f.repoint(p)?;
+            Ok((f.to_model()?, f.to_toml()?))
+        })
+        .py_err()?;
+    Ok(PyModel { inner, source: Some(Arc::new(ModelSource { text, label })) })
 }
 
 /// Restore a pickled `Model` (the callable `Model.__reduce__` names).

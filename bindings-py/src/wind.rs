@@ -18,7 +18,9 @@ pub struct PyWind {
 impl PyWind {
     #[new]
     #[pyo3(signature = (kind, mean_speed_m_s, height_m, *, turbulence_intensity = None,
-                        roughness_length_m = None, shelter_factor = 1.0, air_density_kg_m3 = None))]
+                        roughness_length_m = None, shelter_factor = 1.0, air_density_kg_m3 = None,
+                        admittance = true))]
+    #[allow(clippy::too_many_arguments)]
     fn new(
         kind: &str,
         mean_speed_m_s: f64,
@@ -27,6 +29,7 @@ impl PyWind {
         roughness_length_m: Option<f64>,
         shelter_factor: f64,
         air_density_kg_m3: Option<f64>,
+        admittance: bool,
     ) -> PyResult<Self> {
         let inner = wind_spec(
             kind,
@@ -36,8 +39,14 @@ impl PyWind {
             roughness_length_m,
             shelter_factor,
             air_density_kg_m3,
-        )?;
+        )?
+        .with_admittance(admittance);
         Ok(Self { inner })
+    }
+
+    #[getter]
+    fn admittance(&self) -> bool {
+        self.inner.admittance
     }
 
     /// Along-wind velocity PSD ((m/s)²/Hz) on `freq_hz`.

@@ -57,8 +57,10 @@ def test_wind_equals_numpy_linearised_drag(model):
     # Quasi-steady linearised drag (docs/references.md#s6-6; e.g. Simiu & Scanlan, Wind Effects on
     # Structures): S_F = (ρ C_d A U)² S_u, with ρ = 1.225 kg/m³ and the model's [wind] area and
     # drag coefficient (tripod-lawn.toml: A = 0.2 m², C_d = 1.2); S_img = |H_wind→image|² S_F.
+    # With the admittance (the default) S_F is multiplied by Vickery's |χ|² = 1/[1 + (2f√A/U)^{4/3}]²
+    # (docs/references.md#s6-7).
     f = np.geomspace(0.2, 100.0, 400)
-    wind = stillsky.Wind("kaimal", 4.0, 2.0, turbulence_intensity=0.2)
+    wind = stillsky.Wind("kaimal", 4.0, 2.0, turbulence_intensity=0.2, admittance=False)
     r = model.image_motion(f, wind=wind, mode_shares=False)
     su = wind.spectrum(f).values
     np.testing.assert_array_equal(su, stillsky.wind_spectrum("kaimal", f, 4.0, 2.0, turbulence_intensity=0.2).values)
@@ -67,6 +69,11 @@ def test_wind_equals_numpy_linearised_drag(model):
     s_img = (np.abs(h) ** 2 * s_force[:, None]).T * ARCSEC_PER_RAD**2
     np.testing.assert_allclose(r.psd, s_img, rtol=1e-10)
     assert r.input_share == {"wind": pytest.approx(1.0)}
+    default = stillsky.Wind("kaimal", 4.0, 2.0, turbulence_intensity=0.2)
+    assert default.admittance and not wind.admittance
+    chi2 = 1.0 / (1.0 + (2.0 * f * np.sqrt(0.2) / 4.0) ** (4.0 / 3.0)) ** 2
+    r2 = model.image_motion(f, wind=default, mode_shares=False)
+    np.testing.assert_allclose(r2.psd, s_img * chi2, rtol=1e-10)
 
 
 def test_loads_mapping_and_pairs_agree(model):

@@ -14,7 +14,8 @@ use stillsky::batch::{self, Catalogue, GroundSource, ReportOptions, SweepConfig,
 use stillsky::checks::{CheckReport, StaticWind};
 use stillsky::guider::GuideLoop;
 use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
-use stillsky::schema::ModelFile;
+use stillsky::schema::{ModelFile, Pointing};
+use stillsky::sky::PierSide;
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 
 #[derive(Parser)]
@@ -81,6 +82,15 @@ struct WindArgs {
     /// Turbulence intensity σ_u / U.
     #[arg(long, default_value_t = 0.2)]
     turbulence: f64,
+    /// Quasi-steady drag: leave out the aerodynamic admittance of the wind load (on by default).
+    #[arg(long)]
+    quasi_steady_wind: bool,
+    /// Site elevation (m) for the air density (ISA pressure; default sea level, 1.225 kg/m³).
+    #[arg(long, allow_negative_numbers = true)]
+    site_elevation_m: Option<f64>,
+    /// Air temperature (°C) for the air density (default the ISA temperature of the elevation).
+    #[arg(long, allow_negative_numbers = true)]
+    air_temperature_c: Option<f64>,
 }
 
 #[derive(Args)]
@@ -106,10 +116,21 @@ struct ReportArgs {
     focal_length_mm: Option<f64>,
     #[arg(long)]
     pixel_um: Option<f64>,
-    #[arg(long)]
+    /// Pointing altitude (deg); the payload is posed for it as if the file said so.
+    #[arg(long, allow_negative_numbers = true)]
     altitude_deg: Option<f64>,
-    #[arg(long)]
+    /// Pointing azimuth (deg from north through east); poses the payload like --altitude-deg.
+    #[arg(long, allow_negative_numbers = true)]
     azimuth_deg: Option<f64>,
+    /// Equatorial rigs: hour angle (deg, positive west); poses the payload and counterweights.
+    #[arg(long, allow_negative_numbers = true)]
+    hour_angle_deg: Option<f64>,
+    /// Equatorial rigs: declination (deg).
+    #[arg(long, allow_negative_numbers = true)]
+    declination_deg: Option<f64>,
+    /// Equatorial rigs: side of the pier the tube is on, east or west (default by hour angle).
+    #[arg(long, value_parser = parse_pier_side)]
+    pier_side: Option<PierSide>,
     /// Exposure length (s): splits the motion into centroid wander and smear.
     #[arg(long)]
     exposure_s: Option<f64>,
@@ -234,6 +255,14 @@ fn parse_target(s: &str) -> Result<stillsky::identify::ModalTarget, String> {
     })
 }
 
+fn parse_pier_side(s: &str) -> Result<PierSide, String> {
+    match s {
+        "east" => Ok(PierSide::East),
+        "west" => Ok(PierSide::West),
+        _ => Err(format!("expected east or west, got '{s}'")),
+    }
+}
+
 fn parse_triple(s: &str) -> Result<[f64; 3], String> {
     let v: Vec<f64> = s
         .split(',')
@@ -307,7 +336,13 @@ fn parse_sensitivity(s: &str) -> Result<Sensitivity, String> {
 fn wind_spec(w: &WindArgs) -> Result<Option<WindSpec>, Failure> {
     let Some(u) = w.wind_speed else { return Ok(None) };
     let kind = WindSpectrum::from_name(&w.wind_spectrum)?;
-    let spec = WindSpec::new(kind, u, w.wind_height, Turbulence::Intensity(w.turbulence));
+    let mut spec = WindSpec::new(kind, u, w.wind_height, Turbulence::Intensity(w.turbulence))
+        .with_admittance(!w.quasi_steady_wind);
+    if w.site_elevation_m.is_some() || w.air_temperature_c.is_some() {
+        let h = w.site_elevation_m.unwrap_or(0.0);
+        let t = w.air_temperature_c.unwrap_or(15.0 - 0.0065 * h);
+        spec = spec.with_air_density(stillsky::wind::air_density_kg_m3(h, t)?);
+    }
     spec.validate()?;
     Ok(Some(spec))
 }
@@ -326,8 +361,6 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     o.wind = wind_spec(&a.wind)?;
     o.focal_length_mm = a.focal_length_mm;
     o.pixel_um = a.pixel_um;
-    o.altitude_deg = a.altitude_deg;
-    o.azimuth_deg = a.azimuth_deg;
     o.seeing_fwhm_arcsec = a.seeing_arcsec;
     o.exposure_s = a.exposure_s;
     if let (Some(cadence_s), Some(gain)) = (a.guide_cadence_s, a.guide_gain) {
@@ -357,12 +390,14 @@ struct ReportRun {
 
 fn run_report(
     model: &Path,
+    pointing: &Pointing,
     o: &ReportOptions,
     catalogue: Option<&Path>,
     plots: Option<&Path>,
     json: Option<&Path>,
 ) -> Result<ReportRun, Failure> {
-    let file = ModelFile::read(model)?;
+    let mut file = ModelFile::read(model)?;
+    file.repoint(pointing)?;
     let spec = file.expanded()?;
     let mut o = o.clone();
     if o.wind.is_some() {
@@ -434,7 +469,15 @@ fn sweep_svgs(s: &batch::SweepOutcome) -> Result<Vec<plots::Plot>, Failure> {
 
 fn report(a: &ReportArgs) -> CliResult {
     let o = report_options(a)?;
-    let run = run_report(&a.model, &o, a.catalogue.as_deref(), a.plots.as_deref(), a.json.as_deref())?;
+    let pointing = Pointing {
+        altitude_deg: a.altitude_deg,
+        azimuth_deg: a.azimuth_deg,
+        hour_angle_deg: a.hour_angle_deg,
+        declination_deg: a.declination_deg,
+        pier_side: a.pier_side,
+    };
+    let run =
+        run_report(&a.model, &pointing, &o, a.catalogue.as_deref(), a.plots.as_deref(), a.json.as_deref())?;
     if let Some(h) = &a.html {
         write_report_html(h, &a.model, &o, &run, None)?;
     }
@@ -588,8 +631,14 @@ fn demo(out: &Path) -> CliResult {
     o.wind = Some(WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2)));
     o.exposure_s = Some(2.0);
     let catalogue = ex.join("isolators.toml");
-    let report_run =
-        run_report(&model, &o, Some(&catalogue), Some(&out.join("plots")), Some(&out.join("report.json")))?;
+    let report_run = run_report(
+        &model,
+        &Pointing::default(),
+        &o,
+        Some(&catalogue),
+        Some(&out.join("plots")),
+        Some(&out.join("report.json")),
+    )?;
     println!();
     println!("== sweep: isolators × three recordings × (calm, 4 m/s) ==");
     let grounds = ["quiet-night.csv", "road-nearby.csv", "footsteps.csv"]

@@ -380,3 +380,46 @@ fn calibrate_fits_the_tilt_stiffness_and_writes_the_model() {
         run(&["calibrate", s(&model), "--param", "mount.tilt_stiffness_nm_per_rad=oops", "--target", "10"]);
     assert_eq!(o.status.code(), Some(2));
 }
+
+#[test]
+fn pointing_on_the_command_line_equals_editing_the_file() {
+    // --altitude-deg / --azimuth-deg pose the payload as the file's [optics] would: the modes
+    // and the image RMS of both runs agree to 1e-12.
+    let d = tmp("pointing");
+    let model = examples().join("tripod-paver.toml");
+    let edited = d.join("edited.toml");
+    let body = std::fs::read_to_string(&model)
+        .unwrap()
+        .replace("altitude_deg = 45", "altitude_deg = 80")
+        .replace("azimuth_deg = 135", "azimuth_deg = 250");
+    std::fs::write(&edited, body).unwrap();
+    let rms = |v: &serde_json::Value| v["image"]["rms_arcsec"].as_f64().unwrap();
+    let json = |m: &Path, extra: &[&str], tag: &str| -> serde_json::Value {
+        let j = d.join(format!("{tag}.json"));
+        let mut args = vec!["report", s(m), "--ground", "none", "--wind-speed", "4", "--json", s(&j)];
+        args.extend_from_slice(extra);
+        let o = run(&args);
+        assert!(o.status.success(), "{}", text(&o).1);
+        serde_json::from_str(&std::fs::read_to_string(&j).unwrap()).unwrap()
+    };
+    let a = json(&model, &["--altitude-deg", "80", "--azimuth-deg", "250"], "flags");
+    // Negative angles are values, not options.
+    let eq = examples().join("equatorial-pier.toml");
+    let e = json(&eq, &["--hour-angle-deg", "-30", "--declination-deg", "-5", "--pier-side", "west"], "eq");
+    assert!(rms(&e) > 0.0);
+    let b = json(&edited, &[], "file");
+    let c = json(&model, &[], "own");
+    let close = |x: f64, y: f64| (x - y).abs() <= 1e-12 * x.abs().max(y.abs());
+    let modes = |v: &serde_json::Value, k: &str| -> Vec<f64> {
+        v["modes"].as_array().unwrap().iter().map(|m| m[k].as_f64().unwrap()).collect()
+    };
+    for k in ["frequency_hz", "damping_ratio"] {
+        let (ma, mb) = (modes(&a, k), modes(&b, k));
+        assert_eq!(ma.len(), mb.len());
+        assert!(ma.iter().zip(&mb).all(|(x, y)| close(*x, *y)), "{k}: {ma:?} vs {mb:?}");
+    }
+    assert!(close(rms(&a), rms(&b)), "{} vs {}", rms(&a), rms(&b));
+    // And it is a different pose from the file's own 45°.
+    let (fa, fc) = (modes(&a, "frequency_hz"), modes(&c, "frequency_hz"));
+    assert!(fa.iter().zip(&fc).any(|(x, y)| (x - y).abs() > 1e-3 * x), "{fa:?} vs {fc:?}");
+}

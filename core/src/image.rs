@@ -567,39 +567,98 @@ pub fn pointing_map(
     disturbances: &Disturbances,
     opts: &ImageOptions,
 ) -> Result<PointingMap> {
-    use rayon::prelude::*;
     if altitude_deg.is_empty() || azimuth_deg.is_empty() {
         return Err(Error::invalid("pointing grid", "needs at least one altitude and one azimuth"));
     }
+    let (rms_arcsec, rms_px) =
+        map_over(file, altitude_deg.len(), azimuth_deg.len(), grid, disturbances, opts, |i, j| {
+            crate::schema::Pointing {
+                altitude_deg: Some(altitude_deg[i]),
+                azimuth_deg: Some(azimuth_deg[j]),
+                ..Default::default()
+            }
+        })?;
+    Ok(PointingMap {
+        altitude_deg: altitude_deg.to_vec(),
+        azimuth_deg: azimuth_deg.to_vec(),
+        rms_arcsec,
+        rms_px,
+    })
+}
+
+/// Image RMS over a grid of hour angle × declination.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EquatorialMap {
+    pub hour_angle_deg: Vec<f64>,
+    pub declination_deg: Vec<f64>,
+    /// Radial RMS (arcsec), `[hour angle][declination]`.
+    pub rms_arcsec: Vec<Vec<f64>>,
+    /// Radial RMS in pixels, `[hour angle][declination]`.
+    pub rms_px: Vec<Vec<f64>>,
+}
+
+/// Image RMS on a grid of hour angle × declination for a model pointed by hour angle and
+/// declination (an equatorial rig): the file is re-pointed at each cell with the usual pier side
+/// (counterweights low, [`crate::sky::PierSide::usual`]), so payload and counterweights are
+/// re-posed. Disturbances stay fixed in the site's frame.
+pub fn equatorial_map(
+    file: &crate::schema::ModelFile,
+    hour_angle_deg: &[f64],
+    declination_deg: &[f64],
+    grid: &FreqGrid,
+    disturbances: &Disturbances,
+    opts: &ImageOptions,
+) -> Result<EquatorialMap> {
+    if hour_angle_deg.is_empty() || declination_deg.is_empty() {
+        return Err(Error::invalid("sky grid", "needs at least one hour angle and one declination"));
+    }
+    let (rms_arcsec, rms_px) =
+        map_over(file, hour_angle_deg.len(), declination_deg.len(), grid, disturbances, opts, |i, j| {
+            crate::schema::Pointing {
+                hour_angle_deg: Some(hour_angle_deg[i]),
+                declination_deg: Some(declination_deg[j]),
+                pier_side: Some(crate::sky::PierSide::usual(hour_angle_deg[i])),
+                ..Default::default()
+            }
+        })?;
+    Ok(EquatorialMap {
+        hour_angle_deg: hour_angle_deg.to_vec(),
+        declination_deg: declination_deg.to_vec(),
+        rms_arcsec,
+        rms_px,
+    })
+}
+
+/// Radial RMS (arcsec, px) of `file` re-pointed at each cell of an `nr` × `nc` grid.
+#[allow(clippy::type_complexity)]
+fn map_over(
+    file: &crate::schema::ModelFile,
+    nr: usize,
+    nc: usize,
+    grid: &FreqGrid,
+    disturbances: &Disturbances,
+    opts: &ImageOptions,
+    pointing: impl Fn(usize, usize) -> crate::schema::Pointing + Sync,
+) -> Result<(Vec<Vec<f64>>, Vec<Vec<f64>>)> {
+    use rayon::prelude::*;
     if file.generic.optics.is_none() {
         return Err(Error::invalid("optics", "the model file has no [optics] section"));
     }
     let opts = ImageOptions { skip_mode_shares: true, ..opts.clone() };
-    let cells: Vec<(usize, usize)> =
-        (0..altitude_deg.len()).flat_map(|i| (0..azimuth_deg.len()).map(move |j| (i, j))).collect();
+    let cells: Vec<(usize, usize)> = (0..nr).flat_map(|i| (0..nc).map(move |j| (i, j))).collect();
     let vals = cells
         .par_iter()
         .map(|&(i, j)| {
             let mut f = file.clone();
-            if let Some(o) = f.generic.optics.as_mut() {
-                o.altitude_deg = altitude_deg[i];
-                o.azimuth_deg = azimuth_deg[j];
-            }
-            let m = f.to_model()?;
-            let im = m.image_motion(grid, disturbances, &opts)?;
+            f.repoint(&pointing(i, j))?;
+            let im = f.to_model()?.image_motion(grid, disturbances, &opts)?;
             Ok((im.rms_arcsec, im.rms_px))
         })
         .collect::<Result<Vec<_>>>()?;
-    let na = azimuth_deg.len();
     let rows = |k: usize| -> Vec<Vec<f64>> {
-        (0..altitude_deg.len())
-            .map(|i| (0..na).map(|j| if k == 0 { vals[i * na + j].0 } else { vals[i * na + j].1 }).collect())
+        (0..nr)
+            .map(|i| (0..nc).map(|j| if k == 0 { vals[i * nc + j].0 } else { vals[i * nc + j].1 }).collect())
             .collect()
     };
-    Ok(PointingMap {
-        altitude_deg: altitude_deg.to_vec(),
-        azimuth_deg: azimuth_deg.to_vec(),
-        rms_arcsec: rows(0),
-        rms_px: rows(1),
-    })
+    Ok((rows(0), rows(1)))
 }

@@ -34,7 +34,9 @@
 //! - [`frf`]: frequency response by direct complex solve per frequency (or modal superposition
 //!   where exact), and [`frf::variants`] for many variants that each replace a few springs.
 //! - [`modes`]: natural frequencies, mode shapes, modal damping and participation.
-//! - [`rig`]: builders for payloads, mounts, tripods, pads, piers, floors.
+//! - [`rig`]: builders for payloads, mounts (alt-azimuth, German equatorial), tripods, pads,
+//!   piers, floors.
+//! - [`sky`]: hour angle and declination to altitude and azimuth; RA and Dec axes on the sky.
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
 //! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
 //! - [`guider`]: the sampled-data guide loop (exposure, cadence, gains, latency, hold, aliasing).
@@ -70,6 +72,7 @@ pub mod response;
 pub mod rig;
 pub mod schema;
 pub mod section;
+pub mod sky;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;

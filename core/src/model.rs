@@ -9,7 +9,11 @@
 //! Outputs (one row each):
 //! - `NAME:x|y|z|rx|ry|rz`: absolute displacement (m) or rotation (rad) of a body's CG or a node.
 //! - `image_x`, `image_y`: line-of-sight motion on the sky (rad) along increasing azimuth and
-//!   altitude (rotated by the camera rotation), from the rotation of the optics body.
+//!   altitude, or along increasing right ascension and declination when the optics are pointed
+//!   by hour angle and declination (rotated by the camera rotation), from the rotation of the
+//!   optics body.
+//! - `image_ra`, `image_dec`: along increasing right ascension and declination, unrotated
+//!   (equatorial pointings only).
 //!
 //! So output `payload:z` for input `ground_z` is the dimensionless transmissibility.
 
@@ -19,6 +23,9 @@ use crate::spectrum::Quantity;
 use ndarray::{Array1, Array2};
 use num_complex::Complex64;
 use std::f64::consts::PI;
+
+/// The image outputs (angles on the sky).
+pub const IMAGE_OUTPUTS: [&str; 4] = ["image_x", "image_y", "image_ra", "image_dec"];
 
 /// The three ground-motion inputs.
 pub const GROUND_INPUTS: [&str; 3] = ["ground_x", "ground_y", "ground_z"];
@@ -217,9 +224,13 @@ impl Model {
     pub fn output_names(&self) -> Vec<String> {
         let mut v: Vec<String> =
             self.labels.iter().filter(|l| !l.owner.contains('#')).map(|l| l.to_string()).collect();
-        if self.spec.optics.is_some() {
+        if let Some(o) = &self.spec.optics {
             v.push("image_x".into());
             v.push("image_y".into());
+            if o.hour_angle_deg.is_some() {
+                v.push("image_ra".into());
+                v.push("image_dec".into());
+            }
         }
         v
     }
@@ -284,13 +295,26 @@ impl Model {
     /// Resolve an output name to a real row over the free DOFs.
     pub(crate) fn output(&self, name: &str) -> Result<Vec<f64>> {
         let n = self.n;
-        if name == "image_x" || name == "image_y" {
+        if IMAGE_OUTPUTS.contains(&name) {
             let o = self.spec.optics.as_ref().ok_or_else(|| {
                 Error::invalid(format!("output '{name}'"), "the model has no [optics] section")
             })?;
             let c = self.carrier(&o.body, "optics.body")?;
             let (los, ex, ey) = o.axes();
-            let e = if name == "image_x" { ex } else { ey };
+            let e = match name {
+                "image_x" => ex,
+                "image_y" => ey,
+                _ => {
+                    if o.hour_angle_deg.is_none() {
+                        return Err(Error::invalid(
+                            format!("output '{name}'"),
+                            "needs optics pointed by hour_angle_deg and declination_deg",
+                        ));
+                    }
+                    let (_, ra, dec) = o.reference_axes();
+                    if name == "image_ra" { ra } else { dec }
+                }
+            };
             // e·(θ × â) = θ·(â × e)
             let w =
                 [los[1] * e[2] - los[2] * e[1], los[2] * e[0] - los[0] * e[2], los[0] * e[1] - los[1] * e[0]];
@@ -305,7 +329,7 @@ impl Model {
         let (owner, dof) = name.rsplit_once(':').ok_or_else(|| Error::UnknownName {
             kind: "output".into(),
             name: name.into(),
-            known: "BODY:x|y|z|rx|ry|rz, image_x, image_y".into(),
+            known: "BODY:x|y|z|rx|ry|rz, image_x, image_y, image_ra, image_dec".into(),
         })?;
         let c = self.carrier(owner, name)?;
         let d = Dof::parse(dof)?;
@@ -330,12 +354,11 @@ impl Model {
         Ok(Array1::from(out))
     }
 
-    /// The physical quantity of an output by its name: `image_x`, `image_y` and `BODY:rx|ry|rz`
+    /// The physical quantity of an output by its name: the image outputs and `BODY:rx|ry|rz`
     /// are angles (rad), every other output a displacement (m). The one naming rule used by
     /// response PSDs and transient results.
     pub fn output_quantity(name: &str) -> Quantity {
-        let angle = name == "image_x"
-            || name == "image_y"
+        let angle = IMAGE_OUTPUTS.contains(&name)
             || name.ends_with(":rx")
             || name.ends_with(":ry")
             || name.ends_with(":rz");

@@ -122,11 +122,10 @@ impl Modes {
     }
 
     /// A name for mode `j` in the mount's own axes: the owner with the most kinetic energy and
-    /// what it mostly does. Rotations of the optics-carrying frame read about the altitude axis
-    /// (nodding: the image moves in altitude), about the axis across the line of sight in the
-    /// vertical plane (swinging: the image moves in azimuth), or about the line of sight (roll);
-    /// translations read across or along the pointing (horizontal) or vertical. Without
-    /// `[optics]` the global axes are used.
+    /// what it mostly does. Rotations read as a nod (the image moves in altitude, or declination
+    /// on an equatorial rig), a swing (in azimuth, or right ascension) or a roll about the line
+    /// of sight; translations read across or along the pointing (horizontal) or vertical.
+    /// Without `[optics]` the global axes are used.
     pub fn label(&self, model: &Model, j: usize) -> Result<String> {
         let e = self.energy(model, j)?;
         let Some((owner, _)) = e.bodies.first() else { return Ok(String::new()) };
@@ -157,28 +156,28 @@ impl Modes {
         }
         let what = match model.optics() {
             Some(o) => {
-                let (los, _, _) = o.axes();
-                let a = o.azimuth_deg.to_radians();
-                let h = o.altitude_deg.to_radians();
-                let alt_axis = [a.cos(), -a.sin(), 0.0];
-                let cross = [-a.sin() * h.sin(), -a.cos() * h.sin(), h.cos()];
-                if er >= et {
-                    pick(
-                        &r,
-                        &[
-                            (alt_axis, "altitude nod"),
-                            (cross, "azimuth swing"),
-                            (los, "roll about the line of sight"),
-                        ],
-                    )
+                // A turn about e1 (along which the image moves for azimuth or RA) moves the
+                // image along e2, and a turn about e2 moves it along e1.
+                let (los, e1, e2) = o.reference_axes();
+                let (nod, swing) = if matches!(o.equatorial(), Ok(Some(_))) {
+                    ("declination nod", "right-ascension swing")
                 } else {
-                    let along = [a.sin(), a.cos(), 0.0];
+                    ("altitude nod", "azimuth swing")
+                };
+                if er >= et {
+                    pick(&r, &[(e1, nod), (e2, swing), (los, "roll about the line of sight")])
+                } else {
+                    let up = [0.0, 0.0, 1.0];
+                    let h = [los[0], los[1], 0.0];
+                    let hn = (h[0] * h[0] + h[1] * h[1]).sqrt();
+                    let along = if hn > 1e-9 { [h[0] / hn, h[1] / hn, 0.0] } else { [0.0, 1.0, 0.0] };
+                    let across = [along[1], -along[0], 0.0];
                     pick(
                         &t,
                         &[
-                            (alt_axis, "sway across the pointing"),
+                            (across, "sway across the pointing"),
                             (along, "sway along the pointing"),
-                            ([0.0, 0.0, 1.0], "vertical bounce"),
+                            (up, "vertical bounce"),
                         ],
                     )
                 }

@@ -62,7 +62,8 @@ impl Disturbances {
             let load = model.wind().ok_or_else(|| {
                 Error::invalid("wind", "the model has no [wind] section (load point, area, drag coefficient)")
             })?;
-            let f = w.drag_force_psd(load.drag_coefficient, load.area_m2, grid, None)?;
+            let chi = w.admittance_sq(grid, load.area_m2)?;
+            let f = w.drag_force_psd(load.drag_coefficient, load.area_m2, grid, chi.as_deref())?;
             out.push(("wind".to_string(), f.values().to_vec()));
         }
         for (name, p) in &self.loads {
@@ -80,7 +81,8 @@ impl Disturbances {
         Ok(out)
     }
 
-    /// A note when a given spectrum does not cover the analysis grid (those parts count as 0).
+    /// A note when a given spectrum does not cover the analysis grid (those parts count as 0),
+    /// and the share of the wind's σ_u² below the grid's first frequency when above 0.1 %.
     pub fn coverage_note(&self, grid: &FreqGrid) -> Option<String> {
         let (lo, hi) = (grid.hz()[0], grid.hz()[grid.len() - 1]);
         let mut short = Vec::new();
@@ -94,6 +96,13 @@ impl Disturbances {
             if a > lo * (1.0 + 1e-9) || b < hi * (1.0 - 1e-9) {
                 short.push(format!("{name} covers {a:.3}–{b:.1} Hz"));
             }
+        }
+        let share = self.wind.as_ref().and_then(|w| w.variance_share_below(lo).ok());
+        if let Some(share) = share.filter(|s| *s > 1e-3) {
+            short.push(format!(
+                "wind: {:.1} % of σ_u² lies below the grid's first frequency {lo:.3} Hz",
+                100.0 * share
+            ));
         }
         (!short.is_empty()).then(|| {
             format!(

@@ -11,7 +11,8 @@ use crate::error::{Error, Result};
 use crate::io::read_text_capped;
 use crate::io::toml_doc::{read_shared, struct_fields};
 use crate::model::Model;
-use crate::rig::RigSpec;
+use crate::rig::{MountKind, RigSpec};
+use crate::sky::PierSide;
 use serde::{Deserialize, Serialize};
 
 /// Largest model file accepted (bytes).
@@ -29,6 +30,26 @@ pub struct ModelFile {
     /// The rig layer.
     #[serde(flatten)]
     pub rig: RigSpec,
+}
+
+/// A pointing that replaces the file's own (`[optics]`) before the rig layer is expanded, so the
+/// payload is posed for it exactly as if the file had been edited. `None` keeps the file's value.
+/// Alt-azimuth pointings take `altitude_deg`/`azimuth_deg`, equatorial ones `hour_angle_deg`,
+/// `declination_deg` and `pier_side`.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Pointing {
+    pub altitude_deg: Option<f64>,
+    pub azimuth_deg: Option<f64>,
+    pub hour_angle_deg: Option<f64>,
+    pub declination_deg: Option<f64>,
+    pub pier_side: Option<PierSide>,
+}
+
+impl Pointing {
+    /// True when nothing is overridden.
+    pub fn is_empty(&self) -> bool {
+        self == &Pointing::default()
+    }
 }
 
 /// The one top-level key outside the two layers.
@@ -68,6 +89,56 @@ impl ModelFile {
         Self::parse(&text, &path.display().to_string())
     }
 
+    /// Replace the pointing of `[optics]` (see [`Pointing`]); the rig layer poses the payload for
+    /// it when the file is expanded. An empty override changes nothing.
+    pub fn repoint(&mut self, p: &Pointing) -> Result<()> {
+        if p.is_empty() {
+            return Ok(());
+        }
+        let o = self.generic.optics.as_mut().ok_or_else(|| {
+            Error::invalid("optics", "the model has no [optics] section to take a pointing")
+        })?;
+        let altaz = p.altitude_deg.is_some() || p.azimuth_deg.is_some();
+        let equatorial = p.hour_angle_deg.is_some() || p.declination_deg.is_some() || p.pier_side.is_some();
+        let file_equatorial = o.hour_angle_deg.is_some()
+            || self.rig.mount.as_ref().is_some_and(|m| m.kind == Some(MountKind::Equatorial));
+        if altaz && (equatorial || file_equatorial) {
+            return Err(Error::invalid(
+                "pointing",
+                "this model is pointed by hour angle, declination and pier side, not altitude and azimuth",
+            ));
+        }
+        if equatorial && !file_equatorial {
+            return Err(Error::invalid(
+                "pointing",
+                "this model is pointed by altitude and azimuth (hour angle and declination need an equatorial mount or optics.latitude_deg)",
+            ));
+        }
+        if p.altitude_deg.is_some() {
+            o.altitude_deg = p.altitude_deg;
+        }
+        if p.azimuth_deg.is_some() {
+            o.azimuth_deg = p.azimuth_deg;
+        }
+        if equatorial {
+            o.hour_angle_deg = p.hour_angle_deg.or(o.hour_angle_deg);
+            o.declination_deg = p.declination_deg.or(o.declination_deg);
+            o.pier_side = p.pier_side.or(o.pier_side);
+            if p.hour_angle_deg.is_some() && p.pier_side.is_none() && self.rig.mount.is_some() {
+                // A new hour angle takes its usual side unless one is given.
+                o.pier_side = None;
+            }
+            // Derived values of the old pointing (as an expanded file carries them) go.
+            o.altitude_deg = None;
+            o.azimuth_deg = None;
+        }
+        if file_equatorial && self.rig.mount.is_some() {
+            // The rig layer checks an equatorial pointing against the mount when it expands.
+            return Ok(());
+        }
+        o.validate()
+    }
+
     /// The generic model: the rig layer expanded, followed by the file's own generic entries.
     pub fn expanded(&self) -> Result<ModelSpec> {
         let g = &self.generic;
@@ -78,9 +149,8 @@ impl ModelFile {
         spec.torsion_springs.extend(g.torsion_springs.iter().cloned());
         spec.general_springs.extend(g.general_springs.iter().cloned());
         spec.beams.extend(g.beams.iter().cloned());
-        if g.optics.is_some() {
-            spec.optics = g.optics.clone();
-        }
+        // The optics come back from the rig layer (with an equatorial pointing's altitude and
+        // azimuth filled in).
         if g.wind.is_some() {
             spec.wind = g.wind.clone();
         }
@@ -123,8 +193,13 @@ impl Model {
 mod tests {
     use super::*;
 
-    const EXAMPLES: [&str; 4] =
-        ["tripod-lawn.toml", "tripod-paver.toml", "tripod-paver-generic.toml", "pier.toml"];
+    const EXAMPLES: [&str; 5] = [
+        "tripod-lawn.toml",
+        "tripod-paver.toml",
+        "tripod-paver-generic.toml",
+        "pier.toml",
+        "equatorial-pier.toml",
+    ];
 
     fn example(name: &str) -> std::path::PathBuf {
         std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/examples").join(name)

@@ -26,7 +26,7 @@
 //! # Ok::<(), stillsky::Error>(())
 //! ```
 
-use crate::error::{Error, Result, require_positive};
+use crate::error::{Error, Result, require_finite, require_positive};
 use crate::grid::FreqGrid;
 use crate::spectrum::{Psd, Quantity};
 
@@ -93,6 +93,23 @@ pub fn isa_air_density_kg_m3(altitude_m: f64) -> Result<f64> {
     Ok(p / (287.05287 * t))
 }
 
+/// Air density at a site's elevation and air temperature: the ISA pressure at `elevation_m`
+/// (as [`isa_air_density_kg_m3`]) with the ideal gas law at the actual temperature,
+/// ρ = p_ISA(h) / (287.05287 (T + 273.15)) (dry air). At the ISA temperature of that height it
+/// is the ISA density.
+pub fn air_density_kg_m3(elevation_m: f64, temperature_c: f64) -> Result<f64> {
+    require_finite("temperature_c", temperature_c)?;
+    if !(-80.0..=60.0).contains(&temperature_c) {
+        return Err(Error::invalid(
+            "temperature_c",
+            format!("must lie in [-80, 60] °C, got {temperature_c}"),
+        ));
+    }
+    let t_isa = 288.15 - 0.0065 * elevation_m;
+    let p = isa_air_density_kg_m3(elevation_m)? * 287.05287 * t_isa;
+    Ok(p / (287.05287 * (temperature_c + 273.15)))
+}
+
 /// Which along-wind spectrum shape to use.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum WindSpectrum {
@@ -157,6 +174,18 @@ pub struct WindSpec {
     pub shelter_factor: f64,
     /// Air density ρ (kg/m³), default 1.225 (ISA sea level).
     pub air_density_kg_m3: f64,
+    /// Apply the aerodynamic admittance of a compact body ([`vickery_admittance_sq`]) to the
+    /// drag at a model's `[wind]` load (default true); false gives the quasi-steady drag.
+    pub admittance: bool,
+}
+
+/// Aerodynamic admittance of a compact body of frontal area A in a gusty flow, Vickery's (1965)
+/// form as quoted by Holmes (docs/references.md#s6-7):
+/// |χ(n)|² = 1 / [1 + (2 n √A / U)^{4/3}]². It tends to 1 (quasi-steady) for gusts much larger
+/// than the body and falls as n^{−8/3} for gusts much smaller.
+pub fn vickery_admittance_sq(freq_hz: f64, area_m2: f64, mean_speed_m_s: f64) -> f64 {
+    let x = 2.0 * freq_hz * area_m2.sqrt() / mean_speed_m_s;
+    1.0 / (1.0 + x.powf(4.0 / 3.0)).powi(2)
 }
 
 impl WindSpec {
@@ -169,7 +198,37 @@ impl WindSpec {
             turbulence,
             shelter_factor: 1.0,
             air_density_kg_m3: AIR_DENSITY_SEA_LEVEL_KG_M3,
+            admittance: true,
         }
+    }
+
+    /// Switch the aerodynamic admittance on (default) or off (quasi-steady drag).
+    pub fn with_admittance(mut self, on: bool) -> Self {
+        self.admittance = on;
+        self
+    }
+
+    /// |χ|² on `grid` for a load of `area_m2` at the sheltered mean speed, or `None` when the
+    /// admittance is off.
+    pub fn admittance_sq(&self, grid: &FreqGrid, area_m2: f64) -> Result<Option<Vec<f64>>> {
+        if !self.admittance {
+            return Ok(None);
+        }
+        require_positive("area_m2", area_m2)?;
+        let u = self.effective_speed_m_s()?;
+        Ok(Some(grid.hz().iter().map(|&f| vickery_admittance_sq(f, area_m2, u)).collect()))
+    }
+
+    /// Share of σ_u² carried by frequencies below `f_hz`: ∫₀^f S_u / σ_u², by the trapezoid rule
+    /// on a log grid of 4000 points from 10⁻⁶ f (the spectra are flat there, so the part left
+    /// out is about 10⁻⁶ of the share).
+    pub fn variance_share_below(&self, f_hz: f64) -> Result<f64> {
+        require_positive("f_hz", f_hz)?;
+        let grid = FreqGrid::log(1e-6 * f_hz, f_hz, 4000)?;
+        let s = self.velocity_psd(&grid)?;
+        let below = crate::grid::trapezoid(grid.hz(), s.values());
+        let var = self.sigma_u_m_s()?.powi(2);
+        Ok((below / var).clamp(0.0, 1.0))
     }
 
     /// Set the shelter factor.
@@ -491,5 +550,55 @@ mod tests {
         let e = WindSpectrum::from_name("harris").unwrap_err();
         assert!(e.to_string().contains("von-karman"), "{e}");
         assert_eq!(WindSpectrum::from_name("Von_Karman").unwrap(), WindSpectrum::VonKarman);
+    }
+
+    #[test]
+    fn vickery_admittance_matches_its_formula() {
+        // |χ|² = 1/[1 + (2n√A/U)^{4/3}]² (Vickery 1965, as quoted by Holmes; docs/references.md#s6-7):
+        // 2n√A/U = 1 gives 1/4, = 8 gives 1/(1 + 16)² = 1/289; it tends to 1 as n → 0.
+        assert_relative_eq!(vickery_admittance_sq(0.5, 1.0, 1.0), 0.25, max_relative = 1e-6);
+        assert_relative_eq!(vickery_admittance_sq(8.0, 0.25, 1.0), 1.0 / 289.0, max_relative = 1e-6);
+        assert_relative_eq!(vickery_admittance_sq(1e-9, 0.2, 4.0), 1.0, max_relative = 1e-6);
+        for &(n, a, u) in &[(18.3f64, 0.2f64, 4.0f64), (0.7, 0.05, 12.0), (3.0, 1.5, 2.0)] {
+            let x = 2.0 * n * a.sqrt() / u;
+            let want = (1.0 + x.powf(4.0 / 3.0)).powi(-2);
+            assert_relative_eq!(vickery_admittance_sq(n, a, u), want, max_relative = 1e-6);
+        }
+        // On by default and applied by drag_force_psd's caller; off gives χ = 1.
+        let s = WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2));
+        let g = FreqGrid::log(0.1, 50.0, 20).unwrap();
+        let chi = s.admittance_sq(&g, 0.2).unwrap().unwrap();
+        assert_relative_eq!(chi[19], vickery_admittance_sq(50.0, 0.2, 4.0), max_relative = 1e-12);
+        assert!(s.clone().with_admittance(false).admittance_sq(&g, 0.2).unwrap().is_none());
+    }
+
+    #[test]
+    fn share_of_the_gust_variance_below_a_frequency() {
+        // Kaimal-IEC integrates in closed form: ∫₀^f S_u = σ_u² [1 − (1 + 6 f L/U)^{−2/3}]
+        // (docs/references.md#s6-2 spectrum, integrated by hand).
+        let s = WindSpec::new(WindSpectrum::KaimalIec, 4.0, 2.0, Turbulence::Intensity(0.2));
+        let l = s.length_scale_m().unwrap();
+        for f in [0.02, 0.2, 2.0] {
+            let want = 1.0 - (1.0 + 6.0 * f * l / 4.0).powf(-2.0 / 3.0);
+            assert_relative_eq!(s.variance_share_below(f).unwrap(), want, max_relative = 1e-4);
+        }
+    }
+
+    #[test]
+    fn air_density_from_elevation_and_temperature() {
+        // At the ISA temperature of the height it is the ISA density; at 1000 m and 15 °C it is
+        // the ISA pressure there, 89 874.6 Pa (ISA tables, from memory), over R T:
+        // 89 874.6 / (287.05287 × 288.15) = 1.08656 kg/m³.
+        for h in [0.0, 1000.0, 2500.0] {
+            let t = 15.0 - 0.0065 * h;
+            assert_relative_eq!(
+                air_density_kg_m3(h, t).unwrap(),
+                isa_air_density_kg_m3(h).unwrap(),
+                max_relative = 1e-12
+            );
+        }
+        assert_relative_eq!(air_density_kg_m3(1000.0, 15.0).unwrap(), 1.08656, max_relative = 1e-4);
+        assert!(air_density_kg_m3(0.0, -10.0).unwrap() > air_density_kg_m3(0.0, 30.0).unwrap());
+        assert!(air_density_kg_m3(0.0, 99.0).is_err() && air_density_kg_m3(20_000.0, 0.0).is_err());
     }
 }

@@ -30,9 +30,12 @@ fn mode_along(modes: &stillsky::modes::Modes, d: usize) -> usize {
 #[test]
 fn demo_files_load_with_modes_in_plausible_ranges() {
     // Ranges: tripods 5–20 Hz, piers 10–40 Hz for the first mode (common practice, no source).
-    for (file, lo, hi) in
-        [("tripod-lawn.toml", 5.0, 20.0), ("tripod-paver.toml", 5.0, 20.0), ("pier.toml", 10.0, 40.0)]
-    {
+    for (file, lo, hi) in [
+        ("tripod-lawn.toml", 5.0, 20.0),
+        ("tripod-paver.toml", 5.0, 20.0),
+        ("pier.toml", 10.0, 40.0),
+        ("equatorial-pier.toml", 10.0, 40.0),
+    ] {
         let mf = ModelFile::read(&example(file)).unwrap();
         let model = mf.to_model().unwrap();
         let f0 = model.modes().unwrap().frequency_hz[0];
@@ -118,12 +121,15 @@ fn pad_in_series_lowers_vertical_mode_by_series_rule() {
     assert!(modes.frequency_hz[j] < 0.2 * bare.frequency_hz[mode_along(&bare, 2)]);
 }
 
-fn posed(alt: f64, az: f64) -> ModelSpec {
-    let text = std::fs::read_to_string(example("tripod-paver.toml"))
+fn posed_text(alt: f64, az: f64) -> String {
+    std::fs::read_to_string(example("tripod-paver.toml"))
         .unwrap()
         .replace("altitude_deg = 45", &format!("altitude_deg = {alt}"))
-        .replace("azimuth_deg = 135", &format!("azimuth_deg = {az}"));
-    spec(&text)
+        .replace("azimuth_deg = 135", &format!("azimuth_deg = {az}"))
+}
+
+fn posed(alt: f64, az: f64) -> ModelSpec {
+    spec(&posed_text(alt, az))
 }
 
 /// Invariants of a symmetric 3 × 3 tensor: trace, sum of principal 2 × 2 minors, determinant.
@@ -385,4 +391,249 @@ fn beam_legs_vertical_mode_matches_rayleigh() {
     let modes = Model::from_spec(&s).unwrap().modes().unwrap();
     let j = mode_along(&modes, 2);
     assert_relative_eq!(modes.frequency_hz[j], (kv / m).sqrt() / (2.0 * PI), max_relative = 1e-2);
+}
+
+/// Modes (frequency, damping) and wind image RMS of a model file.
+fn modes_and_wind_rms(f: &ModelFile) -> (Vec<f64>, Vec<f64>, f64) {
+    use stillsky::response::Disturbances;
+    use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+    let m = f.to_model().unwrap();
+    let modes = m.modes().unwrap();
+    let grid = stillsky::FreqGrid::log(0.2, 100.0, 300).unwrap();
+    let w = WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2));
+    let d = Disturbances { wind: Some(w), ..Default::default() };
+    let im = m.image_motion(&grid, &d, &stillsky::image::ImageOptions::default()).unwrap();
+    (modes.frequency_hz.to_vec(), modes.damping_ratio.to_vec(), im.rms_arcsec)
+}
+
+#[test]
+fn a_pointing_override_poses_the_payload_as_editing_the_file_does() {
+    use stillsky::schema::Pointing;
+    let mut given = ModelFile::read(&example("tripod-paver.toml")).unwrap();
+    given
+        .repoint(&Pointing { altitude_deg: Some(80.0), azimuth_deg: Some(250.0), ..Default::default() })
+        .unwrap();
+    let edited = ModelFile::parse(&posed_text(80.0, 250.0), "edited").unwrap();
+    assert_eq!(given.expanded().unwrap(), edited.expanded().unwrap());
+    let (fa, za, ra) = modes_and_wind_rms(&given);
+    let (fb, zb, rb) = modes_and_wind_rms(&edited);
+    for (a, b) in fa.iter().zip(&fb).chain(za.iter().zip(&zb)) {
+        assert_relative_eq!(*a, *b, max_relative = 1e-12);
+    }
+    assert_relative_eq!(ra, rb, max_relative = 1e-12);
+    // The pose matters: at 45° (the file's own pointing) the modes differ.
+    let (f45, _, _) = modes_and_wind_rms(&ModelFile::read(&example("tripod-paver.toml")).unwrap());
+    assert!(f45.iter().zip(&fa).any(|(a, b)| (a - b).abs() > 1e-3 * a), "{f45:?} vs {fa:?}");
+    // Without optics there is nothing to point.
+    let mut bare = ModelFile::parse(
+        "[[body]]\nname = \"a\"\nmass_kg = 1\ncg_m = [0, 0, 0]\ninertia_kgm2 = [1, 1, 1]\n",
+        "t",
+    )
+    .unwrap();
+    let e = bare.repoint(&Pointing { altitude_deg: Some(30.0), ..Default::default() }).unwrap_err();
+    assert!(matches!(e, Error::InvalidArgument { ref name, .. } if name == "optics"), "{e:?}");
+    let e = given.repoint(&Pointing { altitude_deg: Some(95.0), ..Default::default() }).unwrap_err();
+    assert!(e.to_string().contains("optics.altitude_deg"), "{e}");
+}
+
+fn equatorial_text(ha: f64, dec: f64, side: &str) -> String {
+    std::fs::read_to_string(example("equatorial-pier.toml"))
+        .unwrap()
+        .replace("hour_angle_deg = 22.5", &format!("hour_angle_deg = {ha}"))
+        .replace("declination_deg = 35", &format!("declination_deg = {dec}"))
+        .replace("pier_side = \"east\"", &format!("pier_side = \"{side}\""))
+}
+
+fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]]
+}
+
+#[test]
+fn equatorial_payload_is_posed_for_hour_angle_declination_and_pier_side() {
+    // The line of sight from altitude h and azimuth A of Meeus, Astronomical Algorithms (2nd ed.
+    // 1998), ch. 13, eqs. (13.5)–(13.6) (A_S from the south westward, ours A_N = A_S + 180°):
+    // s = (sin A_N cos h, cos A_N cos h, sin h). The declination axis is ⟂ the pole p and s, so
+    // along p × s; the tube sits on its east (+) or west (−) end. A payload given by its CG
+    // (0.3 m along the line of sight, 0.2 m along the shaft) must have its CG at
+    // pivot + 0.3 s + 0.2 d.
+    let lat: f64 = 48.0;
+    for (ha, dec, side, sign) in
+        [(22.5, 35.0, "east", 1.0), (-60.0, 10.0, "west", -1.0), (100.0, -20.0, "east", 1.0)]
+    {
+        let text = equatorial_text(ha, dec, side);
+        let i = text.find("[payload]").unwrap();
+        let j = text.find("[mount]").unwrap();
+        let text = format!(
+            "{}[payload]\nmass_kg = 20\ncg_position_m = 0.3\ncg_shaft_m = 0.2\ninertia_kgm2 = [0.5, 2.0, 2.0]\n\n{}",
+            &text[..i],
+            &text[j..]
+        );
+        let s = spec(&text);
+        let (f, hh, d) = (lat.to_radians(), f64::to_radians(ha), f64::to_radians(dec));
+        let h = (f.sin() * d.sin() + f.cos() * d.cos() * hh.cos()).asin();
+        let a_n = hh.sin().atan2(hh.cos() * f.sin() - d.tan() * f.cos()) + PI;
+        let o = s.optics.as_ref().unwrap();
+        assert_relative_eq!(o.altitude_deg.unwrap(), h.to_degrees(), epsilon = 1e-9);
+        let da = (o.azimuth_deg.unwrap() - a_n.to_degrees() + 540.0).rem_euclid(360.0) - 180.0;
+        assert!(da.abs() < 1e-9, "{da}");
+        let los = [a_n.sin() * h.cos(), a_n.cos() * h.cos(), h.sin()];
+        let p = [0.0, f.cos(), f.sin()];
+        let c = cross(p, los);
+        let n = (c[0] * c[0] + c[1] * c[1] + c[2] * c[2]).sqrt();
+        let dax = c.map(|x| sign * x / n);
+        let body = s.bodies.iter().find(|b| b.name == "payload").unwrap();
+        let pivot = 1.2 + 0.35;
+        for k in 0..3 {
+            let want = [0.0, 0.0, pivot][k] + 0.3 * los[k] + 0.2 * dax[k];
+            assert!(
+                (body.cg_m[k] - want).abs() < 1e-12,
+                "{ha} {dec} {side}: cg[{k}] {} vs {want}",
+                body.cg_m[k]
+            );
+        }
+        // The RA torsion spring lies along the pole, the Dec one along the Dec axis.
+        let axis = |name: &str| s.torsion_springs.iter().find(|t| t.name == name).unwrap().axis.unwrap();
+        for (x, y) in axis("pivot_ra").iter().zip(p).chain(axis("pivot_dec").iter().zip(dax)) {
+            assert!((x - y).abs() < 1e-12);
+        }
+    }
+}
+
+#[test]
+fn a_moment_about_the_polar_axis_moves_the_image_along_ra_by_cos_dec() {
+    // A rotation θ about the pole p turns the line of sight s = sin δ p + cos δ e by
+    // θ p × s = θ cos δ (p × e), which is θ cos δ along increasing right ascension and has no
+    // component along declination (spherical astronomy: a turn of the polar axis changes the
+    // hour angle only). With a stand far stiffer than the RA axis a pure moment about p turns
+    // the payload about p alone (the pivot springs are diagonal in (p, d, p × d)), so
+    // image_ra = cos δ θ_p and image_dec ≈ 0.
+    for (dec, side) in [(35.0, "east"), (-50.0, "west"), (70.0, "east")] {
+        let text = equatorial_text(22.5, dec, side)
+            .replace("material = \"steel-s235\"", "material_properties = { youngs_modulus_pa = 2e16, poisson_ratio = 0.3, density_kg_m3 = 7850, yield_strength_pa = 2.35e8, loss_factor = 0.001 }");
+        let m = ModelFile::parse(&text, "t").unwrap().to_model().unwrap();
+        let lat = 48f64.to_radians();
+        let p = [0.0, lat.cos(), lat.sin()];
+        let outs = ["image_ra", "image_dec", "payload:rx", "payload:ry", "payload:rz"];
+        let ins = ["moment:payload:x", "moment:payload:y", "moment:payload:z"];
+        let frf = m.frf(&[0.01], &ins, &outs).unwrap();
+        let r: Vec<f64> =
+            (0..outs.len()).map(|o| (0..3).map(|i| frf.data[[0, o, i]].re * p[i]).sum()).collect();
+        let theta_p = r[2] * p[0] + r[3] * p[1] + r[4] * p[2];
+        let cd = f64::to_radians(dec).cos();
+        assert_relative_eq!(r[0], cd * theta_p, max_relative = 1e-6);
+        assert!(r[1].abs() < 1e-6 * r[0].abs(), "dec {dec}: image_dec {} vs image_ra {}", r[1], r[0]);
+        // Kinematics alone: the output rows of a unit rotation about p, for any stand.
+        let row = |n: &str| m.output_vector(n).unwrap();
+        let labels = m.dof_labels();
+        let mut rot = vec![0.0; m.dof_count()];
+        for (g, l) in labels.iter().enumerate() {
+            if l.owner == "payload" {
+                let k = ["rx", "ry", "rz"].iter().position(|d| *d == l.dof.name());
+                if let Some(k) = k {
+                    rot[g] = p[k];
+                }
+            }
+        }
+        let dot = |a: &ndarray::Array1<f64>| a.iter().zip(&rot).map(|(x, y)| x * y).sum::<f64>();
+        assert_relative_eq!(dot(&row("image_ra")), cd, epsilon = 1e-12);
+        assert!(dot(&row("image_dec")).abs() < 1e-12);
+    }
+}
+
+#[test]
+fn equatorial_pointing_override_equals_the_edited_file_and_bad_keys_are_named() {
+    use stillsky::schema::Pointing;
+    use stillsky::sky::PierSide;
+    let mut given = ModelFile::read(&example("equatorial-pier.toml")).unwrap();
+    let p = Pointing {
+        hour_angle_deg: Some(-40.0),
+        declination_deg: Some(60.0),
+        pier_side: Some(PierSide::West),
+        ..Default::default()
+    };
+    given.repoint(&p).unwrap();
+    let edited = ModelFile::parse(&equatorial_text(-40.0, 60.0, "west"), "edited").unwrap();
+    assert_eq!(given.expanded().unwrap(), edited.expanded().unwrap());
+    let (fa, za, ra) = modes_and_wind_rms(&given);
+    let (fb, zb, rb) = modes_and_wind_rms(&edited);
+    for (a, b) in fa.iter().zip(&fb).chain(za.iter().zip(&zb)) {
+        assert_relative_eq!(*a, *b, max_relative = 1e-12);
+    }
+    assert_relative_eq!(ra, rb, max_relative = 1e-12);
+    // Altitude and azimuth do not point an equatorial rig; hour angle does not point an
+    // alt-azimuth one.
+    let mut eq = ModelFile::read(&example("equatorial-pier.toml")).unwrap();
+    let e = eq.repoint(&Pointing { altitude_deg: Some(30.0), ..Default::default() }).unwrap_err();
+    assert!(e.to_string().contains("hour angle"), "{e}");
+    let mut az = ModelFile::read(&example("tripod-paver.toml")).unwrap();
+    let e = az.repoint(&Pointing { hour_angle_deg: Some(30.0), ..Default::default() }).unwrap_err();
+    assert!(e.to_string().contains("altitude and azimuth"), "{e}");
+    let base = std::fs::read_to_string(example("equatorial-pier.toml")).unwrap();
+    for (edit, field) in [
+        (("latitude_deg = 48.0", "latitude_deg = 95"), "mount.latitude_deg"),
+        (("latitude_deg = 48.0\n", ""), "mount.latitude_deg"),
+        (
+            ("ra_stiffness_nm_per_rad = 3.0e4", "yaw_stiffness_nm_per_rad = 3.0e4"),
+            "mount.yaw_stiffness_nm_per_rad",
+        ),
+        (("dec_stiffness_nm_per_rad = 2.5e4\n", ""), "mount.dec_stiffness_nm_per_rad"),
+        (("declination_deg = 35\n", ""), "optics.declination_deg"),
+        (
+            ("hour_angle_deg = 22.5", "altitude_deg = 40\nazimuth_deg = 100\nhour_angle_deg = 22.5"),
+            "optics.altitude_deg",
+        ),
+        (("kind = \"equatorial\"\n", ""), "mount.latitude_deg"),
+    ] {
+        let text = base.replace(edit.0, edit.1);
+        assert_ne!(text, base, "{edit:?}");
+        let e = ModelFile::parse(&text, "t").and_then(|f| f.expanded()).unwrap_err();
+        assert!(e.to_string().contains(field), "{edit:?}: {e}");
+    }
+}
+
+#[test]
+fn alt_azimuth_files_expand_as_before_the_mount_kinds() {
+    // The alt-azimuth head is today's: `kind = "altazimuth"` written out changes nothing.
+    let text = std::fs::read_to_string(example("tripod-paver.toml")).unwrap();
+    let kind = text.replace("[mount]\n", "[mount]\nkind = \"altazimuth\"\n");
+    assert_ne!(kind, text);
+    assert_eq!(spec(&text), spec(&kind));
+    let out = spec_to_toml(&spec(&text)).unwrap();
+    assert!(!out.contains("hour_angle") && !out.contains("latitude") && out.contains("altitude_deg = 45"));
+}
+
+#[test]
+fn equatorial_sky_map_cells_equal_single_runs() {
+    // Each cell of the hour angle × declination map is the model re-pointed there (usual pier
+    // side) and evaluated on its own.
+    use stillsky::response::Disturbances;
+    use stillsky::schema::Pointing;
+    use stillsky::sky::PierSide;
+    use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
+    let f = ModelFile::read(&example("equatorial-pier.toml")).unwrap();
+    let grid = stillsky::FreqGrid::log(0.2, 100.0, 200).unwrap();
+    let w = WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2));
+    let d = Disturbances { wind: Some(w), ..Default::default() };
+    let o = stillsky::image::ImageOptions::default();
+    let (ha, dec) = ([-60.0, 0.0, 45.0], [-10.0, 30.0, 80.0]);
+    let map = stillsky::image::equatorial_map(&f, &ha, &dec, &grid, &d, &o).unwrap();
+    for (i, h) in ha.iter().enumerate() {
+        for (j, de) in dec.iter().enumerate() {
+            let mut g = f.clone();
+            let p = Pointing {
+                hour_angle_deg: Some(*h),
+                declination_deg: Some(*de),
+                pier_side: Some(PierSide::usual(*h)),
+                ..Default::default()
+            };
+            g.repoint(&p).unwrap();
+            let im = g.to_model().unwrap().image_motion(&grid, &d, &o).unwrap();
+            assert_relative_eq!(map.rms_arcsec[i][j], im.rms_arcsec, max_relative = 1e-12);
+            assert_relative_eq!(map.rms_px[i][j], im.rms_px, max_relative = 1e-12);
+        }
+    }
+    // The pointing moves the image: the map is not flat.
+    let all: Vec<f64> = map.rms_arcsec.iter().flatten().copied().collect();
+    let (lo, hi) = all.iter().fold((f64::MAX, 0.0f64), |(a, b), x| (a.min(*x), b.max(*x)));
+    assert!(hi > 1.05 * lo, "{all:?}");
 }

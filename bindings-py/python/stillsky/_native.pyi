@@ -97,11 +97,23 @@ class Model:
     """
 
     @staticmethod
-    def from_toml(path: str | PathLike[str]) -> Model:
+    def from_toml(
+        path: str | PathLike[str],
+        *,
+        altitude_deg: float | None = None,
+        azimuth_deg: float | None = None,
+        hour_angle_deg: float | None = None,
+        declination_deg: float | None = None,
+        pier_side: Literal["east", "west"] | None = None,
+    ) -> Model:
         """Read a TOML model file.
 
         Args:
             path: file path.
+            altitude_deg, azimuth_deg: a pointing that replaces the file's ``[optics]`` one; the
+                payload of a rig is posed for it exactly as if the file had been edited.
+            hour_angle_deg, declination_deg, pier_side: the same for an equatorial pointing
+                (hour angle positive west; the side of the pier the tube is on).
 
         Raises:
             StillskyIOError: the file cannot be read (also an ``OSError``).
@@ -110,12 +122,23 @@ class Model:
             UnsupportedModelError: e.g. a body free to move (named).
         """
     @staticmethod
-    def from_toml_str(text: str, label: str = ...) -> Model:
+    def from_toml_str(
+        text: str,
+        label: str = ...,
+        *,
+        altitude_deg: float | None = None,
+        azimuth_deg: float | None = None,
+        hour_angle_deg: float | None = None,
+        declination_deg: float | None = None,
+        pier_side: Literal["east", "west"] | None = None,
+    ) -> Model:
         """Build a model from TOML text.
 
         Args:
             text: the model file contents.
             label: name of the source used in error messages (e.g. a file name).
+            altitude_deg, azimuth_deg: a pointing that replaces the file's ``[optics]`` one (see
+                ``from_toml``).
         """
     @property
     def dof_count(self) -> int:
@@ -345,6 +368,7 @@ class Wind:
         roughness_length_m: float | None = None,
         shelter_factor: float = 1.0,
         air_density_kg_m3: float | None = None,
+        admittance: bool = True,
     ) -> Wind:
         """Args:
         kind: along-wind spectrum shape (see ``wind_spectrum``).
@@ -353,7 +377,12 @@ class Wind:
         turbulence_intensity: σ_u / U; give this or ``roughness_length_m`` (m), not both.
         shelter_factor: factor in (0, 1] on the mean speed for a sheltered site.
         air_density_kg_m3: ρ (kg/m³), default 1.225 (ISA sea level).
+        admittance: reduce the drag at the model's ``[wind]`` load by the aerodynamic admittance
+            of a compact body, |χ|² = 1/[1 + (2 f √A / U)^{4/3}]² (Vickery's form); ``False``
+            gives the quasi-steady drag.
         """
+    @property
+    def admittance(self) -> bool: ...
     @property
     def mean_speed_m_s(self) -> float: ...
     @property

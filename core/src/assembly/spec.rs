@@ -5,6 +5,7 @@ use super::stiffness_spec::{StiffnessSpec, TableSpec, ZenerSpec};
 use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
 use crate::material::Material;
 use crate::section::Section;
+use crate::sky::{Equatorial, PierSide};
 use crate::stiffness::StiffnessModel;
 use serde::{Deserialize, Serialize};
 
@@ -245,11 +246,28 @@ pub struct OpticsSpec {
     pub body: String,
     pub focal_length_mm: f64,
     pub pixel_um: f64,
-    pub altitude_deg: f64,
-    pub azimuth_deg: f64,
+    /// Pointing by altitude and azimuth (deg). Required unless the pointing is equatorial
+    /// (`hour_angle_deg`, `declination_deg`); then left out, or its derived values.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub altitude_deg: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub azimuth_deg: Option<f64>,
+    /// Equatorial pointing: hour angle (deg, positive west) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub hour_angle_deg: Option<f64>,
+    /// ... and declination (deg).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub declination_deg: Option<f64>,
+    /// Site latitude (deg) of an equatorial pointing (a rig gives it in `[mount]`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub latitude_deg: Option<f64>,
+    /// Side of the pier the tube is on (German equatorial rigs; default by the hour angle).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pier_side: Option<PierSide>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub seeing_fwhm_arcsec: Option<f64>,
-    /// Rotation of the camera's axes about the line of sight from (azimuth, altitude) (deg).
+    /// Rotation of the camera's axes about the line of sight from (azimuth, altitude), or from
+    /// (right ascension, declination) for an equatorial pointing (deg).
     #[serde(default)]
     pub camera_rotation_deg: f64,
     /// Clear aperture (mm), for the diffraction line of the star budget.
@@ -270,28 +288,116 @@ impl OpticsSpec {
         206.264_806_247_096_36 * self.pixel_um / self.focal_length_mm
     }
 
-    /// Line of sight â and the sensor axes (e_az, e_alt) for the pointing, rotated by the
-    /// camera rotation angle.
+    /// The equatorial pointing, when the optics are pointed by hour angle and declination.
+    pub fn equatorial(&self) -> Result<Option<Equatorial>> {
+        match (self.hour_angle_deg, self.declination_deg) {
+            (None, None) => Ok(None),
+            (Some(h), Some(d)) => {
+                let lat = self.latitude_deg.ok_or_else(|| {
+                    Error::invalid(
+                        "optics.latitude_deg",
+                        "is required with hour_angle_deg and declination_deg",
+                    )
+                })?;
+                Equatorial::new(lat, h, d).map(Some).map_err(|e| match e {
+                    Error::InvalidArgument { name, reason } => {
+                        Error::InvalidArgument { name: format!("optics.{name}"), reason }
+                    }
+                    other => other,
+                })
+            }
+            (Some(_), None) => {
+                Err(Error::invalid("optics.declination_deg", "is required with hour_angle_deg"))
+            }
+            (None, Some(_)) => {
+                Err(Error::invalid("optics.hour_angle_deg", "is required with declination_deg"))
+            }
+        }
+    }
+
+    /// Line of sight â and the sensor axes (image_x, image_y): the reference pair (e_az, e_alt),
+    /// or (e_RA, e_Dec) for an equatorial pointing, rotated by the camera rotation angle. Call
+    /// on validated optics.
     pub fn axes(&self) -> ([f64; 3], [f64; 3], [f64; 3]) {
-        let (a, h) = (self.azimuth_deg.to_radians(), self.altitude_deg.to_radians());
+        let (los, e1, e2) = self.reference_axes();
+        let (c, s) =
+            (self.camera_rotation_deg.to_radians().cos(), self.camera_rotation_deg.to_radians().sin());
+        let ex = std::array::from_fn(|i| c * e1[i] + s * e2[i]);
+        let ey = std::array::from_fn(|i| -s * e1[i] + c * e2[i]);
+        (los, ex, ey)
+    }
+
+    /// Line of sight and the unrotated reference axes: (e_az, e_alt), or (e_RA, e_Dec) for an
+    /// equatorial pointing.
+    pub fn reference_axes(&self) -> ([f64; 3], [f64; 3], [f64; 3]) {
+        if let Ok(Some(q)) = self.equatorial() {
+            let (ra, dec) = q.ra_dec_axes();
+            return (q.line_of_sight(), ra, dec);
+        }
+        let (a, h) =
+            (self.azimuth_deg.unwrap_or(0.0).to_radians(), self.altitude_deg.unwrap_or(90.0).to_radians());
         let los = [a.sin() * h.cos(), a.cos() * h.cos(), h.sin()];
         let e_az = [a.cos(), -a.sin(), 0.0];
         let e_alt = [-a.sin() * h.sin(), -a.cos() * h.sin(), h.cos()];
-        let (c, s) =
-            (self.camera_rotation_deg.to_radians().cos(), self.camera_rotation_deg.to_radians().sin());
-        let ex = std::array::from_fn(|i| c * e_az[i] + s * e_alt[i]);
-        let ey = std::array::from_fn(|i| -s * e_az[i] + c * e_alt[i]);
-        (los, ex, ey)
+        (los, e_az, e_alt)
     }
 
     pub(crate) fn validate(&self) -> Result<()> {
         require_positive("optics.focal_length_mm", self.focal_length_mm)?;
         require_positive("optics.pixel_um", self.pixel_um)?;
-        require_finite("optics.azimuth_deg", self.azimuth_deg)?;
         require_finite("optics.camera_rotation_deg", self.camera_rotation_deg)?;
-        let h = require_finite("optics.altitude_deg", self.altitude_deg)?;
-        if !(-90.0..=90.0).contains(&h) {
-            return Err(Error::invalid("optics.altitude_deg", format!("must lie in [-90, 90], got {h}")));
+        let eq = self.equatorial()?;
+        if eq.is_none() {
+            for (n, v, other) in [
+                ("optics.altitude_deg", self.altitude_deg, "azimuth_deg"),
+                ("optics.azimuth_deg", self.azimuth_deg, "altitude_deg"),
+            ] {
+                if v.is_none() {
+                    return Err(Error::invalid(
+                        n,
+                        format!("is required (with {other}; or point by hour_angle_deg and declination_deg)"),
+                    ));
+                }
+            }
+            if self.latitude_deg.is_some() {
+                return Err(Error::invalid(
+                    "optics.latitude_deg",
+                    "goes with hour_angle_deg and declination_deg",
+                ));
+            }
+            if self.pier_side.is_some() {
+                return Err(Error::invalid(
+                    "optics.pier_side",
+                    "goes with hour_angle_deg and declination_deg",
+                ));
+            }
+        }
+        if let Some(a) = self.azimuth_deg {
+            require_finite("optics.azimuth_deg", a)?;
+        }
+        if let Some(h) = self.altitude_deg {
+            require_finite("optics.altitude_deg", h)?;
+            if !(-90.0..=90.0).contains(&h) {
+                return Err(Error::invalid("optics.altitude_deg", format!("must lie in [-90, 90], got {h}")));
+            }
+        }
+        if let Some(q) = eq {
+            // Altitude and azimuth next to an equatorial pointing are its derived values (as the
+            // rig layer writes them); they must agree with it.
+            let (qh, qa) = q.alt_az();
+            let bad_h = self.altitude_deg.is_some_and(|h| (h - qh).abs() > 1e-6);
+            let bad_a = self.azimuth_deg.is_some_and(|a| {
+                qh.abs() < 90.0 - 1e-6 && ((a - qa + 540.0).rem_euclid(360.0) - 180.0).abs() > 1e-6
+            });
+            if bad_h || bad_a {
+                return Err(Error::invalid(
+                    "optics.altitude_deg",
+                    format!(
+                        "altitude/azimuth ({:?}, {:?}) disagree with the hour angle and declination (altitude {qh:.6}, azimuth {qa:.6}); give one pointing",
+                        self.altitude_deg, self.azimuth_deg
+                    ),
+                ));
+            }
         }
         if let Some(s) = self.seeing_fwhm_arcsec {
             require_non_negative("optics.seeing_fwhm_arcsec", s)?;

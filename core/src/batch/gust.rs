@@ -7,7 +7,7 @@
 //! geometrically from half the first period ([`GUST_FAMILY_SIZE`] of them, up to
 //! [`GUST_LONGEST_S`]), and the worst case of each outcome is reported: a search over a family
 //! of equally likely gust shapes for the worst response, as in the statistical discrete gust
-//! method (Jones 1980, docs/references.md#s18).
+//! method (Jones 1980, docs/references.md#s19).
 //!
 //! **Amplitude.** A gust of duration T rises over T/2. Its amplitude is the peak factor
 //! [`GUST_PEAK_FACTOR`] times √(σ_u² − R(T/2)), where R is the autocorrelation of the wind
@@ -16,6 +16,10 @@
 //! shrink as the turbulence's velocity increments do (∝ T^(1/3) in the inertial subrange,
 //! Kolmogorov's scaling, which the statistical discrete gust method uses). The peak factor 3 is
 //! common practice, no source.
+//!
+//! **Drag.** The gust's drag is quasi-steady (the full drag law on the model's `[wind]` area, no
+//! aerodynamic admittance, which the spectral path applies): a short gust is loaded in full,
+//! which errs on the safe side for the peak.
 //!
 //! **Ring-down.** From the end of the gust until the image stays within ½ px to the end of the
 //! record. The record runs on after the longest gust for the time the slowest mode's envelope

@@ -316,10 +316,10 @@ pub fn apply_optics_overrides(spec: &mut ModelSpec, o: &ReportOptions) -> Result
         op.pixel_um = v;
     }
     if let Some(v) = o.altitude_deg {
-        op.altitude_deg = v;
+        op.altitude_deg = Some(v);
     }
     if let Some(v) = o.azimuth_deg {
-        op.azimuth_deg = v;
+        op.azimuth_deg = Some(v);
     }
     if let Some(v) = o.seeing_fwhm_arcsec {
         op.seeing_fwhm_arcsec = Some(v);

@@ -27,19 +27,104 @@ mod tripod;
 
 pub use floor::FloorSpec;
 pub use ground::{GroundKind, GroundSpec, Support};
-pub use mount::{DEFAULT_PIVOT_TRANSLATIONAL_STIFFNESS_N_PER_M, MountSpec};
+pub use mount::{DEFAULT_PIVOT_TRANSLATIONAL_STIFFNESS_N_PER_M, MountKind, MountSpec};
 pub use payload::{PartAxis, PartKind, PartSpec, PayloadSpec, payload_frame};
 pub use pier::{DEFAULT_FOOTING_DENSITY_KG_M3, FootingSpec, PierSpec};
 pub use tripod::{PadSpec, TripodGeometry, TripodSpec};
 
 use crate::assembly::{GROUND, ModelSpec, OpticsSpec};
 use crate::error::{Error, Result};
+use crate::sky::{Equatorial, PierSide};
 use crate::soil::Soil;
 use elements::to_body;
 use fields::{body_name, pos};
 use mass::{Mass, combine};
 use serde::{Deserialize, Serialize};
 use tripod::{TripodPlan, foot_contact};
+
+/// The pointing the payload is posed for.
+enum Pose {
+    AltAz { alt: f64, az: f64 },
+    Equatorial { q: Equatorial, side: PierSide },
+}
+
+impl Pose {
+    /// The pointing of `optics` for this mount: altitude and azimuth for an alt-azimuth head,
+    /// hour angle, declination and pier side for an equatorial one (the latitude from
+    /// `[mount]`). Without optics: the zenith, on an equatorial head at hour angle 0.
+    fn new(mount: &MountSpec, optics: Option<&OpticsSpec>) -> Result<Pose> {
+        match mount.kind()? {
+            MountKind::Altazimuth => match optics {
+                Some(o) => {
+                    if o.hour_angle_deg.is_some() || o.declination_deg.is_some() {
+                        return Err(Error::invalid(
+                            "optics.hour_angle_deg",
+                            "an alt-azimuth mount is pointed by altitude_deg and azimuth_deg (or set mount.kind = \"equatorial\")",
+                        ));
+                    }
+                    o.validate()?;
+                    let (alt, az) = o.altitude_deg.zip(o.azimuth_deg).ok_or_else(|| {
+                        Error::invalid("optics.altitude_deg", "is required (with azimuth_deg)")
+                    })?;
+                    Ok(Pose::AltAz { alt, az })
+                }
+                None => Ok(Pose::AltAz { alt: 90.0, az: 0.0 }),
+            },
+            MountKind::Equatorial => {
+                let lat = mount.latitude()?;
+                let (ha, dec, side) = match optics {
+                    Some(o) => {
+                        if o.latitude_deg.is_some() {
+                            return Err(Error::invalid(
+                                "optics.latitude_deg",
+                                "an equatorial rig takes the site latitude from mount.latitude_deg",
+                            ));
+                        }
+                        if o.altitude_deg.is_some() || o.azimuth_deg.is_some() {
+                            return Err(Error::invalid(
+                                "optics.altitude_deg",
+                                "an equatorial mount is pointed by hour_angle_deg, declination_deg (and pier_side)",
+                            ));
+                        }
+                        let ha = o.hour_angle_deg.ok_or_else(|| {
+                            Error::invalid("optics.hour_angle_deg", "is required on an equatorial mount")
+                        })?;
+                        let dec = o.declination_deg.ok_or_else(|| {
+                            Error::invalid("optics.declination_deg", "is required on an equatorial mount")
+                        })?;
+                        (ha, dec, o.pier_side)
+                    }
+                    None => (0.0, lat, None),
+                };
+                let q = Equatorial::new(lat, ha, dec).map_err(|e| match e {
+                    Error::InvalidArgument { name, reason } => Error::InvalidArgument {
+                        name: if name == "latitude_deg" {
+                            format!("mount.{name}")
+                        } else {
+                            format!("optics.{name}")
+                        },
+                        reason,
+                    },
+                    other => other,
+                })?;
+                Ok(Pose::Equatorial { q, side: side.unwrap_or_else(|| PierSide::usual(ha)) })
+            }
+        }
+    }
+
+    /// The payload frame [â, e_s, e_u].
+    fn frame(&self) -> [[f64; 3]; 3] {
+        match self {
+            Pose::AltAz { alt, az } => payload_frame(*alt, *az),
+            Pose::Equatorial { q, side } => {
+                let a = q.line_of_sight();
+                let s = q.dec_axis(*side);
+                let u = [s[1] * a[2] - s[2] * a[1], s[2] * a[0] - s[0] * a[2], s[0] * a[1] - s[1] * a[0]];
+                [a, s, u]
+            }
+        }
+    }
+}
 
 /// The rig layer of a model file.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
@@ -74,13 +159,24 @@ impl RigSpec {
         if self.is_empty() {
             return Ok(out);
         }
-        let (alt, az) = match optics {
-            Some(o) => {
-                o.validate()?;
-                (o.altitude_deg, o.azimuth_deg)
+        let pose = match &self.mount {
+            Some(m) => Pose::new(m, optics)?,
+            None => {
+                if let Some(o) = optics {
+                    o.validate()?;
+                }
+                Pose::AltAz { alt: 90.0, az: 0.0 }
             }
-            None => (90.0, 0.0),
         };
+        if let (Some(o), Pose::Equatorial { q, side, .. }) = (out.optics.as_mut(), &pose) {
+            // The generic layer's optics carry the pointing in both forms.
+            let (h, a) = q.alt_az();
+            o.altitude_deg = Some(h);
+            o.azimuth_deg = Some(a);
+            o.latitude_deg = Some(q.latitude_deg);
+            o.pier_side = Some(*side);
+            o.validate()?;
+        }
         if self.tripod.is_some() && self.pier.is_some() {
             return Err(Error::invalid("pier", "a rig has either [tripod] or [pier], not both"));
         }
@@ -169,9 +265,19 @@ impl RigSpec {
 
         // Payload and the pivot joint.
         if let (Some(p), Some(pname)) = (&self.payload, &payload_name) {
-            let posed = p.posed(pivot, alt, az)?;
+            let posed = p.posed(pivot, pose.frame())?;
             out.bodies.push(to_body(pname, &posed));
-            mount.joint(&mount_name, pname, pivot, alt, az, &mut out)?;
+            match &pose {
+                Pose::AltAz { alt, az } => mount.joint(&mount_name, pname, pivot, *alt, *az, &mut out)?,
+                Pose::Equatorial { q, side } => mount.joint_equatorial(
+                    &mount_name,
+                    pname,
+                    pivot,
+                    q.pole(),
+                    q.dec_axis(*side),
+                    &mut out,
+                )?,
+            }
         }
 
         // Stand elements.

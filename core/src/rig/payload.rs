@@ -1,6 +1,7 @@
 //! The payload: optical tube, camera and counterweights as one rigid body named `payload`,
 //! posed for the pointing of `[optics]` (altitude h, azimuth A; zenith when there are no
-//! optics).
+//! optics). On an equatorial mount the shaft is the declination axis (from the pivot towards
+//! the tube) and e_u = e_s × â.
 //!
 //! Payload frame: â = (sin A cos h, cos A cos h, sin h) along the line of sight, the shaft
 //! (altitude axis) e_s = (cos A, −sin A, 0), and e_u = (−sin A sin h, −cos A sin h, cos h). Parts
@@ -137,8 +138,10 @@ impl PayloadSpec {
         }
     }
 
-    /// The payload posed for a pointing, with its CG placed relative to the `pivot`.
-    pub(super) fn posed(&self, pivot: V3, altitude_deg: f64, azimuth_deg: f64) -> Result<Mass> {
+    /// The payload posed in a frame [â, e_s, e_u] (see [`payload_frame`]; for an equatorial
+    /// mount e_s is the declination axis towards the tube), with its CG placed relative to the
+    /// `pivot`.
+    pub(super) fn posed(&self, pivot: V3, r: [V3; 3]) -> Result<Mass> {
         let local = self.local_mass()?;
         if !positive_definite(&local.j) {
             return Err(Error::invalid(
@@ -146,7 +149,7 @@ impl PayloadSpec {
                 "the inertia tensor is singular (e.g. only point masses on one line): add a part with extent",
             ));
         }
-        let r = payload_frame(altitude_deg, azimuth_deg); // r[k] = k-th frame axis
+        // r[k] = k-th frame axis
         let c = add(pivot, (0..3).fold([0.0; 3], |acc, k| add(acc, scale(r[k], local.c[k]))));
         // J = R J_p Rᵀ with R's columns the frame axes: J_ab = Σ_kl r[k][a] Jp_kl r[l][b].
         let mut j = [[0.0; 3]; 3];
