@@ -279,8 +279,8 @@ fn image_motion_html(r: &Report) -> String {
     let im = &r.image;
     let um_per_arcsec = im.rms_um / im.rms_arcsec.max(1e-300);
     let rows: Vec<Vec<String>> = [
-        ("image_x (az)", im.per_axis_arcsec[0]),
-        ("image_y (alt)", im.per_axis_arcsec[1]),
+        (r.image_axes[0].as_str(), im.per_axis_arcsec[0]),
+        (r.image_axes[1].as_str(), im.per_axis_arcsec[1]),
         ("radial", im.rms_arcsec),
     ]
     .iter()

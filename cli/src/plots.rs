@@ -382,8 +382,8 @@ pub fn report_svgs(r: &Report) -> PlotResult<Vec<Plot>> {
     let px2 = plate * plate;
     let per_px2 = |v: &[f64]| v.iter().map(|v| v / px2).collect::<Vec<f64>>();
     let mut lines = vec![
-        data_line("image_x (az)", &im.freq_hz, per_px2(&im.psd_arcsec2[0])),
-        data_line("image_y (alt)", &im.freq_hz, per_px2(&im.psd_arcsec2[1])),
+        data_line(&r.image_axes[0], &im.freq_hz, per_px2(&im.psd_arcsec2[0])),
+        data_line(&r.image_axes[1], &im.freq_hz, per_px2(&im.psd_arcsec2[1])),
     ];
     let mut title = format!("Image-motion PSD in pixels (plate scale {plate:.3} arcsec/px)");
     if let Some(gm) = &im.guiding {
@@ -407,8 +407,8 @@ pub fn report_svgs(r: &Report) -> PlotResult<Vec<Plot>> {
         .map(|(a, b)| a.hypot(*b) / plate)
         .collect();
     let lines = vec![
-        data_line("image_x (az)", &im.freq_hz, per_px(&im.cumulative_rms_arcsec[0])),
-        data_line("image_y (alt)", &im.freq_hz, per_px(&im.cumulative_rms_arcsec[1])),
+        data_line(&r.image_axes[0], &im.freq_hz, per_px(&im.cumulative_rms_arcsec[0])),
+        data_line(&r.image_axes[1], &im.freq_hz, per_px(&im.cumulative_rms_arcsec[1])),
         data_line("radial", &im.freq_hz, radial),
         threshold("½ px", &im.freq_hz, 0.5),
     ];

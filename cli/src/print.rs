@@ -52,17 +52,23 @@ pub fn report_text(model: &str, r: &Report) -> String {
             c
         );
     }
+    if r.modes.iter().filter_map(|m| m.image_share).any(|x| !(-0.005..=1.005).contains(&x)) {
+        let _ = writeln!(
+            s,
+            "  (image %: each mode's share of the image mean square; a share above 100 % or below 0 means modes partly cancel)"
+        );
+    }
     let um_per_arcsec = im.rms_um / im.rms_arcsec.max(1e-300);
     let _ = writeln!(s, "\nimage motion (RMS):");
-    let _ = writeln!(s, "  {:<12} {:>12} {:>12} {:>10}", "", "arcsec", "um", "px");
+    let _ = writeln!(s, "  {:<14} {:>10} {:>12} {:>10}", "", "arcsec", "um", "px");
     for (name, v) in [
-        ("image_x (az)", im.per_axis_arcsec[0]),
-        ("image_y (alt)", im.per_axis_arcsec[1]),
+        (r.image_axes[0].as_str(), im.per_axis_arcsec[0]),
+        (r.image_axes[1].as_str(), im.per_axis_arcsec[1]),
         ("radial", im.rms_arcsec),
     ] {
         let _ = writeln!(
             s,
-            "  {:<12} {:>12.4} {:>12.4} {:>10.4}",
+            "  {:<14} {:>10.4} {:>12.4} {:>10.4}",
             name,
             v,
             v * um_per_arcsec,

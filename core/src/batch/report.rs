@@ -120,6 +120,9 @@ pub struct CriterionVerdict {
 pub struct Report {
     pub dof_count: usize,
     pub optics_body: String,
+    /// Names of the two image axes with their sky directions: "image_x (az)", "image_y (alt)"
+    /// on an alt-azimuth pointing, "image_x (RA)", "image_y (Dec)" on an equatorial one.
+    pub image_axes: [String; 2],
     pub ground_label: Option<String>,
     pub wind: Option<String>,
     pub modes: Vec<ModeRow>,
@@ -504,6 +507,10 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         gust,
         dof_count: model.dof_count(),
         optics_body,
+        image_axes: match spec.optics.as_ref().map(|op| op.equatorial()) {
+            Some(Ok(Some(_))) => ["image_x (RA)".into(), "image_y (Dec)".into()],
+            _ => ["image_x (az)".into(), "image_y (alt)".into()],
+        },
         ground_label: ground.as_ref().map(|g| g.label.clone()),
         wind: o.wind.as_ref().map(|w| format!("{:?} {} m/s at {} m", w.kind, w.mean_speed_m_s, w.height_m)),
         modes: mode_rows,
