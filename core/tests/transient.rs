@@ -47,6 +47,40 @@ fn chain3() -> Model {
     Model::from_toml_str(&s, "chain3").unwrap()
 }
 
+/// A tube on a torsion spring about y (k_t = 5e4 N·m/rad, J = 20 kg·m²) with the wind 0.4 m
+/// above its CG, looking east at the horizon; `c` the damping (N·m·s/rad).
+fn tube_toml(c: f64, focal_length_mm: f64) -> String {
+    format!(
+        r#"
+[[body]]
+name = "tube"
+mass_kg = 5
+cg_m = [0, 0, 1]
+inertia_kgm2 = [20, 20, 20]
+dofs = ["ry"]
+[[torsion_spring]]
+name = "axis"
+from = "ground"
+to = "tube"
+axis = [0, 1, 0]
+stiffness_nm_per_rad = 5.0e4
+damping_nms_per_rad = {c}
+[wind]
+body = "tube"
+centre_of_pressure_m = [0, 0, 1.4]
+direction = [1, 0, 0]
+area_m2 = 0.1
+drag_coefficient = 1.0
+[optics]
+body = "tube"
+focal_length_mm = {focal_length_mm}
+pixel_um = 3.76
+altitude_deg = 0
+azimuth_deg = 90
+"#
+    )
+}
+
 fn max_abs(v: &[f64]) -> f64 {
     v.iter().fold(0.0f64, |a, x| a.max(x.abs()))
 }
@@ -317,34 +351,8 @@ fn slow_gust_on_optics_gives_the_quasi_static_image_shift() {
     // altitude by −θ_y (θ × â with â = x̂). A 1-cosine gust lasting 2 s ≫ T_n = 0.126 s is
     // quasi-static (dynamic amplification ≈ 1 + (T_n/T_g)², Chopra ch. 4 — from memory: verify).
     // Plate scale for 3.76 µm at 1000 mm: 0.77556 ″/px (docs/references.md#s11).
-    let text = r#"
-[[body]]
-name = "tube"
-mass_kg = 5
-cg_m = [0, 0, 1]
-inertia_kgm2 = [20, 20, 20]
-dofs = ["ry"]
-[[torsion_spring]]
-name = "axis"
-from = "ground"
-to = "tube"
-axis = [0, 1, 0]
-stiffness_nm_per_rad = 5.0e4
-damping_nms_per_rad = 100.0
-[wind]
-body = "tube"
-centre_of_pressure_m = [0, 0, 1.4]
-direction = [1, 0, 0]
-area_m2 = 0.1
-drag_coefficient = 1.0
-[optics]
-body = "tube"
-focal_length_mm = 1000
-pixel_um = 3.76
-altitude_deg = 0
-azimuth_deg = 90
-"#;
-    let model = Model::from_toml_str(text, "tube").unwrap();
+    let text = tube_toml(100.0, 1000.0);
+    let model = Model::from_toml_str(&text, "tube").unwrap();
     let wind = GustWind::new(5.0);
     let r = model
         .gust_response(
@@ -470,36 +478,10 @@ fn gust_family_ring_down_matches_newmark_and_the_free_decay_envelope() {
     // f_n = √(k/J)/2π = 7.958 Hz. After a gust ends the tube swings freely, |θ| ≤ A e^(−ζωt)
     // (Chopra, Dynamics of Structures, free vibration of a damped SDOF), so the image stays
     // within R after ln(A/R)/(ζω), A the swing at the gust's end (within a period).
-    let text = r#"
-[[body]]
-name = "tube"
-mass_kg = 5
-cg_m = [0, 0, 1]
-inertia_kgm2 = [20, 20, 20]
-dofs = ["ry"]
-[[torsion_spring]]
-name = "axis"
-from = "ground"
-to = "tube"
-axis = [0, 1, 0]
-stiffness_nm_per_rad = 5.0e4
-damping_nms_per_rad = 10.0
-[wind]
-body = "tube"
-centre_of_pressure_m = [0, 0, 1.4]
-direction = [1, 0, 0]
-area_m2 = 0.1
-drag_coefficient = 1.0
-[optics]
-body = "tube"
-focal_length_mm = 2800
-pixel_um = 3.76
-altitude_deg = 0
-azimuth_deg = 90
-"#;
+    let text = tube_toml(10.0, 2800.0);
     use stillsky::batch::gust::{GUST_START_S, GustPlan, gust_family_with};
     use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
-    let model = Model::from_toml_str(text, "tube").unwrap();
+    let model = Model::from_toml_str(&text, "tube").unwrap();
     let wind = WindSpec::new(WindSpectrum::VonKarman, 5.0, 2.0, Turbulence::Intensity(0.2));
     let plan = GustPlan::for_model(&model).unwrap();
     let fn_hz = (5.0e4f64 / 20.0).sqrt() / (2.0 * PI);
