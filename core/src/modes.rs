@@ -127,8 +127,12 @@ impl Modes {
     /// of sight; translations read across or along the pointing (horizontal) or vertical.
     /// Without `[optics]` the global axes are used.
     pub fn label(&self, model: &Model, j: usize) -> Result<String> {
-        let e = self.energy(model, j)?;
-        let Some((owner, _)) = e.bodies.first() else { return Ok(String::new()) };
+        Ok(self.label_with(model, j, &self.energy(model, j)?))
+    }
+
+    /// [`Modes::label`] from mode `j`'s energy shares already computed by [`Modes::energy`].
+    pub fn label_with(&self, model: &Model, j: usize, e: &ModeEnergy) -> String {
+        let Some((owner, _)) = e.bodies.first() else { return String::new() };
         let n = model.dof_count();
         let (mut t, mut r) = ([0.0f64; 3], [0.0f64; 3]);
         let (mut et, mut er) = (0.0, 0.0);
@@ -199,7 +203,7 @@ impl Modes {
                 }
             }
         };
-        Ok(format!("{owner}: {what}"))
+        format!("{owner}: {what}")
     }
 }
 

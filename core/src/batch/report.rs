@@ -393,7 +393,7 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
                 frequency_hz: modes.frequency_hz[j],
                 damping_ratio: modes.damping_ratio[j],
                 dominant_dof: dom[j].clone(),
-                label: modes.label(&model, j)?,
+                label: modes.label_with(&model, j, &e),
                 image_share,
                 moving: e.bodies.into_iter().take(3).collect(),
                 flexing: e.connectors.into_iter().take(3).collect(),
