@@ -6,11 +6,16 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 root=$(pwd)
+# Incremental caches double the size of target/ and buy nothing on a one-shot run.
+export CARGO_INCREMENTAL="${CARGO_INCREMENTAL:-0}"
+disk() { echo "-- disk: $(df -h "$root" | awk 'NR==2 {print $4" free"}'), target/ $(du -sh "$root/target" 2>/dev/null | cut -f1)"; }
+disk
 
 echo "== Rust: format, lint, tests"
 cargo fmt --all --check
 cargo clippy --workspace --all-targets --locked -- -D warnings
 cargo test --workspace --locked
+disk
 
 echo "== Python: venv, wheel, pytest"
 venv="${STILLSKY_VENV:-$root/target/venv}"
@@ -27,6 +32,7 @@ echo "== Browser: the demo's HTML report in a headless browser"
 # STILLSKY_BROWSER_OPTIONAL=1.
 "$venv/bin/python" "$root/tests/browser/check_report.py" --bin "$root/target/release/stillsky"
 
+disk
 echo "== Benches compile"
 cargo bench --workspace --no-run --locked
 echo "all test stages passed"
