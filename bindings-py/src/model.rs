@@ -26,7 +26,8 @@ pub struct PyModel {
 impl PyModel {
     #[staticmethod]
     #[pyo3(signature = (path, *, altitude_deg = None, azimuth_deg = None, hour_angle_deg = None,
-                        declination_deg = None, pier_side = None))]
+                        declination_deg = None, pier_side = None, wind_from_deg = None))]
+    #[allow(clippy::too_many_arguments)]
     fn from_toml(
         py: Python<'_>,
         path: PathBuf,
@@ -35,8 +36,10 @@ impl PyModel {
         hour_angle_deg: Option<f64>,
         declination_deg: Option<f64>,
         pier_side: Option<&str>,
+        wind_from_deg: Option<f64>,
     ) -> PyResult<Self> {
-        let p = pointing(altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side)?;
+        let p =
+            pointing(altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side, wind_from_deg)?;
         let label = path.display().to_string();
         let text = py.detach(|| read_text_capped(&path, MAX_MODEL_FILE_BYTES)).py_err()?;
         model_pointed(py, text, label, &p)
@@ -44,7 +47,7 @@ impl PyModel {
 
     #[staticmethod]
     #[pyo3(signature = (text, label = String::from("<string>"), *, altitude_deg = None, azimuth_deg = None,
-                        hour_angle_deg = None, declination_deg = None, pier_side = None))]
+                        hour_angle_deg = None, declination_deg = None, pier_side = None, wind_from_deg = None))]
     #[allow(clippy::too_many_arguments)]
     fn from_toml_str(
         py: Python<'_>,
@@ -55,9 +58,49 @@ impl PyModel {
         hour_angle_deg: Option<f64>,
         declination_deg: Option<f64>,
         pier_side: Option<&str>,
+        wind_from_deg: Option<f64>,
     ) -> PyResult<Self> {
-        let p = pointing(altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side)?;
+        let p =
+            pointing(altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side, wind_from_deg)?;
         model_pointed(py, text, label, &p)
+    }
+
+    /// The wind's parts (derived from the rig's parts, or the model's ``[wind]``): a list of
+    /// dicts with ``name``, ``body``, ``centre_of_pressure_m``, ``direction`` (unit),
+    /// ``area_m2`` and ``drag_coefficient``; empty when the model takes no wind.
+    fn wind_parts<'py>(&self, py: Python<'py>) -> PyResult<Vec<Bound<'py, PyDict>>> {
+        let Some(w) = self.inner.wind() else { return Ok(Vec::new()) };
+        w.parts()
+            .py_err()?
+            .into_iter()
+            .map(|p| {
+                let d = PyDict::new(py);
+                d.set_item("name", p.name)?;
+                d.set_item("body", p.body)?;
+                d.set_item("centre_of_pressure_m", p.centre_of_pressure_m.to_vec())?;
+                d.set_item("direction", p.direction.to_vec())?;
+                d.set_item("area_m2", p.area_m2)?;
+                d.set_item("drag_coefficient", p.drag_coefficient)?;
+                Ok(d)
+            })
+            .collect()
+    }
+
+    /// Mean-wind force (N) and moment about ``about_m`` (N·m) summed over the wind's parts at
+    /// ``speed_m_s``: Σ ½ ρ U² C_d A ê and Σ (r − about) × ½ ρ U² C_d A ê.
+    #[pyo3(signature = (speed_m_s, *, air_density_kg_m3 = 1.225, about_m = [0.0, 0.0, 0.0]))]
+    fn wind_resultant(
+        &self,
+        speed_m_s: f64,
+        air_density_kg_m3: f64,
+        about_m: [f64; 3],
+    ) -> PyResult<([f64; 3], [f64; 3])> {
+        let w = self
+            .inner
+            .wind()
+            .ok_or_else(|| stillsky::Error::invalid("wind", "the model takes no wind"))
+            .py_err()?;
+        w.resultant(air_density_kg_m3, speed_m_s, about_m).py_err()
     }
 
     fn __reduce__<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, pyo3::types::PyTuple>> {
@@ -404,6 +447,7 @@ fn pointing(
     hour_angle_deg: Option<f64>,
     declination_deg: Option<f64>,
     pier_side: Option<&str>,
+    wind_from_deg: Option<f64>,
 ) -> PyResult<Pointing> {
     let pier_side = match pier_side {
         None => None,
@@ -417,7 +461,7 @@ fn pointing(
             .py_err();
         }
     };
-    Ok(Pointing { altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side })
+    Ok(Pointing { altitude_deg, azimuth_deg, hour_angle_deg, declination_deg, pier_side, wind_from_deg })
 }
 
 /// Build a model from text with a pointing override (the core's `ModelFile::repoint`); the kept

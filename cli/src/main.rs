@@ -82,6 +82,10 @@ struct WindArgs {
     /// Turbulence intensity σ_u / U.
     #[arg(long, default_value_t = 0.2)]
     turbulence: f64,
+    /// The azimuth the wind blows from (deg from north through east, as forecasts give it); the
+    /// rig's wind parts are derived for it (default: the file's `[wind_load]`, else 270).
+    #[arg(long, allow_negative_numbers = true)]
+    wind_from_deg: Option<f64>,
     /// Quasi-steady drag: leave out the aerodynamic admittance of the wind load (on by default).
     #[arg(long)]
     quasi_steady_wind: bool,
@@ -475,6 +479,7 @@ fn report(a: &ReportArgs) -> CliResult {
         hour_angle_deg: a.hour_angle_deg,
         declination_deg: a.declination_deg,
         pier_side: a.pier_side,
+        wind_from_deg: a.wind.wind_from_deg,
     };
     let run =
         run_report(&a.model, &pointing, &o, a.catalogue.as_deref(), a.plots.as_deref(), a.json.as_deref())?;

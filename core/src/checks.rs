@@ -921,8 +921,9 @@ pub fn total_mass_kg(spec: &crate::assembly::ModelSpec) -> Result<f64> {
 /// with pinned–pinned K = 1 over the leg length, since legs are hinged at the head and rest on
 /// their feet) and tipping in the steady wind about the line through two feet (all wind
 /// directions, worst reported), or a pier (base stress, top deflection, fixed-free buckling)
-/// under the wind load at its top. The wind's area, drag coefficient and centre-of-pressure
-/// height come from the model's `[wind]` section; without it the wind checks are skipped.
+/// under the wind load at its top. The wind's Σ C_d A and its C_d A-weighted height come from
+/// the model's wind parts (derived from the rig or given in `[wind]`); without them the wind
+/// checks are skipped.
 /// Print [`CAUTIONS`] with the result.
 pub fn rig_checks(file: &crate::schema::ModelFile, wind: &StaticWind) -> Result<CheckReport> {
     require_non_negative("wind speed_m_s", wind.speed_m_s)?;
@@ -931,15 +932,21 @@ pub fn rig_checks(file: &crate::schema::ModelFile, wind: &StaticWind) -> Result<
     let spec = file.expanded()?;
     let total = total_mass_kg(&spec)?;
     let weight = total * STANDARD_GRAVITY;
-    let load = spec.wind.as_ref();
+    // The wind's parts summed as Σ C_d A (an upper bound on the resultant's size, for every
+    // direction), acting at their C_d A-weighted height.
+    let load = match spec.wind.as_ref() {
+        Some(w) => {
+            let parts = w.parts()?;
+            let cda = w.drag_area_m2()?;
+            let z =
+                parts.iter().map(|p| p.drag_coefficient * p.area_m2 * p.centre_of_pressure_m[2]).sum::<f64>()
+                    / cda;
+            Some((cda, z))
+        }
+        None => None,
+    };
     let wind_force = match load {
-        Some(w) => wind_force_n(
-            wind.air_density_kg_m3,
-            w.drag_coefficient,
-            w.area_m2,
-            wind.speed_m_s,
-            wind.gust_factor,
-        )?,
+        Some((cda, _)) => wind_force_n(wind.air_density_kg_m3, 1.0, cda, wind.speed_m_s, wind.gust_factor)?,
         None => 0.0,
     };
     let mut checks = Vec::new();
@@ -966,16 +973,16 @@ pub fn rig_checks(file: &crate::schema::ModelFile, wind: &StaticWind) -> Result<
         let b =
             buckling(&section, &material, g.leg_length_m, EndCondition::PinnedPinned.k_theoretical(), leg_n)?;
         checks.push(b.check("leg buckling (pinned-pinned, K = 1)"));
-        if let Some(w) = load {
+        if let Some((cda, z)) = load {
             let input = TippingInput {
                 n_feet: n,
                 foot_radius_m: g.foot_radius_m,
                 first_foot_azimuth_deg: t.first_leg_azimuth_deg.unwrap_or(0.0),
                 weight_n: weight,
                 cg_offset_m: [0.0, 0.0],
-                pressure_height_m: w.centre_of_pressure_m[2].max(1e-3),
-                drag_coefficient: w.drag_coefficient,
-                area_m2: w.area_m2,
+                pressure_height_m: z.max(1e-3),
+                drag_coefficient: 1.0,
+                area_m2: cda,
                 air_density_kg_m3: wind.air_density_kg_m3,
                 gust_factor: wind.gust_factor,
             };

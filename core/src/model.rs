@@ -2,7 +2,8 @@
 //!
 //! Inputs (one column of the FRF each):
 //! - `ground_x`, `ground_y`, `ground_z`: unit ground displacement (m) of every ground attachment.
-//! - `wind`: unit force (N) at the wind's centre of pressure along its direction.
+//! - `wind`: the reference drag force ρ Ū u Σ C_d A (N), shared over the wind's parts in
+//!   proportion to their C_d A, each at its centre of pressure along its own direction.
 //! - `force:NAME:x|y|z`: unit force at the CG of body or node NAME; `moment:NAME:x|y|z`: unit
 //!   moment (N·m) on body NAME.
 //!
@@ -88,16 +89,10 @@ impl Model {
             }
         }
         if let Some(w) = &spec.wind {
-            model.carrier(&w.body, "wind.body")?;
-            crate::error::require_positive("wind.area_m2", w.area_m2)?;
-            crate::error::require_positive("wind.drag_coefficient", w.drag_coefficient)?;
-            for x in w.centre_of_pressure_m {
-                crate::error::require_finite("wind.centre_of_pressure_m", x)?;
-            }
-            let d = w.direction;
-            let l = (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt();
-            if !(l.is_finite() && l > 1e-12) {
-                return Err(Error::invalid("wind.direction", "must be a non-zero vector"));
+            for (k, p) in w.parts()?.iter().enumerate() {
+                let field =
+                    if w.parts.is_empty() { "wind.body".to_string() } else { format!("wind.part[{k}].body") };
+                model.carrier(&p.body, &field)?;
             }
         }
         model.check_supported()?;
@@ -266,12 +261,18 @@ impl Model {
                 .wind
                 .as_ref()
                 .ok_or_else(|| Error::invalid("input 'wind'", "the model has no [wind] section"))?;
-            let c = self.carrier(&w.body, "wind.body")?;
-            let map = c.point_map_free(w.centre_of_pressure_m, n);
-            let l = (w.direction.iter().map(|x| x * x).sum::<f64>()).sqrt();
-            let dir: Vec<f64> = w.direction.iter().map(|x| x / l).collect();
-            // generalised force Tᵀ F
-            let v = (0..n).map(|g| (0..3).map(|i| map[i][g] * dir[i]).sum()).collect();
+            // Per unit reference force ρ Ū u Σ C_d A: Σ_i (C_d A)_i T_iᵀ ê_i / Σ C_d A.
+            let parts = w.parts()?;
+            let total = w.drag_area_m2()?;
+            let mut v = vec![0.0; n];
+            for p in &parts {
+                let c = self.carrier(&p.body, "wind part body")?;
+                let map = c.point_map_free(p.centre_of_pressure_m, n);
+                let s = p.drag_coefficient * p.area_m2 / total;
+                for (g, vg) in v.iter_mut().enumerate() {
+                    *vg += s * (0..3).map(|i| map[i][g] * p.direction[i]).sum::<f64>();
+                }
+            }
             return Ok(Input::Load(v));
         }
         let parts: Vec<&str> = name.split(':').collect();

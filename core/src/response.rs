@@ -62,8 +62,8 @@ impl Disturbances {
             let load = model.wind().ok_or_else(|| {
                 Error::invalid("wind", "the model has no [wind] section (load point, area, drag coefficient)")
             })?;
-            let chi = w.admittance_sq(grid, load.area_m2)?;
-            let f = w.drag_force_psd(load.drag_coefficient, load.area_m2, grid, chi.as_deref())?;
+            let chi = w.admittance_sq(grid, load.total_area_m2()?)?;
+            let f = w.drag_force_psd(1.0, load.drag_area_m2()?, grid, chi.as_deref())?;
             out.push(("wind".to_string(), f.values().to_vec()));
         }
         for (name, p) in &self.loads {

@@ -43,6 +43,9 @@ pub struct Pointing {
     pub hour_angle_deg: Option<f64>,
     pub declination_deg: Option<f64>,
     pub pier_side: Option<PierSide>,
+    /// The azimuth the wind blows from (deg), for a wind load derived from the rig's parts
+    /// ([`ModelFile::set_wind_from`]): it turns with the pointing like the parts do.
+    pub wind_from_deg: Option<f64>,
 }
 
 impl Pointing {
@@ -89,9 +92,14 @@ impl ModelFile {
         Self::parse(&text, &path.display().to_string())
     }
 
-    /// Replace the pointing of `[optics]` (see [`Pointing`]); the rig layer poses the payload for
-    /// it when the file is expanded. An empty override changes nothing.
+    /// Replace the pointing of `[optics]` (see [`Pointing`]) and the wind's direction; the rig
+    /// layer poses the payload and derives the wind parts for them when the file is expanded.
+    /// An empty override changes nothing.
     pub fn repoint(&mut self, p: &Pointing) -> Result<()> {
+        if let Some(az) = p.wind_from_deg {
+            self.set_wind_from(az)?;
+        }
+        let p = &Pointing { wind_from_deg: None, ..*p };
         if p.is_empty() {
             return Ok(());
         }
@@ -137,6 +145,34 @@ impl ModelFile {
             return Ok(());
         }
         o.validate()
+    }
+
+    /// Set the azimuth the wind blows from (deg from north through east) for the wind load the
+    /// rig layer derives from its parts. Refused when the file's own `[wind]` section fixes the
+    /// load (remove it to derive the wind from the parts) or when there is no rig layer.
+    pub fn set_wind_from(&mut self, from_azimuth_deg: f64) -> Result<()> {
+        crate::error::require_finite("wind from_azimuth_deg", from_azimuth_deg)?;
+        if self.generic.wind.is_some() {
+            return Err(Error::invalid(
+                "wind direction",
+                "the model's [wind] section fixes the load and its direction; remove it to derive the wind from the rig's parts",
+            ));
+        }
+        if self.rig.mount.is_none() {
+            return Err(Error::invalid(
+                "wind direction",
+                "needs a rig layer ([mount] and a stand) to derive the wind from",
+            ));
+        }
+        let w = self.rig.wind_load.get_or_insert_with(Default::default);
+        if w.derive == Some(false) {
+            return Err(Error::invalid(
+                "wind direction",
+                "wind_load.derive = false: the model takes no wind",
+            ));
+        }
+        w.from_azimuth_deg = Some(from_azimuth_deg);
+        Ok(())
     }
 
     /// The generic model: the rig layer expanded, followed by the file's own generic entries.
@@ -270,7 +306,7 @@ mod tests {
             reason,
             "unknown field `wobble`, expected one of `title`, `body`, `node`, `spring`, `torsion_spring`, \
              `general_spring`, `beam`, `optics`, `wind`, `payload`, `mount`, `tripod`, `pads`, `ground`, \
-             `pier`, `floor`"
+             `pier`, `floor`, `wind_load`"
         );
     }
 }

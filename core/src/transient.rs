@@ -865,6 +865,7 @@ impl Model {
     ) -> Result<Vec<ImageTransient>> {
         let w =
             self.wind().ok_or_else(|| Error::invalid("gust response", "the model has no [wind] section"))?;
+        let drag_area = w.drag_area_m2()?;
         require_positive("fs_hz", fs_hz)?;
         require_positive("duration_s", duration_s)?;
         let n_f = (duration_s * fs_hz).round();
@@ -879,7 +880,7 @@ impl Model {
             .iter()
             .map(|g| {
                 let u = g.velocity_history(wind.mean_speed_m_s, fs_hz, n_f as usize)?;
-                wind.drag_fluctuation(&u, w.area_m2, w.drag_coefficient)
+                wind.drag_fluctuation(&u, drag_area, 1.0)
             })
             .collect::<Result<Vec<_>>>()?;
         let refs: Vec<&[f64]> = forces.iter().map(|f| f.as_slice()).collect();

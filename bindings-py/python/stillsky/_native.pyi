@@ -10,7 +10,7 @@ release the GIL: do not modify an input array from another thread during a call.
 """
 
 from os import PathLike
-from typing import Literal, Mapping, Sequence, final, overload
+from typing import Any, Literal, Mapping, Sequence, final, overload
 
 import numpy as np
 import numpy.typing as npt
@@ -105,6 +105,7 @@ class Model:
         hour_angle_deg: float | None = None,
         declination_deg: float | None = None,
         pier_side: Literal["east", "west"] | None = None,
+        wind_from_deg: float | None = None,
     ) -> Model:
         """Read a TOML model file.
 
@@ -114,6 +115,8 @@ class Model:
                 payload of a rig is posed for it exactly as if the file had been edited.
             hour_angle_deg, declination_deg, pier_side: the same for an equatorial pointing
                 (hour angle positive west; the side of the pier the tube is on).
+            wind_from_deg: the azimuth the wind blows from (deg from north through east); a rig's
+                wind parts are derived for it, as ``[wind_load] from_azimuth_deg`` in the file.
 
         Raises:
             StillskyIOError: the file cannot be read (also an ``OSError``).
@@ -131,6 +134,7 @@ class Model:
         hour_angle_deg: float | None = None,
         declination_deg: float | None = None,
         pier_side: Literal["east", "west"] | None = None,
+        wind_from_deg: float | None = None,
     ) -> Model:
         """Build a model from TOML text.
 
@@ -139,6 +143,23 @@ class Model:
             label: name of the source used in error messages (e.g. a file name).
             altitude_deg, azimuth_deg: a pointing that replaces the file's ``[optics]`` one (see
                 ``from_toml``).
+        """
+    def wind_parts(self) -> list[dict[str, Any]]:
+        """The wind's parts (derived from a rig's parts, or the model's ``[wind]``): dicts with
+        ``name``, ``body``, ``centre_of_pressure_m``, ``direction`` (unit force direction),
+        ``area_m2`` and ``drag_coefficient``; empty when the model takes no wind."""
+    def wind_resultant(
+        self,
+        speed_m_s: float,
+        *,
+        air_density_kg_m3: float = 1.225,
+        about_m: Sequence[float] = ...,
+    ) -> tuple[list[float], list[float]]:
+        """Mean-wind force (N) and moment about ``about_m`` (N·m) summed over the parts at
+        ``speed_m_s``: Σ ½ρU²C_dA ê and Σ (r − about) × ½ρU²C_dA ê.
+
+        Raises:
+            InvalidInputError: the model takes no wind, or a bad speed or density.
         """
     @property
     def dof_count(self) -> int:

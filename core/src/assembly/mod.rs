@@ -33,7 +33,7 @@ pub(crate) use matrices::{Assembled, RankOneTerm};
 pub use numbering::DofLabel;
 pub use spec::{
     BeamSpec, BodySpec, Dof, GROUND, GeneralSpringSpec, MAX_DOFS, ModelSpec, NodeSpec, OpticsSpec,
-    SpringSpec, WindLoadSpec,
+    SpringSpec, WindLoadSpec, WindPartSpec,
 };
 pub use stiffness_spec::{StiffnessSpec, TableSpec, ZenerSpec};
 

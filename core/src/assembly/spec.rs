@@ -412,16 +412,140 @@ impl OpticsSpec {
     }
 }
 
-/// Where and how wind loads a body.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+/// Where and how wind loads the model: one or more parts, each a projected area with a drag
+/// coefficient at a centre of pressure on a body, pushed along its own force direction. A gust u
+/// on the mean speed Ū adds ρ Ū u C_d A along `direction` to each part (linearised drag), all
+/// parts in phase. Written by hand as one part (`body`, `centre_of_pressure_m`, `direction`,
+/// `area_m2`, `drag_coefficient`) or as a list (`[[wind.part]]`); a rig file derives the list
+/// from its parts (see `crate::rig`).
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct WindLoadSpec {
+    /// One-part form: the loaded body ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub body: Option<String>,
+    /// ... the centre of pressure (m) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub centre_of_pressure_m: Option<[f64; 3]>,
+    /// ... the direction the wind blows towards (any length; normalised) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub direction: Option<[f64; 3]>,
+    /// ... the projected area (m²) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub area_m2: Option<f64>,
+    /// ... and its drag coefficient.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub drag_coefficient: Option<f64>,
+    /// The azimuth the wind blows from (deg from north through east), as forecasts give it;
+    /// written by the rig layer for reference (each part carries its own force direction).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub from_azimuth_deg: Option<f64>,
+    /// List form.
+    #[serde(default, rename = "part", skip_serializing_if = "Vec::is_empty")]
+    pub parts: Vec<WindPartSpec>,
+}
+
+/// One loaded part: the fluctuating force ρ Ū u C_d A acts along `direction` at
+/// `centre_of_pressure_m` on `body`.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct WindPartSpec {
+    /// Free label.
+    pub name: String,
     pub body: String,
     pub centre_of_pressure_m: [f64; 3],
-    /// Unit horizontal vector the wind blows towards.
+    /// Direction of the part's drag force (any length; normalised). For a cylinder at an angle
+    /// to the flow it is the flow's component across the axis, not the wind direction.
     pub direction: [f64; 3],
+    /// Area (m²) such that the force is ½ ρ U² C_d A: a cylinder's side D L sin²θ (cross-flow
+    /// principle), an end disc (π D²/4) cos²θ.
     pub area_m2: f64,
     pub drag_coefficient: f64,
+}
+
+impl WindLoadSpec {
+    /// The parts, from either form, validated (finite, non-negative areas, positive drag
+    /// coefficients, non-zero directions normalised); errors name the field.
+    pub fn parts(&self) -> Result<Vec<WindPartSpec>> {
+        let single = self.body.is_some()
+            || self.centre_of_pressure_m.is_some()
+            || self.direction.is_some()
+            || self.area_m2.is_some()
+            || self.drag_coefficient.is_some();
+        let parts = match (single, self.parts.is_empty()) {
+            (true, false) => {
+                return Err(Error::invalid(
+                    "wind",
+                    "give either body/centre_of_pressure_m/direction/area_m2/drag_coefficient or [[wind.part]] entries, not both",
+                ));
+            }
+            (false, true) => {
+                return Err(Error::invalid("wind", "has no parts (give body, area_m2, ... or [[wind.part]])"));
+            }
+            (true, true) => {
+                let need = |k: &str| Error::invalid(format!("wind.{k}"), "is required");
+                vec![WindPartSpec {
+                    name: "wind".into(),
+                    body: self.body.clone().ok_or_else(|| need("body"))?,
+                    centre_of_pressure_m: self
+                        .centre_of_pressure_m
+                        .ok_or_else(|| need("centre_of_pressure_m"))?,
+                    direction: self.direction.ok_or_else(|| need("direction"))?,
+                    area_m2: self.area_m2.ok_or_else(|| need("area_m2"))?,
+                    drag_coefficient: self.drag_coefficient.ok_or_else(|| need("drag_coefficient"))?,
+                }]
+            }
+            (false, false) => self.parts.clone(),
+        };
+        let mut out = Vec::with_capacity(parts.len());
+        for (k, mut p) in parts.into_iter().enumerate() {
+            let f = if self.parts.is_empty() { "wind".to_string() } else { format!("wind.part[{k}]") };
+            require_non_negative(|| format!("{f}.area_m2"), p.area_m2)?;
+            require_positive(|| format!("{f}.drag_coefficient"), p.drag_coefficient)?;
+            for x in p.centre_of_pressure_m {
+                require_finite(|| format!("{f}.centre_of_pressure_m"), x)?;
+            }
+            let l = p.direction.iter().map(|x| x * x).sum::<f64>().sqrt();
+            if !(l.is_finite() && l > 1e-12) {
+                return Err(Error::invalid(format!("{f}.direction"), "must be a non-zero vector"));
+            }
+            p.direction = p.direction.map(|x| x / l);
+            out.push(p);
+        }
+        if out.iter().all(|p| p.area_m2 * p.drag_coefficient <= 0.0) {
+            return Err(Error::invalid("wind", "every part has zero area"));
+        }
+        Ok(out)
+    }
+
+    /// Σ C_d A over the parts (m²): the scale of the reference drag force ρ Ū u Σ C_d A.
+    pub fn drag_area_m2(&self) -> Result<f64> {
+        Ok(self.parts()?.iter().map(|p| p.drag_coefficient * p.area_m2).sum())
+    }
+
+    /// Σ A over the parts (m²), the size that sets the aerodynamic admittance.
+    pub fn total_area_m2(&self) -> Result<f64> {
+        Ok(self.parts()?.iter().map(|p| p.area_m2).sum())
+    }
+
+    /// Mean-wind force (N) and moment about `about_m` (N·m) at speed `speed_m_s` and air
+    /// density `rho`: Σ ½ ρ U² C_d A ê and Σ (r − about) × ½ ρ U² C_d A ê.
+    pub fn resultant(&self, rho: f64, speed_m_s: f64, about_m: [f64; 3]) -> Result<([f64; 3], [f64; 3])> {
+        require_positive("air_density_kg_m3", rho)?;
+        require_non_negative("speed_m_s", speed_m_s)?;
+        let q = 0.5 * rho * speed_m_s * speed_m_s;
+        let (mut f, mut m) = ([0.0; 3], [0.0; 3]);
+        for p in self.parts()? {
+            let fi = p.direction.map(|d| q * p.drag_coefficient * p.area_m2 * d);
+            let r: [f64; 3] = std::array::from_fn(|i| p.centre_of_pressure_m[i] - about_m[i]);
+            let mi = [r[1] * fi[2] - r[2] * fi[1], r[2] * fi[0] - r[0] * fi[2], r[0] * fi[1] - r[1] * fi[0]];
+            for i in 0..3 {
+                f[i] += fi[i];
+                m[i] += mi[i];
+            }
+        }
+        Ok((f, m))
+    }
 }
 
 /// The whole generic model, as in a model file's generic layer.

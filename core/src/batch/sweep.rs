@@ -244,10 +244,10 @@ impl PadMechanism {
         }
     }
 
-    /// The model's `[wind]` load point, if any.
+    /// True when the model takes wind: a `[wind]` section, or wind parts derived by the rig.
     fn has_wind(&self) -> bool {
         match self {
-            PadMechanism::Rig { file, .. } => file.generic.wind.is_some(),
+            PadMechanism::Rig { file, .. } => file.expanded().is_ok_and(|s| s.wind.is_some()),
             PadMechanism::Generic { spec, .. } => spec.wind.is_some(),
         }
     }

@@ -24,6 +24,7 @@ mod mount;
 mod payload;
 mod pier;
 mod tripod;
+mod wind;
 
 pub use floor::FloorSpec;
 pub use ground::{GroundKind, GroundSpec, Support};
@@ -31,6 +32,10 @@ pub use mount::{DEFAULT_PIVOT_TRANSLATIONAL_STIFFNESS_N_PER_M, MountKind, MountS
 pub use payload::{PartAxis, PartKind, PartSpec, PayloadSpec, payload_frame};
 pub use pier::{DEFAULT_FOOTING_DENSITY_KG_M3, FootingSpec, PierSpec};
 pub use tripod::{PadSpec, TripodGeometry, TripodSpec};
+pub use wind::{
+    BAR_DRAG_COEFFICIENT, BOX_DRAG_COEFFICIENT, CYLINDER_DRAG_COEFFICIENT, DEFAULT_WIND_FROM_AZIMUTH_DEG,
+    DISC_DRAG_COEFFICIENT, WindLoadRigSpec, wind_toward,
+};
 
 use crate::assembly::{GROUND, ModelSpec, OpticsSpec};
 use crate::error::{Error, Result};
@@ -41,6 +46,7 @@ use fields::{body_name, pos};
 use mass::{Mass, combine};
 use serde::{Deserialize, Serialize};
 use tripod::{TripodPlan, foot_contact};
+use wind::WindParts;
 
 /// The pointing the payload is posed for.
 enum Pose {
@@ -144,6 +150,8 @@ pub struct RigSpec {
     pub pier: Option<PierSpec>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub floor: Option<FloorSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub wind_load: Option<WindLoadRigSpec>,
 }
 
 impl RigSpec {
@@ -256,6 +264,7 @@ impl RigSpec {
             return Ok(out);
         }
 
+        let mut wind = WindParts::new(self.wind_load.as_ref())?;
         // Mount body.
         let (own, ph) = mount.own_mass(top_z)?;
         let mut parts = vec![own];
@@ -264,9 +273,16 @@ impl RigSpec {
         let pivot = [0.0, 0.0, top_z + ph];
 
         // Payload and the pivot joint.
+        if let Some(w) = wind.as_mut() {
+            let area = wind::head_area(mount.wind_area_m2, ph)?;
+            w.bluff("mount head", &mount_name, [0.0, 0.0, top_z + ph / 2.0], area, BOX_DRAG_COEFFICIENT);
+        }
         if let (Some(p), Some(pname)) = (&self.payload, &payload_name) {
             let posed = p.posed(pivot, pose.frame())?;
             out.bodies.push(to_body(pname, &posed));
+            if let Some(w) = wind.as_mut() {
+                p.wind(pname, pivot, pose.frame(), w)?;
+            }
             match &pose {
                 Pose::AltAz { alt, az } => mount.joint(&mount_name, pname, pivot, *alt, *az, &mut out)?,
                 Pose::Equatorial { q, side } => mount.joint_equatorial(
@@ -283,9 +299,15 @@ impl RigSpec {
         // Stand elements.
         if let Some(plan) = tripod_plan {
             let contact = foot_contact(self, &support)?;
+            if let Some(w) = wind.as_mut() {
+                plan.wind(&mount_name, &support, &contact, w);
+            }
             plan.build(&mount_name, &support, contact, &mut out)?;
         }
         if let (Some(p), Some(base)) = (&self.pier, pier_base) {
+            if let Some(w) = wind.as_mut() {
+                p.wind(&base, &mount_name, top_z, w)?;
+            }
             out.beams.push(p.column(&base, &mount_name, top_z)?);
             if let Some(f) = &self.floor {
                 f.gap(&out, &base)?.into_iter().for_each(|s| out.springs.push(s));
@@ -296,6 +318,7 @@ impl RigSpec {
                 "bridges the deck to a pier footing; there is no pier on a footing",
             ));
         }
+        out.wind = wind.and_then(WindParts::finish);
         Ok(out)
     }
 

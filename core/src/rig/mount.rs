@@ -95,6 +95,9 @@ pub struct MountSpec {
     /// [`DEFAULT_PIVOT_TRANSLATIONAL_STIFFNESS_N_PER_M`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub translational_stiffness_n_per_m: Option<f64>,
+    /// Projected area of the head in the wind (m², default the square of the pivot height).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub wind_area_m2: Option<f64>,
 }
 
 impl MountSpec {

@@ -11,6 +11,7 @@
 
 use super::fields::{fin_or, pos, pos3};
 use super::mass::{Mass, V3, add, combine, positive_definite, scale};
+use super::wind::{CYLINDER_DRAG_COEFFICIENT, DISC_DRAG_COEFFICIENT, WindParts, part_cd};
 use crate::error::{Error, Result, require_non_negative};
 use serde::{Deserialize, Serialize};
 
@@ -64,6 +65,9 @@ pub struct PartSpec {
     pub inner_diameter_m: Option<f64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub axis: Option<PartAxis>,
+    /// Drag coefficient of the side and the end disc (default 1.2 and 1.17; see `rig::wind`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub drag_coefficient: Option<f64>,
 }
 
 /// `[payload]`: optical tube, camera and counterweights as one rigid body.
@@ -166,6 +170,36 @@ impl PayloadSpec {
     }
 }
 
+impl PayloadSpec {
+    /// The wind parts of the payload's cylinders (point parts take none) posed in the frame `r`
+    /// about `pivot` on body `body`.
+    pub(super) fn wind(&self, body: &str, pivot: V3, r: [V3; 3], w: &mut WindParts) -> Result<()> {
+        let Some(parts) = &self.parts else {
+            return Ok(());
+        };
+        for (k, p) in parts.iter().enumerate() {
+            if p.kind == PartKind::Point {
+                continue;
+            }
+            let field = format!("payload.parts[{k}].drag_coefficient");
+            let c = add(
+                pivot,
+                add(scale(r[0], p.position_m.unwrap_or(0.0)), scale(r[1], p.shaft_m.unwrap_or(0.0))),
+            );
+            let axis = match p.axis.unwrap_or_default() {
+                PartAxis::LineOfSight => r[0],
+                PartAxis::Shaft => r[1],
+            };
+            let name = p.name.clone().unwrap_or_else(|| format!("payload part {k}"));
+            let (d, l) = (p.diameter_m.unwrap_or(0.0), p.length_m.unwrap_or(0.0));
+            let side = part_cd(&field, p.drag_coefficient, CYLINDER_DRAG_COEFFICIENT)?;
+            let end = part_cd(&field, p.drag_coefficient, DISC_DRAG_COEFFICIENT)?;
+            w.cylinder(&name, body, c, axis, d, l, side, Some(end));
+        }
+        Ok(())
+    }
+}
+
 impl PartSpec {
     fn mass(&self, p: &str) -> Result<Mass> {
         let p = match &self.name {
@@ -183,6 +217,7 @@ impl PartSpec {
                 ("length_m", self.length_m),
                 ("diameter_m", self.diameter_m),
                 ("inner_diameter_m", self.inner_diameter_m),
+                ("drag_coefficient", self.drag_coefficient),
             ] {
                 if v.is_some() {
                     return Err(Error::invalid(format!("{p}.{k}"), "a point mass has no size"));

@@ -6,6 +6,7 @@ use super::RigSpec;
 use super::elements::{EX, EY, EZ, axial, torsion};
 use super::fields::{material_of, nonneg_or, pos, pos_or};
 use super::ground::Support;
+use super::wind::{End, WindParts, section_drag};
 use crate::assembly::{BeamSpec, BodySpec, Dof, GROUND, ModelSpec};
 use crate::error::{Error, Result, require_non_negative, require_positive};
 use crate::material::Material;
@@ -138,6 +139,22 @@ impl PierSpec {
     }
 
     /// The column from its base up to the mount's base at `top_z`.
+    /// The column's wind parts: half at each end, L/6 in from it (the consistent end moments of
+    /// a uniformly loaded beam).
+    pub(super) fn wind(&self, base: &Base, mount: &str, top_z: f64, w: &mut WindParts) -> Result<()> {
+        let section = self.section.clone().ok_or_else(|| Error::invalid("pier.section", "is required"))?;
+        let (d, cd) = section_drag(&section);
+        w.member(
+            "pier column",
+            End { carrier: mount, at: [0.0, 0.0, top_z] },
+            End { carrier: &base.carrier, at: [0.0, 0.0, base.z] },
+            d,
+            cd,
+            1.0 / 6.0,
+        );
+        Ok(())
+    }
+
     pub(super) fn column(&self, base: &Base, mount: &str, top_z: f64) -> Result<BeamSpec> {
         let section = self.section.clone().ok_or_else(|| Error::invalid("pier.section", "is required"))?;
         section.validate("pier.section")?;

@@ -15,6 +15,7 @@ use super::elements::{EX, EY, EZ, axial};
 use super::fields::{fin_or, material_of, nonneg_or, pos, pos_or};
 use super::ground::Support;
 use super::mass::{Mass, V3, add, scale};
+use super::wind::{End, WindParts, section_drag};
 use crate::assembly::{BeamSpec, BodySpec, Dof, GROUND, ModelSpec, NodeSpec, SpringSpec, StiffnessSpec};
 use crate::error::{Error, Result, require_finite, require_positive};
 use crate::material::Material;
@@ -386,6 +387,23 @@ impl TripodPlan {
         match self.joint {
             Some((kj, eta)) => StiffnessModel::Series(vec![leg, StiffnessModel::hysteretic(kj, eta)]),
             None => leg,
+        }
+    }
+
+    /// The legs' wind parts: each leg pinned at the head (on `mount`) and the foot.
+    pub(super) fn wind(&self, mount: &str, support: &str, contact: &FootContact, w: &mut WindParts) {
+        let fixed = matches!(contact, FootContact::Fixed);
+        let (d, cd) = section_drag(&self.section);
+        for i in 0..self.n {
+            let foot = if fixed { support.to_string() } else { format!("foot{}", i + 1) };
+            w.member(
+                &format!("leg {}", i + 1),
+                End { carrier: mount, at: self.heads[i] },
+                End { carrier: &foot, at: self.feet[i] },
+                d,
+                cd,
+                0.0,
+            );
         }
     }
 
