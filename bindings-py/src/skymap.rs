@@ -15,7 +15,7 @@ use stillsky::{Error, FreqGrid};
 fn grid2<'py>(py: Python<'py>, v: &[Vec<f64>]) -> PyResult<Bound<'py, PyArray2<f64>>> {
     let (nr, nc) = (v.len(), v.first().map_or(0, Vec::len));
     let flat: Vec<f64> = v.iter().flatten().copied().collect();
-    Ok(flat.into_pyarray(py).reshape([nr, nc])?)
+    flat.into_pyarray(py).reshape([nr, nc])
 }
 
 fn cell<'py>(py: Python<'py>, m: &SkyMap, c: Option<SkyCell>) -> PyResult<Option<Bound<'py, PyDict>>> {

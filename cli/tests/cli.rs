@@ -328,8 +328,8 @@ fn sky_map_writes_csv_and_svg_and_names_best_and_worst() {
     let (out, err) = text(&o);
     assert!(o.status.success(), "{err}\n{out}");
     assert!(out.contains("best: hour angle ") && out.contains("; worst: hour angle "), "{out}");
-    let text = std::fs::read_to_string(&csv).unwrap();
-    let mut lines = text.lines();
+    let csv_text = std::fs::read_to_string(&csv).unwrap();
+    let mut lines = csv_text.lines();
     assert_eq!(lines.next(), Some("hour_angle_deg,declination_deg,rms_arcsec,rms_px"));
     let rows: Vec<Vec<f64>> = lines.map(|l| l.split(',').map(|x| x.parse().unwrap()).collect()).collect();
     assert_eq!(rows.len(), 5 * 6);
