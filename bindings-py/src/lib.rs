@@ -12,6 +12,7 @@ mod image;
 mod model;
 mod response;
 mod series;
+mod skymap;
 mod spectrum;
 mod sweep;
 mod transient;

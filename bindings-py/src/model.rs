@@ -358,6 +358,51 @@ impl PyModel {
         )
     }
 
+    #[pyo3(signature = (freq_hz, *, ground = None, wind = None, loads = None, wind_from_deg = None,
+                        altitudes_deg = None, azimuths_deg = None, hour_angles_deg = None,
+                        declinations_deg = None, min_altitude_deg = None, exposure_s = None,
+                        seeing_fwhm_arcsec = None))]
+    #[allow(clippy::too_many_arguments)]
+    fn sky_map<'py>(
+        &self,
+        py: Python<'py>,
+        freq_hz: &Bound<'py, PyAny>,
+        ground: Option<&Bound<'py, PyAny>>,
+        wind: Option<PyRef<'py, crate::wind::PyWind>>,
+        loads: Option<&Bound<'py, PyAny>>,
+        wind_from_deg: Option<f64>,
+        altitudes_deg: Option<&Bound<'py, PyAny>>,
+        azimuths_deg: Option<&Bound<'py, PyAny>>,
+        hour_angles_deg: Option<&Bound<'py, PyAny>>,
+        declinations_deg: Option<&Bound<'py, PyAny>>,
+        min_altitude_deg: Option<f64>,
+        exposure_s: Option<f64>,
+        seeing_fwhm_arcsec: Option<f64>,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        let axis = |o: Option<&Bound<'py, PyAny>>, name: &str| -> PyResult<Option<Vec<f64>>> {
+            o.map(|a| f64_1d(a, name).map(|v| slice_or_copy(&v).into_owned())).transpose()
+        };
+        let axes = stillsky::skymap::SkyAxes {
+            altitude_deg: axis(altitudes_deg, "altitudes_deg")?,
+            azimuth_deg: axis(azimuths_deg, "azimuths_deg")?,
+            hour_angle_deg: axis(hour_angles_deg, "hour_angles_deg")?,
+            declination_deg: axis(declinations_deg, "declinations_deg")?,
+            min_altitude_deg,
+        };
+        crate::skymap::model_sky_map(
+            self,
+            py,
+            freq_hz,
+            ground,
+            wind,
+            loads,
+            wind_from_deg,
+            axes,
+            exposure_s,
+            seeing_fwhm_arcsec,
+        )
+    }
+
     fn __repr__(&self) -> String {
         format!(
             "Model(dof_count={}, inputs={}, outputs={})",

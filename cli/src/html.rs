@@ -623,8 +623,21 @@ fn plot_caption(p: &Plot, r: &Report) -> String {
         ),
         "cumulative-rms.svg" => format!("{}; the dash-dot line is ½ px.", p.title),
         "gust.svg" => format!("{}; the dash-dot lines are ±½ px.", p.title),
+        "sky-map.svg" => match &r.sky_map {
+            Some(m) => format!("{}. {}.", p.title, sky_map_words(m)),
+            None => p.title.clone(),
+        },
         _ => p.title.clone(),
     }
+}
+
+/// The sky map's best and worst cells in words, with the rule for skipped cells.
+pub fn sky_map_words(m: &stillsky::skymap::SkyMap) -> String {
+    let cap = |s: String| {
+        let mut c = s.chars();
+        c.next().map_or(String::new(), |f| f.to_uppercase().collect::<String>() + c.as_str())
+    };
+    format!("{} (pointings below {:.0}° altitude are not mapped)", cap(m.summary_text()), m.min_altitude_deg)
 }
 
 /// The report page.
@@ -652,6 +665,9 @@ pub fn report_page(c: &ReportContent) -> String {
     page.section("modes-section", "Modes", &modes_html(r));
     if let Some(g) = &r.gust {
         page.section("gusts", "Gusts", &gusts_html(g));
+    }
+    if let Some(m) = &r.sky_map {
+        page.section("sky-map-section", "Sky map", &para(&format!("{}.", sky_map_words(m))));
     }
     if !r.criteria.is_empty() {
         page.section("criteria-section", "Ground against criterion curves", &criteria_html(r));
@@ -758,7 +774,18 @@ pub fn report_inputs(
         ("exposure (s)".into(), opt(o.exposure_s, "none (long exposure)")),
         ("radius for the probability (px)".into(), im.radius_px.to_string()),
         ("guide loop".into(), im.guide.as_ref().map_or("none".into(), |g| format!("{g:?}"))),
+        ("wind from (deg)".into(), opt(o.wind_from_deg, "model's [wind] direction")),
     ];
+    if let Some(m) = &r.sky_map {
+        let [rn, cn] = m.frame.axis_names();
+        v.push((
+            "sky map grid".into(),
+            format!(
+                "{rn} {:?} × {cn} {:?}; cells below {}° altitude skipped",
+                m.rows_deg, m.cols_deg, m.min_altitude_deg
+            ),
+        ));
+    }
     if let Some(w) = wind {
         v.push((
             "static checks wind".into(),

@@ -16,6 +16,7 @@ use stillsky::guider::GuideLoop;
 use stillsky::io::series::{Sensitivity, SeriesOptions, Unit, read_series};
 use stillsky::schema::{ModelFile, Pointing};
 use stillsky::sky::PierSide;
+use stillsky::skymap::{SkyAxes, SkyGrid, stepped};
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 
 #[derive(Parser)]
@@ -29,6 +30,9 @@ struct Cli {
 enum Cmd {
     /// Report on one model: modes, image motion, blur, ground spectrum; optional plots and JSON.
     Report(Box<ReportArgs>),
+    /// Image RMS over the sky (altitude × azimuth, or hour angle × declination for an
+    /// equatorial rig) into a CSV and a heat map; names the best and worst pointings.
+    SkyMap(Box<SkyMapArgs>),
     /// Sweep an isolator catalogue over ground spectra and wind cases into a CSV.
     Sweep(SweepArgs),
     /// Print the generic-layer TOML a model file expands to.
@@ -97,10 +101,8 @@ struct WindArgs {
     air_temperature_c: Option<f64>,
 }
 
-#[derive(Args)]
-struct ReportArgs {
-    /// Model file (TOML: rig or generic layer).
-    model: PathBuf,
+#[derive(Args, Clone)]
+struct GroundArgs {
     /// Ground spectrum: a recording, a PSD file, nlnm or nhnm (default nhnm), or `none`.
     #[arg(long)]
     ground: Option<String>,
@@ -114,8 +116,75 @@ struct ReportArgs {
     /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
     #[arg(long, value_parser = parse_sensitivity)]
     sensitivity: Option<Sensitivity>,
+}
+
+/// The cells of a sky map; without any of these the rig's default grid is used.
+#[derive(Args, Clone)]
+struct SkyGridArgs {
+    /// Alt-azimuth rigs: altitudes as FROM:TO:STEP (deg; default 20:90:10).
+    #[arg(long, value_parser = parse_range, allow_hyphen_values = true)]
+    altitudes: Option<[f64; 3]>,
+    /// Alt-azimuth rigs: azimuths as FROM:TO:STEP (deg from north through east; default 0:330:30).
+    #[arg(long, value_parser = parse_range, allow_hyphen_values = true)]
+    azimuths: Option<[f64; 3]>,
+    /// Equatorial rigs: hour angles as FROM:TO:STEP in hours, west positive (default -6:6:1).
+    #[arg(long, value_parser = parse_range, allow_hyphen_values = true)]
+    hour_angles_h: Option<[f64; 3]>,
+    /// Equatorial rigs: declinations as FROM:TO:STEP (deg; default the band reaching 20°
+    /// altitude on the meridian, by 10°).
+    #[arg(long, value_parser = parse_range, allow_hyphen_values = true)]
+    declinations: Option<[f64; 3]>,
+    /// Pointings lower than this altitude (deg) are not mapped (default 20).
+    #[arg(long, allow_negative_numbers = true)]
+    min_altitude_deg: Option<f64>,
+}
+
+#[derive(Args)]
+struct SkyMapArgs {
+    /// Model file (TOML: rig or generic layer, with [optics]).
+    model: PathBuf,
+    #[command(flatten)]
+    ground: GroundArgs,
     #[command(flatten)]
     wind: WindArgs,
+    /// Azimuth the wind blows from (deg from north through east); replaces the direction of
+    /// the model's [wind] load.
+    #[arg(long, allow_negative_numbers = true)]
+    wind_from_deg: Option<f64>,
+    #[arg(long)]
+    focal_length_mm: Option<f64>,
+    #[arg(long)]
+    pixel_um: Option<f64>,
+    #[command(flatten)]
+    sky: SkyGridArgs,
+    /// Write the map as CSV (one row per cell: the two coordinates, rms_arcsec, rms_px).
+    #[arg(long)]
+    csv: Option<PathBuf>,
+    /// Write the heat map as SVG.
+    #[arg(long)]
+    svg: Option<PathBuf>,
+    /// Write the map as JSON.
+    #[arg(long)]
+    json: Option<PathBuf>,
+}
+
+#[derive(Args)]
+struct ReportArgs {
+    /// Model file (TOML: rig or generic layer).
+    model: PathBuf,
+    #[command(flatten)]
+    ground: GroundArgs,
+    #[command(flatten)]
+    wind: WindArgs,
+    /// Azimuth the wind blows from (deg from north through east); replaces the direction of
+    /// the model's [wind] load.
+    #[arg(long, allow_negative_numbers = true)]
+    wind_from_deg: Option<f64>,
+    /// Add a sky map (image RMS over the sky, best and worst pointings) to the report.
+    #[arg(long)]
+    sky_map: bool,
+    #[command(flatten)]
+    sky: SkyGridArgs,
     #[arg(long)]
     focal_length_mm: Option<f64>,
     #[arg(long)]
@@ -267,6 +336,14 @@ fn parse_pier_side(s: &str) -> Result<PierSide, String> {
     }
 }
 
+fn parse_range(s: &str) -> Result<[f64; 3], String> {
+    let v: Vec<f64> = s
+        .split(':')
+        .map(|x| x.trim().parse::<f64>().map_err(|_| format!("'{x}' is not a number")))
+        .collect::<Result<_, _>>()?;
+    <[f64; 3]>::try_from(v).map_err(|v| format!("need FROM:TO:STEP, got {} value(s)", v.len()))
+}
+
 fn parse_triple(s: &str) -> Result<[f64; 3], String> {
     let v: Vec<f64> = s
         .split(',')
@@ -299,6 +376,7 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let r = match cli.cmd {
         Cmd::Report(a) => report(&a),
+        Cmd::SkyMap(a) => sky_map(&a),
         Cmd::Sweep(a) => sweep(&a),
         Cmd::Expand { model } => expand(&model),
         Cmd::Demo { out } => demo(&out),
@@ -351,8 +429,7 @@ fn wind_spec(w: &WindArgs) -> Result<Option<WindSpec>, Failure> {
     Ok(Some(spec))
 }
 
-fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
-    let mut o = ReportOptions::new()?;
+fn ground_options(a: &GroundArgs, o: &mut ReportOptions) {
     match a.ground.as_deref() {
         Some("none") => o.ground_off = true,
         Some(g) => o.ground = Some(GroundSource::parse(g)),
@@ -362,7 +439,84 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
         o.ground_scale = s;
     }
     o.series = series_options(a.fs, a.sensitivity);
+}
+
+/// The sky grid the options ask for: None for the rig's default.
+fn sky_grid(model: &Path, a: &SkyGridArgs) -> Result<Option<SkyGrid>, Failure> {
+    let axis = |name: &str, r: Option<[f64; 3]>, scale: f64| {
+        r.map(|r| stepped(name, r[0] * scale, r[1] * scale, r[2] * scale)).transpose()
+    };
+    let axes = SkyAxes {
+        altitude_deg: axis("altitudes", a.altitudes, 1.0)?,
+        azimuth_deg: axis("azimuths", a.azimuths, 1.0)?,
+        hour_angle_deg: axis("hour_angles_h", a.hour_angles_h, 15.0)?,
+        declination_deg: axis("declinations", a.declinations, 1.0)?,
+        min_altitude_deg: a.min_altitude_deg,
+    };
+    if axes == SkyAxes::default() {
+        return Ok(None);
+    }
+    Ok(Some(SkyGrid::for_file(&ModelFile::read(model)?, &axes)?))
+}
+
+fn sky_map(a: &SkyMapArgs) -> CliResult {
+    let mut o = ReportOptions::new()?;
+    ground_options(&a.ground, &mut o);
     o.wind = wind_spec(&a.wind)?;
+    o.wind_from_deg = a.wind_from_deg;
+    o.focal_length_mm = a.focal_length_mm;
+    o.pixel_um = a.pixel_um;
+    let file = ModelFile::read(&a.model)?;
+    let grid = sky_grid(&a.model, &a.sky)?;
+    let m = batch::report_sky_map(&file, grid.as_ref(), &o)?;
+    write_sky_map(&a.model, &m, a.csv.as_deref(), a.svg.as_deref(), a.json.as_deref())
+}
+
+/// Print the sky map's summary and write its CSV, SVG and JSON.
+fn write_sky_map(
+    model: &Path,
+    m: &stillsky::skymap::SkyMap,
+    csv: Option<&Path>,
+    svg: Option<&Path>,
+    json: Option<&Path>,
+) -> CliResult {
+    let [rn, cn] = m.frame.axis_names();
+    println!(
+        "== sky map: {} ({} {} × {} {}; below {}° altitude not mapped) ==",
+        model.display(),
+        m.rows_deg.len(),
+        rn,
+        m.cols_deg.len(),
+        cn,
+        m.min_altitude_deg
+    );
+    println!("{}", m.summary_text());
+    if let Some(p) = csv {
+        stillsky::io::atomic::write_atomic(p, m.csv_text().as_bytes())?;
+        println!("csv: {}", p.display());
+    }
+    if let Some(p) = svg {
+        let plot = plots::sky_map_svg(m).map_err(|e| Failure::io("plots", e))?;
+        stillsky::io::atomic::write_atomic(p, plot.svg.as_bytes())?;
+        println!("svg: {}", p.display());
+    }
+    if let Some(p) = json {
+        let text = serde_json::to_string_pretty(m).map_err(|e| Failure::io("json", e))?;
+        stillsky::io::atomic::write_atomic(p, text.as_bytes())?;
+        println!("json: {}", p.display());
+    }
+    Ok(())
+}
+
+fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
+    let mut o = ReportOptions::new()?;
+    ground_options(&a.ground, &mut o);
+    o.wind = wind_spec(&a.wind)?;
+    o.wind_from_deg = a.wind_from_deg;
+    let grid = sky_grid(&a.model, &a.sky)?;
+    if a.sky_map || grid.is_some() {
+        o.sky_map = Some(grid);
+    }
     o.focal_length_mm = a.focal_length_mm;
     o.pixel_um = a.pixel_um;
     o.seeing_fwhm_arcsec = a.seeing_arcsec;
@@ -402,13 +556,12 @@ fn run_report(
 ) -> Result<ReportRun, Failure> {
     let mut file = ModelFile::read(model)?;
     file.repoint(pointing)?;
-    let spec = file.expanded()?;
     let mut o = o.clone();
     if o.wind.is_some() {
         let cat = catalogue.map(batch::Catalogue::read).transpose()?;
         o.alternatives = batch::pad_alternatives(&file, cat.as_ref(), batch::DEFAULT_PAD_PREFIX)?;
     }
-    let r = batch::build_report(&spec, &o)?;
+    let r = batch::build_file_report(&file, &o)?;
     print!("{}", print::report_text(&model.display().to_string(), &r));
     let mut checks = None;
     if file.rig.tripod.is_some() || file.rig.pier.is_some() {
@@ -635,6 +788,7 @@ fn demo(out: &Path) -> CliResult {
     o.ground = Some(GroundSource::Recording(rec("quiet-night.csv")));
     o.wind = Some(WindSpec::new(WindSpectrum::Kaimal, 4.0, 2.0, Turbulence::Intensity(0.2)));
     o.exposure_s = Some(2.0);
+    o.sky_map = Some(None);
     let catalogue = ex.join("isolators.toml");
     let report_run = run_report(
         &model,
@@ -660,6 +814,20 @@ fn demo(out: &Path) -> CliResult {
         cfg: SweepConfig::new()?,
     })?;
     println!("sweep: {}", out.join("sweep.csv").display());
+    println!();
+    let eq = ex.join("equatorial-pier.toml");
+    let mut eo = ReportOptions::new()?;
+    eo.ground = Some(GroundSource::Recording(rec("quiet-night.csv")));
+    eo.wind = o.wind.clone();
+    eo.wind_from_deg = Some(270.0);
+    let m = batch::report_sky_map(&ModelFile::read(&eq)?, None, &eo)?;
+    write_sky_map(
+        &eq,
+        &m,
+        Some(&out.join("sky-map-equatorial.csv")),
+        Some(&out.join("sky-map-equatorial.svg")),
+        None,
+    )?;
     write_report_html(&out.join("report.html"), &model, &o, &report_run, Some(&outcome))?;
     sweep_failures(&outcome)
 }

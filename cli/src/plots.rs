@@ -479,6 +479,9 @@ pub fn report_svgs(r: &Report) -> PlotResult<Vec<Plot>> {
             )?,
         );
     }
+    if let Some(m) = &r.sky_map {
+        out.push(sky_map_svg(m)?);
+    }
     Ok(out)
 }
 
@@ -608,6 +611,193 @@ pub fn ranking_svg(t: &RankTable) -> PlotResult<Plot> {
         root.present()?;
     }
     Ok(Plot { file_name: "ranking.svg", title, svg })
+}
+
+/// Colour of `t` in [0, 1] on a dark-blue-to-yellow ramp (five anchors, linear between them;
+/// lightness rises with the value so the order reads in grey too).
+fn ramp(t: f64) -> RGBColor {
+    const A: [(f64, f64, f64); 5] = [
+        (68.0, 1.0, 84.0),
+        (59.0, 82.0, 139.0),
+        (33.0, 145.0, 140.0),
+        (94.0, 201.0, 98.0),
+        (253.0, 231.0, 37.0),
+    ];
+    let x = t.clamp(0.0, 1.0) * 4.0;
+    let k = (x.floor() as usize).min(3);
+    let f = x - k as f64;
+    let mix = |a: f64, b: f64| (a + (b - a) * f).round() as u8;
+    RGBColor(mix(A[k].0, A[k + 1].0), mix(A[k].1, A[k + 1].1), mix(A[k].2, A[k + 1].2))
+}
+
+/// The sky map as a heat map: one cell per pointing with its RMS written in it, a colour scale
+/// with numbers, skipped cells hatched grey, and the best and worst cells framed and labelled.
+pub fn sky_map_svg(m: &stillsky::skymap::SkyMap) -> PlotResult<Plot> {
+    use stillsky::skymap::SkyFrame;
+    // x and y of the plot: azimuth × altitude, or hour angle (h) × declination.
+    let eq = m.frame == SkyFrame::Equatorial;
+    let (xs, ys): (Vec<f64>, Vec<f64>) = if eq {
+        (m.rows_deg.iter().map(|h| h / 15.0).collect(), m.cols_deg.clone())
+    } else {
+        (m.cols_deg.clone(), m.rows_deg.clone())
+    };
+    let at = |ix: usize, iy: usize| if eq { (ix, iy) } else { (iy, ix) };
+    let value = |ix: usize, iy: usize| {
+        let (r, c) = at(ix, iy);
+        (m.rms_arcsec[r][c], m.rms_px[r][c])
+    };
+    let finite: Vec<f64> = m.rms_arcsec.iter().flatten().copied().filter(|v| v.is_finite()).collect();
+    let lo = finite.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = finite.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let span = if hi > lo { hi - lo } else { 1.0 };
+    let plate = m.best.map_or(f64::NAN, |b| b.rms_arcsec / b.rms_px);
+    let (x_desc, y_desc) = if eq {
+        ("hour angle (h, west positive)", "declination (°)")
+    } else {
+        ("azimuth (° from north through east)", "altitude (°)")
+    };
+    let title = if eq {
+        format!(
+            "Sky map: image RMS over hour angle × declination (latitude {:.1}°)",
+            m.latitude_deg.unwrap_or(f64::NAN)
+        )
+    } else {
+        "Sky map: image RMS over altitude × azimuth".to_string()
+    };
+    let (nx, ny) = (xs.len(), ys.len());
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (1100, 830)).into_drawing_area();
+        root.fill(&WHITE)?;
+        let (main, side) = root.split_horizontally(900);
+        let (main, foot) = main.split_vertically(730);
+        let mut b = ChartBuilder::on(&main);
+        b.caption(&title, (FONT, 24)).margin(14).x_label_area_size(60).y_label_area_size(80);
+        let mut c = b.build_cartesian_2d(-0.5..nx as f64 - 0.5, -0.5..ny as f64 - 0.5)?;
+        let label_of = |v: f64, axis: &[f64], signed: bool| -> String {
+            let k = v.round();
+            if (v - k).abs() > 1e-6 || k < 0.0 || k as usize >= axis.len() {
+                return String::new();
+            }
+            let a = axis[k as usize];
+            let s = if (a - a.round()).abs() < 1e-9 { format!("{a:.0}") } else { format!("{a:.1}") };
+            if signed && a > 0.0 { format!("+{s}") } else { s }
+        };
+        c.configure_mesh()
+            .disable_mesh()
+            .x_labels(nx.min(25))
+            .y_labels(ny.min(25))
+            .x_desc(x_desc)
+            .y_desc(y_desc)
+            .label_style((FONT, TICK_PT))
+            .axis_desc_style((FONT, AXIS_PT))
+            .x_label_formatter(&|v| label_of(*v, &xs, eq))
+            .y_label_formatter(&|v| label_of(*v, &ys, false))
+            .draw()?;
+        let grey = RGBColor(215, 215, 215);
+        for ix in 0..nx {
+            for iy in 0..ny {
+                let (x, y) = (ix as f64, iy as f64);
+                let (v, _) = value(ix, iy);
+                let rect = [(x - 0.5, y - 0.5), (x + 0.5, y + 0.5)];
+                if !v.is_finite() {
+                    c.draw_series(std::iter::once(Rectangle::new(rect, grey.filled())))?;
+                    // Hatching, so skipped cells differ from data by pattern as well as colour.
+                    c.draw_series(std::iter::once(PathElement::new(
+                        vec![(x - 0.5, y - 0.5), (x + 0.5, y + 0.5)],
+                        RGBColor(150, 150, 150),
+                    )))?;
+                    continue;
+                }
+                let t = (v - lo) / span;
+                c.draw_series(std::iter::once(Rectangle::new(rect, ramp(t).filled())))?;
+                let ink = if t < 0.55 { WHITE } else { BLACK };
+                let font = TextStyle::from((FONT, 14).into_font())
+                    .color(&ink)
+                    .pos(Pos::new(HPos::Center, VPos::Center));
+                c.draw_series(std::iter::once(Text::new(format!("{v:.3}"), (x, y), font)))?;
+            }
+        }
+        // Best: framed, a circle and the word; worst: framed, a triangle and the word.
+        let marker = |area: &DrawingArea<SVGBackend, plotters::coord::Shift>,
+                      best: bool,
+                      at: (i32, i32),
+                      ink: RGBColor|
+         -> PlotResult<()> {
+            let style = ShapeStyle { color: ink.to_rgba(), filled: false, stroke_width: 2 };
+            if best {
+                area.draw(&Circle::new(at, 6, style))?;
+            } else {
+                area.draw(&TriangleMarker::new(at, 7, style))?;
+            }
+            Ok(())
+        };
+        for (cell, best) in [(m.best, true), (m.worst, false)] {
+            let Some(cell) = cell else { continue };
+            let (ix, iy) = if eq { (cell.row, cell.col) } else { (cell.col, cell.row) };
+            let (x, y) = (ix as f64, iy as f64);
+            let frame = ShapeStyle { color: RED.to_rgba(), filled: false, stroke_width: 4 };
+            c.draw_series(std::iter::once(Rectangle::new(
+                [(x - 0.47, y - 0.47), (x + 0.47, y + 0.47)],
+                frame,
+            )))?;
+            let t = (cell.rms_arcsec - lo) / span;
+            let ink = if t < 0.55 { WHITE } else { BLACK };
+            let font =
+                TextStyle::from((FONT, 14).into_font()).color(&ink).pos(Pos::new(HPos::Left, VPos::Top));
+            let word = if best { "best" } else { "worst" };
+            c.draw_series(std::iter::once(Text::new(word.to_string(), (x - 0.18, y + 0.46), font)))?;
+            let (px, py) = c.backend_coord(&(x - 0.3, y + 0.3));
+            marker(&main, best, (px, py), ink)?;
+        }
+        // Footer: the best and worst cells in words.
+        let line = |s: String, k: i32| foot.draw(&Text::new(s, (40, 8 + 26 * k), (FONT, 17).into_font()));
+        match (m.best, m.worst) {
+            (Some(b), Some(w)) => {
+                marker(&foot, true, (22, 17), BLACK)?;
+                line(format!("best (framed): {}", b.describe(m.frame)), 0)?;
+                marker(&foot, false, (22, 43), BLACK)?;
+                line(format!("worst (framed): {}", w.describe(m.frame)), 1)?;
+            }
+            _ => line("no cell high enough to map".into(), 0)?,
+        }
+        line(
+            format!(
+                "numbers in the cells: RMS in arcsec; hatched grey: below {:.0}° altitude, not mapped",
+                m.min_altitude_deg
+            ),
+            2,
+        )?;
+        // Colour scale with numbers in arcsec and pixels.
+        let (top, bottom, left) = (90i32, 640i32, 20i32);
+        side.draw(&Text::new("RMS", (left, top - 50), (FONT, 18).into_font()))?;
+        side.draw(&Text::new("arcsec (px)", (left, top - 28), (FONT, 16).into_font()))?;
+        let steps = 100;
+        for k in 0..steps {
+            let t0 = k as f64 / steps as f64;
+            let ya = bottom - ((bottom - top) as f64 * (k + 1) as f64 / steps as f64).round() as i32;
+            let yb = bottom - ((bottom - top) as f64 * t0).round() as i32;
+            side.draw(&Rectangle::new(
+                [(left, ya), (left + 34, yb)],
+                ramp(t0 + 0.5 / steps as f64).filled(),
+            ))?;
+        }
+        side.draw(&Rectangle::new([(left, top), (left + 34, bottom)], BLACK.stroke_width(1)))?;
+        for k in 0..=4 {
+            let t = k as f64 / 4.0;
+            let v = lo + t * span;
+            let y = bottom - ((bottom - top) as f64 * t).round() as i32;
+            side.draw(&PathElement::new(vec![(left + 34, y), (left + 42, y)], BLACK))?;
+            let text = if finite.is_empty() { String::new() } else { format!("{v:.3} ({:.2})", v / plate) };
+            side.draw(&Text::new(
+                text,
+                (left + 46, y),
+                TextStyle::from((FONT, 15).into_font()).pos(Pos::new(HPos::Left, VPos::Center)),
+            ))?;
+        }
+        root.present()?;
+    }
+    Ok(Plot { file_name: "sky-map.svg", title, svg })
 }
 
 #[cfg(test)]

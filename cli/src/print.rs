@@ -133,6 +133,15 @@ pub fn report_text(model: &str, r: &Report) -> String {
         gust_text(&mut s, g);
     }
     budget_text(&mut s, im);
+    if let Some(m) = &r.sky_map {
+        let _ = writeln!(
+            s,
+            "\nsky map ({} cells; below {:.0}° altitude not mapped):",
+            m.rows_deg.len() * m.cols_deg.len(),
+            m.min_altitude_deg
+        );
+        let _ = writeln!(s, "  {}", m.summary_text());
+    }
     if !r.criteria.is_empty() {
         let _ = writeln!(s, "\nground vs criterion curves (third-octave RMS velocity, worst axis):");
         for c in &r.criteria {

@@ -297,6 +297,85 @@ fn demo_finishes() {
     assert!(out.contains("ranking, wind calm, all spectra"), "{out}");
     assert!(out.contains("ranking, wind 4m/s"), "{out}");
     assert!(out.contains("no visible difference"), "{out}");
+    assert!(d.join("plots").join("sky-map.svg").exists(), "the report's sky map");
+    assert!(d.join("sky-map-equatorial.csv").exists() && d.join("sky-map-equatorial.svg").exists());
+    assert!(out.contains("best: hour angle ") && out.contains("best: altitude "), "{out}");
+}
+
+#[test]
+fn sky_map_writes_csv_and_svg_and_names_best_and_worst() {
+    let d = tmp("skymap");
+    let model = examples().join("equatorial-pier.toml");
+    let (csv, svg) = (d.join("map.csv"), d.join("map.svg"));
+    let o = run(&[
+        "sky-map",
+        s(&model),
+        "--ground",
+        "none",
+        "--wind-speed",
+        "4",
+        "--wind-from-deg",
+        "270",
+        "--hour-angles-h",
+        "-3:3:1.5",
+        "--declinations",
+        "-30:80:20",
+        "--csv",
+        s(&csv),
+        "--svg",
+        s(&svg),
+    ]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}\n{out}");
+    assert!(out.contains("best: hour angle ") && out.contains("; worst: hour angle "), "{out}");
+    let csv_text = std::fs::read_to_string(&csv).unwrap();
+    let mut lines = csv_text.lines();
+    assert_eq!(lines.next(), Some("hour_angle_deg,declination_deg,rms_arcsec,rms_px"));
+    let rows: Vec<Vec<f64>> = lines.map(|l| l.split(',').map(|x| x.parse().unwrap()).collect()).collect();
+    assert_eq!(rows.len(), 5 * 6);
+    assert_eq!((rows[0][0], rows[0][1], rows[29][0], rows[29][1]), (-45.0, -30.0, 45.0, 70.0));
+    // Declination −30° at latitude 48° never rises 20° above the horizon: skipped.
+    assert!(rows.iter().filter(|r| r[1] == -30.0).all(|r| r[2].is_nan() && r[3].is_nan()));
+    assert!(rows.iter().filter(|r| r[1] >= 10.0).all(|r| r[2] > 0.0 && r[3] > 0.0));
+    let svg = std::fs::read_to_string(&svg).unwrap();
+    assert!(svg.contains("best") && svg.contains("worst") && svg.contains("hour angle"), "svg text");
+
+    // Axes of the other kind of rig, and bad ranges, are refused by name.
+    let o = run(&["sky-map", s(&model), "--altitudes", "20:90:10"]);
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("sky grid") && err.contains("equatorial"), "{err}");
+    let o = run(&["sky-map", s(&model), "--declinations", "80:10:10"]);
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("declinations"), "{err}");
+}
+
+#[test]
+fn report_with_sky_map_names_the_best_and_worst_pointings() {
+    let d = tmp("report-skymap");
+    let model = examples().join("tripod-paver.toml");
+    let json = d.join("r.json");
+    let o = run(&[
+        "report",
+        s(&model),
+        "--ground",
+        "nlnm",
+        "--wind-speed",
+        "3",
+        "--altitudes",
+        "30:90:30",
+        "--azimuths",
+        "0:270:90",
+        "--json",
+        s(&json),
+    ]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}\n{out}");
+    assert!(out.contains("sky map (12 cells") && out.contains("best: altitude "), "{out}");
+    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    assert_eq!(v["sky_map"]["frame"], "alt_az");
+    assert_eq!(v["sky_map"]["rms_px"].as_array().unwrap().len(), 3);
 }
 
 /// The report on a real seismometer recording: ObsPy's bundled example BW.BGLD..EHE (Steim-1

@@ -572,11 +572,11 @@ pub fn pointing_map(
     }
     let (rms_arcsec, rms_px) =
         map_over(file, altitude_deg.len(), azimuth_deg.len(), grid, disturbances, opts, |i, j| {
-            crate::schema::Pointing {
+            Some(crate::schema::Pointing {
                 altitude_deg: Some(altitude_deg[i]),
                 azimuth_deg: Some(azimuth_deg[j]),
                 ..Default::default()
-            }
+            })
         })?;
     Ok(PointingMap {
         altitude_deg: altitude_deg.to_vec(),
@@ -614,12 +614,12 @@ pub fn equatorial_map(
     }
     let (rms_arcsec, rms_px) =
         map_over(file, hour_angle_deg.len(), declination_deg.len(), grid, disturbances, opts, |i, j| {
-            crate::schema::Pointing {
+            Some(crate::schema::Pointing {
                 hour_angle_deg: Some(hour_angle_deg[i]),
                 declination_deg: Some(declination_deg[j]),
                 pier_side: Some(crate::sky::PierSide::usual(hour_angle_deg[i])),
                 ..Default::default()
-            }
+            })
         })?;
     Ok(EquatorialMap {
         hour_angle_deg: hour_angle_deg.to_vec(),
@@ -629,16 +629,17 @@ pub fn equatorial_map(
     })
 }
 
-/// Radial RMS (arcsec, px) of `file` re-pointed at each cell of an `nr` × `nc` grid.
+/// Radial RMS (arcsec, px) of `file` re-pointed at each cell of an `nr` × `nc` grid; a cell
+/// whose pointing is `None` is skipped and holds NaN.
 #[allow(clippy::type_complexity)]
-fn map_over(
+pub(crate) fn map_over(
     file: &crate::schema::ModelFile,
     nr: usize,
     nc: usize,
     grid: &FreqGrid,
     disturbances: &Disturbances,
     opts: &ImageOptions,
-    pointing: impl Fn(usize, usize) -> crate::schema::Pointing + Sync,
+    pointing: impl Fn(usize, usize) -> Option<crate::schema::Pointing> + Sync,
 ) -> Result<(Vec<Vec<f64>>, Vec<Vec<f64>>)> {
     use rayon::prelude::*;
     if file.generic.optics.is_none() {
@@ -649,8 +650,9 @@ fn map_over(
     let vals = cells
         .par_iter()
         .map(|&(i, j)| {
+            let Some(p) = pointing(i, j) else { return Ok((f64::NAN, f64::NAN)) };
             let mut f = file.clone();
-            f.repoint(&pointing(i, j))?;
+            f.repoint(&p)?;
             let im = f.to_model()?.image_motion(grid, disturbances, &opts)?;
             Ok((im.rms_arcsec, im.rms_px))
         })

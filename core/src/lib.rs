@@ -40,6 +40,7 @@
 //! - [`spectrum`], [`wind`]: PSDs, Welch estimation, reference ground spectra, wind spectra.
 //! - [`response`], [`image`]: response PSDs with per-mode shares; image motion in arcsec, µm, px.
 //! - [`guider`]: the sampled-data guide loop (exposure, cadence, gains, latency, hold, aliasing).
+//! - [`skymap`]: image RMS over the sky (altitude × azimuth or hour angle × declination).
 //! - [`budget`], [`peak`]: the star image budget (FWHM, elongation); the expected peak excursion.
 //! - [`transient`]: time histories by FFT convolution (gusts, steps, random realisations) and a
 //!   Newmark check.
@@ -73,6 +74,7 @@ pub mod rig;
 pub mod schema;
 pub mod section;
 pub mod sky;
+pub mod skymap;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;

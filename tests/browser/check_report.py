@@ -6,7 +6,8 @@ Steps: find the browser, installing the package when missing (as root, with apt-
 (a strict XML parse and an HTML tag-balance pass) and names nothing outside itself; load it
 headless through a recording proxy and check that the browser asked the network for nothing (a
 probe page with one external image first proves the proxy sees requests); check the rendered
-text (verdict, budget, image-motion, modes, checks and input tables, one <svg> per plot) and
+text (verdict, budget, image-motion, modes, checks and input tables, the sky map's best and worst
+cells, one <svg> per plot) and
 save a screenshot.
 
 Without the browser the script fails, unless STILLSKY_BROWSER_OPTIONAL=1, when it says so and
@@ -393,7 +394,7 @@ def main() -> None:
     if not m:
         fail("no 'Verdict: holds|marginal|does not hold' in the rendered text")
     for phrase in ("Star image budget", "Image motion", "Modes", "Static checks", "Inputs and defaults used",
-                   "Isolator sweep", "licensed engineer", "program"):
+                   "Isolator sweep", "licensed engineer", "program", "Sky map"):
         if phrase not in text:
             fail(f"rendered text lacks {phrase!r}")
     for t in ("budget", "image-motion", "modes", "checks", "inputs-table", "ranking-overall"):
@@ -402,6 +403,16 @@ def main() -> None:
     # The report's plots and one sweep ranking per wind case (calm and windy are ranked apart).
     with open(demo / "sweep.csv", newline="") as fh:
         winds = {row["wind"] for row in csv.DictReader(fh) if row["status"] == "ok"}
+    # The sky map (altitude x azimuth for the demo's tripod) is one of the report's plots, and the
+    # page names its best and worst cells in words; the equatorial run writes its own CSV and SVG.
+    if not (demo / "plots" / "sky-map.svg").is_file():
+        fail("the demo wrote no plots/sky-map.svg")
+    if not re.search(r"Best: altitude [\d.]+°, azimuth [\d.]+° \([a-z-]+\), [\d.]+″ = [\d.]+ px; "
+                     r"worst: altitude", text):
+        fail("the rendered page does not name the sky map's best and worst cells")
+    for f in ("sky-map-equatorial.csv", "sky-map-equatorial.svg"):
+        if not (demo / f).is_file():
+            fail(f"the demo wrote no {f}")
     expected_svgs = n_plot_files + len(winds)
     if c.svgs != expected_svgs:
         fail(f"{c.svgs} <svg> plots rendered, expected {expected_svgs}")

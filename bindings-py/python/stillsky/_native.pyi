@@ -259,6 +259,49 @@ class Model:
             ``p_outside()``, ``summary()``). GIL released.
         """
 
+    def sky_map(
+        self,
+        freq_hz: _F64In,
+        *,
+        ground: Psd | Mapping[str, Psd | None] | Sequence[Psd | None] | None = None,
+        wind: Wind | None = None,
+        loads: Mapping[str, Psd] | Sequence[tuple[str, Psd]] | None = None,
+        wind_from_deg: float | None = None,
+        altitudes_deg: _F64In | None = None,
+        azimuths_deg: _F64In | None = None,
+        hour_angles_deg: _F64In | None = None,
+        declinations_deg: _F64In | None = None,
+        min_altitude_deg: float | None = None,
+        exposure_s: float | None = None,
+        seeing_fwhm_arcsec: float | None = None,
+    ) -> dict[str, object]:
+        """Image RMS over the sky: the model file re-pointed at each cell (equatorial cells on
+        the usual pier side), rebuilt and evaluated like ``image_motion``. Needs a ``Model``
+        built from model-file text (``from_toml``/``from_toml_str``).
+
+        Args:
+            freq_hz, ground, wind, loads, exposure_s, seeing_fwhm_arcsec: as in ``image_motion``.
+            wind_from_deg: azimuth the wind blows from (deg from north through east); replaces
+                the direction of the model's ``[wind]`` load.
+            altitudes_deg, azimuths_deg: the grid of an alt-azimuth rig (default altitude
+                20…90° by 10°, azimuth 0…330° by 30°).
+            hour_angles_deg, declinations_deg: the grid of an equatorial rig (default hour angle
+                −90…90° (−6…+6 h) by 15°, declination by 10° over the band reaching 20°
+                altitude on the meridian). Axes of the other frame raise ``InvalidInputError``.
+            min_altitude_deg: cells whose line of sight is lower (deg, default 20) are not
+                computed: NaN, never best or worst.
+
+        Returns:
+            dict with ``frame`` ("alt_az" or "equatorial"), ``axes`` (the names of the row and
+            column coordinates), the two axis vectors under those names (``altitude_deg`` and
+            ``azimuth_deg``, or ``hour_angle_deg`` and ``declination_deg``), 2-D float64 arrays
+            ``rms_arcsec``, ``rms_px`` and ``cell_altitude_deg`` (rows × columns),
+            ``latitude_deg``, ``min_altitude_deg``, ``best`` and ``worst`` (dicts with ``row``,
+            ``col``, ``row_deg``, ``col_deg``, ``altitude_deg``, ``rms_arcsec``, ``rms_px``,
+            ``place``; None if no cell was computed), ``summary`` (text) and ``csv`` (text).
+            GIL released.
+        """
+
     def response(
         self,
         freq_hz: _F64In,

@@ -24,7 +24,7 @@ pub use gust::{
 pub use ranking::{RankEntry, RankTable, SweepSummary, Verdict, Visibility, summarize};
 pub use report::{
     CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, Report,
-    ReportOptions, build_report,
+    ReportOptions, build_file_report, build_report, report_sky_map,
 };
 pub use sweep::{
     PadMechanism, SweepConfig, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,

@@ -12,6 +12,8 @@ use crate::image::{Guiding, ImageMotion, ImageOptions};
 use crate::io::series::SeriesOptions;
 use crate::model::{GROUND_INPUTS, Model};
 use crate::response::Disturbances;
+use crate::schema::ModelFile;
+use crate::skymap::{SkyGrid, SkyMap, set_wind_from, sky_map};
 use crate::spectrum::{CriterionCurve, Extrapolate, Quantity, ReferenceGround};
 use crate::transient::ImageTransient;
 use crate::units::ARCSEC_PER_RAD;
@@ -46,6 +48,12 @@ pub struct ReportOptions {
     /// Alternative rigs (label, generic-layer spec) whose gust response is shown beside the
     /// rig's: e.g. without pads, or each pad of a catalogue ([`super::pad_alternatives`]).
     pub alternatives: Vec<(String, ModelSpec)>,
+    /// Wind from this azimuth (deg from north through east): replaces the direction of the
+    /// model's `[wind]` load.
+    pub wind_from_deg: Option<f64>,
+    /// Add a sky map ([`crate::skymap`]) on this grid, or on the file's default grid when
+    /// `Some(None)`; needs the model file ([`build_file_report`]).
+    pub sky_map: Option<Option<SkyGrid>>,
 }
 
 impl ReportOptions {
@@ -69,6 +77,8 @@ impl ReportOptions {
             aperture_mm: None,
             wavelength_nm: None,
             alternatives: Vec::new(),
+            wind_from_deg: None,
+            sky_map: None,
         })
     }
 }
@@ -142,6 +152,8 @@ pub struct Report {
     pub criteria: Vec<CriterionVerdict>,
     /// The wind case's gust family: worst peak and ring-down, for the rig and its alternatives.
     pub gust: Option<GustReport>,
+    /// Image RMS over the sky, when asked for ([`ReportOptions::sky_map`]).
+    pub sky_map: Option<SkyMap>,
     pub notes: Vec<String>,
 }
 
@@ -341,8 +353,17 @@ const THIRD_OCTAVE_WIDTH: f64 = 0.231_616_2;
 
 /// Build the report of a generic-layer model.
 pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
+    if o.sky_map.is_some() {
+        return Err(Error::invalid(
+            "sky_map",
+            "a sky map re-poses the rig layer, so it needs the model file: use build_file_report",
+        ));
+    }
     let mut spec = spec.clone();
     apply_optics_overrides(&mut spec, o)?;
+    if let Some(a) = o.wind_from_deg {
+        set_wind_from(&mut spec, a)?;
+    }
     let model = Model::from_spec(&spec)?;
     let optics_body = spec.optics.as_ref().map(|op| op.body.clone()).unwrap_or_default();
     let grid = &o.grid;
@@ -363,18 +384,8 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
     if let Some(n) = ground.as_ref().and_then(|g| g.note.clone()) {
         notes.push(n);
     }
-    let d = Disturbances {
-        ground: ground.as_ref().map(|g| g.axes.clone()).unwrap_or_default(),
-        wind: o.wind.clone(),
-        loads: Vec::new(),
-    };
-    let io = ImageOptions {
-        exposure_s: o.exposure_s,
-        guide: o.guide,
-        guide_loop: o.guide_loop,
-        seeing_fwhm_arcsec: o.seeing_fwhm_arcsec,
-        ..ImageOptions::default()
-    };
+    let d = disturbances(ground.as_ref(), o);
+    let io = image_options(o);
     let image = model.image_motion(grid, &d, &io)?;
     notes.extend(image.notes.iter().cloned());
 
@@ -505,6 +516,7 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
     };
     Ok(Report {
         gust,
+        sky_map: None,
         dof_count: model.dof_count(),
         optics_body,
         image_axes: match spec.optics.as_ref().map(|op| op.equatorial()) {
@@ -523,4 +535,60 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         criteria,
         notes,
     })
+}
+
+fn disturbances(ground: Option<&GroundSpectrum>, o: &ReportOptions) -> Disturbances {
+    Disturbances {
+        ground: ground.map(|g| g.axes.clone()).unwrap_or_default(),
+        wind: o.wind.clone(),
+        loads: Vec::new(),
+    }
+}
+
+fn image_options(o: &ReportOptions) -> ImageOptions {
+    ImageOptions {
+        exposure_s: o.exposure_s,
+        guide: o.guide,
+        guide_loop: o.guide_loop,
+        seeing_fwhm_arcsec: o.seeing_fwhm_arcsec,
+        ..ImageOptions::default()
+    }
+}
+
+/// The report of a model file (its pointing as written), with the sky map when
+/// [`ReportOptions::sky_map`] asks for one.
+pub fn build_file_report(file: &ModelFile, o: &ReportOptions) -> Result<Report> {
+    let mut file = file.clone();
+    if let Some(a) = o.wind_from_deg {
+        set_wind_from(&mut file.generic, a)?;
+    }
+    let plain = ReportOptions { sky_map: None, wind_from_deg: None, ..o.clone() };
+    let mut r = build_report(&file.expanded()?, &plain)?;
+    if let Some(g) = &o.sky_map {
+        r.sky_map = Some(report_sky_map(&file, g.as_ref(), &plain)?);
+    }
+    Ok(r)
+}
+
+/// The sky map of a model file under a report's disturbances, optics overrides and image
+/// options (`sky`: None for the file's default grid, [`SkyGrid::default_for`]).
+pub fn report_sky_map(file: &ModelFile, sky: Option<&SkyGrid>, o: &ReportOptions) -> Result<SkyMap> {
+    let mut file = file.clone();
+    if let Some(a) = o.wind_from_deg {
+        set_wind_from(&mut file.generic, a)?;
+    }
+    // The optics overrides except the pointing, which the map sets cell by cell.
+    let optics_only = ReportOptions { altitude_deg: None, azimuth_deg: None, ..o.clone() };
+    apply_optics_overrides(&mut file.generic, &optics_only)?;
+    let ground = if o.ground_off {
+        None
+    } else {
+        let src = o.ground.clone().unwrap_or(GroundSource::Reference(ReferenceGround::Nhnm));
+        Some(src.load(&o.grid, o.ground_scale, &o.series)?)
+    };
+    let sky = match sky {
+        Some(s) => s.clone(),
+        None => SkyGrid::default_for(&file)?,
+    };
+    sky_map(&file, &sky, &o.grid, &disturbances(ground.as_ref(), o), &image_options(o))
 }
