@@ -9,7 +9,7 @@ use pyo3::prelude::*;
 use pyo3::types::PyDict;
 use stillsky::image::ImageOptions;
 use stillsky::schema::ModelFile;
-use stillsky::skymap::{SkyAxes, SkyCell, SkyGrid, SkyMap, set_wind_from, sky_map};
+use stillsky::skymap::{SkyAxes, SkyCell, SkyGrid, SkyMap, sky_map};
 use stillsky::{Error, FreqGrid};
 
 fn grid2<'py>(py: Python<'py>, v: &[Vec<f64>]) -> PyResult<Bound<'py, PyArray2<f64>>> {
@@ -76,7 +76,7 @@ pub fn model_sky_map<'py>(
         .detach(|| -> stillsky::Result<SkyMap> {
             let mut file = ModelFile::parse(&src.text, &src.label)?;
             if let Some(a) = wind_from_deg {
-                set_wind_from(&mut file.generic, a)?;
+                file.set_wind_from(a)?;
             }
             let sky = SkyGrid::for_file(&file, &axes)?;
             sky_map(&file, &sky, &grid, &dist, &opts)

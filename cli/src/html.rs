@@ -774,7 +774,7 @@ pub fn report_inputs(
         ("exposure (s)".into(), opt(o.exposure_s, "none (long exposure)")),
         ("radius for the probability (px)".into(), im.radius_px.to_string()),
         ("guide loop".into(), im.guide.as_ref().map_or("none".into(), |g| format!("{g:?}"))),
-        ("wind from (deg)".into(), opt(o.wind_from_deg, "model's [wind] direction")),
+        ("wind from (deg)".into(), opt(o.wind_from_deg, "the model's own ([wind_load], else 270)")),
     ];
     if let Some(m) = &r.sky_map {
         let [rn, cn] = m.frame.axis_names();

@@ -147,10 +147,6 @@ struct SkyMapArgs {
     ground: GroundArgs,
     #[command(flatten)]
     wind: WindArgs,
-    /// Azimuth the wind blows from (deg from north through east); replaces the direction of
-    /// the model's [wind] load.
-    #[arg(long, allow_negative_numbers = true)]
-    wind_from_deg: Option<f64>,
     #[arg(long)]
     focal_length_mm: Option<f64>,
     #[arg(long)]
@@ -176,10 +172,6 @@ struct ReportArgs {
     ground: GroundArgs,
     #[command(flatten)]
     wind: WindArgs,
-    /// Azimuth the wind blows from (deg from north through east); replaces the direction of
-    /// the model's [wind] load.
-    #[arg(long, allow_negative_numbers = true)]
-    wind_from_deg: Option<f64>,
     /// Add a sky map (image RMS over the sky, best and worst pointings) to the report.
     #[arg(long)]
     sky_map: bool,
@@ -463,7 +455,7 @@ fn sky_map(a: &SkyMapArgs) -> CliResult {
     let mut o = ReportOptions::new()?;
     ground_options(&a.ground, &mut o);
     o.wind = wind_spec(&a.wind)?;
-    o.wind_from_deg = a.wind_from_deg;
+    o.wind_from_deg = a.wind.wind_from_deg;
     o.focal_length_mm = a.focal_length_mm;
     o.pixel_um = a.pixel_um;
     let file = ModelFile::read(&a.model)?;
@@ -512,7 +504,7 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     let mut o = ReportOptions::new()?;
     ground_options(&a.ground, &mut o);
     o.wind = wind_spec(&a.wind)?;
-    o.wind_from_deg = a.wind_from_deg;
+    o.wind_from_deg = a.wind.wind_from_deg;
     let grid = sky_grid(&a.model, &a.sky)?;
     if a.sky_map || grid.is_some() {
         o.sky_map = Some(grid);

@@ -10,7 +10,6 @@
 //! included) are not computed: they hold NaN and are never named best or worst. The altitude of
 //! an equatorial cell is sin h = sin φ sin δ + cos φ cos δ cos H ([`crate::sky::Equatorial`]).
 
-use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::image::{ImageOptions, map_over};
@@ -309,19 +308,6 @@ impl SkyMap {
         }
         s
     }
-}
-
-/// Turn a model's wind load (its generic layer's `[wind]`, e.g. `ModelFile::generic`) so the
-/// wind blows from azimuth `from_deg` (deg from north through east; the load's direction
-/// becomes the opposite horizontal unit vector).
-pub fn set_wind_from(spec: &mut ModelSpec, from_deg: f64) -> Result<()> {
-    crate::error::require_finite("wind_from_deg", from_deg)?;
-    let w = spec.wind.as_mut().ok_or_else(|| {
-        Error::invalid("wind_from_deg", "the model has no [wind] section whose direction could be set")
-    })?;
-    let a = from_deg.to_radians();
-    w.direction = [-a.sin(), -a.cos(), 0.0];
-    Ok(())
 }
 
 /// Image RMS of `file` over `sky` (see module docs).

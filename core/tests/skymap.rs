@@ -6,7 +6,7 @@ use stillsky::Error;
 use stillsky::batch::{GroundSource, ReportOptions, build_file_report, build_report, report_sky_map};
 use stillsky::schema::{ModelFile, Pointing};
 use stillsky::sky::{Equatorial, PierSide};
-use stillsky::skymap::{SkyFrame, SkyGrid, SkyMap, set_wind_from};
+use stillsky::skymap::{SkyFrame, SkyGrid, SkyMap};
 use stillsky::spectrum::ReferenceGround;
 use stillsky::wind::{Turbulence, WindSpec, WindSpectrum};
 
@@ -151,21 +151,31 @@ fn bad_grids_and_options_give_named_errors() {
     let altaz = SkyGrid { frame: SkyFrame::AltAz, ..equatorial_grid() };
     assert_eq!(name_of(report_sky_map(&eq, Some(&altaz), &o).unwrap_err()), "sky grid");
     assert_eq!(name_of(report_sky_map(&alt, Some(&equatorial_grid()), &o).unwrap_err()), "sky grid");
-    // A sky map needs the file; a wind direction needs a [wind] load.
+    // A sky map and a wind direction need the file; a direction needs wind derived from parts.
     let mut with_map = options();
     with_map.sky_map = Some(None);
     assert_eq!(name_of(build_report(&alt.expanded().unwrap(), &with_map).unwrap_err()), "sky_map");
-    let mut bare = alt.clone();
-    bare.generic.wind = None;
-    assert_eq!(name_of(set_wind_from(&mut bare.generic, 90.0).unwrap_err()), "wind_from_deg");
-    assert_eq!(name_of(set_wind_from(&mut alt.clone().generic, f64::INFINITY).unwrap_err()), "wind_from_deg");
+    let mut with_wind = options();
+    with_wind.wind_from_deg = Some(90.0);
+    assert_eq!(name_of(build_report(&alt.expanded().unwrap(), &with_wind).unwrap_err()), "wind_from_deg");
+    let mut fixed = alt.clone();
+    fixed.generic.wind = Some(stillsky::assembly::WindLoadSpec {
+        body: Some("payload".into()),
+        centre_of_pressure_m: Some([0.0, 0.0, 1.4]),
+        direction: Some([1.0, 0.0, 0.0]),
+        area_m2: Some(0.2),
+        drag_coefficient: Some(1.2),
+        ..Default::default()
+    });
+    assert_eq!(name_of(fixed.set_wind_from(90.0).unwrap_err()), "wind direction");
+    assert_eq!(name_of(alt.clone().set_wind_from(f64::INFINITY).unwrap_err()), "wind from_azimuth_deg");
 }
 
 #[test]
-fn wind_from_the_west_is_the_files_eastward_load() {
-    // Both example files load the tube with wind blowing towards the east ([1, 0, 0]).
+fn wind_from_the_west_is_the_files_own_direction() {
+    // The example file derives its wind for a wind from the west.
     let f = example("equatorial-pier.toml");
-    assert_eq!(f.generic.wind.as_ref().unwrap().direction, [1.0, 0.0, 0.0]);
+    assert_eq!(f.rig.wind_load.as_ref().unwrap().from_azimuth_deg, Some(270.0));
     let sky = SkyGrid { rows_deg: vec![30.0], cols_deg: vec![40.0], ..equatorial_grid() };
     let own = report_sky_map(&f, Some(&sky), &options()).unwrap();
     let mut o = options();

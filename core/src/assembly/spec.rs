@@ -480,7 +480,10 @@ impl WindLoadSpec {
                 ));
             }
             (false, true) => {
-                return Err(Error::invalid("wind", "has no parts (give body, area_m2, ... or [[wind.part]])"));
+                return Err(Error::invalid(
+                    "wind",
+                    "has no parts (give body, area_m2, ... or [[wind.part]])",
+                ));
             }
             (true, true) => {
                 let need = |k: &str| Error::invalid(format!("wind.{k}"), "is required");

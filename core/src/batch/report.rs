@@ -13,7 +13,7 @@ use crate::io::series::SeriesOptions;
 use crate::model::{GROUND_INPUTS, Model};
 use crate::response::Disturbances;
 use crate::schema::ModelFile;
-use crate::skymap::{SkyGrid, SkyMap, set_wind_from, sky_map};
+use crate::skymap::{SkyGrid, SkyMap, sky_map};
 use crate::spectrum::{CriterionCurve, Extrapolate, Quantity, ReferenceGround};
 use crate::transient::ImageTransient;
 use crate::units::ARCSEC_PER_RAD;
@@ -359,11 +359,14 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
             "a sky map re-poses the rig layer, so it needs the model file: use build_file_report",
         ));
     }
+    if o.wind_from_deg.is_some() {
+        return Err(Error::invalid(
+            "wind_from_deg",
+            "the wind's parts are derived from the rig layer for a direction, so it needs the model file: use build_file_report",
+        ));
+    }
     let mut spec = spec.clone();
     apply_optics_overrides(&mut spec, o)?;
-    if let Some(a) = o.wind_from_deg {
-        set_wind_from(&mut spec, a)?;
-    }
     let model = Model::from_spec(&spec)?;
     let optics_body = spec.optics.as_ref().map(|op| op.body.clone()).unwrap_or_default();
     let grid = &o.grid;
@@ -560,7 +563,7 @@ fn image_options(o: &ReportOptions) -> ImageOptions {
 pub fn build_file_report(file: &ModelFile, o: &ReportOptions) -> Result<Report> {
     let mut file = file.clone();
     if let Some(a) = o.wind_from_deg {
-        set_wind_from(&mut file.generic, a)?;
+        file.set_wind_from(a)?;
     }
     let plain = ReportOptions { sky_map: None, wind_from_deg: None, ..o.clone() };
     let mut r = build_report(&file.expanded()?, &plain)?;
@@ -575,7 +578,7 @@ pub fn build_file_report(file: &ModelFile, o: &ReportOptions) -> Result<Report> 
 pub fn report_sky_map(file: &ModelFile, sky: Option<&SkyGrid>, o: &ReportOptions) -> Result<SkyMap> {
     let mut file = file.clone();
     if let Some(a) = o.wind_from_deg {
-        set_wind_from(&mut file.generic, a)?;
+        file.set_wind_from(a)?;
     }
     // The optics overrides except the pointing, which the map sets cell by cell.
     let optics_only = ReportOptions { altitude_deg: None, azimuth_deg: None, ..o.clone() };
