@@ -55,25 +55,40 @@ def test_one_psd_means_all_three_axes_and_summary(model):
 
 def test_wind_equals_numpy_linearised_drag(model):
     # Quasi-steady linearised drag (docs/references.md#s6-6; e.g. Simiu & Scanlan, Wind Effects on
-    # Structures): S_F = (ρ C_d A U)² S_u, with ρ = 1.225 kg/m³ and the model's [wind] area and
-    # drag coefficient (tripod-lawn.toml: A = 0.2 m², C_d = 1.2); S_img = |H_wind→image|² S_F.
-    # With the admittance (the default) S_F is multiplied by Vickery's |χ|² = 1/[1 + (2f√A/U)^{4/3}]²
-    # (docs/references.md#s6-7).
+    # Structures): S_F = (ρ Σ C_d A U)² S_u, with ρ = 1.225 kg/m³ and the parts the rig derives
+    # (tripod-lawn.toml), the speed carried to their C_d A-weighted height by the log profile of
+    # EN 1991-1-4 (z0 = 0.05 m, held below z_min = 2 m) with σ_u kept, S_u of that height;
+    # S_img = |H_wind→image|² S_F. With the admittance (the default) S_F is multiplied by
+    # Vickery's |χ|² = 1/[1 + (2f√A/U)^{4/3}]² with A = Σ A (docs/references.md#s6-7).
     f = np.geomspace(0.2, 100.0, 400)
     wind = stillsky.Wind("kaimal", 4.0, 2.0, turbulence_intensity=0.2, admittance=False)
     r = model.image_motion(f, wind=wind, mode_shares=False)
-    su = wind.spectrum(f).values
-    np.testing.assert_array_equal(su, stillsky.wind_spectrum("kaimal", f, 4.0, 2.0, turbulence_intensity=0.2).values)
-    s_force = (1.225 * 1.2 * 0.2 * 4.0) ** 2 * su
+    np.testing.assert_array_equal(
+        wind.spectrum(f).values, stillsky.wind_spectrum("kaimal", f, 4.0, 2.0, turbulence_intensity=0.2).values
+    )
+    parts = model.wind_parts()
+    cda = sum(p["drag_coefficient"] * p["area_m2"] for p in parts)
+    area = sum(p["area_m2"] for p in parts)
+    z = sum(p["drag_coefficient"] * p["area_m2"] * p["centre_of_pressure_m"][2] for p in parts) / cda
+    u = 4.0 * np.log(max(z, 2.0) / 0.05) / np.log(2.0 / 0.05)
+    su = stillsky.wind_spectrum("kaimal", f, u, z, turbulence_intensity=0.2 * 4.0 / u).values
+    s_force = (1.225 * cda * u) ** 2 * su
     h = model.frf(f, "wind", ["image_x", "image_y"])[:, :, 0]
     s_img = (np.abs(h) ** 2 * s_force[:, None]).T * ARCSEC_PER_RAD**2
     np.testing.assert_allclose(r.psd, s_img, rtol=1e-10)
     assert r.input_share == {"wind": pytest.approx(1.0)}
     default = stillsky.Wind("kaimal", 4.0, 2.0, turbulence_intensity=0.2)
     assert default.admittance and not wind.admittance
-    chi2 = 1.0 / (1.0 + (2.0 * f * np.sqrt(0.2) / 4.0) ** (4.0 / 3.0)) ** 2
+    chi2 = 1.0 / (1.0 + (2.0 * f * np.sqrt(area) / u) ** (4.0 / 3.0)) ** 2
     r2 = model.image_motion(f, wind=default, mode_shares=False)
     np.testing.assert_allclose(r2.psd, s_img * chi2, rtol=1e-10)
+    # A forecast's 10 m wind is carried down to the parts: 4 m/s at 10 m is ln(2/0.05)/ln(10/0.05)
+    # of it at the parts (below z_min = 2 m), with the same σ_u.
+    w10 = stillsky.Wind("kaimal", 4.0, 10.0, turbulence_intensity=0.2, admittance=False)
+    u10 = 4.0 * np.log(2.0 / 0.05) / np.log(10.0 / 0.05)
+    su10 = stillsky.wind_spectrum("kaimal", f, u10, z, turbulence_intensity=0.8 / u10).values
+    r10 = model.image_motion(f, wind=w10, mode_shares=False)
+    np.testing.assert_allclose(r10.psd, (np.abs(h) ** 2 * ((1.225 * cda * u10) ** 2 * su10)[:, None]).T * ARCSEC_PER_RAD**2, rtol=1e-10)
 
 
 def test_loads_mapping_and_pairs_agree(model):

@@ -87,5 +87,5 @@ def test_bad_grids_are_named_errors():
         eq.sky_map(FREQ, wind=WIND, declinations_deg=[100.0])
     with pytest.raises(stillsky.InvalidInputError, match="sky grid hour_angle_deg"):
         eq.sky_map(FREQ, wind=WIND, hour_angles_deg=[])
-    with pytest.raises(stillsky.InvalidInputError, match="wind_from_deg"):
+    with pytest.raises(stillsky.InvalidInputError, match="from_azimuth_deg"):
         eq.sky_map(FREQ, wind=WIND, wind_from_deg=float("nan"))

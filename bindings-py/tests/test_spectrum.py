@@ -124,8 +124,11 @@ def test_wind_spectrum_variance():
     f2 = np.array([0.01, 0.1, 1.0])
     iec = stillsky.wind_spectrum("kaimal-iec", f2, 5.0, 2.0, turbulence_intensity=0.2)
     np.testing.assert_allclose(iec.values, [7.334235, 2.167393, 1.039246e-1], rtol=1e-6)
+    # von Kármán with its own length scale L = 3.5 Λ, Λ = 0.7 z (IEC 61400-1 ed. 2, annex B; from
+    # memory: verify): S = 4 σ² (L/U) / (1 + 70.8 (f L/U)²)^(5/6).
     vk = stillsky.wind_spectrum("von-karman", f2, 5.0, 2.0, turbulence_intensity=0.2)
-    np.testing.assert_allclose(vk.values, [8.805564, 2.524230, 6.641678e-2], rtol=2e-4)
+    t = 3.5 * 0.7 * 2.0 / 5.0
+    np.testing.assert_allclose(vk.values, 4.0 * t / (1.0 + 70.8 * (f2 * t) ** 2) ** (5.0 / 6.0), rtol=2e-4)
     with pytest.raises(stillsky.InvalidInputError, match="exactly one"):
         stillsky.wind_spectrum("kaimal", f, 5.0, 2.0)
 

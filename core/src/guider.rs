@@ -234,7 +234,9 @@ impl GuideLoop {
     /// the total residual and its aliased part. Validates the loop first.
     ///
     /// The folded spectrum G(|f − m/T|) is interpolated linearly between grid points and taken as
-    /// zero outside the grid. Errors: an invalid or unstable loop, a bad grid, a length mismatch,
+    /// zero outside the grid. Where a grid cell spans more than 1/8 of the period 1/T over which
+    /// the result oscillates, the value is the cell's average (sub-sampled), so band integrals
+    /// of the result are right on a coarse grid. Errors: an invalid or unstable loop, a bad grid, a length mismatch,
     /// or more than 2·10⁸ folded terms ([`Error::TooLarge`]; a long cadence on a wide grid).
     pub fn residual(&self, freq_hz: &[f64], psds: &[&[f64]]) -> Result<Vec<GuidedPsd>> {
         self.validate()?;
@@ -248,46 +250,73 @@ impl GuideLoop {
         let (f_lo, f_hi) = (freq_hz[0], freq_hz[nf - 1]);
         let t = self.cadence_s;
         let folds = (2.0 * f_hi * t).ceil() + 2.0;
-        if folds * nf as f64 > MAX_FOLD_TERMS as f64 {
+        let q = self.pulse_transfer();
+        // The guided spectrum oscillates in f with period 1/T (hold, loop and the comb of folds).
+        // A grid value is the average over its cell (half-way to each neighbour), taken at
+        // `subs` points (32 per period) where the cell spans more than 1/32 of a period, so that band integrals
+        // stay right on a coarse grid; on a fine grid it is the value at the point.
+        let cell = |i: usize| -> (f64, f64) {
+            let lo = if i > 0 { 0.5 * (freq_hz[i - 1] + freq_hz[i]) } else { freq_hz[i] };
+            let hi = if i + 1 < nf { 0.5 * (freq_hz[i] + freq_hz[i + 1]) } else { freq_hz[i] };
+            (lo, hi)
+        };
+        let subs = |i: usize| -> usize {
+            let (lo, hi) = cell(i);
+            (((hi - lo) * t * 32.0).ceil() as usize).clamp(1, 1024)
+        };
+        let n_sub: f64 = (0..nf).map(|i| subs(i) as f64).sum();
+        if folds * n_sub > MAX_FOLD_TERMS as f64 {
             return Err(Error::TooLarge {
                 what: "guide aliasing terms (grid points × alias orders)".into(),
-                value: (folds * nf as f64).min(usize::MAX as f64) as usize,
+                value: (folds * n_sub).min(usize::MAX as f64) as usize,
                 limit: MAX_FOLD_TERMS,
             });
         }
-        let q = self.pulse_transfer();
+        // Linear interpolation of the input spectra (zero outside the grid).
+        let at = |p: &[f64], a: f64| -> f64 {
+            if a < f_lo || a > f_hi {
+                return 0.0;
+            }
+            let j = freq_hz.partition_point(|&x| x <= a).clamp(1, nf - 1);
+            let w = (a - freq_hz[j - 1]) / (freq_hz[j] - freq_hz[j - 1]);
+            (1.0 - w) * p[j - 1] + w * p[j]
+        };
         let mut out: Vec<GuidedPsd> =
             psds.iter().map(|_| GuidedPsd { total: vec![0.0; nf], aliased: vec![0.0; nf] }).collect();
         let mut acc = vec![0.0; psds.len()];
-        for (i, &f) in freq_hz.iter().enumerate() {
-            let l = self.following_with(&q, f);
-            let direct = (Complex64::new(1.0, 0.0) - l).norm_sqr();
-            let fold_w = sinc(PI * f * t).powi(2) * self.discrete_k(&q, f).norm_sqr();
-            acc.iter_mut().for_each(|a| *a = 0.0);
-            if fold_w > 0.0 {
-                let m_lo = ((f - f_hi) * t).ceil() as i64;
-                let m_hi = ((f + f_hi) * t).floor() as i64;
-                for m in m_lo..=m_hi {
-                    if m == 0 {
-                        continue;
-                    }
-                    let nu = f - m as f64 / t;
-                    let a = nu.abs();
-                    if a < f_lo || a > f_hi {
-                        continue;
-                    }
-                    let he2 = sinc(PI * nu * self.exposure_s).powi(2);
-                    let j = freq_hz.partition_point(|&x| x <= a).clamp(1, nf - 1);
-                    let w = (a - freq_hz[j - 1]) / (freq_hz[j] - freq_hz[j - 1]);
-                    for (k, p) in psds.iter().enumerate() {
-                        acc[k] += he2 * ((1.0 - w) * p[j - 1] + w * p[j]);
+        for i in 0..nf {
+            let ns = subs(i);
+            let (lo, hi) = cell(i);
+            for s in 0..ns {
+                let f = if ns == 1 { freq_hz[i] } else { lo + (s as f64 + 0.5) * (hi - lo) / ns as f64 };
+                let l = self.following_with(&q, f);
+                let direct = (Complex64::new(1.0, 0.0) - l).norm_sqr();
+                let fold_w = sinc(PI * f * t).powi(2) * self.discrete_k(&q, f).norm_sqr();
+                acc.iter_mut().for_each(|a| *a = 0.0);
+                if fold_w > 0.0 {
+                    let m_lo = ((f - f_hi) * t).ceil() as i64;
+                    let m_hi = ((f + f_hi) * t).floor() as i64;
+                    for m in m_lo..=m_hi {
+                        if m == 0 {
+                            continue;
+                        }
+                        let nu = f - m as f64 / t;
+                        let a = nu.abs();
+                        if a < f_lo || a > f_hi {
+                            continue;
+                        }
+                        let he2 = sinc(PI * nu * self.exposure_s).powi(2);
+                        for (k, p) in psds.iter().enumerate() {
+                            acc[k] += he2 * at(p, a);
+                        }
                     }
                 }
-            }
-            for (k, p) in psds.iter().enumerate() {
-                let al = fold_w * acc[k];
-                out[k].aliased[i] = al;
-                out[k].total[i] = direct * p[i] + al;
+                for (k, p) in psds.iter().enumerate() {
+                    let g = if ns == 1 { p[i] } else { at(p, f) };
+                    let al = fold_w * acc[k] / ns as f64;
+                    out[k].aliased[i] += al;
+                    out[k].total[i] += direct * g / ns as f64 + al;
+                }
             }
         }
         Ok(out)

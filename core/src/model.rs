@@ -157,6 +157,13 @@ impl Model {
         self.spec.optics.as_ref()
     }
 
+    /// `wind` carried by the log profile from its own height to the load's height
+    /// ([`WindLoadSpec::load_height_m`], [`crate::wind::WindSpec::carried_to`]).
+    pub fn wind_at_load(&self, wind: &crate::wind::WindSpec) -> Result<crate::wind::WindSpec> {
+        let load = self.wind().ok_or_else(|| Error::invalid("wind", "the model takes no wind"))?;
+        wind.carried_to(load.load_height_m()?.max(1e-3))
+    }
+
     /// The wind load placement, if any.
     pub fn wind(&self) -> Option<&WindLoadSpec> {
         self.spec.wind.as_ref()

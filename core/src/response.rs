@@ -62,6 +62,7 @@ impl Disturbances {
             let load = model.wind().ok_or_else(|| {
                 Error::invalid("wind", "the model has no [wind] section (load point, area, drag coefficient)")
             })?;
+            let w = &model.wind_at_load(w)?;
             let chi = w.admittance_sq(grid, load.total_area_m2()?)?;
             let f = w.drag_force_psd(1.0, load.drag_area_m2()?, grid, chi.as_deref())?;
             out.push(("wind".to_string(), f.values().to_vec()));

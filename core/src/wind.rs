@@ -45,6 +45,23 @@ pub const SIGMA_U_OVER_U_STAR: f64 = 2.5;
 /// (docs/references.md#s6-3 gives 70.7801).
 pub const VON_KARMAN_C_EXACT: f64 = 70.78012763381714;
 
+/// Roughness length assumed when none is given, 0.05 m: terrain category II of EN 1991-1-4
+/// (low vegetation such as grass, isolated obstacles; from memory: verify).
+pub const DEFAULT_ROUGHNESS_LENGTH_M: f64 = 0.05;
+
+/// The height below which the log profile is held constant, z_min of EN 1991-1-4:2005
+/// table 4.1 for the terrain category nearest a roughness length (categories 0, I, II, III,
+/// IV: z0 = 0.003, 0.01, 0.05, 0.3, 1.0 m; z_min = 1, 1, 2, 5, 10 m; from memory: verify).
+pub fn log_profile_min_height_m(z0_m: f64) -> f64 {
+    const TABLE: [(f64, f64); 5] = [(0.003, 1.0), (0.01, 1.0), (0.05, 2.0), (0.3, 5.0), (1.0, 10.0)];
+    let (_, z_min) = TABLE
+        .iter()
+        .min_by(|a, b| (a.0 / z0_m).ln().abs().total_cmp(&(b.0 / z0_m).ln().abs()))
+        .copied()
+        .unwrap_or((0.05, 2.0));
+    z_min
+}
+
 /// Davenport's length scale, 1200 m (docs/references.md#s6-4).
 pub const DAVENPORT_LENGTH_M: f64 = 1200.0;
 
@@ -301,16 +318,45 @@ impl WindSpec {
         Ok(self.turbulence_intensity()? * self.effective_speed_m_s()?)
     }
 
-    /// Integral length scale used by the spectrum (m): IEC L_u = 8.1·0.7·min(z, 60) for
-    /// Kaimal-IEC and von Kármán, 1200 m for Davenport, z for Kaimal (1972) (its similarity
-    /// variable n z/U).
+    /// Integral length scale used by the spectrum (m), each with its own, in IEC 61400-1's
+    /// turbulence scale parameter Λ = 0.7·min(z, 60 m): L_u = 8.1 Λ for Kaimal-IEC, L = 3.5 Λ
+    /// for von Kármán (the isotropic model of IEC 61400-1 ed. 2, annex B; from memory: verify),
+    /// 1200 m for Davenport, z for Kaimal (1972) (its similarity variable n z/U).
     pub fn length_scale_m(&self) -> Result<f64> {
         self.validate()?;
+        let lambda = 0.7 * self.height_m.min(60.0);
         Ok(match self.kind {
             WindSpectrum::Kaimal => self.height_m,
-            WindSpectrum::KaimalIec | WindSpectrum::VonKarman => 8.1 * 0.7 * self.height_m.min(60.0),
+            WindSpectrum::KaimalIec => 8.1 * lambda,
+            WindSpectrum::VonKarman => 3.5 * lambda,
             WindSpectrum::Davenport => DAVENPORT_LENGTH_M,
         })
+    }
+
+    /// The same wind at another height by the logarithmic profile U(z) ∝ ln(max(z, z_min)/z0)
+    /// (EN 1991-1-4:2005 §4.3.2, with its z_min, [`log_profile_min_height_m`]): z0 from
+    /// [`Turbulence::RoughnessLength`], else [`DEFAULT_ROUGHNESS_LENGTH_M`]. σ_u stays as at the
+    /// given height (σ_u ≈ 2.5 u* throughout the surface layer), so an intensity becomes
+    /// σ_u / U(z). A forecast's 10 m wind carried to 1.5 m over grass keeps ln(2/0.05)/ln(10/0.05)
+    /// = 0.70 of its speed.
+    pub fn carried_to(&self, height_m: f64) -> Result<WindSpec> {
+        self.validate()?;
+        require_positive("wind load height_m", height_m)?;
+        let z0 = match self.turbulence {
+            Turbulence::RoughnessLength { z0_m } => z0_m,
+            Turbulence::Intensity(_) => DEFAULT_ROUGHNESS_LENGTH_M,
+        };
+        let z_min = log_profile_min_height_m(z0);
+        let ratio = (height_m.max(z_min) / z0).ln() / (self.height_m.max(z_min) / z0).ln();
+        let sigma = self.sigma_u_m_s()?;
+        let mut w = self.clone();
+        w.mean_speed_m_s = self.mean_speed_m_s * ratio;
+        w.height_m = height_m;
+        if let Turbulence::Intensity(_) = self.turbulence {
+            w.turbulence = Turbulence::Intensity(sigma / w.effective_speed_m_s()?);
+        }
+        w.validate()?;
+        Ok(w)
     }
 
     /// Along-wind velocity PSD ((m/s)²/Hz) on `grid`, normalised to σ_u² (module docs).
@@ -519,6 +565,40 @@ mod tests {
         // I_u = 1/ln(z/z0) from u* = κU/ln(z/z0), σ_u = 2.5u* (κ = 0.4; from memory: verify).
         let s = WindSpec::new(WindSpectrum::Kaimal, 8.0, 10.0, Turbulence::RoughnessLength { z0_m: 0.05 });
         assert_relative_eq!(s.turbulence_intensity().unwrap(), 1.0 / (200f64).ln(), max_relative = 1e-14);
+    }
+
+    #[test]
+    fn log_profile_carries_a_forecast_height_down_with_sigma_kept() {
+        // EN 1991-1-4 §4.3.2: v(z) ∝ ln(max(z, z_min)/z0); category II: z0 = 0.05, z_min = 2 m.
+        let s = WindSpec::new(WindSpectrum::Kaimal, 8.0, 10.0, Turbulence::Intensity(0.15));
+        let c = s.carried_to(1.5).unwrap();
+        let ratio = (2.0f64 / 0.05).ln() / (10.0f64 / 0.05).ln();
+        assert_relative_eq!(ratio, 0.6963, max_relative = 1e-4);
+        assert_relative_eq!(c.mean_speed_m_s, 8.0 * ratio, max_relative = 1e-14);
+        assert_relative_eq!(c.sigma_u_m_s().unwrap(), s.sigma_u_m_s().unwrap(), max_relative = 1e-14);
+        assert_eq!(c.height_m, 1.5);
+        // Above z_min the log law itself; the same height changes nothing.
+        let r = WindSpec::new(WindSpectrum::Kaimal, 8.0, 10.0, Turbulence::RoughnessLength { z0_m: 0.3 });
+        let c = r.carried_to(30.0).unwrap();
+        assert_relative_eq!(
+            c.mean_speed_m_s,
+            8.0 * (100f64).ln() / (10.0f64 / 0.3).ln(),
+            max_relative = 1e-14
+        );
+        assert_relative_eq!(s.carried_to(10.0).unwrap().mean_speed_m_s, 8.0, max_relative = 1e-15);
+        // z_min by the nearest category: 0.03 m is nearer 0.05 (II, 2 m) than 0.01 (I, 1 m).
+        assert_eq!(log_profile_min_height_m(0.03), 2.0);
+        assert_eq!(log_profile_min_height_m(0.005), 1.0);
+        assert_eq!(log_profile_min_height_m(0.5), 5.0);
+        assert!(s.carried_to(0.0).is_err());
+    }
+
+    #[test]
+    fn von_karman_and_kaimal_iec_keep_their_own_length_scales() {
+        let k = WindSpec::new(WindSpectrum::KaimalIec, 5.0, 20.0, Turbulence::Intensity(0.2));
+        let v = WindSpec { kind: WindSpectrum::VonKarman, ..k.clone() };
+        assert_relative_eq!(k.length_scale_m().unwrap(), 8.1 * 14.0, max_relative = 1e-14);
+        assert_relative_eq!(v.length_scale_m().unwrap(), 3.5 * 14.0, max_relative = 1e-14);
     }
 
     #[test]

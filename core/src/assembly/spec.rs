@@ -526,6 +526,15 @@ impl WindLoadSpec {
         Ok(self.parts()?.iter().map(|p| p.drag_coefficient * p.area_m2).sum())
     }
 
+    /// The C_d A-weighted height of the parts' centres of pressure (m above the model's z = 0,
+    /// the surface the rig stands on): where the wind's speed is taken.
+    pub fn load_height_m(&self) -> Result<f64> {
+        let parts = self.parts()?;
+        let cda: f64 = parts.iter().map(|p| p.drag_coefficient * p.area_m2).sum();
+        Ok(parts.iter().map(|p| p.drag_coefficient * p.area_m2 * p.centre_of_pressure_m[2]).sum::<f64>()
+            / cda)
+    }
+
     /// Σ A over the parts (m²), the size that sets the aerodynamic admittance.
     pub fn total_area_m2(&self) -> Result<f64> {
         Ok(self.parts()?.iter().map(|p| p.area_m2).sum())

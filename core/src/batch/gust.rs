@@ -162,6 +162,7 @@ pub fn gust_family_with(
     if plan.durations_s.is_empty() {
         return Err(Error::invalid("gust durations", "is empty"));
     }
+    let wind = &model.wind_at_load(wind)?;
     let u = wind.effective_speed_m_s()?;
     let amplitudes =
         plan.durations_s.iter().map(|t| gust_amplitude_m_s(wind, *t)).collect::<Result<Vec<_>>>()?;

@@ -371,6 +371,18 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
     let optics_body = spec.optics.as_ref().map(|op| op.body.clone()).unwrap_or_default();
     let grid = &o.grid;
     let mut notes = Vec::new();
+    if let (Some(w), Some(load)) = (&o.wind, model.wind()) {
+        let c = model.wind_at_load(w)?;
+        notes.push(format!(
+            "wind {:.2} m/s at {:.1} m taken at the load's height {:.2} m (C_d A-weighted centre of pressure; log profile, EN 1991-1-4): {:.2} m/s, turbulence intensity {:.3}; Σ C_d A {:.3} m²",
+            w.mean_speed_m_s,
+            w.height_m,
+            c.height_m,
+            c.mean_speed_m_s,
+            c.turbulence_intensity()?,
+            load.drag_area_m2()?
+        ));
+    }
     let ground: Option<GroundSpectrum> = if o.ground_off {
         None
     } else {
