@@ -238,7 +238,7 @@ fn sweep_page_ranks_isolators_and_lists_inputs() {
         assert!(doc.contains(&format!("<td>{name}</td>")), "{name} not ranked");
     }
     assert!(doc.contains("<td>none</td>"));
-    for want in ["isolator catalogue", "isolators.toml", "wind cases", "300 points"] {
+    for want in ["isolator catalogue", "isolators.toml", "wind cases", "600 points"] {
         assert!(doc.contains(want), "inputs lack {want}");
     }
 }

@@ -312,10 +312,11 @@ impl GuideLoop {
                     }
                 }
                 for (k, p) in psds.iter().enumerate() {
-                    let g = if ns == 1 { p[i] } else { at(p, f) };
+                    // The rejection is averaged over the cell and applied to the grid value, so
+                    // far above the guider's reach the guided PSD is the open one point by point.
                     let al = fold_w * acc[k] / ns as f64;
                     out[k].aliased[i] += al;
-                    out[k].total[i] += direct * g / ns as f64 + al;
+                    out[k].total[i] += direct * p[i] / ns as f64 + al;
                 }
             }
         }

@@ -1062,7 +1062,7 @@ def sweep_rows(
         spectra: recording / PSD file paths, or ``nlnm`` / ``nhnm``.
         wind: wind cases, ``calm`` or ``SPEED[:HEIGHT[:SPECTRUM[:INTENSITY]]]``; empty: calm.
         labels: ground labels (one per spectrum, unique) instead of the file stems.
-        f_min_hz, f_max_hz, n_freq: log analysis grid (defaults 0.5, 90, 300).
+        f_min_hz, f_max_hz, n_freq: log analysis grid (defaults 0.2, 100, 600: the report's).
         pad_prefix: prefix of the pad springs in a generic model (default ``pad``).
         ground_scale: per-axis factor on PSD files and reference models.
         fs_hz: sample rate of text recordings without a time column or ``# fs_hz=`` line.

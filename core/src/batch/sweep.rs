@@ -123,10 +123,11 @@ pub struct SweepConfig {
 }
 
 impl SweepConfig {
-    /// 0.5–90 Hz, 300 log-spaced points, prefix `pad`, ground scale [1, 1, 1].
+    /// 0.2–100 Hz, 600 log-spaced points (the report's grid, so a row and the report of the
+    /// same rig agree), prefix `pad`, ground scale [1, 1, 1].
     pub fn new() -> Result<SweepConfig> {
         Ok(SweepConfig {
-            grid: FreqGrid::log(0.5, 90.0, 300)?,
+            grid: FreqGrid::log(0.2, 100.0, 600)?,
             pad_prefix: DEFAULT_PAD_PREFIX.into(),
             ground_scale: [1.0; 3],
             series: SeriesOptions::default(),
