@@ -637,3 +637,29 @@ fn equatorial_sky_map_cells_equal_single_runs() {
     let (lo, hi) = all.iter().fold((f64::MAX, 0.0f64), |(a, b), x| (a.min(*x), b.max(*x)));
     assert!(hi > 1.05 * lo, "{all:?}");
 }
+
+#[test]
+fn a_deck_without_horizontal_springs_carries_the_stand_with_the_ground() {
+    // The deck's held x, y and rz follow the ground (a kinematic tie): a tripod standing on it
+    // moves with ground_x and ground_y at low frequency, |T| → 1, like one on the ground itself.
+    let floor = FLOOR
+        .replace("horizontal_stiffness_n_per_m = 5e6\n", "")
+        .replace("torsion_stiffness_nm_per_rad = 2e6\n", "");
+    let text = format!(
+        "{OPTICS}{floor}{}",
+        TRIPOD.replace("[ground]\nkind = \"rigid\"\n", "").replace("[tripod]", "[tripod]\non = \"floor\"")
+    );
+    let spec = spec(&text);
+    let deck = spec.bodies.iter().find(|b| b.name == "floor").unwrap();
+    assert!(!deck.dofs.contains(&stillsky::assembly::Dof::X), "the deck's x is held");
+    let m = Model::from_spec(&spec).unwrap();
+    let f = [0.01, 0.05];
+    let h = m.frf(&f, &["ground_x", "ground_y"], &["mount:x", "mount:y"]).unwrap();
+    for (o, i) in [("mount:x", "ground_x"), ("mount:y", "ground_y")] {
+        for t in h.series(o, i).unwrap() {
+            assert!((t.norm() - 1.0).abs() < 1e-3, "{o}/{i}: |T| = {}", t.norm());
+        }
+    }
+    // Cross terms stay small: x does not drive y.
+    assert!(h.series("mount:y", "ground_x").unwrap()[0].norm() < 1e-3);
+}

@@ -13,16 +13,22 @@ pub(crate) struct Carrier {
     pub(crate) index: [Option<usize>; 6],
     /// Whether the carrier has rotational DOFs at all (bodies, beam nodes) or not (nodes).
     pub(crate) rotates: bool,
+    /// Held translations x, y, z that follow the ground (a kinematic tie): they map to the
+    /// ground's columns, the last three of the N columns of [`Carrier::point_map`].
+    pub(crate) tied: [bool; 3],
 }
 
 impl Carrier {
-    /// The 6 × N map (dense rows) of the motion of point `p` on this carrier.
+    /// The 6 × N map (dense rows) of the motion of point `p` on this carrier; N = free DOFs + 3,
+    /// the last three the ground's translations.
     pub(crate) fn point_map(&self, p: [f64; 3], nfull: usize) -> [Vec<f64>; 6] {
         let mut rows: [Vec<f64>; 6] = std::array::from_fn(|_| vec![0.0; nfull]);
         let r = sub(p, self.origin);
         for i in 0..3 {
             if let Some(g) = self.index[i] {
                 rows[i][g] += 1.0;
+            } else if self.tied[i] {
+                rows[i][nfull - 3 + i] += 1.0;
             }
             if let Some(g) = self.index[3 + i] {
                 rows[3 + i][g] += 1.0;

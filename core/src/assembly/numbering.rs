@@ -101,7 +101,8 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
         }
         finite3(&format!("{p}.products_kgm2"), b.products_kgm2)?;
         let index = free(&mut labels, &b.name, &b.dofs, &Dof::ALL)?;
-        carriers.insert(b.name.clone(), Carrier { origin: b.cg_m, index, rotates: true });
+        let tied = std::array::from_fn(|i| index[i].is_none());
+        carriers.insert(b.name.clone(), Carrier { origin: b.cg_m, index, rotates: true, tied });
     }
     for nd in &spec.nodes {
         claim(&nd.name, "node")?;
@@ -109,7 +110,8 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
         require_positive(|| format!("{p}.mass_kg"), nd.mass_kg)?;
         finite3(&format!("{p}.at_m"), nd.at_m)?;
         let index = free(&mut labels, &nd.name, &nd.dofs, &[Dof::X, Dof::Y, Dof::Z])?;
-        carriers.insert(nd.name.clone(), Carrier { origin: nd.at_m, index, rotates: false });
+        let tied = std::array::from_fn(|i| index[i].is_none());
+        carriers.insert(nd.name.clone(), Carrier { origin: nd.at_m, index, rotates: false, tied });
     }
     for s in spec.springs.iter().chain(&spec.torsion_springs) {
         claim(&s.name, "spring")?;
@@ -155,8 +157,9 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
                     origin: pos,
                     index: free(&mut labels, &owner, &Dof::ALL, &Dof::ALL)?,
                     rotates: true,
+                    tied: [false; 3],
                 },
-                Some(_) => Carrier { origin: pos, index: [None; 6], rotates: true },
+                Some(_) => Carrier { origin: pos, index: [None; 6], rotates: true, tied: [false; 3] },
             };
             nodes.push(c);
         }
@@ -175,6 +178,7 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
             origin: [0.0; 3],
             index: [Some(n), Some(n + 1), Some(n + 2), None, None, None],
             rotates: false,
+            tied: [false; 3],
         },
     );
     Ok(Numbering { n, labels, carriers, beam_nodes })

@@ -35,8 +35,8 @@ pub struct FloorSpec {
     /// About both horizontal axes (N·m/rad).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub rocking_stiffness_nm_per_rad: Option<f64>,
-    /// Each horizontal direction (N/m). Without it the deck's x, y (and rz without torsion)
-    /// are held fixed in space: they then do not follow ground_x / ground_y.
+    /// Each horizontal direction (N/m). Without it the deck's x and y are held and follow the
+    /// ground (ground_x / ground_y), and rz without torsion is held fixed.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub horizontal_stiffness_n_per_m: Option<f64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
