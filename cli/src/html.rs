@@ -506,7 +506,12 @@ fn ranking_html(t: &RankTable, id: &str) -> String {
             ];
             if windy {
                 row.push(num(e.gust_peak_px, 3));
-                row.push(num(e.gust_ringdown_s, 2));
+                // NaN: the image did not settle within the record.
+                row.push(if e.gust_ringdown_s.is_finite() {
+                    num(e.gust_ringdown_s, 2)
+                } else {
+                    "beyond the record".into()
+                });
             }
             row.push(note);
             row

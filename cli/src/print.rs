@@ -251,7 +251,13 @@ pub fn sweep_text(o: &SweepOutcome) -> String {
                 e.cases_worse
             );
             if windy {
-                let _ = write!(s, " {:>10.3} {:>11.2}", e.gust_peak_px, e.gust_ringdown_s);
+                // NaN: the image did not settle within the record.
+                let ring = if e.gust_ringdown_s.is_finite() {
+                    format!("{:.2}", e.gust_ringdown_s)
+                } else {
+                    "> record".to_string()
+                };
+                let _ = write!(s, " {:>10.3} {:>11}", e.gust_peak_px, ring);
             }
             let verdict = if e.spec == stillsky::batch::NO_PAD { "(baseline)" } else { e.verdict.words() };
             let _ = writeln!(s, "  {}{}", verdict, if e.overloaded { " (over rated load)" } else { "" });
