@@ -187,3 +187,36 @@ fn malformed_files_are_named_errors() {
     std::fs::write(&p, &raw).unwrap();
     assert_eq!(SeriesFormat::detect(&p).unwrap(), SeriesFormat::MiniSeed);
 }
+
+#[test]
+fn a_single_channel_drives_the_axis_of_its_orientation_code() {
+    use stillsky::FreqGrid;
+    use stillsky::batch::GroundSource;
+    // SEED channel codes end in their orientation (SEED Reference Manual v2.4, appendix A):
+    // ...EHE is east (model x), ...BHZ vertical (z).
+    let grid = FreqGrid::log(0.5, 40.0, 50).unwrap();
+    let o = SeriesOptions::default().with_sensitivity(Sensitivity::new(500.0, Unit::MicrometrePerSecond));
+    let axes = |name: &str| {
+        let g = GroundSource::Recording(data(name)).load(&grid, [1.0; 3], &o).unwrap();
+        g.axes.iter().map(Option::is_some).collect::<Vec<_>>()
+    };
+    assert_eq!(axes("BW.BGLD..EHE.steim1.10rec.mseed"), [true, false, false]);
+    assert_eq!(axes("NL.HGN.00.BHZ.steim2.mseed"), [false, false, true]);
+    // An orientation off the site's axes (here "1") is refused by name, not taken as vertical.
+    let raw = std::fs::read(data("BW.BGLD..EHE.steim1.10rec.mseed")).unwrap();
+    let mut renamed = Vec::with_capacity(raw.len());
+    let mut i = 0;
+    while i < raw.len() {
+        if raw[i..].starts_with(b"BGLD   EHE") {
+            renamed.extend_from_slice(b"BGLD   EH1");
+            i += 10;
+        } else {
+            renamed.push(raw[i]);
+            i += 1;
+        }
+    }
+    let p = tmp("BW.BGLD..EH1.mseed");
+    std::fs::write(&p, renamed).unwrap();
+    let e = GroundSource::Recording(p).load(&grid, [1.0; 3], &o).unwrap_err();
+    assert!(e.to_string().contains("orientation code '1'"), "{e}");
+}

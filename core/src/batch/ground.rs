@@ -123,8 +123,22 @@ fn axis_index(name: &str) -> Option<usize> {
         "x" | "e" | "east" => Some(0),
         "y" | "n" | "north" => Some(1),
         "z" | "u" | "up" | "v" | "vertical" => Some(2),
-        _ => None,
+        _ => match seed_orientation(name)? {
+            'E' => Some(0),
+            'N' => Some(1),
+            'Z' => Some(2),
+            _ => None,
+        },
     }
+}
+
+/// The orientation code of a SEED channel id NET.STA.LOC.CHA: the last letter of the
+/// three-letter channel code (SEED Reference Manual v2.4, appendix A: Z vertical, N north,
+/// E east; 1, 2, 3, A, B, C, T, R and others are not along the site's axes).
+fn seed_orientation(name: &str) -> Option<char> {
+    let parts: Vec<&str> = name.trim().split('.').collect();
+    let cha = parts.last()?;
+    (parts.len() == 4 && cha.len() == 3).then(|| cha.chars().last()).flatten().map(|c| c.to_ascii_uppercase())
 }
 
 /// Welch segment: the power of two nearest 10 s of samples, at least 16, at most the length.
@@ -158,6 +172,15 @@ fn recording_psds(path: &Path, scale: [f64; 3], opts: &SeriesOptions) -> Result<
     } else if s.n_axes == 3 {
         vec![0, 1, 2]
     } else if s.n_axes == 1 {
+        if let Some(c) = s.axis_names.first().and_then(|n| seed_orientation(n)) {
+            return Err(Error::invalid(
+                format!("recording {file}"),
+                format!(
+                    "channel {} has orientation code '{c}', which is not east (E), north (N) or vertical (Z); rotate it to the site's axes first",
+                    s.axis_names[0]
+                ),
+            ));
+        }
         vec![2]
     } else {
         return Err(Error::invalid(
