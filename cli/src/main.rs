@@ -70,6 +70,32 @@ enum Cmd {
         #[arg(long)]
         axis: Option<String>,
     },
+    /// Transfer function from one recorded channel to another (H1, H2) with their coherence,
+    /// e.g. ground to pier top, or a hammer's force to the tube's response.
+    Transfer(TransferArgs),
+}
+
+#[derive(Args)]
+struct TransferArgs {
+    /// Recording holding the input channel (CSV/text/WAV/miniSEED).
+    input: PathBuf,
+    /// Recording holding the output channel (may be the same file).
+    output: PathBuf,
+    /// Input axis (column); default the first.
+    #[arg(long)]
+    input_axis: Option<String>,
+    /// Output axis (column); default the first.
+    #[arg(long)]
+    output_axis: Option<String>,
+    /// Sample rate (Hz) for text files without a time column or `# fs_hz=` line.
+    #[arg(long)]
+    fs: Option<f64>,
+    /// Welch segment length in samples (default: the power of two nearest 10 s).
+    #[arg(long)]
+    nperseg: Option<usize>,
+    /// Write every bin as CSV: freq_hz, h1 and h2 (magnitude, phase), coherence.
+    #[arg(long)]
+    csv: Option<PathBuf>,
 }
 
 #[derive(Args, Clone)]
@@ -374,6 +400,7 @@ fn main() -> ExitCode {
         Cmd::Demo { out } => demo(&out),
         Cmd::Calibrate(a) => calibrate(&a),
         Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
+        Cmd::Transfer(a) => transfer(&a),
         Cmd::Check { model, design_wind_m_s, gust_factor } => check(&model, design_wind_m_s, gust_factor),
     };
     match r {
@@ -849,6 +876,37 @@ fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
     let id =
         stillsky::identify::identify_ringdown(&x, fs_hz, &stillsky::identify::RingdownOptions::default())?;
     print!("{}", print::tap_text(&file.display().to_string(), &name, fs_hz, &id));
+    Ok(())
+}
+
+fn transfer(a: &TransferArgs) -> CliResult {
+    use stillsky::spectrum::{WelchConfig, transfer_estimate};
+    let (xn, x, fx) = recording_axis(&a.input, a.fs, a.input_axis.as_deref())?;
+    let (yn, y, fy) = recording_axis(&a.output, a.fs, a.output_axis.as_deref())?;
+    if (fx - fy).abs() > 1e-9 * fx {
+        return Err(Failure {
+            code: 2,
+            message: format!("the two recordings have different sample rates ({fx} and {fy} Hz)"),
+        });
+    }
+    let n = x.len().min(y.len());
+    let nperseg = a.nperseg.unwrap_or_else(|| stillsky::batch::recording_nperseg(fx, n));
+    let t = transfer_estimate(&x[..n], &y[..n], fx, &WelchConfig::new(nperseg))?;
+    print!(
+        "{}",
+        print::transfer_text(
+            &format!("{} '{xn}'", a.input.display()),
+            &format!("{} '{yn}'", a.output.display()),
+            n,
+            fx,
+            nperseg,
+            &t
+        )
+    );
+    if let Some(p) = &a.csv {
+        stillsky::io::atomic::write_atomic(p, print::transfer_csv(&t).as_bytes())?;
+        println!("csv: {}", p.display());
+    }
     Ok(())
 }
 

@@ -428,3 +428,60 @@ fn gust_text(s: &mut String, g: &stillsky::batch::GustReport) {
         }
     }
 }
+
+/// A transfer estimate in brief: the bins where the channels are coherent, and the largest |H1|
+/// among them.
+pub fn transfer_text(
+    input: &str,
+    output: &str,
+    n: usize,
+    fs: f64,
+    nperseg: usize,
+    t: &stillsky::spectrum::TransferEstimate,
+) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "transfer: {input} -> {output}");
+    let _ = writeln!(
+        s,
+        "  {n} samples at {fs} Hz; Welch segments of {nperseg} ({} averaged), bins {:.4} Hz apart",
+        t.n_segments,
+        fs / nperseg as f64
+    );
+    let coherent: Vec<usize> = (0..t.freq_hz.len()).filter(|&k| t.coherence[k] >= 0.9).collect();
+    let _ = writeln!(
+        s,
+        "  coherence >= 0.9 in {} of {} bins; below it H1 and H2 disagree (noise or other inputs)",
+        coherent.len(),
+        t.freq_hz.len()
+    );
+    if let Some(&k) = coherent.iter().max_by(|&&a, &&b| t.h1[a].norm().total_cmp(&t.h1[b].norm())) {
+        let _ = writeln!(
+            s,
+            "  largest coherent |H1| {:.4e} at {:.3} Hz (|H2| {:.4e}, phase {:.1} deg, coherence {:.3})",
+            t.h1[k].norm(),
+            t.freq_hz[k],
+            t.h2[k].norm(),
+            t.h1[k].arg().to_degrees(),
+            t.coherence[k]
+        );
+    }
+    s
+}
+
+/// Every bin of a transfer estimate as CSV.
+pub fn transfer_csv(t: &stillsky::spectrum::TransferEstimate) -> String {
+    let mut s = String::from("freq_hz,h1_abs,h1_phase_deg,h2_abs,h2_phase_deg,coherence\n");
+    for k in 0..t.freq_hz.len() {
+        let _ = writeln!(
+            s,
+            "{},{},{},{},{},{}",
+            t.freq_hz[k],
+            t.h1[k].norm(),
+            t.h1[k].arg().to_degrees(),
+            t.h2[k].norm(),
+            t.h2[k].arg().to_degrees(),
+            t.coherence[k]
+        );
+    }
+    s
+}

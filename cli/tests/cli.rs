@@ -502,3 +502,63 @@ fn pointing_on_the_command_line_equals_editing_the_file() {
     let (fa, fc) = (modes(&a, "frequency_hz"), modes(&c, "frequency_hz"));
     assert!(fa.iter().zip(&fc).any(|(x, y)| (x - y).abs() > 1e-3 * x), "{fa:?} vs {fc:?}");
 }
+
+#[test]
+fn transfer_estimates_a_known_filter_between_two_channels() {
+    // y[n] = (x[n] + x[n-1]) / 2 has H(f) = cos(π f / fs) e^{-iπ f/fs} (a two-tap average; any
+    // DSP text, e.g. Oppenheim & Schafer, Discrete-Time Signal Processing, ch. 5).
+    let dir = tmp("transfer");
+    let fs = 100.0;
+    let mut state: u64 = 12345;
+    let x: Vec<f64> = (0..20_000)
+        .map(|_| {
+            state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            (state >> 11) as f64 / (1u64 << 53) as f64 - 0.5
+        })
+        .collect();
+    let mut csv = String::from("time_s,ground_m_s2,top_m_s2\n");
+    for k in 0..x.len() {
+        let y = 0.5 * (x[k] + if k > 0 { x[k - 1] } else { 0.0 });
+        csv.push_str(&format!("{},{},{}\n", k as f64 / fs, x[k], y));
+    }
+    let rec = dir.join("pair.csv");
+    std::fs::write(&rec, csv).unwrap();
+    let out = dir.join("h.csv");
+    let o = run(&[
+        "transfer",
+        s(&rec),
+        s(&rec),
+        "--input-axis",
+        "ground",
+        "--output-axis",
+        "top",
+        "--nperseg",
+        "512",
+        "--csv",
+        s(&out),
+    ]);
+    let (so, se) = text(&o);
+    assert!(o.status.success(), "{so}{se}");
+    assert!(so.contains("coherence >= 0.9 in"), "{so}");
+    let body = std::fs::read_to_string(&out).unwrap();
+    let mut rows = 0;
+    for line in body.lines().skip(1) {
+        let v: Vec<f64> = line.split(',').map(|c| c.parse().unwrap()).collect();
+        let (f, h1, ph, h2, coh) = (v[0], v[1], v[2], v[3], v[5]);
+        if f > 0.45 * fs {
+            continue; // |H| → 0 near Nyquist: the ratio of tiny powers
+        }
+        let want = (std::f64::consts::PI * f / fs).cos();
+        assert!(
+            (h1 / want - 1.0).abs() < 5e-3 && (h2 / want - 1.0).abs() < 5e-3,
+            "{f} Hz: {h1} {h2} vs {want}"
+        );
+        assert!((ph + 180.0 * f / fs).abs() < 0.5, "{f} Hz: phase {ph}");
+        assert!(coh > 0.99, "{f} Hz: coherence {coh}");
+        rows += 1;
+    }
+    assert!(rows > 200);
+    // Named errors: an unknown axis.
+    let o = run(&["transfer", s(&rec), s(&rec), "--input-axis", "nope"]);
+    assert!(!o.status.success() && text(&o).1.contains("no axis 'nope'"));
+}

@@ -16,7 +16,7 @@ pub mod sweep;
 pub mod sweep_row;
 
 pub use catalogue::{Catalogue, DEFAULT_PAD_PREFIX, Isolator, NO_PAD, PadDirection, PadModel, PadSite};
-pub use ground::{GroundSource, GroundSpectrum};
+pub use ground::{GroundSource, GroundSpectrum, recording_nperseg};
 pub use gust::{
     GUST_START_S, GustCase, GustFamily, GustPlan, gust_amplitude_m_s, gust_durations, gust_family,
     gust_family_responses, gust_family_with,
