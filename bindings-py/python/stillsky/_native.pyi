@@ -967,12 +967,12 @@ def pier_table(
     outer_diameter_m: Sequence[float],
     wall_m: Sequence[float],
     height_m: Sequence[float],
-    material: Sequence[str] = ["steel-s235"],
+    material: Sequence[str] = ...,
     *,
     fill_density_kg_m3: float | None = None,
-    load_n: float = 22.0,
-    top_mass_kg: float = 40.0,
-    top_inertia_kgm2: float = 1.0,
+    load_n: float = ...,
+    top_mass_kg: float = ...,
+    top_inertia_kgm2: float = ...,
     rocking_nm_per_rad: float | None = None,
     soil: str | None = None,
     footing_diameter_m: float | None = None,
@@ -989,12 +989,12 @@ def pier_table(
 
     Args:
         outer_diameter_m, wall_m, height_m: lists (m); a wall of half the diameter is solid.
-        material: preset names (see ``docs/model-file.md``).
+        material: preset names (see ``docs/model-file.md``); default ``["steel-s235"]``.
         fill_density_kg_m3: density of a fill inside the tube.
-        load_n: horizontal load at the top; 22 N is a figure of pier-design practice (common
-            practice, no source).
+        load_n: horizontal load at the top, default 22.0 N, a figure of pier-design practice
+            (common practice, no source).
         top_mass_kg, top_inertia_kgm2: mount plus payload, and its inertia about the vertical
-            axis; the defaults are placeholders: give yours.
+            axis; defaults 40.0 kg and 1.0 kg·m², placeholders: give yours.
         rocking_nm_per_rad: footing rocking stiffness; or ``soil`` (a soil preset) with
             ``footing_diameter_m`` (a round surface footing); neither: a rigid base.
 
