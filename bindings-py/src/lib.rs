@@ -10,6 +10,7 @@ mod errors;
 mod identify;
 mod image;
 mod model;
+mod pier_table;
 mod response;
 mod series;
 mod skymap;
@@ -36,6 +37,7 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<checks::PyStaticChecks>()?;
     m.add_function(wrap_pyfunction!(checks::static_checks, m)?)?;
     m.add_function(wrap_pyfunction!(model::_model_from_toml, m)?)?;
+    m.add_function(wrap_pyfunction!(pier_table::pier_table, m)?)?;
     sweep::register(m)?;
     Ok(())
 }

@@ -59,6 +59,10 @@ enum Cmd {
     },
     /// Fit model-file numbers (dotted paths) to measured modes; writes the fitted model file.
     Calibrate(CalibrateArgs),
+    /// Pier sizing table: tilt at the top under a horizontal load (plus footing rocking), top
+    /// deflection, first bending and torsion frequencies, from cantilever formulas and from the
+    /// beam model, over outer diameter × wall × height × material.
+    PierTable(PierTableArgs),
     /// Identify frequency and damping from a tap-test ring-down recording.
     Tap {
         /// Recording (CSV/text/WAV/miniSEED).
@@ -303,6 +307,49 @@ struct SweepArgs {
 }
 
 #[derive(Args)]
+struct PierTableArgs {
+    /// Outer diameters of the tube (m), comma-separated.
+    #[arg(long, value_delimiter = ',', required = true)]
+    od: Vec<f64>,
+    /// Wall thicknesses (m), comma-separated (half the diameter for a solid column).
+    #[arg(long, value_delimiter = ',', required = true)]
+    wall: Vec<f64>,
+    /// Heights from the footing to the top (m), comma-separated.
+    #[arg(long, value_delimiter = ',', required = true)]
+    height: Vec<f64>,
+    /// Material presets, comma-separated (stainless-304, aluminium-6061-t6, carbon-fibre-tube,
+    /// white-ash, steel-s235, concrete-c30).
+    #[arg(long, value_delimiter = ',', default_value = "steel-s235")]
+    material: Vec<String>,
+    /// Density of a fill inside the tube (kg/m³); it adds mass in bending.
+    #[arg(long)]
+    fill_density: Option<f64>,
+    /// Horizontal load at the top (N); 22 N is a figure of pier-design practice (common
+    /// practice, no source).
+    #[arg(long, default_value_t = stillsky::pier_table::DEFAULT_LOAD_N)]
+    load_n: f64,
+    /// Mass on the top, mount and payload (kg; the default is a placeholder: give yours).
+    #[arg(long, default_value_t = stillsky::pier_table::DEFAULT_TOP_MASS_KG)]
+    top_mass_kg: f64,
+    /// Moment of inertia of the top mass about the vertical axis (kg·m²; placeholder default).
+    #[arg(long, default_value_t = stillsky::pier_table::DEFAULT_TOP_INERTIA_KGM2)]
+    top_inertia_kgm2: f64,
+    /// Footing rocking stiffness (N·m/rad); without it and --soil the base is rigid.
+    #[arg(long, conflicts_with = "soil")]
+    rocking_nm_per_rad: Option<f64>,
+    /// Soil preset under a round footing (soft-clay, lawn, dense-sand, gravel); needs
+    /// --footing-diameter.
+    #[arg(long, requires = "footing_diameter")]
+    soil: Option<String>,
+    /// Diameter of the round footing on --soil (m).
+    #[arg(long, requires = "soil")]
+    footing_diameter: Option<f64>,
+    /// Write the table as CSV (all columns, full precision).
+    #[arg(long)]
+    csv: Option<PathBuf>,
+}
+
+#[derive(Args)]
 struct CalibrateArgs {
     /// Model file (TOML).
     model: PathBuf,
@@ -399,6 +446,7 @@ fn main() -> ExitCode {
         Cmd::Expand { model } => expand(&model),
         Cmd::Demo { out } => demo(&out),
         Cmd::Calibrate(a) => calibrate(&a),
+        Cmd::PierTable(a) => pier_table(&a),
         Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
         Cmd::Transfer(a) => transfer(&a),
         Cmd::Check { model, design_wind_m_s, gust_factor } => check(&model, design_wind_m_s, gust_factor),
@@ -938,6 +986,29 @@ fn calibrate(a: &CalibrateArgs) -> CliResult {
         );
         stillsky::io::atomic::write_atomic(out, body.as_bytes())?;
         println!("fitted model written to {}", out.display());
+    }
+    Ok(())
+}
+
+fn pier_table(a: &PierTableArgs) -> CliResult {
+    use stillsky::pier_table::{PierFooting, PierTableSpec};
+    let mut spec = PierTableSpec::new(a.od.clone(), a.wall.clone(), a.height.clone(), a.material.clone());
+    spec.fill_density_kg_m3 = a.fill_density;
+    spec.load_n = a.load_n;
+    spec.top_mass_kg = a.top_mass_kg;
+    spec.top_inertia_kgm2 = a.top_inertia_kgm2;
+    spec.footing = match (a.rocking_nm_per_rad, &a.soil, a.footing_diameter) {
+        (Some(k), _, _) => PierFooting::Rocking { stiffness_nm_per_rad: k },
+        (None, Some(s), Some(d)) => {
+            PierFooting::Soil { soil: stillsky::soil::Soil::preset(s)?, diameter_m: d }
+        }
+        _ => PierFooting::Rigid,
+    };
+    let rows = stillsky::pier_table::pier_table(&spec)?;
+    print!("{}", print::pier_table_text(&spec, &rows));
+    if let Some(p) = &a.csv {
+        stillsky::io::atomic::write_atomic(p, stillsky::pier_table::csv_text(&rows).as_bytes())?;
+        println!("CSV written to {}", p.display());
     }
     Ok(())
 }

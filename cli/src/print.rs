@@ -485,3 +485,65 @@ pub fn transfer_csv(t: &stillsky::spectrum::TransferEstimate) -> String {
     }
     s
 }
+
+/// The pier sizing table: formula values with the beam model's beside them.
+pub fn pier_table_text(
+    spec: &stillsky::pier_table::PierTableSpec,
+    rows: &[stillsky::pier_table::PierRow],
+) -> String {
+    let mut o = String::new();
+    let base = match rows.first().map(|r| r.rocking_nm_per_rad) {
+        Some(k) if k.is_finite() => format!("footing rocking {k:.4e} N·m/rad"),
+        _ => "rigid base".to_string(),
+    };
+    let _ = writeln!(
+        o,
+        "Pier table: {} N at the top (tilt), top mass {} kg, top inertia {} kg·m² about the vertical, {base}",
+        spec.load_n, spec.top_mass_kg, spec.top_inertia_kgm2
+    );
+    let _ = writeln!(
+        o,
+        "{:>7} {:>6} {:>5} {:<18} {:>6} {:>9} {:>9} {:>9} {:>9} {:>9} {:>8} {:>8} {:>8} {:>8}",
+        "OD mm",
+        "wall",
+        "H m",
+        "material",
+        "fill",
+        "column\"",
+        "rocking\"",
+        "tilt\"",
+        "model\"",
+        "defl um",
+        "bend Hz",
+        "model",
+        "twist Hz",
+        "model"
+    );
+    for r in rows {
+        let _ = writeln!(
+            o,
+            "{:>7.1} {:>6.1} {:>5.2} {:<18} {:>6.0} {:>9.4} {:>9.4} {:>9.4} {:>9.4} {:>9.2} {:>8.2} {:>8.2} {:>8.1} {:>8.1}",
+            r.outer_diameter_m * 1e3,
+            r.wall_m * 1e3,
+            r.height_m,
+            r.material,
+            r.fill_density_kg_m3,
+            r.tilt_column_arcsec,
+            r.tilt_rocking_arcsec,
+            r.tilt_arcsec,
+            r.model_tilt_arcsec,
+            r.deflection_m * 1e6,
+            r.bending_hz,
+            r.model_bending_hz,
+            r.torsion_hz,
+            r.model_torsion_hz
+        );
+    }
+    let _ = writeln!(
+        o,
+        "tilt: F L²/(2EI) + F L/k_rock; frequencies: Rayleigh estimates (formula) and the modes of a \
+         16-element beam model (model). The load figure is common practice, no source; the \
+         defaults for top mass and inertia are placeholders."
+    );
+    o
+}

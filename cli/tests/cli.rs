@@ -562,3 +562,70 @@ fn transfer_estimates_a_known_filter_between_two_channels() {
     let o = run(&["transfer", s(&rec), s(&rec), "--input-axis", "nope"]);
     assert!(!o.status.success() && text(&o).1.contains("no axis 'nope'"));
 }
+
+#[test]
+fn pier_table_prints_rows_and_writes_csv_matching_the_formula() {
+    let d = tmp("pier");
+    let csv = d.join("piers.csv");
+    let o = run(&[
+        "pier-table",
+        "--od",
+        "0.1143,0.1683",
+        "--wall",
+        "0.006",
+        "--height",
+        "1.0,1.3",
+        "--material",
+        "steel-s235,aluminium-6061-t6",
+        "--rocking-nm-per-rad",
+        "4e5",
+        "--csv",
+        s(&csv),
+    ]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{out}\n{err}");
+    assert_no_escapes(&out);
+    assert!(out.contains("22 N at the top") && out.contains("aluminium-6061-t6"), "{out}");
+    let body = std::fs::read_to_string(&csv).unwrap();
+    let lines: Vec<&str> = body.lines().collect();
+    assert_eq!(lines.len(), 1 + 8);
+    let head: Vec<&str> = lines[0].split(',').collect();
+    let col = |name: &str| head.iter().position(|h| *h == name).unwrap();
+    for line in &lines[1..] {
+        let v: Vec<&str> = line.split(',').collect();
+        assert_eq!(v.len(), head.len());
+        let num = |name: &str| v[col(name)].parse::<f64>().unwrap();
+        // Cantilever tip load plus rigid base rotation: θ = F L²/(2EI) + F L/k (independent here).
+        let e = if v[col("material")] == "steel-s235" { 210e9 } else { 68.9e9 };
+        let (od, t, l) = (num("outer_diameter_m"), num("wall_m"), num("height_m"));
+        let i = std::f64::consts::PI / 64.0 * (od.powi(4) - (od - 2.0 * t).powi(4));
+        let theta = (22.0 * l * l / (2.0 * e * i) + 22.0 * l / 4e5) * 206_264.806_247_096_36;
+        assert!((num("tilt_arcsec") / theta - 1.0).abs() < 1e-9, "{line}");
+        assert!((num("model_tilt_arcsec") / theta - 1.0).abs() < 1e-6, "{line}");
+    }
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn pier_table_bad_input_names_the_field() {
+    let o = run(&["pier-table", "--od", "0.1", "--wall", "0.06", "--height", "1.0"]);
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("walls_m"), "{err}");
+    let o = run(&[
+        "pier-table",
+        "--od",
+        "0.1",
+        "--wall",
+        "0.006",
+        "--height",
+        "1.0",
+        "--soil",
+        "moon",
+        "--footing-diameter",
+        "1",
+    ]);
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("moon") && err.contains("lawn"), "{err}");
+}

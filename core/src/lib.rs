@@ -45,6 +45,8 @@
 //! - [`transient`]: time histories by FFT convolution (gusts, steps, random realisations) and a
 //!   Newmark check.
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
+//! - [`pier_table`]: pier sizing table (tilt under a top load, rocking, bending and torsion
+//!   frequencies) from cantilever formulas and from the beam model.
 //! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
 //! - [`schema`]: the model file (TOML): both layers, reading, expansion, writing.
 //! - [`io`]: text and TOML reading, recordings, PSD files, atomic writes.
@@ -69,6 +71,7 @@ pub mod model;
 pub mod modes;
 pub mod monitor;
 pub mod peak;
+pub mod pier_table;
 pub mod response;
 pub mod rig;
 pub mod schema;

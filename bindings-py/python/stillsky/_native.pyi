@@ -963,6 +963,55 @@ def random_realisation(psd: Psd, fs: float, n: int, *, seed: int) -> _F64:
     """n samples at ``fs`` (Hz) of a zero-mean random realisation of a one-sided PSD (unit²/Hz):
     random phases from ``seed``; variance = Σ S(f_j) Δf over the FFT bins."""
 
+def pier_table(
+    outer_diameter_m: Sequence[float],
+    wall_m: Sequence[float],
+    height_m: Sequence[float],
+    material: Sequence[str] = ...,
+    *,
+    fill_density_kg_m3: float | None = None,
+    load_n: float = ...,
+    top_mass_kg: float = ...,
+    top_inertia_kgm2: float = ...,
+    rocking_nm_per_rad: float | None = None,
+    soil: str | None = None,
+    footing_diameter_m: float | None = None,
+) -> dict[str, Any]:
+    """Pier sizing table of a round tube column: one row per (outer diameter, wall, height,
+    material), outer diameter slowest. Formula and beam-model values side by side.
+
+    Formulas: tilt F L²/(2EI) + F L/k_rock (cantilever tip load plus footing rocking), top
+    deflection F L³/(3EI) + F L²/k_rock; first bending and torsion frequencies by Rayleigh's
+    method (tip mass plus 33/140 of the column mass for bending alone; tip inertia plus a third
+    of the column's polar mass moment for torsion). The model values come from a 16-element
+    beam with the top mass as a body (static tilt from its FRF at a low frequency, frequencies
+    from its modes). A fill adds mass in bending only.
+
+    Args:
+        outer_diameter_m, wall_m, height_m: lists (m); a wall of half the diameter is solid.
+        material: preset names (see ``docs/model-file.md``); default ``["steel-s235"]``.
+        fill_density_kg_m3: density of a fill inside the tube.
+        load_n: horizontal load at the top, default 22.0 N, a figure of pier-design practice
+            (common practice, no source).
+        top_mass_kg, top_inertia_kgm2: mount plus payload, and its inertia about the vertical
+            axis; defaults 40.0 kg and 1.0 kg·m², placeholders: give yours.
+        rocking_nm_per_rad: footing rocking stiffness; or ``soil`` (a soil preset) with
+            ``footing_diameter_m`` (a round surface footing); neither: a rigid base.
+
+    Returns:
+        A dict of float64 arrays, one entry per row, keyed ``outer_diameter_m``, ``wall_m``,
+        ``height_m``, ``fill_density_kg_m3``, ``bending_stiffness_nm2``,
+        ``torsion_stiffness_nm2``, ``column_mass_kg``, ``rocking_nm_per_rad`` (inf for a rigid
+        base), ``tilt_column_arcsec``, ``tilt_rocking_arcsec``, ``tilt_arcsec``,
+        ``deflection_m``, ``bending_hz``, ``torsion_hz``, ``model_tilt_arcsec``,
+        ``model_deflection_m``, ``model_bending_hz``, ``model_torsion_hz``; ``material`` (a
+        list of names) and the scalars ``load_n``, ``top_mass_kg``, ``top_inertia_kgm2``.
+
+    Raises:
+        InvalidInputError: an empty list, a non-positive size, a wall over half the diameter,
+            an unknown material or soil, a bad load or mass (the message names the argument).
+    """
+
 def static_checks(
     model_or_path: Model | str | PathLike[str],
     *,
