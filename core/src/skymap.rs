@@ -12,7 +12,7 @@
 
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
-use crate::image::{ImageOptions, map_over};
+use crate::image::ImageOptions;
 use crate::response::Disturbances;
 use crate::schema::{ModelFile, Pointing};
 use crate::sky::{Equatorial, PierSide};
@@ -379,6 +379,42 @@ pub fn sky_map(
         map.worst = Some(w);
     }
     Ok(map)
+}
+
+/// Radial RMS (arcsec, px) of `file` re-pointed at each cell of an `nr` × `nc` grid; a cell
+/// whose pointing is `None` is skipped and holds NaN.
+#[allow(clippy::type_complexity)]
+fn map_over(
+    file: &ModelFile,
+    nr: usize,
+    nc: usize,
+    grid: &FreqGrid,
+    disturbances: &Disturbances,
+    opts: &ImageOptions,
+    pointing: impl Fn(usize, usize) -> Option<Pointing> + Sync,
+) -> Result<(Vec<Vec<f64>>, Vec<Vec<f64>>)> {
+    use rayon::prelude::*;
+    if file.generic.optics.is_none() {
+        return Err(Error::invalid("optics", "the model file has no [optics] section"));
+    }
+    let opts = ImageOptions { skip_mode_shares: true, ..opts.clone() };
+    let cells: Vec<(usize, usize)> = (0..nr).flat_map(|i| (0..nc).map(move |j| (i, j))).collect();
+    let vals = cells
+        .par_iter()
+        .map(|&(i, j)| {
+            let Some(p) = pointing(i, j) else { return Ok((f64::NAN, f64::NAN)) };
+            let mut f = file.clone();
+            f.repoint(&p)?;
+            let im = f.to_model()?.image_motion(grid, disturbances, &opts)?;
+            Ok((im.rms_arcsec, im.rms_px))
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let rows = |k: usize| -> Vec<Vec<f64>> {
+        (0..nr)
+            .map(|i| (0..nc).map(|j| if k == 0 { vals[i * nc + j].0 } else { vals[i * nc + j].1 }).collect())
+            .collect()
+    };
+    Ok((rows(0), rows(1)))
 }
 
 #[cfg(test)]

@@ -616,7 +616,14 @@ fn equatorial_sky_map_cells_equal_single_runs() {
     let d = Disturbances { wind: Some(w), ..Default::default() };
     let o = stillsky::image::ImageOptions::default();
     let (ha, dec) = ([-60.0, 0.0, 45.0], [-10.0, 30.0, 80.0]);
-    let map = stillsky::image::equatorial_map(&f, &ha, &dec, &grid, &d, &o).unwrap();
+    // Every cell computed (no altitude cut-off), as the single runs are.
+    let sky = stillsky::skymap::SkyGrid {
+        frame: stillsky::skymap::SkyFrame::Equatorial,
+        rows_deg: ha.to_vec(),
+        cols_deg: dec.to_vec(),
+        min_altitude_deg: -90.0,
+    };
+    let map = stillsky::skymap::sky_map(&f, &sky, &grid, &d, &o).unwrap();
     for (i, h) in ha.iter().enumerate() {
         for (j, de) in dec.iter().enumerate() {
             let mut g = f.clone();
