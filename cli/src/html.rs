@@ -405,9 +405,13 @@ fn modes_html(r: &Report) -> String {
     o
 }
 
+/// A ring-down time (s) in a table cell, or that the image did not settle within the record.
+fn ring(t: Option<f64>) -> String {
+    t.map_or("not within the record".to_string(), |v| num(v, 2))
+}
+
 /// The gust family of the rig, and the rig beside its alternatives.
 fn gusts_html(g: &stillsky::batch::GustReport) -> String {
-    let ring = |t: Option<f64>| t.map_or("not within the record".to_string(), |v| num(v, 2));
     let rows: Vec<Vec<String>> = g
         .family
         .cases
@@ -507,11 +511,7 @@ fn ranking_html(t: &RankTable, id: &str) -> String {
             if windy {
                 row.push(num(e.gust_peak_px, 3));
                 // NaN: the image did not settle within the record.
-                row.push(if e.gust_ringdown_s.is_finite() {
-                    num(e.gust_ringdown_s, 2)
-                } else {
-                    "beyond the record".into()
-                });
+                row.push(ring(Some(e.gust_ringdown_s).filter(|t| t.is_finite())));
             }
             row.push(note);
             row

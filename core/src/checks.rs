@@ -935,14 +935,7 @@ pub fn rig_checks(file: &crate::schema::ModelFile, wind: &StaticWind) -> Result<
     // The wind's parts summed as Σ C_d A (an upper bound on the resultant's size, for every
     // direction), acting at their C_d A-weighted height.
     let load = match spec.wind.as_ref() {
-        Some(w) => {
-            let parts = w.parts()?;
-            let cda = w.drag_area_m2()?;
-            let z =
-                parts.iter().map(|p| p.drag_coefficient * p.area_m2 * p.centre_of_pressure_m[2]).sum::<f64>()
-                    / cda;
-            Some((cda, z))
-        }
+        Some(w) => Some((w.drag_area_m2()?, w.load_height_m()?)),
         None => None,
     };
     let wind_force = match load {

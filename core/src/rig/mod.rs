@@ -42,7 +42,7 @@ use crate::error::{Error, Result};
 use crate::sky::{Equatorial, PierSide};
 use crate::soil::Soil;
 use elements::to_body;
-use fields::{body_name, pos};
+use fields::{body_name, pos, pos_or};
 use mass::{Mass, combine};
 use serde::{Deserialize, Serialize};
 use tripod::{TripodPlan, foot_contact};
@@ -274,7 +274,7 @@ impl RigSpec {
 
         // Payload and the pivot joint.
         if let Some(w) = wind.as_mut() {
-            let area = wind::head_area(mount.wind_area_m2, ph)?;
+            let area = pos_or("mount.wind_area_m2", mount.wind_area_m2, ph * ph)?;
             w.bluff("mount head", &mount_name, [0.0, 0.0, top_z + ph / 2.0], area, BOX_DRAG_COEFFICIENT);
         }
         if let (Some(p), Some(pname)) = (&self.payload, &payload_name) {

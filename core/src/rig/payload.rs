@@ -9,9 +9,9 @@
 //! combined by the parallel-axis theorem and rotated, J = R J_p Rᵀ with R = [â e_s e_u], so the
 //! body carries the full tensor.
 
-use super::fields::{fin_or, pos, pos3};
+use super::fields::{fin_or, pos, pos_or, pos3};
 use super::mass::{Mass, V3, add, combine, positive_definite, scale};
-use super::wind::{CYLINDER_DRAG_COEFFICIENT, DISC_DRAG_COEFFICIENT, WindParts, part_cd};
+use super::wind::{CYLINDER_DRAG_COEFFICIENT, DISC_DRAG_COEFFICIENT, WindParts};
 use crate::error::{Error, Result, require_non_negative};
 use serde::{Deserialize, Serialize};
 
@@ -192,8 +192,8 @@ impl PayloadSpec {
             };
             let name = p.name.clone().unwrap_or_else(|| format!("payload part {k}"));
             let (d, l) = (p.diameter_m.unwrap_or(0.0), p.length_m.unwrap_or(0.0));
-            let side = part_cd(&field, p.drag_coefficient, CYLINDER_DRAG_COEFFICIENT)?;
-            let end = part_cd(&field, p.drag_coefficient, DISC_DRAG_COEFFICIENT)?;
+            let side = pos_or(&field, p.drag_coefficient, CYLINDER_DRAG_COEFFICIENT)?;
+            let end = pos_or(&field, p.drag_coefficient, DISC_DRAG_COEFFICIENT)?;
             w.cylinder(&name, body, c, axis, d, l, side, Some(end));
         }
         Ok(())

@@ -19,10 +19,9 @@
 //! face-on 1.17, cube face-on 1.05, square bar face-on 2.0. A part's `drag_coefficient`
 //! overrides its side and end values.
 
-use super::fields::pos;
 use super::mass::{V3, add, scale};
 use crate::assembly::{GROUND, WindLoadSpec, WindPartSpec};
-use crate::error::{Result, require_finite, require_positive};
+use crate::error::{Result, require_finite};
 use crate::section::Section;
 use serde::{Deserialize, Serialize};
 use std::f64::consts::PI;
@@ -115,6 +114,15 @@ impl WindParts {
         }
     }
 
+    /// The wind against a unit `axis`: cos θ = û·â, and the flow's component across the axis as
+    /// a unit vector with its length sin θ (None when the wind runs along the axis).
+    fn cross_flow(&self, axis: V3) -> (f64, Option<(V3, f64)>) {
+        let cos = dot(self.toward, axis);
+        let across = add(self.toward, scale(axis, -cos));
+        let sin = dot(across, across).sqrt();
+        (cos, (sin > 1e-9).then(|| (scale(across, 1.0 / sin), sin)))
+    }
+
     /// A cylinder of diameter `d` and length `l` centred at `c` with unit `axis`: its side by
     /// the cross-flow principle, and (with `end_cd`) an end disc at the upwind end.
     #[allow(clippy::too_many_arguments)]
@@ -174,15 +182,9 @@ impl WindParts {
         if l <= 0.0 {
             return;
         }
-        let axis = scale(span, 1.0 / l);
-        let u = self.toward;
-        let cos = dot(u, axis);
-        let across = add(u, scale(axis, -cos));
-        let sin = dot(across, across).sqrt();
-        if sin <= 1e-9 {
+        let Some((dir, sin)) = self.cross_flow(scale(span, 1.0 / l)).1 else {
             return;
-        }
-        let dir = scale(across, 1.0 / sin);
+        };
         let half = d * l * sin * sin / 2.0;
         let pa = add(a.at, scale(span, inset));
         let pb = add(b.at, scale(span, -inset));
@@ -197,21 +199,5 @@ impl WindParts {
             parts: self.parts,
             ..Default::default()
         })
-    }
-}
-
-/// The mount head's projected area: `mount.wind_area_m2`, or the square of the pivot height.
-pub(super) fn head_area(given: Option<f64>, pivot_height_m: f64) -> Result<f64> {
-    match given {
-        Some(a) => require_positive("mount.wind_area_m2", a),
-        None => Ok(pivot_height_m * pivot_height_m),
-    }
-}
-
-/// A part's drag coefficient override, validated.
-pub(super) fn part_cd(field: &str, given: Option<f64>, default: f64) -> Result<f64> {
-    match given {
-        Some(c) => pos(field, Some(c)),
-        None => Ok(default),
     }
 }
