@@ -123,6 +123,7 @@ pub fn disturbances(
         ground: ground(ground_obj)?,
         wind: wind.map(|w| w.inner.clone()),
         loads: loads(loads_obj)?,
+        ground_waves: None,
     })
 }
 

@@ -17,7 +17,9 @@
 //! - Axes: x east, y north, z up. Azimuth from north through east; altitude above the horizon.
 //!   Rotational DOFs are small rotations about a body's centre of gravity (right-hand rule). A
 //!   point at offset r from the CG moves as u_p = u + θ × r; a force F there gives moment r × F.
-//! - Base excitation moves every ground attachment together (coherent translation x, y, z).
+//! - Base excitation moves every ground attachment together as a rigid ground: translations
+//!   x, y, z and small rotations rx, ry, rz about the origin. Ground rotations follow from the
+//!   translation PSDs and a surface-wave phase velocity ([`surface_waves`]) where one is known.
 //!   Transmissibility = absolute response / ground motion.
 //! - Only rotation of the optics moves a star's image (a source at infinity). A small rotation θ
 //!   turns the line of sight â by θ × â; `image_x` is its component along increasing azimuth,
@@ -29,6 +31,8 @@
 //! - [`material`], [`section`]: named materials (with sources) and tube/rod sections.
 //! - [`stiffness`]: complex stiffness models and series/parallel combinators.
 //! - [`soil`]: impedance of a rigid circular contact on an elastic half-space; soil presets.
+//! - [`surface_waves`]: ground tilt and twist from surface waves; Rayleigh-wave speed;
+//!   coherency between points.
 //! - [`assembly`]: bodies, nodes, connectors and beams → mass, damping, stiffness matrices.
 //! - [`model`]: the assembled [`model::Model`] with named inputs and outputs.
 //! - [`frf`]: frequency response by direct complex solve per frequency (or modal superposition
@@ -81,6 +85,7 @@ pub mod skymap;
 pub mod soil;
 pub mod spectrum;
 pub mod stiffness;
+pub mod surface_waves;
 #[cfg(test)]
 mod test_signals;
 pub mod transient;

@@ -18,6 +18,7 @@
 //!
 //! So output `payload:z` for input `ground_z` is the dimensionless transmissibility.
 
+pub(crate) use crate::assembly::GROUND_DOFS;
 use crate::assembly::{self, Assembled, Dof, DofLabel, GROUND, ModelSpec, OpticsSpec, WindLoadSpec};
 use crate::error::{Error, Result};
 use crate::spectrum::Quantity;
@@ -31,7 +32,12 @@ pub const IMAGE_OUTPUTS: [&str; 4] = ["image_x", "image_y", "image_ra", "image_d
 /// The three ground-motion inputs.
 pub const GROUND_INPUTS: [&str; 3] = ["ground_x", "ground_y", "ground_z"];
 
-/// A resolved input: ground motion along an axis, or a fixed load vector over the free DOFs.
+/// The three ground-rotation inputs: tilt about x and y and torsion about z of a rigid ground
+/// about the origin (rad); a ground point p moves as θ_g × p.
+pub const GROUND_ROTATION_INPUTS: [&str; 3] = ["ground_rx", "ground_ry", "ground_rz"];
+
+/// A resolved input: ground motion along one of the ground's DOFs (0–2 translations, 3–5
+/// rotations), or a fixed load vector over the free DOFs.
 #[derive(Debug, Clone, PartialEq)]
 pub(crate) enum Input {
     Ground(usize),
@@ -39,14 +45,14 @@ pub(crate) enum Input {
 }
 
 /// A frequency-dependent rank-one stiffness term restricted to the free DOFs (`bf`) and the
-/// ground translations (`bg`).
+/// ground's DOFs (`bg`).
 #[derive(Debug, Clone)]
 pub(crate) struct Term {
     /// The connector's name (for sweeps that replace a spring).
     pub(crate) name: String,
     pub(crate) model: crate::stiffness::StiffnessModel,
     pub(crate) bf: Vec<(usize, f64)>,
-    pub(crate) bg: [f64; 3],
+    pub(crate) bg: [f64; GROUND_DOFS],
 }
 
 /// An assembled linear structure. Immutable once built; cheap to share between threads.
@@ -55,7 +61,7 @@ pub struct Model {
     spec: ModelSpec,
     n: usize,
     labels: Vec<DofLabel>,
-    /// Column-major n × n blocks over the free DOFs, and n × 3 couplings to the ground.
+    /// Column-major n × n blocks over the free DOFs, and n × 6 couplings to the ground's DOFs.
     pub(crate) m_ff: Vec<f64>,
     pub(crate) c_ff: Vec<f64>,
     pub(crate) k_ff: Vec<Complex64>,
@@ -101,18 +107,18 @@ impl Model {
 
     fn from_assembled(spec: ModelSpec, a: Assembled) -> Result<Model> {
         let n = a.n;
-        let nf = n + 3;
+        let nf = n + GROUND_DOFS;
         let block = |full: &[f64]| -> (Vec<f64>, Vec<f64>) {
             let ff = (0..n * n).map(|k| full[(k % n) + (k / n) * nf]).collect();
-            let fg = (0..n * 3).map(|k| full[(k % n) + (n + k / n) * nf]).collect();
+            let fg = (0..n * GROUND_DOFS).map(|k| full[(k % n) + (n + k / n) * nf]).collect();
             (ff, fg)
         };
         let (m_ff, m_fg) = block(&a.mass);
         let (c_ff, c_fg) = block(&a.damping);
         let k_ff = (0..n * n).map(|k| a.k_const[(k % n) + (k / n) * nf]).collect();
-        let k_fg = (0..n * 3).map(|k| a.k_const[(k % n) + (n + k / n) * nf]).collect();
+        let k_fg = (0..n * GROUND_DOFS).map(|k| a.k_const[(k % n) + (n + k / n) * nf]).collect();
         let split = |t: assembly::RankOneTerm| {
-            let mut bg = [0.0; 3];
+            let mut bg = [0.0; GROUND_DOFS];
             let mut bf = Vec::new();
             for (i, v) in t.b {
                 if i < n { bf.push((i, v)) } else { bg[i - n] = v }
@@ -197,7 +203,8 @@ impl Model {
 
     /// Names of all inputs this model accepts.
     pub fn input_names(&self) -> Vec<String> {
-        let mut v: Vec<String> = GROUND_INPUTS.iter().map(|s| s.to_string()).collect();
+        let mut v: Vec<String> =
+            GROUND_INPUTS.iter().chain(&GROUND_ROTATION_INPUTS).map(|s| s.to_string()).collect();
         if self.spec.wind.is_some() {
             v.push("wind".into());
         }
@@ -253,13 +260,13 @@ impl Model {
 
     /// Resolve an input name.
     pub(crate) fn input(&self, name: &str) -> Result<Input> {
-        if let Some(k) = GROUND_INPUTS.iter().position(|g| *g == name) {
+        if let Some(k) = GROUND_INPUTS.iter().chain(&GROUND_ROTATION_INPUTS).position(|g| *g == name) {
             return Ok(Input::Ground(k));
         }
         let unknown = || Error::UnknownName {
             kind: "input".into(),
             name: name.into(),
-            known: "ground_x, ground_y, ground_z, wind, force:BODY:x|y|z, moment:BODY:x|y|z".into(),
+            known: "ground_x, ground_y, ground_z, ground_rx, ground_ry, ground_rz, wind, force:BODY:x|y|z, moment:BODY:x|y|z".into(),
         };
         let n = self.n;
         if name == "wind" {
@@ -459,7 +466,7 @@ impl Model {
 impl assembly::Carrier {
     /// 6 × n dense map of a point's motion over the free DOFs only.
     pub(crate) fn point_map_free(&self, p: [f64; 3], n: usize) -> Vec<Vec<f64>> {
-        self.point_map(p, n + 3)
+        self.point_map(p, n + GROUND_DOFS)
             .into_iter()
             .map(|mut r| {
                 r.truncate(n);

@@ -277,20 +277,22 @@ impl Model {
         })
     }
 
-    /// Static response of the free DOFs to unit ground translations, column-major n × 3.
+    /// Static response of the free DOFs to unit motions of the ground's DOFs (translations,
+    /// then rotations), column-major n × 6.
     pub(crate) fn static_influence(&self) -> Result<Vec<f64>> {
         let n = self.dof_count();
+        let nd = crate::assembly::GROUND_DOFS;
         let mut k: Vec<Complex64> =
             self.static_stiffness().into_iter().map(|x| Complex64::new(x, 0.0)).collect();
-        let mut b = vec![Complex64::default(); n * 3];
-        for d in 0..3 {
+        let mut b = vec![Complex64::default(); n * nd];
+        for d in 0..nd {
             let inp = crate::model::Input::Ground(d);
             self.fill_input(&inp, 0.0, &mut b[d * n..(d + 1) * n]);
             for v in &mut b[d * n..(d + 1) * n] {
                 v.im = 0.0;
             }
         }
-        let mut lu = crate::linalg::ComplexLu::new(n, 3);
+        let mut lu = crate::linalg::ComplexLu::new(n, nd);
         lu.solve_in_place(&mut k, &mut b).map_err(|_| Error::Singular { freq_hz: 0.0 })?;
         Ok(b.into_iter().map(|c| c.re).collect())
     }

@@ -13,8 +13,9 @@
 use crate::error::{Error, Result};
 use crate::frf::FrfPlan;
 use crate::grid::FreqGrid;
-use crate::model::{GROUND_INPUTS, Model};
+use crate::model::{GROUND_DOFS, GROUND_INPUTS, GROUND_ROTATION_INPUTS, Model};
 use crate::spectrum::{Extrapolate, Psd, Quantity};
+use crate::surface_waves::GroundWaves;
 use crate::wind::WindSpec;
 use num_complex::Complex64;
 
@@ -28,6 +29,9 @@ pub struct Disturbances {
     /// Further uncorrelated loads: an input name (`force:BODY:x`, `moment:BODY:y`, `wind`) and
     /// its force (N²/Hz) or moment ((N·m)²/Hz) PSD.
     pub loads: Vec<(String, Psd)>,
+    /// How the ground motion travels, overriding the model's `[ground_waves]`; with either, the
+    /// ground PSDs also tilt and twist the ground (inputs `ground_rx`, `ground_ry`, `ground_rz`).
+    pub ground_waves: Option<GroundWaves>,
 }
 
 impl Disturbances {
@@ -44,6 +48,7 @@ impl Disturbances {
     /// ([`Extrapolate::Zero`]), and [`Disturbances::coverage_note`] reports such gaps.
     pub fn on_grid(&self, model: &Model, grid: &FreqGrid) -> Result<Vec<(String, Vec<f64>)>> {
         let mut out = Vec::new();
+        let mut disp: [Option<Vec<f64>>; 3] = [None, None, None];
         for (k, g) in self.ground.iter().enumerate() {
             if let Some(p) = g {
                 let d = p.to(Quantity::Displacement).map_err(|e| match e {
@@ -52,10 +57,17 @@ impl Disturbances {
                     }
                     other => other,
                 })?;
-                out.push((
-                    GROUND_INPUTS[k].to_string(),
-                    d.resample(grid, Extrapolate::Zero)?.values().to_vec(),
-                ));
+                let v = d.resample(grid, Extrapolate::Zero)?.values().to_vec();
+                out.push((GROUND_INPUTS[k].to_string(), v.clone()));
+                disp[k] = Some(v);
+            }
+        }
+        if let Some(w) = self.ground_waves.as_ref().or(model.spec().ground_waves.as_ref()) {
+            let rot = w.rotation_psds(grid, &disp)?;
+            for (name, r) in GROUND_ROTATION_INPUTS.iter().zip(rot) {
+                if let Some(r) = r {
+                    out.push((name.to_string(), r));
+                }
             }
         }
         if let Some(w) = &self.wind {
@@ -212,11 +224,13 @@ pub fn response_psd(
     let (by_mode, mode_frequency_hz) = match modal {
         None => (None, Vec::new()),
         Some((modes, r)) => {
-            let ground_axis: Vec<Option<usize>> =
-                in_names.iter().map(|nm| GROUND_INPUTS.iter().position(|g| g == nm)).collect();
+            let ground_axis: Vec<Option<usize>> = in_names
+                .iter()
+                .map(|nm| GROUND_INPUTS.iter().chain(&GROUND_ROTATION_INPUTS).position(|g| g == nm))
+                .collect();
             let m = model.mass_matrix();
             // φⱼᵀ M r_d and c·φⱼ, c·r_d
-            let pmr: Vec<[f64; 3]> = (0..n)
+            let pmr: Vec<[f64; GROUND_DOFS]> = (0..n)
                 .map(|j| {
                     std::array::from_fn(|d| {
                         (0..n)
@@ -232,7 +246,8 @@ pub fn response_psd(
                 let c = &out_rows[o];
                 let cphi: Vec<f64> =
                     (0..n).map(|j| (0..n).map(|a| c[a] * modes.shapes[[a, j]]).sum()).collect();
-                let cr: [f64; 3] = std::array::from_fn(|d| (0..n).map(|a| c[a] * r[a + d * n]).sum());
+                let cr: [f64; GROUND_DOFS] =
+                    std::array::from_fn(|d| (0..n).map(|a| c[a] * r[a + d * n]).sum());
                 for f in 0..nf {
                     for (i, (_, s)) in inputs.iter().enumerate() {
                         let y = frf.data[[f, o, i]];

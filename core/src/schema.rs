@@ -190,6 +190,10 @@ impl ModelFile {
         if g.wind.is_some() {
             spec.wind = g.wind.clone();
         }
+        // A hand-written [ground_waves] overrides what [ground] implies.
+        if g.ground_waves.is_some() {
+            spec.ground_waves = g.ground_waves.clone();
+        }
         Ok(spec)
     }
 

@@ -5,6 +5,10 @@ use super::vector::sub;
 use crate::error::{Error, Result};
 use std::collections::BTreeMap;
 
+/// The ground's columns in the full system: translations x, y, z and small rotations rx, ry, rz
+/// of a rigid ground about the origin, after the free DOFs.
+pub(crate) const GROUND_DOFS: usize = 6;
+
 /// A carrier of points: its reference position and the global index of each of its 6 DOFs.
 #[derive(Debug, Clone)]
 pub(crate) struct Carrier {
@@ -13,29 +17,39 @@ pub(crate) struct Carrier {
     pub(crate) index: [Option<usize>; 6],
     /// Whether the carrier has rotational DOFs at all (bodies, beam nodes) or not (nodes).
     pub(crate) rotates: bool,
-    /// Held translations x, y, z that follow the ground (a kinematic tie): they map to the
-    /// ground's columns, the last three of the N columns of [`Carrier::point_map`].
-    pub(crate) tied: [bool; 3],
+    /// Held DOFs that follow the ground (a kinematic tie): a held translation at the carrier's
+    /// origin o moves as u_g + θ_g × o, a held rotation as θ_g; both map to the ground's
+    /// columns, the last [`GROUND_DOFS`] of the N columns of [`Carrier::point_map`].
+    pub(crate) tied: [bool; 6],
 }
 
 impl Carrier {
-    /// The 6 × N map (dense rows) of the motion of point `p` on this carrier; N = free DOFs + 3,
-    /// the last three the ground's translations.
+    /// The 6 × N map (dense rows) of the motion of point `p` on this carrier; N = free DOFs +
+    /// [`GROUND_DOFS`], the last columns the ground's translations and rotations.
     pub(crate) fn point_map(&self, p: [f64; 3], nfull: usize) -> [Vec<f64>; 6] {
         let mut rows: [Vec<f64>; 6] = std::array::from_fn(|_| vec![0.0; nfull]);
+        let g0 = nfull - GROUND_DOFS;
         let r = sub(p, self.origin);
-        for i in 0..3 {
-            if let Some(g) = self.index[i] {
-                rows[i][g] += 1.0;
-            } else if self.tied[i] {
-                rows[i][nfull - 3 + i] += 1.0;
+        // A DOF's column: its own, or the ground's where it is tied.
+        let col = |k: usize| self.index[k].or(self.tied[k].then_some(g0 + k));
+        for (k, row) in rows.iter_mut().enumerate() {
+            if let Some(g) = col(k) {
+                row[g] += 1.0;
             }
-            if let Some(g) = self.index[3 + i] {
-                rows[3 + i][g] += 1.0;
+        }
+        // A held translation tied to the ground also follows the ground's rotation at the
+        // carrier's origin: u_o = u_g + θ_g × o.
+        for i in 0..3 {
+            if self.index[i].is_none() && self.tied[i] {
+                let o = self.origin;
+                let (a, b) = ((i + 1) % 3, (i + 2) % 3);
+                // (θ × o)_i = θ_a o_b − θ_b o_a for (i, a, b) cyclic.
+                rows[i][g0 + 3 + a] += o[b];
+                rows[i][g0 + 3 + b] -= o[a];
             }
         }
         // u_p = u + θ × r: (θ × r)_x = θy rz − θz ry, etc.
-        let th = |k: usize| self.index[3 + k];
+        let th = |k: usize| col(3 + k);
         let add = |rows: &mut [Vec<f64>; 6], row: usize, dof: Option<usize>, c: f64| {
             if let Some(g) = dof {
                 rows[row][g] += c;

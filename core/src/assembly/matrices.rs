@@ -32,7 +32,7 @@ pub(crate) struct Assembled {
     pub(crate) carriers: BTreeMap<String, Carrier>,
 }
 
-/// The matrices while elements are added (column-major nfull², nfull = free DOFs + 3).
+/// The matrices while elements are added (column-major nfull², nfull = free DOFs + the ground's 6).
 pub(super) struct Builder {
     pub(super) nfull: usize,
     pub(super) mass: Vec<f64>,

@@ -8,8 +8,9 @@
 //! Held DOFs of a body or node are fixed (zero absolute motion) and carry no global index.
 //!
 //! Global DOF order: the free DOFs of bodies (in file order, each in x, y, z, rx, ry, rz order),
-//! then nodes, then internal beam nodes. Three ground translations follow the free DOFs in the
-//! "full" system; base excitation moves them.
+//! then nodes, then internal beam nodes. The ground's six DOFs follow the free DOFs in the "full"
+//! system: translations and small rotations of a rigid ground about the origin, so a ground point
+//! p moves as u_g + θ_g × p. Base excitation moves them; held DOFs follow them (a kinematic tie).
 //!
 //! Files: `spec.rs` and `stiffness_spec.rs` (the generic layer as written in a model file),
 //! `numbering.rs` (names, DOF numbering, carriers), `carrier.rs` (the map of a point's motion),
@@ -28,7 +29,7 @@ mod springs;
 mod stiffness_spec;
 mod vector;
 
-pub(crate) use carrier::Carrier;
+pub(crate) use carrier::{Carrier, GROUND_DOFS};
 pub(crate) use matrices::{Assembled, RankOneTerm};
 pub use numbering::DofLabel;
 pub use spec::{
@@ -44,7 +45,7 @@ use numbering::Numbering;
 /// Assemble a validated spec into matrices.
 pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
     let Numbering { n, labels, carriers, mut beam_nodes } = numbering::number(spec)?;
-    let mut b = Builder::new(n + 3);
+    let mut b = Builder::new(n + GROUND_DOFS);
     bodies::add_masses(spec, &carriers, &mut b);
     springs::add_axial(spec, &carriers, &mut b)?;
     springs::add_torsion(spec, &carriers, &mut b)?;

@@ -110,7 +110,7 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
         require_positive(|| format!("{p}.mass_kg"), nd.mass_kg)?;
         finite3(&format!("{p}.at_m"), nd.at_m)?;
         let index = free(&mut labels, &nd.name, &nd.dofs, &[Dof::X, Dof::Y, Dof::Z])?;
-        let tied = std::array::from_fn(|i| index[i].is_none());
+        let tied = std::array::from_fn(|i| i < 3 && index[i].is_none());
         carriers.insert(nd.name.clone(), Carrier { origin: nd.at_m, index, rotates: false, tied });
     }
     for s in spec.springs.iter().chain(&spec.torsion_springs) {
@@ -157,9 +157,9 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
                     origin: pos,
                     index: free(&mut labels, &owner, &Dof::ALL, &Dof::ALL)?,
                     rotates: true,
-                    tied: [false; 3],
+                    tied: [false; 6],
                 },
-                Some(_) => Carrier { origin: pos, index: [None; 6], rotates: true, tied: [false; 3] },
+                Some(_) => Carrier { origin: pos, index: [None; 6], rotates: true, tied: [false; 6] },
             };
             nodes.push(c);
         }
@@ -176,9 +176,9 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
         GROUND.into(),
         Carrier {
             origin: [0.0; 3],
-            index: [Some(n), Some(n + 1), Some(n + 2), None, None, None],
-            rotates: false,
-            tied: [false; 3],
+            index: std::array::from_fn(|k| Some(n + k)),
+            rotates: true,
+            tied: [false; 6],
         },
     );
     Ok(Numbering { n, labels, carriers, beam_nodes })

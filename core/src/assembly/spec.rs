@@ -580,4 +580,8 @@ pub struct ModelSpec {
     pub optics: Option<OpticsSpec>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub wind: Option<WindLoadSpec>,
+    /// How ground motion travels under the rig: with it, ground PSDs also tilt and twist the
+    /// ground ([`crate::surface_waves`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ground_waves: Option<crate::surface_waves::GroundWaves>,
 }

@@ -557,6 +557,7 @@ fn disturbances(ground: Option<&GroundSpectrum>, o: &ReportOptions) -> Disturban
         ground: ground.map(|g| g.axes.clone()).unwrap_or_default(),
         wind: o.wind.clone(),
         loads: Vec::new(),
+        ground_waves: None,
     }
 }
 

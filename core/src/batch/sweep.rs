@@ -345,7 +345,12 @@ fn evaluate(
     grid: &FreqGrid,
 ) -> Evaluated {
     let model = built.model.as_ref().map_err(Clone::clone)?;
-    let d = Disturbances { ground: ground.axes.clone(), wind: wind.wind.clone(), loads: Vec::new() };
+    let d = Disturbances {
+        ground: ground.axes.clone(),
+        wind: wind.wind.clone(),
+        loads: Vec::new(),
+        ground_waves: None,
+    };
     let opts = ImageOptions { skip_mode_shares: true, ..ImageOptions::default() };
     let im = model.image_motion(grid, &d, &opts).map_err(|e| format!("isolator '{}': {e}", iso.name))?;
     Ok((im.rms_arcsec, im.rms_px, im.p_outside))

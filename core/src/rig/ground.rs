@@ -1,8 +1,9 @@
 //! `[ground]` and what a stand stands on: an elastic half-space under each contact
 //! ([`crate::soil`]), or rigid ground whose contacts move with the ground motion.
 
-use crate::error::{Error, Result};
+use crate::error::{Error, Result, require_non_negative};
 use crate::soil::Soil;
+use crate::surface_waves::{GroundWaves, rayleigh_speed_ratio};
 use serde::{Deserialize, Serialize};
 
 /// What a tripod or pier stands on.
@@ -46,9 +47,45 @@ pub struct GroundSpec {
     /// Radiation dashpots (default false: they are large for light contacts, an upper bound).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub radiation_damping: Option<bool>,
+    /// Phase velocity of the surface waves (m/s) that tilt and twist the ground; default the
+    /// Rayleigh-wave speed of the soil, none on rigid ground. 0 leaves ground rotation out.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub phase_velocity_m_s: Option<f64>,
+    /// Luco–Wong incoherence α of the ground motion between feet (default none: coherent).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub incoherence: Option<f64>,
 }
 
 impl GroundSpec {
+    /// How ground motion travels under the rig ([`GroundWaves`]): the given phase velocity, or
+    /// the Rayleigh-wave speed of the soil; None on rigid ground without one, or when it is 0.
+    pub(super) fn waves(&self) -> Result<Option<GroundWaves>> {
+        let soil = self.soil()?.map(|(s, _)| s);
+        let vs = soil.as_ref().map(Soil::shear_wave_speed_m_s);
+        let c = match (self.phase_velocity_m_s, &soil) {
+            (Some(c), _) => {
+                require_non_negative("ground.phase_velocity_m_s", c)?;
+                c
+            }
+            (None, Some(s)) => rayleigh_speed_ratio(s.poisson_ratio)? * s.shear_wave_speed_m_s(),
+            (None, None) => {
+                if self.incoherence.is_some() {
+                    return Err(Error::invalid(
+                        "ground.incoherence",
+                        "needs a phase_velocity_m_s on rigid ground",
+                    ));
+                }
+                return Ok(None);
+            }
+        };
+        if c == 0.0 {
+            return Ok(None);
+        }
+        let w = GroundWaves { phase_velocity_m_s: c, incoherence: self.incoherence, shear_wave_speed_m_s: vs };
+        w.validate("ground")?;
+        Ok(Some(w))
+    }
+
     /// The soil, or None for rigid ground; with it whether radiation dashpots are wanted.
     pub(super) fn soil(&self) -> Result<Option<(Soil, bool)>> {
         match self.kind.unwrap_or_default() {

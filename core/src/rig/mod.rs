@@ -319,6 +319,10 @@ impl RigSpec {
             ));
         }
         out.wind = wind.and_then(WindParts::finish);
+        out.ground_waves = match &self.ground {
+            Some(g) => g.waves()?,
+            None => None,
+        };
         Ok(out)
     }
 
