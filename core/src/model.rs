@@ -2,6 +2,10 @@
 //!
 //! Inputs (one column of the FRF each):
 //! - `ground_x`, `ground_y`, `ground_z`: unit ground displacement (m) of every ground attachment.
+//! - `ground_rx`, `ground_ry`, `ground_rz`: unit rotation (rad) of the rigid ground about the
+//!   origin; a ground point p moves as θ × p.
+//! - `ground_x@k`, `ground_y@k`, `ground_z@k`: unit displacement of the ground at station k only
+//!   (see [`Model::ground_stations`]), for differential motion between places apart.
 //! - `wind`: the reference drag force ρ Ū u Σ C_d A (N), shared over the wind's parts in
 //!   proportion to their C_d A, each at its centre of pressure along its own direction.
 //! - `force:NAME:x|y|z`: unit force at the CG of body or node NAME; `moment:NAME:x|y|z`: unit
@@ -52,7 +56,7 @@ pub(crate) struct Term {
     pub(crate) name: String,
     pub(crate) model: crate::stiffness::StiffnessModel,
     pub(crate) bf: Vec<(usize, f64)>,
-    pub(crate) bg: [f64; GROUND_DOFS],
+    pub(crate) bg: Vec<f64>,
 }
 
 /// An assembled linear structure. Immutable once built; cheap to share between threads.
@@ -61,7 +65,8 @@ pub struct Model {
     spec: ModelSpec,
     n: usize,
     labels: Vec<DofLabel>,
-    /// Column-major n × n blocks over the free DOFs, and n × 6 couplings to the ground's DOFs.
+    /// Column-major n × n blocks over the free DOFs, and n × ng couplings to the ground's
+    /// columns (the rigid ground's six, then three per station).
     pub(crate) m_ff: Vec<f64>,
     pub(crate) c_ff: Vec<f64>,
     pub(crate) k_ff: Vec<Complex64>,
@@ -74,6 +79,8 @@ pub struct Model {
     /// for each.
     pub(crate) springs: Vec<Term>,
     carriers: std::collections::BTreeMap<String, assembly::Carrier>,
+    /// The ground's stations (horizontal positions, m); empty when it is touched at one place.
+    stations: Vec<[f64; 2]>,
 }
 
 impl Model {
@@ -82,6 +89,9 @@ impl Model {
     pub fn from_spec(spec: &ModelSpec) -> Result<Model> {
         if let Some(o) = &spec.optics {
             o.validate()?;
+        }
+        if let Some(w) = &spec.ground_waves {
+            w.validate("ground_waves")?;
         }
         let a = assembly::assemble(spec)?;
         let model = Model::from_assembled(spec.clone(), a)?;
@@ -107,18 +117,19 @@ impl Model {
 
     fn from_assembled(spec: ModelSpec, a: Assembled) -> Result<Model> {
         let n = a.n;
-        let nf = n + GROUND_DOFS;
+        let ng = GROUND_DOFS + 3 * a.stations.len();
+        let nf = n + ng;
         let block = |full: &[f64]| -> (Vec<f64>, Vec<f64>) {
             let ff = (0..n * n).map(|k| full[(k % n) + (k / n) * nf]).collect();
-            let fg = (0..n * GROUND_DOFS).map(|k| full[(k % n) + (n + k / n) * nf]).collect();
+            let fg = (0..n * ng).map(|k| full[(k % n) + (n + k / n) * nf]).collect();
             (ff, fg)
         };
         let (m_ff, m_fg) = block(&a.mass);
         let (c_ff, c_fg) = block(&a.damping);
         let k_ff = (0..n * n).map(|k| a.k_const[(k % n) + (k / n) * nf]).collect();
-        let k_fg = (0..n * GROUND_DOFS).map(|k| a.k_const[(k % n) + (n + k / n) * nf]).collect();
+        let k_fg = (0..n * ng).map(|k| a.k_const[(k % n) + (n + k / n) * nf]).collect();
         let split = |t: assembly::RankOneTerm| {
-            let mut bg = [0.0; GROUND_DOFS];
+            let mut bg = vec![0.0; ng];
             let mut bf = Vec::new();
             for (i, v) in t.b {
                 if i < n { bf.push((i, v)) } else { bg[i - n] = v }
@@ -140,7 +151,15 @@ impl Model {
             terms,
             springs,
             carriers: a.carriers,
+            stations: a.stations,
         })
+    }
+
+    /// The ground's stations: the horizontal positions (m) where connectors touch the ground,
+    /// when there are two or more. Station k (from 1) has the inputs `ground_x@k`, `ground_y@k`,
+    /// `ground_z@k`: its own translation on top of the rigid ground's.
+    pub fn ground_stations(&self) -> &[[f64; 2]] {
+        &self.stations
     }
 
     /// Number of free DOFs.
@@ -205,6 +224,9 @@ impl Model {
     pub fn input_names(&self) -> Vec<String> {
         let mut v: Vec<String> =
             GROUND_INPUTS.iter().chain(&GROUND_ROTATION_INPUTS).map(|s| s.to_string()).collect();
+        for k in 1..=self.stations.len() {
+            v.extend(GROUND_INPUTS.iter().map(|g| format!("{g}@{k}")));
+        }
         if self.spec.wind.is_some() {
             v.push("wind".into());
         }
@@ -263,10 +285,19 @@ impl Model {
         if let Some(k) = GROUND_INPUTS.iter().chain(&GROUND_ROTATION_INPUTS).position(|g| *g == name) {
             return Ok(Input::Ground(k));
         }
-        let unknown = || Error::UnknownName {
+        if let Some((axis, station)) = name.split_once('@') {
+            let d = GROUND_INPUTS.iter().position(|g| *g == axis);
+            let k = station.parse::<usize>().ok().filter(|k| (1..=self.stations.len()).contains(k));
+            if let (Some(d), Some(k)) = (d, k) {
+                return Ok(Input::Ground(GROUND_DOFS + 3 * (k - 1) + d));
+            }
+        }
+        let unknown = || {
+            Error::UnknownName {
             kind: "input".into(),
             name: name.into(),
-            known: "ground_x, ground_y, ground_z, ground_rx, ground_ry, ground_rz, wind, force:BODY:x|y|z, moment:BODY:x|y|z".into(),
+            known: "ground_x, ground_y, ground_z, ground_rx, ground_ry, ground_rz, ground_x|y|z@STATION, wind, force:BODY:x|y|z, moment:BODY:x|y|z".into(),
+        }
         };
         let n = self.n;
         if name == "wind" {

@@ -69,6 +69,24 @@ impl Disturbances {
                     out.push((name.to_string(), r));
                 }
             }
+            // Differential motion: with coherency γ̄ between stations, each axis splits into a
+            // common part γ̄ S (the rigid ground) and an own part (1 − γ̄) S at every station.
+            let stations = model.ground_stations();
+            if w.incoherence.is_some_and(|a| a > 0.0) && stations.len() >= 2 {
+                let gbar = w.mean_coherency(stations, grid);
+                let mut own = Vec::new();
+                for (name, v) in out.iter_mut() {
+                    if let Some(d) = GROUND_INPUTS.iter().position(|g| g == name) {
+                        for k in 1..=stations.len() {
+                            let s: Vec<f64> = v.iter().zip(&gbar).map(|(s, g)| s * (1.0 - g)).collect();
+                            own.push((format!("{name}@{k}"), s, d));
+                        }
+                        v.iter_mut().zip(&gbar).for_each(|(s, g)| *s *= g);
+                    }
+                }
+                own.sort_by_key(|(_, _, d)| *d);
+                out.extend(own.into_iter().map(|(n, s, _)| (n, s)));
+            }
         }
         if let Some(w) = &self.wind {
             let load = model.wind().ok_or_else(|| {

@@ -309,7 +309,7 @@ mod tests {
         assert_eq!(
             reason,
             "unknown field `wobble`, expected one of `title`, `body`, `node`, `spring`, `torsion_spring`, \
-             `general_spring`, `beam`, `optics`, `wind`, `payload`, `mount`, `tripod`, `pads`, `ground`, \
+             `general_spring`, `beam`, `optics`, `wind`, `ground_waves`, `payload`, `mount`, `tripod`, `pads`, `ground`, \
              `pier`, `floor`, `wind_load`"
         );
     }

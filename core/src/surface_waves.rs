@@ -59,7 +59,11 @@ impl GroundWaves {
 
     /// The ground-rotation PSDs (rad²/Hz) on `grid` from the displacement PSDs (m²/Hz) of the
     /// translations: `[rx, ry, rz]`, each None where its source axis is absent.
-    pub fn rotation_psds(&self, grid: &FreqGrid, disp: &[Option<Vec<f64>>; 3]) -> Result<[Option<Vec<f64>>; 3]> {
+    pub fn rotation_psds(
+        &self,
+        grid: &FreqGrid,
+        disp: &[Option<Vec<f64>>; 3],
+    ) -> Result<[Option<Vec<f64>>; 3]> {
         self.validate("ground_waves")?;
         let c = self.phase_velocity_m_s;
         let k2: Vec<f64> = grid.hz().iter().map(|f| (2.0 * PI * f / c).powi(2)).collect();
@@ -82,6 +86,29 @@ impl GroundWaves {
         let a = self.incoherence.unwrap_or(0.0);
         let vs = self.shear_wave_speed_m_s.unwrap_or(self.phase_velocity_m_s);
         (-(a * 2.0 * PI * f_hz * distance_m / vs).powi(2)).exp()
+    }
+
+    /// The mean of the coherency over every pair of `stations` (horizontal positions, m) at each
+    /// frequency of `grid`; 1 with fewer than two stations. For stations all equally far apart
+    /// (a tripod's three feet) a common motion of power γ̄ S plus an own motion of power
+    /// (1 − γ̄) S at each station reproduces the coherency exactly; otherwise it is the average.
+    pub fn mean_coherency(&self, stations: &[[f64; 2]], grid: &FreqGrid) -> Vec<f64> {
+        let mut pairs = Vec::new();
+        for (i, a) in stations.iter().enumerate() {
+            for b in &stations[i + 1..] {
+                pairs.push((a[0] - b[0]).hypot(a[1] - b[1]));
+            }
+        }
+        grid.hz()
+            .iter()
+            .map(|&f| {
+                if pairs.is_empty() {
+                    1.0
+                } else {
+                    pairs.iter().map(|&d| self.coherency(d, f)).sum::<f64>() / pairs.len() as f64
+                }
+            })
+            .collect()
     }
 }
 
@@ -154,7 +181,11 @@ mod tests {
 
     #[test]
     fn coherency_is_luco_wong() {
-        let w = GroundWaves { phase_velocity_m_s: 150.0, incoherence: Some(0.5), shear_wave_speed_m_s: Some(160.0) };
+        let w = GroundWaves {
+            phase_velocity_m_s: 150.0,
+            incoherence: Some(0.5),
+            shear_wave_speed_m_s: Some(160.0),
+        };
         // exp(−(α ω d / V_s)²) at d = 1 m, f = 20 Hz.
         let expect = (-(0.5 * 2.0 * PI * 20.0 * 1.0 / 160.0f64).powi(2)).exp();
         assert!((w.coherency(1.0, 20.0) - expect).abs() < 1e-15);

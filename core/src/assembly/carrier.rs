@@ -5,9 +5,13 @@ use super::vector::sub;
 use crate::error::{Error, Result};
 use std::collections::BTreeMap;
 
-/// The ground's columns in the full system: translations x, y, z and small rotations rx, ry, rz
-/// of a rigid ground about the origin, after the free DOFs.
+/// The rigid ground's columns in the full system: translations x, y, z and small rotations rx,
+/// ry, rz about the origin, right after the free DOFs. Where the ground is touched at two or
+/// more places apart (stations), each station's own translations x, y, z follow them.
 pub(crate) const GROUND_DOFS: usize = 6;
+
+/// Ground attachment points closer than this horizontally share a station (m).
+pub(crate) const STATION_TOLERANCE_M: f64 = 0.01;
 
 /// A carrier of points: its reference position and the global index of each of its 6 DOFs.
 #[derive(Debug, Clone)]
@@ -19,16 +23,35 @@ pub(crate) struct Carrier {
     pub(crate) rotates: bool,
     /// Held DOFs that follow the ground (a kinematic tie): a held translation at the carrier's
     /// origin o moves as u_g + θ_g × o, a held rotation as θ_g; both map to the ground's
-    /// columns, the last [`GROUND_DOFS`] of the N columns of [`Carrier::point_map`].
+    /// columns.
     pub(crate) tied: [bool; 6],
+    /// The first of the ground's columns (the number of free DOFs).
+    pub(crate) ground: usize,
+    /// On the ground's carrier, its stations (horizontal positions, m) when there are two or
+    /// more: a point also moves with its station's own translations.
+    pub(crate) stations: Vec<[f64; 2]>,
+}
+
+/// The station of a point: the nearest one horizontally.
+pub(crate) fn station_of(stations: &[[f64; 2]], p: [f64; 3]) -> Option<usize> {
+    let d2 = |s: &[f64; 2]| (s[0] - p[0]).powi(2) + (s[1] - p[1]).powi(2);
+    (0..stations.len()).min_by(|&a, &b| d2(&stations[a]).total_cmp(&d2(&stations[b])))
 }
 
 impl Carrier {
     /// The 6 × N map (dense rows) of the motion of point `p` on this carrier; N = free DOFs +
-    /// [`GROUND_DOFS`], the last columns the ground's translations and rotations.
+    /// the ground's columns.
     pub(crate) fn point_map(&self, p: [f64; 3], nfull: usize) -> [Vec<f64>; 6] {
         let mut rows: [Vec<f64>; 6] = std::array::from_fn(|_| vec![0.0; nfull]);
-        let g0 = nfull - GROUND_DOFS;
+        let g0 = self.ground;
+        if let Some(s) = station_of(&self.stations, p) {
+            for (i, row) in rows.iter_mut().take(3).enumerate() {
+                let g = g0 + GROUND_DOFS + 3 * s + i;
+                if g < nfull {
+                    row[g] += 1.0;
+                }
+            }
+        }
         let r = sub(p, self.origin);
         // A DOF's column: its own, or the ground's where it is tied.
         let col = |k: usize| self.index[k].or(self.tied[k].then_some(g0 + k));

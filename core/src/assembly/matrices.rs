@@ -19,7 +19,7 @@ pub(crate) struct RankOneTerm {
 pub(crate) struct Assembled {
     pub(crate) n: usize,
     pub(crate) labels: Vec<DofLabel>,
-    /// Column-major (n+3)².
+    /// Column-major nfull² (nfull = n + the ground's columns).
     pub(crate) mass: Vec<f64>,
     pub(crate) damping: Vec<f64>,
     /// Frequency-independent complex stiffness (hysteretic springs, beams, general springs).
@@ -30,6 +30,9 @@ pub(crate) struct Assembled {
     /// sweeps can replace them.
     pub(crate) springs: Vec<RankOneTerm>,
     pub(crate) carriers: BTreeMap<String, Carrier>,
+    /// The ground's stations (horizontal positions, m), each with three columns after the rigid
+    /// ground's six; empty when the ground is touched at one place only.
+    pub(crate) stations: Vec<[f64; 2]>,
 }
 
 /// The matrices while elements are added (column-major nfull², nfull = free DOFs + the ground's 6).

@@ -45,7 +45,8 @@ use numbering::Numbering;
 /// Assemble a validated spec into matrices.
 pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
     let Numbering { n, labels, carriers, mut beam_nodes } = numbering::number(spec)?;
-    let mut b = Builder::new(n + GROUND_DOFS);
+    let stations = carriers.get(GROUND).map_or(0, |g| g.stations.len());
+    let mut b = Builder::new(n + GROUND_DOFS + 3 * stations);
     bodies::add_masses(spec, &carriers, &mut b);
     springs::add_axial(spec, &carriers, &mut b)?;
     springs::add_torsion(spec, &carriers, &mut b)?;
@@ -60,6 +61,7 @@ pub(crate) fn assemble(spec: &ModelSpec) -> Result<Assembled> {
         k_const: b.k_const,
         terms: b.terms,
         springs: b.springs,
+        stations: carriers.get(GROUND).map(|g| g.stations.clone()).unwrap_or_default(),
         carriers,
     })
 }

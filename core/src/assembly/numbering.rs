@@ -3,6 +3,7 @@
 //! translations follow as carrier `ground`.
 
 use super::carrier::Carrier;
+use super::carrier::STATION_TOLERANCE_M;
 use super::spec::{Dof, GROUND, MAX_DOFS, ModelSpec};
 use super::vector::{finite3, norm, sub};
 use crate::error::{Error, Result, require_non_negative, require_positive};
@@ -102,7 +103,10 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
         finite3(&format!("{p}.products_kgm2"), b.products_kgm2)?;
         let index = free(&mut labels, &b.name, &b.dofs, &Dof::ALL)?;
         let tied = std::array::from_fn(|i| index[i].is_none());
-        carriers.insert(b.name.clone(), Carrier { origin: b.cg_m, index, rotates: true, tied });
+        carriers.insert(
+            b.name.clone(),
+            Carrier { origin: b.cg_m, index, rotates: true, tied, ground: 0, stations: Vec::new() },
+        );
     }
     for nd in &spec.nodes {
         claim(&nd.name, "node")?;
@@ -111,7 +115,10 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
         finite3(&format!("{p}.at_m"), nd.at_m)?;
         let index = free(&mut labels, &nd.name, &nd.dofs, &[Dof::X, Dof::Y, Dof::Z])?;
         let tied = std::array::from_fn(|i| i < 3 && index[i].is_none());
-        carriers.insert(nd.name.clone(), Carrier { origin: nd.at_m, index, rotates: false, tied });
+        carriers.insert(
+            nd.name.clone(),
+            Carrier { origin: nd.at_m, index, rotates: false, tied, ground: 0, stations: Vec::new() },
+        );
     }
     for s in spec.springs.iter().chain(&spec.torsion_springs) {
         claim(&s.name, "spring")?;
@@ -158,8 +165,17 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
                     index: free(&mut labels, &owner, &Dof::ALL, &Dof::ALL)?,
                     rotates: true,
                     tied: [false; 6],
+                    ground: 0,
+                    stations: Vec::new(),
                 },
-                Some(_) => Carrier { origin: pos, index: [None; 6], rotates: true, tied: [false; 6] },
+                Some(_) => Carrier {
+                    origin: pos,
+                    index: [None; 6],
+                    rotates: true,
+                    tied: [false; 6],
+                    ground: 0,
+                    stations: Vec::new(),
+                },
             };
             nodes.push(c);
         }
@@ -179,7 +195,54 @@ pub(super) fn number(spec: &ModelSpec) -> Result<Numbering> {
             index: std::array::from_fn(|k| Some(n + k)),
             rotates: true,
             tied: [false; 6],
+            ground: n,
+            stations: stations(spec),
         },
     );
+    for c in carriers.values_mut() {
+        c.ground = n;
+    }
+    for bn in &mut beam_nodes {
+        for c in &mut bn.nodes {
+            c.ground = n;
+        }
+    }
     Ok(Numbering { n, labels, carriers, beam_nodes })
+}
+
+/// The places where connectors touch the ground, grouped by horizontal position within
+/// [`STATION_TOLERANCE_M`]; empty when there are fewer than two.
+fn stations(spec: &ModelSpec) -> Vec<[f64; 2]> {
+    let mut points: Vec<[f64; 3]> = Vec::new();
+    let g = |name: &str| name == GROUND;
+    // Torsion springs move no point of the ground along; axial and general springs and beams do.
+    for s in &spec.springs {
+        if g(&s.from) {
+            points.extend(s.from_at_m.or(s.at_m));
+        }
+        if g(&s.to) {
+            points.extend(s.to_at_m.or(s.at_m));
+        }
+    }
+    for s in &spec.general_springs {
+        if g(&s.from) || g(&s.to) {
+            points.push(s.at_m);
+        }
+    }
+    for b in &spec.beams {
+        if g(&b.from) {
+            points.push(b.from_at_m);
+        }
+        if g(&b.to) {
+            points.push(b.to_at_m);
+        }
+    }
+    let mut out: Vec<[f64; 2]> = Vec::new();
+    for p in points {
+        let near = |s: &[f64; 2]| (s[0] - p[0]).hypot(s[1] - p[1]) < STATION_TOLERANCE_M;
+        if p.iter().all(|v| v.is_finite()) && !out.iter().any(near) {
+            out.push([p[0], p[1]]);
+        }
+    }
+    if out.len() < 2 { Vec::new() } else { out }
 }

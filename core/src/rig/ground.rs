@@ -81,7 +81,8 @@ impl GroundSpec {
         if c == 0.0 {
             return Ok(None);
         }
-        let w = GroundWaves { phase_velocity_m_s: c, incoherence: self.incoherence, shear_wave_speed_m_s: vs };
+        let w =
+            GroundWaves { phase_velocity_m_s: c, incoherence: self.incoherence, shear_wave_speed_m_s: vs };
         w.validate("ground")?;
         Ok(Some(w))
     }
