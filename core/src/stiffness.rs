@@ -13,12 +13,12 @@
 //!   linear-in-log-f interpolation in η, held constant beyond the first and last rows (stated
 //!   policy: a data sheet's end values are the best estimate there).
 //! - [`StiffnessModel::HalfSpace`]: a rigid circular footing on a half-space, stiffness and
-//!   radiation damping as functions of a0 = ωR/V_s ([`crate::soil::FootingImpedance`]).
+//!   radiation damping as functions of a0 = ωR/V_s ([`crate::footing_impedance::FootingImpedance`]).
 //! - [`StiffnessModel::Series`], [`StiffnessModel::Parallel`]: 1/k* = Σ 1/k*ᵢ and k* = Σ k*ᵢ.
 
 use crate::error::{Error, Result, require_non_negative, require_positive};
+use crate::footing_impedance::FootingImpedance;
 use crate::linalg::lanes::{CLane, LANES, Lane};
-use crate::soil::FootingImpedance;
 use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 use std::f64::consts::PI;

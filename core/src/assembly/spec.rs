@@ -3,10 +3,10 @@
 
 use super::stiffness_spec::{StiffnessSpec, TableSpec, ZenerSpec};
 use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
+use crate::footing_impedance::FootingImpedance;
 use crate::material::Material;
 use crate::section::Section;
 use crate::sky::{Equatorial, PierSide};
-use crate::soil::FootingImpedance;
 use crate::stiffness::StiffnessModel;
 use serde::{Deserialize, Serialize};
 

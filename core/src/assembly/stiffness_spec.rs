@@ -2,7 +2,7 @@
 //! `series` or `parallel`) and its conversion to and from a [`StiffnessModel`].
 
 use crate::error::{Error, Result};
-use crate::soil::FootingImpedance;
+use crate::footing_impedance::FootingImpedance;
 use crate::stiffness::StiffnessModel;
 use serde::{Deserialize, Serialize};
 
