@@ -63,6 +63,7 @@ pub mod batch;
 pub mod budget;
 pub mod checks;
 pub mod error;
+pub mod footing_impedance;
 pub mod frf;
 pub mod grid;
 pub mod guider;

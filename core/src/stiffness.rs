@@ -12,9 +12,12 @@
 //! - [`StiffnessModel::Table`]: k′(f) and η(f) from a data sheet, log–log interpolation in k′,
 //!   linear-in-log-f interpolation in η, held constant beyond the first and last rows (stated
 //!   policy: a data sheet's end values are the best estimate there).
+//! - [`StiffnessModel::HalfSpace`]: a rigid circular footing on a half-space, stiffness and
+//!   radiation damping as functions of a0 = ωR/V_s ([`crate::footing_impedance::FootingImpedance`]).
 //! - [`StiffnessModel::Series`], [`StiffnessModel::Parallel`]: 1/k* = Σ 1/k*ᵢ and k* = Σ k*ᵢ.
 
 use crate::error::{Error, Result, require_non_negative, require_positive};
+use crate::footing_impedance::FootingImpedance;
 use crate::linalg::lanes::{CLane, LANES, Lane};
 use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
@@ -34,6 +37,8 @@ pub enum StiffnessModel {
     FractionalZener { k0: f64, k_inf: f64, tau_s: f64, alpha: f64 },
     /// Tabulated storage stiffness and loss factor against frequency.
     Table { freq_hz: Vec<f64>, k: Vec<f64>, loss_factor: Vec<f64> },
+    /// Frequency-dependent impedance of a footing on a half-space.
+    HalfSpace(FootingImpedance),
     /// Elements in series.
     Series(Vec<StiffnessModel>),
     /// Elements in parallel.
@@ -66,6 +71,7 @@ impl StiffnessModel {
                 let (kp, eta) = table_lookup(freq_hz, k, loss_factor, f_hz);
                 Complex64::new(kp, kp * eta)
             }
+            StiffnessModel::HalfSpace(h) => h.at(f_hz),
             StiffnessModel::Series(parts) => {
                 let inv: Complex64 = parts.iter().map(|p| 1.0 / p.at(f_hz)).sum();
                 1.0 / inv
@@ -226,6 +232,7 @@ impl StiffnessModel {
                     require_non_negative(|| format!("{name}.table.loss_factor[{i}]"), *e)?;
                 }
             }
+            StiffnessModel::HalfSpace(h) => h.validate(name)?,
             StiffnessModel::Series(parts) | StiffnessModel::Parallel(parts) => {
                 if parts.is_empty() {
                     return Err(Error::invalid(

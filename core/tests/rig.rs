@@ -244,6 +244,63 @@ fn pier_footing_springs_are_the_half_space_formulas() {
     Model::from_spec(&s).unwrap().modes().unwrap();
 }
 
+#[test]
+fn embedded_pier_footing_on_the_frequency_impedance() {
+    // Embedment factors of docs/references.md#s8-5 at D/R = 0.35/0.5 = 0.7 on the springs of
+    // docs/references.md#s8-1 (lawn: G = 20 MPa, ν = 0.33, ρ = 1600, R = 0.5 m).
+    let text = PIER
+        .replace("depth_m = 0.7 }", "depth_m = 0.7, embedment_m = 0.35 }")
+        .replace("soil = \"lawn\"", "soil = \"lawn\"\nradiation_damping = \"frequency\"");
+    let s = spec(&text);
+    let (g, nu, r, e) = (20e6, 0.33, 0.5_f64, 0.7);
+    let half_space = |name: &str| {
+        let sp = s.springs.iter().chain(&s.torsion_springs).find(|x| x.name == name).unwrap();
+        sp.half_space.clone().unwrap()
+    };
+    let kr = half_space("footing_rx");
+    assert_eq!(kr.mode, stillsky::soil::FootingMode::Rocking);
+    assert_relative_eq!(
+        kr.static_stiffness,
+        8.0 * g * r.powi(3) / (3.0 * (1.0 - nu)) * (1.0 + 2.0 * e),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(
+        half_space("footing_z").static_stiffness,
+        4.0 * g * r / (1.0 - nu) * (1.0 + 0.54 * e),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(
+        half_space("footing_x").static_stiffness,
+        32.0 * (1.0 - nu) * g * r / (7.0 - 8.0 * nu) * (1.0 + 2.0 * e / 3.0),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(
+        half_space("footing_rz").static_stiffness,
+        16.0 * g * r.powi(3) / 3.0 * (1.0 + 2.67 * e),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(kr.shear_wave_speed_m_s, (20e6_f64 / 1600.0).sqrt(), max_relative = 1e-12);
+    // The impedance model is evaluated per frequency: FRF (direct path) and modes both run, and
+    // the model file round-trips through its expanded spec.
+    let model = Model::from_spec(&s).unwrap();
+    let modes = model.modes().unwrap();
+    assert!(modes.frequency_hz[0] > 1.0);
+    model.frf(&[5.0, 14.0, 40.0], &["ground_x"], &["mount:x"]).unwrap();
+    // Embedment deeper than the block, and an unknown radiation choice, are named.
+    let e = ModelFile::parse(&PIER.replace("depth_m = 0.7 }", "depth_m = 0.7, embedment_m = 0.9 }"), "t")
+        .unwrap()
+        .expanded()
+        .unwrap_err();
+    assert!(e.to_string().contains("pier.footing.embedment_m"), "{e}");
+    let e = ModelFile::parse(
+        &PIER.replace("soil = \"lawn\"", "soil = \"lawn\"\nradiation_damping = \"waves\""),
+        "t",
+    )
+    .and_then(|f| f.expanded())
+    .unwrap_err();
+    assert!(e.to_string().contains("ground.radiation_damping"), "{e}");
+}
+
 const FLOOR: &str = r#"
 [floor]
 mass_kg = 400

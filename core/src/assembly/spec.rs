@@ -3,6 +3,7 @@
 
 use super::stiffness_spec::{StiffnessSpec, TableSpec, ZenerSpec};
 use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
+use crate::footing_impedance::FootingImpedance;
 use crate::material::Material;
 use crate::section::Section;
 use crate::sky::{Equatorial, PierSide};
@@ -131,6 +132,8 @@ pub struct SpringSpec {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub table: Option<TableSpec>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub half_space: Option<FootingImpedance>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub series: Option<Vec<StiffnessSpec>>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub parallel: Option<Vec<StiffnessSpec>>,
@@ -147,6 +150,7 @@ impl SpringSpec {
             damping_nms_per_rad: self.damping_nms_per_rad,
             zener: self.zener.clone(),
             table: self.table.clone(),
+            half_space: self.half_space.clone(),
             series: self.series.clone(),
             parallel: self.parallel.clone(),
         }
@@ -162,6 +166,7 @@ impl SpringSpec {
         self.damping_nms_per_rad = s.damping_nms_per_rad;
         self.zener = s.zener;
         self.table = s.table;
+        self.half_space = s.half_space;
         self.series = s.series;
         self.parallel = s.parallel;
         self

@@ -2,6 +2,7 @@
 //! `series` or `parallel`) and its conversion to and from a [`StiffnessModel`].
 
 use crate::error::{Error, Result};
+use crate::footing_impedance::FootingImpedance;
 use crate::stiffness::StiffnessModel;
 use serde::{Deserialize, Serialize};
 
@@ -49,6 +50,9 @@ pub struct StiffnessSpec {
     pub zener: Option<ZenerSpec>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub table: Option<TableSpec>,
+    /// A footing's frequency-dependent half-space impedance.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub half_space: Option<FootingImpedance>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub series: Option<Vec<StiffnessSpec>>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -90,6 +94,7 @@ impl StiffnessSpec {
             k.is_some() || c.is_some(),
             self.zener.is_some(),
             self.table.is_some(),
+            self.half_space.is_some(),
             self.series.is_some(),
             self.parallel.is_some(),
         ];
@@ -98,7 +103,7 @@ impl StiffnessSpec {
             return Err(Error::invalid(
                 name.to_string(),
                 format!(
-                    "give exactly one stiffness: {k_name} (with loss_factor and/or {c_name}), zener, table, series or parallel; found {count}"
+                    "give exactly one stiffness: {k_name} (with loss_factor and/or {c_name}), zener, table, half_space, series or parallel; found {count}"
                 ),
             ));
         }
@@ -115,6 +120,14 @@ impl StiffnessSpec {
                     StiffnessModel::FractionalZener { k0: z.k0, k_inf: z.k_inf, tau_s: z.tau_s, alpha }
                 }
             }
+        } else if let Some(h) = &self.half_space {
+            if self.loss_factor.is_some() {
+                return Err(Error::invalid(
+                    format!("{name}.loss_factor"),
+                    "not used with half_space (give half_space.loss_factor)",
+                ));
+            }
+            StiffnessModel::HalfSpace(h.clone())
         } else if let Some(t) = &self.table {
             let ks = if angular { &t.stiffness_nm_per_rad } else { &t.stiffness_n_per_m };
             let ks = ks
@@ -176,6 +189,7 @@ impl StiffnessSpec {
                     loss_factor: loss_factor.clone(),
                 })
             }
+            StiffnessModel::HalfSpace(h) => s.half_space = Some(h.clone()),
             StiffnessModel::Series(p) => {
                 s.series = Some(p.iter().map(|m| Self::from_model(m, angular)).collect())
             }

@@ -2,7 +2,7 @@
 //! ([`crate::soil`]), or rigid ground whose contacts move with the ground motion.
 
 use crate::error::{Error, Result, require_non_negative};
-use crate::soil::Soil;
+use crate::soil::{Radiation, Soil};
 use crate::surface_waves::{GroundWaves, rayleigh_speed_ratio};
 use serde::{Deserialize, Serialize};
 
@@ -28,6 +28,34 @@ pub enum GroundKind {
     Rigid,
 }
 
+/// `radiation_damping`: `false` (default), `true` or `"dashpots"` (constant dashpots), or
+/// `"frequency"` (the a0-dependent impedance of [`crate::soil::FootingImpedance`]).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(untagged)]
+pub enum RadiationSpec {
+    Flag(bool),
+    Name(String),
+}
+
+impl RadiationSpec {
+    fn radiation(&self) -> Result<Radiation> {
+        Ok(match self {
+            RadiationSpec::Flag(false) => Radiation::Off,
+            RadiationSpec::Flag(true) => Radiation::Dashpots,
+            RadiationSpec::Name(n) => match n.as_str() {
+                "dashpots" => Radiation::Dashpots,
+                "frequency" => Radiation::Frequency,
+                _ => {
+                    return Err(Error::invalid(
+                        "ground.radiation_damping",
+                        format!("must be true, false, \"dashpots\" or \"frequency\", got \"{n}\""),
+                    ));
+                }
+            },
+        })
+    }
+}
+
 /// `[ground]`: what is under the feet or footing.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -44,9 +72,10 @@ pub struct GroundSpec {
     /// Contact radius of each tripod foot on the soil (m).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub contact_radius_m: Option<f64>,
-    /// Radiation dashpots (default false: they are large for light contacts, an upper bound).
+    /// Radiation damping: none (default), constant dashpots (`true`, an upper bound for light
+    /// contacts), or `"frequency"` (stiffness and damping as functions of a0).
     #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub radiation_damping: Option<bool>,
+    pub radiation_damping: Option<RadiationSpec>,
     /// Phase velocity of the surface waves (m/s) that tilt and twist the ground; default the
     /// Rayleigh-wave speed of the soil, none on rigid ground. 0 leaves ground rotation out.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -87,8 +116,8 @@ impl GroundSpec {
         Ok(Some(w))
     }
 
-    /// The soil, or None for rigid ground; with it whether radiation dashpots are wanted.
-    pub(super) fn soil(&self) -> Result<Option<(Soil, bool)>> {
+    /// The soil, or None for rigid ground; with it how radiation damping is modelled.
+    pub(super) fn soil(&self) -> Result<Option<(Soil, Radiation)>> {
         match self.kind.unwrap_or_default() {
             GroundKind::Rigid => {
                 if self.soil.is_some() || self.soil_properties.is_some() {
@@ -111,7 +140,11 @@ impl GroundSpec {
                     }
                 };
                 s.validate("ground.soil_properties")?;
-                Ok(Some((s, self.radiation_damping.unwrap_or(false))))
+                let rad = match &self.radiation_damping {
+                    Some(r) => r.radiation()?,
+                    None => Radiation::Off,
+                };
+                Ok(Some((s, rad)))
             }
         }
     }

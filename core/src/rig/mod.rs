@@ -331,7 +331,7 @@ impl RigSpec {
     }
 
     /// The soil of `[ground]`, or None for rigid ground.
-    fn soil(&self) -> Result<Option<(Soil, bool)>> {
+    fn soil(&self) -> Result<Option<(Soil, crate::soil::Radiation)>> {
         self.ground()?.soil()
     }
 }

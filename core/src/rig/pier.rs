@@ -34,6 +34,10 @@ pub struct FootingSpec {
     /// Density (kg/m³, default [`DEFAULT_FOOTING_DENSITY_KG_M3`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub density_kg_m3: Option<f64>,
+    /// How deep the block sits in the soil with its sides in contact (m, default 0 = on the
+    /// surface, at most `depth_m`): scales the soil springs by [`crate::soil::embedment_factors`].
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub embedment_m: Option<f64>,
 }
 
 /// `[pier]`: a column from a footing (or the ground, or the floor) up to the mount.
@@ -91,6 +95,13 @@ impl PierSpec {
         let f = self.footing.as_ref().ok_or_else(|| Error::invalid("pier.footing", "is required on soil"))?;
         let d = pos("pier.footing.depth_m", f.depth_m)?;
         let rho = pos_or("pier.footing.density_kg_m3", f.density_kg_m3, DEFAULT_FOOTING_DENSITY_KG_M3)?;
+        let emb = nonneg_or("pier.footing.embedment_m", f.embedment_m, 0.0)?;
+        if emb > d {
+            return Err(Error::invalid(
+                "pier.footing.embedment_m",
+                format!("must not exceed the block's depth_m = {d}, got {emb}"),
+            ));
+        }
         // Mass and inertia of a solid cylinder / square block; contact radii.
         let (m, ixx, izz, r_trans, r_rot) = match (f.diameter_m, f.side_m) {
             (Some(dia), None) => {
@@ -126,8 +137,8 @@ impl PierSpec {
             products_kgm2: [0.0; 3],
             dofs: Dof::ALL.to_vec(),
         });
-        let [kv, kh, _, _] = soil.contact_models(r_trans, radiation)?;
-        let [_, _, kr, kt] = soil.contact_models(r_rot, radiation)?;
+        let [kv, kh, _, _] = soil.contact_models(r_trans, radiation, emb)?;
+        let [_, _, kr, kt] = soil.contact_models(r_rot, radiation, emb)?;
         let at = [0.0, 0.0, support_z];
         out.springs.push(axial("footing_x", GROUND, "footing", at, EX, &kh));
         out.springs.push(axial("footing_y", GROUND, "footing", at, EY, &kh));

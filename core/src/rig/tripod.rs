@@ -226,7 +226,7 @@ pub(super) fn foot_contact(rig: &RigSpec, support: &str) -> Result<FootContact> 
         match rig.soil()? {
             Some((s, rad)) => {
                 let r = pos("ground.contact_radius_m", rig.ground()?.contact_radius_m)?;
-                let [v, h, _, _] = s.contact_models(r, rad)?;
+                let [v, h, _, _] = s.contact_models(r, rad, 0.0)?;
                 Some((v, h))
             }
             None => None,
