@@ -80,6 +80,7 @@ pub mod sky;
 pub mod skymap;
 pub mod soil;
 pub mod spectrum;
+pub mod statics;
 pub mod stiffness;
 #[cfg(test)]
 mod test_signals;
