@@ -1211,17 +1211,14 @@ pub fn rig_checks(
         }
         if !cases.is_empty() {
             checks.push(Check::with_margin(
-                format!(
-                    "tipping at {:.1} m/s × gust {:.2} (worst: wind from {:.0}°, tips at {:.1} m/s mean)",
-                    wind.speed_m_s, wind.gust_factor, tip.2, tip.1
-                ),
+                format!("tipping (worst wind from {:.0}°, tips at {:.1} m/s mean)", tip.2, tip.1),
                 tip.3,
                 tip.4,
                 "N m",
                 tip.0,
             ));
             checks.push(Check::with_margin(
-                format!("sliding of the feet ({surface}, μ {mu:.2}, common practice)"),
+                format!("sliding ({surface}, μ {mu:.2} common practice)"),
                 slide.1,
                 slide.2,
                 "N",

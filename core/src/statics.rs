@@ -174,7 +174,7 @@ mod tests {
         // 4000/1.2 − 150 = 3333.33 − 150 = 3183.33 N.
         assert_relative_eq!(
             anchor_bolt_tension_n(1000.0, 600.0, 4, 0.3).unwrap(),
-            3183.333_333,
+            3_183.333_333,
             max_relative = 1e-9
         );
         // Equal to the linear foot distribution with the bolts as feet (4 on the circle), bolt on
@@ -189,7 +189,7 @@ mod tests {
         let rs = foot_reactions(&feet, 600.0, [1000.0, 0.0]).unwrap();
         let t = -rs.iter().cloned().fold(f64::INFINITY, f64::min);
         // Extreme bolt at r = D/2: M r / Σ r² − W/n = M/(2r) − W/4 = 4M/(4D) − W/4.
-        assert_relative_eq!(t, 3183.333_333, max_relative = 1e-9);
+        assert_relative_eq!(t, 3_183.333_333, max_relative = 1e-9);
         assert!(anchor_bolt_tension_n(1.0, 1.0, 2, 0.3).unwrap_err().to_string().contains("anchor_count"));
     }
 
