@@ -44,21 +44,33 @@ def total_mass_kg(model):
 
 def test_leg_stress_and_euler_by_hand():
     m = stillsky.Model.from_toml_str(tall_rig_text(), "tall-rig.toml")
-    rep = stillsky.static_checks(m, design_wind_m_s=5.0, gust_factor=1.5)
+    # Still air: the foot reactions come from the weight at the centre of gravity alone.
+    rep = stillsky.static_checks(m, design_wind_m_s=0.0, gust_factor=1.5)
     by_name = {c["name"].split(" (")[0]: c for c in rep}
-    st, bk = by_name["leg axial stress"], by_name["leg buckling"]
-    # Leg load N = W / (n cos θ) (statics of a symmetric tripod, docs/references.md#s9).
-    load = total_mass_kg(m) * G / (3 * math.cos(math.radians(SPLAY)))
-    assert bk["value"] == pytest.approx(load, rel=1e-9)
+    st, bk = by_name["leeward leg axial stress"], by_name["leeward leg buckling"]
+    cg_note = next(n for n in rep.notes if n.startswith("mass above the feet"))
+    mass, cx, cy = (float(v) for v in re.search(r"([\d.]+) kg, centre of gravity \(([-\d.]+), ([-\d.]+),", cg_note).groups())
+    # The mass above the feet is the model's rigid-body mass.
+    assert mass == pytest.approx(total_mass_kg(m), abs=0.05)
+    # Statics of a tripod, feet at azimuths 0°, 120°, 240° on a circle of radius R: R_i = W/3 +
+    # W (c·p_i) / (3R²/2) (three equations, three unknowns); leg load N = R_max / cos θ.
+    toml = tall_rig_text()
+    radius = float(re.search(r"head_radius_m = ([\d.]+)", toml).group(1)) + LEG_L * math.sin(math.radians(SPLAY))
+    w = total_mass_kg(m) * G
+    feet = [(radius * math.sin(math.radians(a)), radius * math.cos(math.radians(a))) for a in (0.0, 120.0, 240.0)]
+    r_max = max(w / 3 + w * (cx * x + cy * y) / (1.5 * radius**2) for x, y in feet)
+    load = r_max / math.cos(math.radians(SPLAY))
+    assert bk["value"] == pytest.approx(load, rel=2e-3)  # the CG is printed to 1 mm
+    assert load >= w / (3 * math.cos(math.radians(SPLAY)))
     # Axial stress N / A, A = π/4 (OD² − ID²) for a tube.
     ID = OD - 2 * WALL
     area = math.pi / 4 * (OD**2 - ID**2)
     # docs/references.md#s9 check value: this tube has A = 0.300333 in², so 40 lbf gives 133.19 psi.
     assert area / IN**2 == pytest.approx(0.300333, rel=2e-6)
     assert 40.0 / (area / IN**2) == pytest.approx(133.19, rel=1e-4)
-    assert st["value"] == pytest.approx(load / area, rel=1e-9)
+    assert st["value"] == pytest.approx(bk["value"] / area, rel=1e-9)
     assert st["limit"] == YIELD and st["unit"] == "Pa"
-    assert st["factor_of_safety"] == pytest.approx(YIELD / (load / area), rel=1e-12)
+    assert st["factor_of_safety"] == pytest.approx(YIELD / (bk["value"] / area), rel=1e-12)
     # Euler load π² E I / (K L)², I = π/64 (OD⁴ − ID⁴), K = 1 (pinned–pinned); KL/r ≈ 143 is
     # above the transition slenderness √(2π²E/σ_y) ≈ 126, so Euler governs.
     I = math.pi / 64 * (OD**4 - ID**4)
@@ -74,7 +86,8 @@ def test_leg_stress_and_euler_by_hand():
     assert rep.min_factor_of_safety == min(c["factor_of_safety"] for c in rep)
     assert len(rep.checks) == len(rep) and rep[-1] == rep.checks[-1]
     s = rep.summary()
-    assert s["design_wind_m_s"] == 5.0 and s["gust_factor"] == 1.5 and len(s["cautions"]) >= 3
+    assert s["design_wind_m_s"] == 0.0 and s["gust_factor"] == 1.5 and len(s["cautions"]) >= 3
+    assert s["top_load_n"] == 22.0 and s["foot_surface"] is None and s["notes"] == rep.notes
 
 
 def test_path_and_model_agree():
@@ -103,5 +116,17 @@ def test_static_checks_bad_inputs(tmp_path):
         stillsky.static_checks(EXAMPLE, design_wind_m_s=-1.0)
     with pytest.raises(TypeError, match="model_or_path"):
         stillsky.static_checks(42)
+    with pytest.raises(stillsky.InvalidInputError, match="rubber-on-paver"):
+        stillsky.static_checks(EXAMPLE, foot_surface="ice")
     with pytest.raises(IndexError):
         stillsky.static_checks(EXAMPLE)[99]
+
+
+def test_sliding_uses_the_surface():
+    # Sliding capacity is μ × the vertical reactions: rubber on a paver (μ 0.6, common practice)
+    # holds twice what the unknown-surface default (μ 0.3) does.
+    slide = lambda rep: next(c for c in rep if c["name"].startswith("sliding"))
+    a = slide(stillsky.static_checks(EXAMPLE, foot_surface="rubber-on-paver"))
+    b = slide(stillsky.static_checks(EXAMPLE))
+    assert a["limit"] / b["limit"] == pytest.approx(2.0, rel=1e-12)
+    assert a["value"] == b["value"]

@@ -596,6 +596,9 @@ fn checks_html(wind: &StaticWind, c: &CheckReport) -> String {
         &["check", "demand", "capacity", "unit", "factor of safety", "verdict"],
         &rows,
     ));
+    if !c.notes.is_empty() {
+        o.push_str(&list("notes", &c.notes));
+    }
     let cautions: Vec<String> = c.cautions().iter().map(|s| s.to_string()).collect();
     o.push_str(&list("cautions", &cautions));
     o

@@ -56,6 +56,12 @@ enum Cmd {
         /// Factor on the mean drag for gusts.
         #[arg(long, default_value_t = 2.0)]
         gust_factor: f64,
+        /// Horizontal load at a pier's top, acting with the wind (N).
+        #[arg(long, default_value_t = stillsky::pier_table::DEFAULT_LOAD_N)]
+        top_load_n: f64,
+        /// Foot and surface for the sliding check (overrides tripod.foot_surface), e.g. rubber-on-paver.
+        #[arg(long)]
+        foot_surface: Option<String>,
     },
     /// Fit model-file numbers (dotted paths) to measured modes; writes the fitted model file.
     Calibrate(CalibrateArgs),
@@ -449,7 +455,10 @@ fn main() -> ExitCode {
         Cmd::PierTable(a) => pier_table(&a),
         Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
         Cmd::Transfer(a) => transfer(&a),
-        Cmd::Check { model, design_wind_m_s, gust_factor } => check(&model, design_wind_m_s, gust_factor),
+        Cmd::Check { model, design_wind_m_s, gust_factor, top_load_n, foot_surface } => {
+            let options = stillsky::checks::StaticOptions { top_load_n, foot_surface };
+            check(&model, design_wind_m_s, gust_factor, &options)
+        }
     };
     match r {
         Ok(()) => ExitCode::SUCCESS,
@@ -633,7 +642,7 @@ fn run_report(
     let mut checks = None;
     if file.rig.tripod.is_some() || file.rig.pier.is_some() {
         let wind = StaticWind::default();
-        let c = stillsky::checks::rig_checks(&file, &wind)?;
+        let c = stillsky::checks::rig_checks(&file, &wind, &Default::default())?;
         print!("{}", print::checks_text(&wind, &c));
         checks = Some((wind, c));
     }
@@ -1013,10 +1022,15 @@ fn pier_table(a: &PierTableArgs) -> CliResult {
     Ok(())
 }
 
-fn check(model: &Path, speed_m_s: f64, gust_factor: f64) -> CliResult {
+fn check(
+    model: &Path,
+    speed_m_s: f64,
+    gust_factor: f64,
+    options: &stillsky::checks::StaticOptions,
+) -> CliResult {
     let file = ModelFile::read(model)?;
     let wind = stillsky::checks::StaticWind { speed_m_s, gust_factor, ..Default::default() };
-    let c = stillsky::checks::rig_checks(&file, &wind)?;
+    let c = stillsky::checks::rig_checks(&file, &wind, options)?;
     println!("== static checks: {} ==", model.display());
     print!("{}", print::checks_text(&wind, &c));
     if c.verdict() == stillsky::checks::Verdict::Fail {

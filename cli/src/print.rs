@@ -325,6 +325,9 @@ pub fn checks_text(wind: &stillsky::checks::StaticWind, r: &stillsky::checks::Ch
             c.name, c.value, c.limit, c.unit, c.margin, c.verdict
         );
     }
+    for n in &r.notes {
+        let _ = writeln!(o, "  note: {n}");
+    }
     let _ = writeln!(o, "  overall: {:?}", r.verdict());
     for line in r.cautions() {
         let _ = writeln!(o, "  CAUTION: {line}");

@@ -109,6 +109,9 @@ impl Check {
 pub struct CheckReport {
     /// The checks, in the order they were made.
     pub checks: Vec<Check>,
+    /// Figures without a capacity to compare with, and checks skipped for want of input.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notes: Vec<String>,
 }
 
 impl CheckReport {
@@ -604,7 +607,7 @@ impl Pier {
         if let Some(lim) = max_top_deflection_m {
             checks.push(Check::new("pier top deflection", self.top_deflection_m, lim, "m"));
         }
-        CheckReport { checks }
+        CheckReport { checks, notes: Vec::new() }
     }
 }
 
@@ -917,32 +920,179 @@ pub fn total_mass_kg(spec: &crate::assembly::ModelSpec) -> Result<f64> {
     Ok(m)
 }
 
-/// Static checks of a rig-layer model file: tripod legs (axial stress, Euler/Johnson buckling
-/// with pinned–pinned K = 1 over the leg length, since legs are hinged at the head and rest on
-/// their feet) and tipping in the steady wind about the line through two feet (all wind
-/// directions, worst reported), or a pier (base stress, top deflection, fixed-free buckling)
-/// under the wind load at its top. The wind's Σ C_d A and its C_d A-weighted height come from
-/// the model's wind parts (derived from the rig or given in `[wind]`); without them the wind
-/// checks are skipped.
-/// Print [`CAUTIONS`] with the result.
-pub fn rig_checks(file: &crate::schema::ModelFile, wind: &StaticWind) -> Result<CheckReport> {
+/// Further inputs of [`rig_checks`] besides the wind.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct StaticOptions {
+    /// Horizontal load at the pier top, acting with the wind (N; default
+    /// [`crate::pier_table::DEFAULT_LOAD_N`], common practice, no source).
+    pub top_load_n: f64,
+    /// Foot surface for the sliding check, overriding the file's `tripod.foot_surface`.
+    pub foot_surface: Option<String>,
+}
+
+impl Default for StaticOptions {
+    fn default() -> Self {
+        StaticOptions { top_load_n: crate::pier_table::DEFAULT_LOAD_N, foot_surface: None }
+    }
+}
+
+/// Wind directions sampled by [`rig_checks`] (every 1°).
+pub const WIND_DIRECTIONS: usize = 360;
+
+/// The wind's resultant for one direction per unit ½ρ·G·U² scale (at U = 1 m/s, G = 1), about
+/// the origin: force and moment of the loads on the model, and the force that goes straight
+/// into the ground (halves of legs ending on it).
+struct WindCase {
+    from_deg: f64,
+    force: [f64; 3],
+    moment: [f64; 3],
+    ground_force: [f64; 3],
+}
+
+fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]]
+}
+
+/// The resultant of a wind load's parts at U = 1 m/s. A pier column's two end parts are
+/// replaced by its whole side load at mid-height (`column_mid_z`), so its base moment is exact
+/// also where the lower half stands on rigid ground; upper halves of legs whose lower end is
+/// on the ground add their twin to `ground_force`.
+fn wind_case(
+    w: &crate::assembly::WindLoadSpec,
+    rho: f64,
+    from_deg: f64,
+    column_mid_z: Option<f64>,
+) -> Result<WindCase> {
+    let parts = w.parts()?;
+    let q = 0.5 * rho;
+    let (mut force, mut moment, mut ground_force) = ([0.0; 3], [0.0; 3], [0.0; 3]);
+    let mut add = |at: [f64; 3], f: [f64; 3], ground: bool| {
+        let m = cross(at, f);
+        for k in 0..3 {
+            if ground {
+                ground_force[k] += f[k];
+            } else {
+                force[k] += f[k];
+                moment[k] += m[k];
+            }
+        }
+    };
+    for p in &parts {
+        let f = p.direction.map(|d| q * p.drag_coefficient * p.area_m2 * d);
+        if let (Some(z), true) = (column_mid_z, p.name.starts_with("pier column")) {
+            if p.name.ends_with("(upper end)") {
+                let at = [p.centre_of_pressure_m[0], p.centre_of_pressure_m[1], z];
+                add(at, f.map(|v| 2.0 * v), false);
+            }
+            continue;
+        }
+        add(p.centre_of_pressure_m, f, false);
+        if let Some(stem) = p.name.strip_suffix(" (upper end)")
+            && p.name.starts_with("leg ")
+            && !parts.iter().any(|o| o.name == format!("{stem} (lower end)"))
+        {
+            add(p.centre_of_pressure_m, f, true);
+        }
+    }
+    Ok(WindCase { from_deg, force, moment, ground_force })
+}
+
+/// The wind resultant for every sampled direction: the rig layer re-derives the parts for each
+/// azimuth; a wind given in the generic layer is turned about the vertical axis.
+fn wind_cases(
+    file: &crate::schema::ModelFile,
+    spec: &crate::assembly::ModelSpec,
+    rho: f64,
+    column_mid_z: Option<f64>,
+) -> Result<Vec<WindCase>> {
+    let Some(w) = spec.wind.as_ref() else { return Ok(Vec::new()) };
+    let step = 360.0 / WIND_DIRECTIONS as f64;
+    if file.generic.wind.is_some() {
+        let base = wind_case(w, rho, w.from_azimuth_deg.unwrap_or(0.0), column_mid_z)?;
+        let rot = |v: [f64; 3], a: f64| {
+            let (s, c) = a.sin_cos();
+            // Turning the wind's "from" azimuth by +a turns the loads clockwise seen from above.
+            [c * v[0] + s * v[1], -s * v[0] + c * v[1], v[2]]
+        };
+        return Ok((0..WIND_DIRECTIONS)
+            .map(|i| {
+                let a = (i as f64 * step).to_radians();
+                WindCase {
+                    from_deg: (base.from_deg + i as f64 * step).rem_euclid(360.0),
+                    force: rot(base.force, a),
+                    moment: rot(base.moment, a),
+                    ground_force: rot(base.ground_force, a),
+                }
+            })
+            .collect());
+    }
+    let mut f = file.clone();
+    let mut out = Vec::with_capacity(WIND_DIRECTIONS);
+    for i in 0..WIND_DIRECTIONS {
+        let az = i as f64 * step;
+        let mut wl = f.rig.wind_load.clone().unwrap_or_default();
+        wl.from_azimuth_deg = Some(az);
+        f.rig.wind_load = Some(wl);
+        let s = f.expanded()?;
+        if let Some(w) = s.wind.as_ref() {
+            out.push(wind_case(w, rho, az, column_mid_z)?);
+        }
+    }
+    Ok(out)
+}
+
+fn material_or(name: &str, preset: &Option<String>, props: &Option<Material>) -> Result<Material> {
+    match (preset, props) {
+        (Some(n), None) => Material::preset(n),
+        (None, Some(m)) => Ok(m.clone()),
+        _ => Err(Error::invalid(name, "give a preset name or the explicit properties")),
+    }
+}
+
+/// Static checks of a rig-layer model file.
+///
+/// The weight acts at the real centre of gravity of everything above the feet (or the pier
+/// base; [`crate::statics::centre_of_gravity`]). The design wind is the resultant of the
+/// model's wind parts (force and moment, [`WIND_DIRECTIONS`] directions, each re-derived from
+/// the rig; not the Σ C_d A upper bound) times the gust factor.
+///
+/// Tripod: vertical foot reactions from statics ([`crate::statics::foot_reactions`]); legs
+/// hinged at head and foot, so a leg's axial force is its foot's vertical reaction / cos(splay)
+/// and the feet carry vertical and friction loads. Leg stress and pinned–pinned buckling
+/// (K = 1) use the worst leeward leg. Tipping about the line through two adjacent feet (moments
+/// of the wind resultant about that line against the weight's). Sliding: horizontal wind force
+/// against μ × Σ vertical reactions (a note when hinged legs without a spreader would need
+/// μ ≥ tan splay to stay put).
+///
+/// Pier: base moment from the wind resultant plus `options.top_load_n` at the top (in the
+/// wind's direction); base stress and fixed-free buckling; anchor-bolt tension
+/// ([`crate::statics::anchor_bolt_tension_n`]) when the anchors are given; overturning of the
+/// footing block about its edge when it stands on soil (passive earth pressure ignored).
+///
+/// Without wind parts the wind checks are skipped. Print [`CAUTIONS`] with the result.
+pub fn rig_checks(
+    file: &crate::schema::ModelFile,
+    wind: &StaticWind,
+    options: &StaticOptions,
+) -> Result<CheckReport> {
+    use crate::statics::{
+        anchor_bolt_tension_n, centre_of_gravity, foot_friction_coefficient, foot_reactions,
+    };
     require_non_negative("wind speed_m_s", wind.speed_m_s)?;
     require_positive("wind gust_factor", wind.gust_factor)?;
     require_positive("air_density_kg_m3", wind.air_density_kg_m3)?;
+    require_non_negative("top_load_n", options.top_load_n)?;
     let spec = file.expanded()?;
-    let total = total_mass_kg(&spec)?;
-    let weight = total * STANDARD_GRAVITY;
-    // The wind's parts summed as Σ C_d A (an upper bound on the resultant's size, for every
-    // direction), acting at their C_d A-weighted height.
-    let load = match spec.wind.as_ref() {
-        Some(w) => Some((w.drag_area_m2()?, w.load_height_m()?)),
-        None => None,
-    };
-    let wind_force = match load {
-        Some((cda, _)) => wind_force_n(wind.air_density_kg_m3, 1.0, cda, wind.speed_m_s, wind.gust_factor)?,
-        None => 0.0,
-    };
+    let floor_name = file.rig.floor.as_ref().and_then(|f| f.name.clone()).unwrap_or_else(|| "floor".into());
+    let exclude = ["footing", floor_name.as_str()];
+    let (mass, cg) = centre_of_gravity(&spec, &exclude)?;
+    let weight = mass * STANDARD_GRAVITY;
+    let scale = wind.gust_factor * wind.speed_m_s * wind.speed_m_s;
     let mut checks = Vec::new();
+    let mut notes = vec![format!(
+        "mass above the feet or pier base {mass:.1} kg, centre of gravity ({:.3}, {:.3}, {:.3}) m (east, north, up)",
+        cg[0], cg[1], cg[2]
+    )];
     if let Some(t) = &file.rig.tripod {
         let g = t.geometry()?;
         let n = t.legs.unwrap_or(3);
@@ -950,64 +1100,421 @@ pub fn rig_checks(file: &crate::schema::ModelFile, wind: &StaticWind) -> Result<
             .leg_section
             .clone()
             .ok_or_else(|| Error::invalid("tripod.leg_section", "is required for static checks"))?;
-        let material = match (&t.leg_material, &t.leg_material_properties) {
-            (Some(name), None) => Material::preset(name)?,
-            (None, Some(m)) => m.clone(),
-            _ => {
-                return Err(Error::invalid(
-                    "tripod.leg_material",
-                    "give a preset name or leg_material_properties",
-                ));
-            }
+        let material = material_or("tripod.leg_material", &t.leg_material, &t.leg_material_properties)?;
+        let surface = options
+            .foot_surface
+            .clone()
+            .or_else(|| t.foot_surface.clone())
+            .unwrap_or_else(|| crate::statics::DEFAULT_FOOT_SURFACE.to_string());
+        let mu = foot_friction_coefficient(&surface)?;
+        // The support surface: the lower end of leg 1.
+        let z0 = spec
+            .springs
+            .iter()
+            .find(|s| s.name == "leg1")
+            .and_then(|s| s.to_at_m)
+            .or_else(|| spec.beams.iter().find(|b| b.name == "leg1").map(|b| b.to_at_m))
+            .map_or(0.0, |p| p[2]);
+        let phi0 = t.first_leg_azimuth_deg.unwrap_or(0.0);
+        let feet: Vec<[f64; 2]> = (0..n)
+            .map(|i| {
+                let a = (phi0 + 360.0 * i as f64 / n as f64).to_radians();
+                [g.foot_radius_m * a.sin(), g.foot_radius_m * a.cos()]
+            })
+            .collect();
+        let cases = wind_cases(file, &spec, wind.air_density_kg_m3, None)?;
+        let weight_moment = [-weight * cg[1], weight * cg[0]];
+        // Foot reactions under a load case (force and moment about the origin, already scaled).
+        let reactions = |f: [f64; 3], m: [f64; 3]| {
+            let mx = m[0] + z0 * f[1] + weight_moment[0];
+            let my = m[1] - z0 * f[0] + weight_moment[1];
+            foot_reactions(&feet, weight - f[2], [mx, my])
         };
-        let leg_n = leg_axial_load_n(weight, n, g.splay_rad)?;
+        let still = reactions([0.0; 3], [0.0; 3])?;
+        let mut lee = (still.iter().cloned().fold(f64::NEG_INFINITY, f64::max), f64::NAN);
+        let mut windward = (still.iter().cloned().fold(f64::INFINITY, f64::min), f64::NAN);
+        let d = g.foot_radius_m * (PI / n as f64).cos();
+        // Tipping: (factor of safety, tipping speed, direction, overturning, restoring).
+        let mut tip = (f64::INFINITY, f64::INFINITY, f64::NAN, 0.0, 0.0);
+        // Sliding: (factor of safety, horizontal force, capacity).
+        let mut slide = (f64::INFINITY, 0.0, mu * weight);
+        for c in &cases {
+            let f = c.force.map(|v| v * scale);
+            let m = c.moment.map(|v| v * scale);
+            let r = reactions(f, m)?;
+            let (rmax, rmin) =
+                r.iter().fold((f64::NEG_INFINITY, f64::INFINITY), |a, &x| (a.0.max(x), a.1.min(x)));
+            if rmax > lee.0 {
+                lee = (rmax, c.from_deg);
+            }
+            if rmin < windward.0 {
+                windward = (rmin, c.from_deg);
+            }
+            for k in 0..n {
+                let az = (phi0 + 360.0 * (k as f64 + 0.5) / n as f64).to_radians();
+                let nh = [az.sin(), az.cos()];
+                let p = [feet[k][0], feet[k][1], z0];
+                // Moment per unit scale about foot k, component along ẑ × n̂ (tipping outward
+                // over the edge).
+                let pf = cross(p, c.force);
+                let mp = [c.moment[0] - pf[0], c.moment[1] - pf[1]];
+                let ot1 = -nh[1] * mp[0] + nh[0] * mp[1];
+                let restoring = weight * (d - (cg[0] * nh[0] + cg[1] * nh[1]));
+                let (fos, u_tip) = if restoring <= 0.0 {
+                    (0.0, 0.0)
+                } else if ot1 > 0.0 {
+                    let fos = if scale > 0.0 { restoring / (ot1 * scale) } else { f64::INFINITY };
+                    (fos, (restoring / (ot1 * wind.gust_factor)).sqrt())
+                } else {
+                    (f64::INFINITY, f64::INFINITY)
+                };
+                if u_tip < tip.1 {
+                    tip = (fos, u_tip, c.from_deg, ot1 * scale, restoring);
+                }
+            }
+            let fh = (f[0] + c.ground_force[0] * scale).hypot(f[1] + c.ground_force[1] * scale);
+            let cap = mu * (weight - f[2] - c.ground_force[2] * scale).max(0.0);
+            let fos = if fh > 0.0 { cap / fh } else { f64::INFINITY };
+            if fos < slide.0 {
+                slide = (fos, fh, cap);
+            }
+        }
+        let cos = g.splay_rad.cos();
+        let leg_n = lee.0.max(0.0) / cos;
         let st = axial_stress(leg_n, &section, &material)?;
-        checks.push(Check::new("leg axial stress", st.stress_pa, material.yield_strength_pa, "Pa"));
+        let at = |a: f64| if a.is_nan() { "still air".to_string() } else { format!("wind from {a:.0}°") };
+        checks.push(Check::new(
+            format!("leeward leg axial stress ({}, {leg_n:.0} N)", at(lee.1)),
+            st.stress_pa,
+            material.yield_strength_pa,
+            "Pa",
+        ));
         let b =
             buckling(&section, &material, g.leg_length_m, EndCondition::PinnedPinned.k_theoretical(), leg_n)?;
-        checks.push(b.check("leg buckling (pinned-pinned, K = 1)"));
-        if let Some((cda, z)) = load {
-            let input = TippingInput {
-                n_feet: n,
-                foot_radius_m: g.foot_radius_m,
-                first_foot_azimuth_deg: t.first_leg_azimuth_deg.unwrap_or(0.0),
-                weight_n: weight,
-                cg_offset_m: [0.0, 0.0],
-                pressure_height_m: z.max(1e-3),
-                drag_coefficient: 1.0,
-                area_m2: cda,
-                air_density_kg_m3: wind.air_density_kg_m3,
-                gust_factor: wind.gust_factor,
-            };
-            let tip = tipping_worst_direction(&input, wind.speed_m_s)?;
-            checks.push(tip.check(&format!(
-                "tipping at {:.1} m/s × gust {:.2} (tips at {:.1} m/s mean)",
-                wind.speed_m_s, wind.gust_factor, tip.tipping_wind_speed_m_s
-            )));
+        checks.push(b.check("leeward leg buckling (pinned-pinned, K = 1)"));
+        notes.push(format!(
+            "foot reactions: leeward {:.0} N, windward {:.0} N ({}); leg axial force = reaction / cos(splay {:.1}°), legs hinged, feet carry vertical and friction loads",
+            lee.0,
+            windward.0,
+            at(windward.1),
+            g.splay_rad.to_degrees()
+        ));
+        if windward.0 < 0.0 {
+            notes.push(if n == 3 {
+                format!("uplift: the windward feet leave the ground ({}): the rig tips", at(windward.1))
+            } else {
+                format!(
+                    "uplift: a windward foot leaves the ground ({}); with {n} legs the loads then shift to fewer feet than the linear split assumes",
+                    at(windward.1)
+                )
+            });
+        }
+        if !cases.is_empty() {
+            checks.push(Check::with_margin(
+                format!("tipping (worst wind from {:.0}°, tips at {:.1} m/s mean)", tip.2, tip.1),
+                tip.3,
+                tip.4,
+                "N m",
+                tip.0,
+            ));
+            checks.push(Check::with_margin(
+                format!("sliding ({surface}, μ {mu:.2} common practice)"),
+                slide.1,
+                slide.2,
+                "N",
+                slide.0,
+            ));
+        } else {
+            notes.push("no wind parts: tipping and sliding not checked".into());
+        }
+        if t.spreader_stiffness_n_per_m.is_none() && g.splay_rad.tan() > mu {
+            notes.push(format!(
+                "no spreader: legs free to turn in their hinges push each foot outward with tan(splay) × its reaction; that needs μ ≥ {:.2} (here {mu:.2}); leg stops or a spreader take it",
+                g.splay_rad.tan()
+            ));
         }
     }
     if let Some(p) = &file.rig.pier {
         let section = p.section.clone().ok_or_else(|| Error::invalid("pier.section", "is required"))?;
-        let material = match (&p.material, &p.material_properties) {
-            (Some(name), None) => Material::preset(name)?,
-            (None, Some(m)) => m.clone(),
-            _ => return Err(Error::invalid("pier.material", "give a preset name or material_properties")),
-        };
+        let material = material_or("pier.material", &p.material, &p.material_properties)?;
         let h = p.height_m.ok_or_else(|| Error::invalid("pier.height_m", "is required"))?;
-        // Everything but the pier column and its footing sits on top.
+        let base_z = spec.beams.iter().find(|b| b.name == "pier").map_or(0.0, |b| b.from_at_m[2]);
         let pier_mass =
-            (material.density_kg_m3 * section.area_m2() + p.added_mass_kg_per_m.unwrap_or(0.0)) * h;
-        let footing_mass: f64 =
-            spec.bodies.iter().filter(|b| b.name.contains("footing")).map(|b| b.mass_kg).sum();
-        let top = (total - pier_mass - footing_mass).max(0.0);
-        let r = pier(&section, &material, h, top, wind_force)?;
+            spec.beams.iter().filter(|b| b.name == "pier").map(|b| b.added_mass_kg_per_m * h).sum::<f64>()
+                + material.density_kg_m3 * section.area_m2() * h;
+        let top = (mass - pier_mass).max(0.0);
+        let cases = wind_cases(file, &spec, wind.air_density_kg_m3, Some(base_z + h / 2.0))?;
+        let top_load = options.top_load_n;
+        let footing = spec.bodies.iter().find(|b| b.name == "footing").map(|b| (b.mass_kg, b.cg_m[2] * 2.0));
+        // Base moment (about the pier base) and overturning about the footing's underside, worst
+        // direction; the top load acts along the wind's horizontal force.
+        let (mut m_base, mut base_dir, mut m_foot) = (top_load * h, f64::NAN, top_load * (base_z + h));
+        let moment_with_top = |c: &WindCase, z: f64| {
+            let f = c.force.map(|v| v * scale);
+            let m = c.moment.map(|v| v * scale);
+            let (mx, my) = (m[0] + z * f[1], m[1] - z * f[0]);
+            let fh = f[0].hypot(f[1]);
+            let u = if fh > 0.0 {
+                [f[0] / fh, f[1] / fh]
+            } else {
+                let a = (c.from_deg + 180.0).to_radians();
+                [a.sin(), a.cos()]
+            };
+            let lever = base_z + h - z;
+            (mx - lever * top_load * u[1]).hypot(my + lever * top_load * u[0])
+        };
+        for c in &cases {
+            let mb = moment_with_top(c, base_z);
+            if mb > m_base {
+                m_base = mb;
+                base_dir = c.from_deg;
+            }
+            if footing.is_some() {
+                m_foot = m_foot.max(moment_with_top(c, base_z - footing.map_or(0.0, |f| f.1)));
+            }
+        }
+        // The pier check takes a top force; the one with the same base moment (its top
+        // deflection is then an upper bound).
+        let r = pier(&section, &material, h, top, m_base / h)?;
         checks.extend(r.report(&material, None).checks);
+        notes.push(format!(
+            "pier base moment {m_base:.0} N m (wind{} plus {top_load:.0} N at the top, common practice, no source)",
+            if base_dir.is_nan() { String::new() } else { format!(" from {base_dir:.0}°") }
+        ));
+        match (p.anchor_count, p.anchor_circle_diameter_m) {
+            (Some(nb), Some(db)) => {
+                let t = anchor_bolt_tension_n(m_base, weight, nb, db)?;
+                match p.anchor_tension_capacity_n {
+                    Some(cap) => {
+                        let cap = require_positive("pier.anchor_tension_capacity_n", cap)?;
+                        checks.push(Check::new(
+                            format!("anchor bolt tension ({nb} on {:.0} mm circle, bolt group 4M/(nD) − W/n)", db * 1e3),
+                            t.max(0.0),
+                            cap,
+                            "N",
+                        ));
+                    }
+                    None => notes.push(format!(
+                        "anchor bolt tension {:.0} N per bolt ({nb} on {:.0} mm circle, 4M/(nD) − W/n); no anchor_tension_capacity_n given: compare with the bolt's and the embedment's rated tension",
+                        t.max(0.0),
+                        db * 1e3
+                    )),
+                }
+            }
+            (None, None) => {
+                notes.push("no anchor_count / anchor_circle_diameter_m: anchor tension not checked".into())
+            }
+            (None, Some(_)) => {
+                return Err(Error::invalid("pier.anchor_count", "is required with anchor_circle_diameter_m"));
+            }
+            (Some(_), None) => {
+                return Err(Error::invalid("pier.anchor_circle_diameter_m", "is required with anchor_count"));
+            }
+        }
+        if let (Some((fm, _)), Some(f)) = (footing, p.footing.as_ref()) {
+            let edge = f.diameter_m.or(f.side_m).unwrap_or(0.0) / 2.0;
+            let stabilising = (weight + fm * STANDARD_GRAVITY) * edge;
+            checks.push(Check::new(
+                "footing overturning about its edge (no earth pressure)",
+                m_foot,
+                stabilising,
+                "N m",
+            ));
+        }
     }
-    if checks.is_empty() {
+    if file.rig.tripod.is_none() && file.rig.pier.is_none() {
         return Err(Error::invalid(
             "model",
             "static checks need a [tripod] or [pier] section in the rig layer",
         ));
     }
-    Ok(CheckReport { checks })
+    Ok(CheckReport { checks, notes })
+}
+
+#[cfg(test)]
+mod rig_tests {
+    use super::*;
+    use crate::schema::ModelFile;
+    use approx::assert_relative_eq;
+
+    /// A mount (20 kg, CG 0.1 m above its base) on a stand, with one generic wind part of
+    /// C_d A = 1.2 × 0.25 = 0.3 m² at z = 1.5 m (invented).
+    fn rig(stand: &str) -> ModelFile {
+        let text = format!(
+            r#"
+[mount]
+mass_kg = 20.0
+inertia_kgm2 = [0.3, 0.3, 0.2]
+pivot_height_m = 0.3
+cg_height_m = 0.1
+tilt_stiffness_nm_per_rad = 2.0e4
+yaw_stiffness_nm_per_rad = 1.0e4
+{stand}
+[wind]
+body = "mount"
+centre_of_pressure_m = [0.0, 0.0, 1.5]
+direction = [1.0, 0.0, 0.0]
+area_m2 = 0.25
+drag_coefficient = 1.2
+"#
+        );
+        ModelFile::parse(&text, "test.toml").unwrap()
+    }
+
+    const TRIPOD: &str = r#"
+[tripod]
+head_radius_m = 0.1
+foot_radius_m = 0.6
+height_m = 1.0
+leg_section = { shape = "tube", outer_diameter_m = 0.03, wall_m = 0.002 }
+leg_material = "steel-s235"
+leg_mass_kg = 1e-9
+foot_surface = "rubber-on-paver"
+[ground]
+kind = "rigid"
+"#;
+
+    fn line<'a>(r: &'a CheckReport, start: &str) -> &'a Check {
+        r.checks.iter().find(|c| c.name.starts_with(start)).unwrap_or_else(|| panic!("{start}: {r:?}"))
+    }
+
+    #[test]
+    fn sliding_threshold_and_leeward_leg() {
+        let f = rig(TRIPOD);
+        let calm = StaticWind { speed_m_s: 0.0, gust_factor: 1.0, air_density_kg_m3: 1.225 };
+        let r = rig_checks(&f, &calm, &StaticOptions::default()).unwrap();
+        // Still air, CG on the axis (mount only, massless legs): leg force W/(3 cos θ),
+        // tan θ = 0.5/1.0 (docs/references.md#s9 leg load).
+        let w = 20.0 * STANDARD_GRAVITY;
+        let cos = 1.0 / 1.25f64.sqrt();
+        let b = line(&r, "leeward leg buckling");
+        assert_relative_eq!(b.value, w / (3.0 * cos), max_relative = 1e-6);
+        // Sliding on rubber/paver (μ 0.6, common practice): the feet slide when
+        // ½ ρ U² G C_d A = μ W → U² = 0.6 × 196.133 / (0.5 × 1.225 × 0.3) = 640.43, U = 25.307 m/s.
+        let u_slide = (0.6 * w / (0.5 * 1.225 * 0.3)).sqrt();
+        assert_relative_eq!(u_slide, 25.307, max_relative = 1e-4);
+        let at = |u: f64| {
+            let wind = StaticWind { speed_m_s: u, ..calm };
+            rig_checks(&f, &wind, &StaticOptions::default()).unwrap()
+        };
+        let s = at(u_slide);
+        assert_relative_eq!(line(&s, "sliding").margin, 1.0, max_relative = 1e-9);
+        assert_eq!(line(&at(0.99 * u_slide), "sliding").verdict, Verdict::Marginal);
+        assert_eq!(line(&at(1.01 * u_slide), "sliding").verdict, Verdict::Fail);
+        // A named surface override, and an unknown one.
+        let opt = StaticOptions { foot_surface: Some("steel-on-concrete".into()), ..Default::default() };
+        let s2 = rig_checks(&f, &StaticWind { speed_m_s: u_slide, ..calm }, &opt).unwrap();
+        assert_relative_eq!(line(&s2, "sliding").margin, 0.4 / 0.6, max_relative = 1e-9);
+        let bad = StaticOptions { foot_surface: Some("ice".into()), ..Default::default() };
+        assert!(matches!(rig_checks(&f, &calm, &bad), Err(Error::UnknownName { .. })));
+        // At 10 m/s: F = 0.5 × 1.225 × 100 × 0.3 = 18.375 N at 1.5 m, M = 27.5625 N m. Worst
+        // leeward foot: wind toward it (R_f = 0.6 m): R = W/3 + M/(1.5 R_f) = 65.378 + 30.625.
+        let r10 = at(10.0);
+        let r_lee = w / 3.0 + 27.5625 / (1.5 * 0.6);
+        assert_relative_eq!(line(&r10, "leeward leg buckling").value, r_lee / cos, max_relative = 1e-9);
+        // Tipping about the edge facing the wind: lever R_f/2 = 0.3 m, W × 0.3 = F_tip × 1.5 →
+        // U_tip² = 0.2 W / (0.5 × 1.225 × 0.3).
+        let u_tip = (0.2 * w / (0.5 * 1.225 * 0.3)).sqrt();
+        let tip = line(&r10, "tipping");
+        assert_relative_eq!(tip.margin, (u_tip / 10.0).powi(2), max_relative = 1e-9);
+        assert!(tip.name.contains(&format!("{u_tip:.1} m/s")), "{}", tip.name);
+        assert!(r10.notes.iter().any(|n| n.contains("1.100) m (east, north, up)")), "{:?}", r10.notes);
+        // Beyond the tipping speed the windward feet lift: said in the notes.
+        let r_storm = at(1.1 * u_tip);
+        assert!(r_storm.notes.iter().any(|n| n.contains("uplift")), "{:?}", r_storm.notes);
+    }
+
+    #[test]
+    fn pier_base_moment_and_anchors() {
+        let stand = r#"
+[pier]
+section = { shape = "tube", outer_diameter_m = 0.1683, wall_m = 0.005 }
+material = "steel-s235"
+height_m = 1.2
+anchor_count = 4
+anchor_circle_diameter_m = 0.3
+[ground]
+kind = "rigid"
+"#;
+        let f = rig(stand);
+        let wind = StaticWind { speed_m_s: 10.0, gust_factor: 2.0, air_density_kg_m3: 1.225 };
+        let r = rig_checks(&f, &wind, &StaticOptions::default()).unwrap();
+        // Wind part: F = 2 × 0.5 × 1.225 × 100 × 0.3 = 36.75 N at 1.5 m above the base (z = 0);
+        // top load 22 N at 1.2 m: M = 55.125 + 26.4 = 81.525 N m. (The given [wind] replaces the
+        // derived parts, so the column itself takes no wind here.)
+        let m = 36.75 * 1.5 + 22.0 * 1.2;
+        assert!(r.notes.iter().any(|n| n.contains(&format!("base moment {m:.0} N m"))), "{:?}", r.notes);
+        let s = Section::Tube { outer_diameter_m: 0.1683, wall_m: 0.005 };
+        let col = 7850.0 * s.area_m2() * 1.2;
+        let stress = line(&r, "pier base stress");
+        let w = (20.0 + col) * STANDARD_GRAVITY;
+        assert_relative_eq!(
+            stress.value,
+            w / s.area_m2() + m / section_modulus_min_m3(&s).unwrap(),
+            max_relative = 1e-9
+        );
+        // Anchors: T = 4M/(nD) − W/n (bolt group); no capacity given → a note.
+        assert!(
+            r.notes
+                .iter()
+                .any(|n| n.contains("anchor bolt tension") && n.contains("no anchor_tension_capacity_n"))
+        );
+        // With a capacity it is a check.
+        let mut f2 = f.clone();
+        if let Some(p) = f2.rig.pier.as_mut() {
+            p.anchor_tension_capacity_n = Some(1000.0);
+        }
+        let r2 = rig_checks(&f2, &wind, &StaticOptions::default()).unwrap();
+        let a = line(&r2, "anchor bolt tension");
+        assert_relative_eq!(a.value, anchor_tension(m, w), max_relative = 1e-9);
+        assert_relative_eq!(a.limit, 1000.0);
+        let r2 = rig_checks(&f2, &wind, &StaticOptions { top_load_n: 0.0, ..Default::default() }).unwrap();
+        assert_relative_eq!(
+            line(&r2, "anchor bolt tension").value,
+            anchor_tension(55.125, w),
+            max_relative = 1e-9
+        );
+        // Without anchors: skipped with a note; a half-given anchor is a named error.
+        let mut f3 = f.clone();
+        if let Some(p) = f3.rig.pier.as_mut() {
+            p.anchor_count = None;
+            p.anchor_circle_diameter_m = None;
+        }
+        let r3 = rig_checks(&f3, &wind, &StaticOptions::default()).unwrap();
+        assert!(r3.notes.iter().any(|n| n.contains("anchor tension not checked")));
+        if let Some(p) = f3.rig.pier.as_mut() {
+            p.anchor_count = Some(4);
+        }
+        let e = rig_checks(&f3, &wind, &StaticOptions::default()).unwrap_err().to_string();
+        assert!(e.contains("anchor_circle_diameter_m"), "{e}");
+    }
+
+    fn anchor_tension(m: f64, w: f64) -> f64 {
+        4.0 * m / (4.0 * 0.3) - w / 4.0
+    }
+
+    #[test]
+    fn footing_overturning_by_hand() {
+        // Pier 1.2 m on a 0.8 m square, 0.5 m deep footing (2400 kg/m³ → 768 kg) on soil, no top
+        // load: overturning about the footing's underside (z = 0) = F × 1.5 m against the weight
+        // of everything × side/2 (passive earth pressure ignored).
+        let stand = r#"
+[pier]
+section = { shape = "tube", outer_diameter_m = 0.1683, wall_m = 0.005 }
+material = "steel-s235"
+height_m = 1.2
+footing = { side_m = 0.8, depth_m = 0.5 }
+[ground]
+soil = "lawn"
+"#;
+        let f = rig(stand);
+        let wind = StaticWind { speed_m_s: 10.0, gust_factor: 2.0, air_density_kg_m3: 1.225 };
+        let r = rig_checks(&f, &wind, &StaticOptions { top_load_n: 0.0, ..Default::default() }).unwrap();
+        let o = line(&r, "footing overturning");
+        // The given [wind] part sits at z = 1.5 m in model coordinates (z = 0 the footing base).
+        assert_relative_eq!(o.value, 36.75 * 1.5, max_relative = 1e-9);
+        let s = Section::Tube { outer_diameter_m: 0.1683, wall_m: 0.005 };
+        let total = 20.0 + 7850.0 * s.area_m2() * 1.2 + 2400.0 * 0.8 * 0.8 * 0.5;
+        assert_relative_eq!(o.limit, total * STANDARD_GRAVITY * 0.4, max_relative = 1e-9);
+    }
 }

@@ -85,6 +85,7 @@ pub mod sky;
 pub mod skymap;
 pub mod soil;
 pub mod spectrum;
+pub mod statics;
 pub mod stiffness;
 pub mod surface_waves;
 #[cfg(test)]

@@ -324,7 +324,7 @@ fn demo_rigs_pass_static_checks_and_tip_only_in_strong_wind() {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/examples");
     for name in ["tripod-lawn.toml", "pier.toml"] {
         let f = stillsky::schema::ModelFile::read(&dir.join(name)).unwrap();
-        let r = rig_checks(&f, &StaticWind::default()).unwrap();
+        let r = rig_checks(&f, &StaticWind::default(), &Default::default()).unwrap();
         assert!(!r.checks.is_empty());
         assert!(r.checks[0].margin > 5.0, "{name}: {:?}", r.checks[0]);
         assert!(r.verdict() != Verdict::Fail, "{name}: {r:?}");
@@ -332,6 +332,6 @@ fn demo_rigs_pass_static_checks_and_tip_only_in_strong_wind() {
     // Hurricane wind tips the tripod (a check that can fail).
     let f = stillsky::schema::ModelFile::read(&dir.join("tripod-lawn.toml")).unwrap();
     let storm = StaticWind { speed_m_s: 80.0, gust_factor: 2.0, air_density_kg_m3: 1.225 };
-    let r = rig_checks(&f, &storm).unwrap();
+    let r = rig_checks(&f, &storm, &Default::default()).unwrap();
     assert_eq!(r.verdict(), Verdict::Fail, "{r:?}");
 }

@@ -1018,24 +1018,32 @@ def static_checks(
     design_wind_m_s: float = 10.0,
     gust_factor: float = 2.0,
     air_density_kg_m3: float = 1.225,
+    top_load_n: float = ...,
+    foot_surface: str | None = None,
 ) -> StaticChecks:
-    """Static checks of a rig: leg axial stress and buckling (pinned–pinned, K = 1), tipping in
-    the steady wind about the line through two feet, pier stress and buckling.
+    """Static checks of a rig: the weight at the real centre of gravity and the design wind's
+    resultant (every 1° of direction); tripod foot reactions, leeward-leg axial stress and
+    buckling (pinned–pinned, K = 1), tipping about the line through two feet, sliding of the
+    feet; pier stress and buckling under the base moment, anchor-bolt tension and footing
+    overturning.
 
     Args:
         model_or_path: a rig model file (path) or a ``Model`` built from one.
         design_wind_m_s: mean design wind speed (m/s).
         gust_factor: factor on the mean drag for gusts (dimensionless).
         air_density_kg_m3: ρ (kg/m³).
+        top_load_n: horizontal load at a pier's top with the wind (N; default 22 N, the core's
+            ``pier_table`` default, common practice).
+        foot_surface: foot and surface for sliding (e.g. ``"rubber-on-paver"``), overriding
+            ``tripod.foot_surface``; an unknown name raises ``ValueError`` listing the known ones.
 
     Returns:
         ``StaticChecks``: a sequence of dicts (name, value = demand, limit = capacity, unit,
-        factor_of_safety, verdict "pass" | "marginal" | "fail") and ``cautions``. Estimates
-        only: heavy rigs and piers can injure; follow local building codes and a licensed
-        engineer for piers, footings and observatory structures.
+        factor_of_safety, verdict "pass" | "marginal" | "fail"), ``notes`` and ``cautions``.
+        Estimates only: heavy rigs and piers can injure; follow local building codes and a
+        licensed engineer for piers, footings and observatory structures.
     """
 
-@final
 class StaticChecks:
     def __len__(self) -> int: ...
     def __getitem__(self, i: int, /) -> dict[str, object]: ...
@@ -1046,6 +1054,9 @@ class StaticChecks:
         """The worst verdict."""
     @property
     def min_factor_of_safety(self) -> float: ...
+    @property
+    def notes(self) -> list[str]:
+        """Figures without a capacity and checks skipped for want of input."""
     @property
     def cautions(self) -> str:
         """The cautions that go with every report, one per line."""

@@ -70,6 +70,15 @@ pub struct PierSpec {
     /// What the pier stands on (default ground).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub on: Option<Support>,
+    /// Anchor bolts of the base plate, equally spaced on a circle (static check only) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub anchor_count: Option<usize>,
+    /// ... the bolt circle's diameter (m) ...
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub anchor_circle_diameter_m: Option<f64>,
+    /// ... and the rated tension of one anchor (bolt and embedment, N; optional).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub anchor_tension_capacity_n: Option<f64>,
 }
 
 /// Where a stand (tripod or pier) starts: carrier name and height of its base.

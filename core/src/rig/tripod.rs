@@ -89,6 +89,10 @@ pub struct TripodSpec {
     /// What the tripod stands on (default ground).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub on: Option<Support>,
+    /// Foot and surface for the sliding check, a name from
+    /// [`crate::statics::FOOT_FRICTION_PRESETS`] (default [`crate::statics::DEFAULT_FOOT_SURFACE`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub foot_surface: Option<String>,
 }
 
 /// `[pads]`: an isolation pad under each tripod foot.
