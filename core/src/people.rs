@@ -30,7 +30,8 @@
 
 use crate::assembly::OpticsSpec;
 use crate::error::{Error, Result, require_finite, require_non_negative, require_positive};
-use crate::model::Model;
+use crate::linalg::RealLu;
+use crate::model::{Input, Model};
 use crate::transient::{MAX_FFT_LEN, TransientOptions};
 use crate::units::ARCSEC_PER_RAD;
 use serde::Serialize;
@@ -419,10 +420,18 @@ pub fn standing_tilt(
     let scale = optics(model)?.plate_scale_arcsec_per_px();
     let outs = ["image_x".to_string(), "image_y".to_string(), format!("{deck}:rx"), format!("{deck}:ry")];
     let outs: Vec<&str> = outs.iter().map(String::as_str).collect();
-    // Static response (rad) to the downward weight at the stand's axis and one metre east and north.
-    let at = |p: [f64; 2]| -> Result<Vec<f64>> {
-        let inp = model.input(&deck_input(model, deck, p)?)?;
-        Ok(model.static_response(&inp, &outs)?.iter().map(|c| -w * c.re).collect())
+    // Static response (rad) to the downward weight at the stand's axis and one metre east and
+    // north: K x = b with the real static stiffness (a loss factor does not soften statics).
+    let n = model.dof_count();
+    let mut lu =
+        RealLu::factor(&model.static_stiffness(), n).map_err(|_| Error::Singular { freq_hz: 0.0 })?;
+    let rows = outs.iter().map(|o| model.output(o)).collect::<Result<Vec<_>>>()?;
+    let mut at = |p: [f64; 2]| -> Result<Vec<f64>> {
+        let Input::Load(mut b) = model.input(&deck_input(model, deck, p)?)? else {
+            return Err(Error::invalid("deck", "a point force is a load"));
+        };
+        lu.solve_in_place(&mut b)?;
+        Ok(rows.iter().map(|r| -w * r.iter().zip(&b).map(|(a, x)| a * x).sum::<f64>()).collect())
     };
     let a0 = at([0.0, 0.0])?;
     let ax: Vec<f64> = at([1.0, 0.0])?.iter().zip(&a0).map(|(a, b)| a - b).collect();

@@ -781,7 +781,7 @@ impl Model {
     }
 
     /// Re H(0) of one input to each output, by an exact f = 0 solve.
-    pub(crate) fn static_response(&self, inp: &Input, outputs: &[&str]) -> Result<Vec<Complex64>> {
+    fn static_response(&self, inp: &Input, outputs: &[&str]) -> Result<Vec<Complex64>> {
         let n = self.dof_count();
         let mut z = vec![Complex64::default(); n * n];
         build_dynamic_stiffness(self, 0.0, &mut z);
