@@ -10,6 +10,7 @@ mod errors;
 mod identify;
 mod image;
 mod model;
+mod people;
 mod pier_table;
 mod response;
 mod series;
@@ -38,6 +39,7 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(checks::static_checks, m)?)?;
     m.add_function(wrap_pyfunction!(model::_model_from_toml, m)?)?;
     m.add_function(wrap_pyfunction!(pier_table::pier_table, m)?)?;
+    people::register(m)?;
     sweep::register(m)?;
     Ok(())
 }

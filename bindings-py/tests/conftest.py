@@ -63,3 +63,23 @@ def random_chain_toml(seed, n_nodes=5):
             )
         prev = name
     return "".join(parts)
+
+
+def rayleigh_speed(nu, vs):
+    """Rayleigh-wave speed: the root of (2 − ξ²)² = 4√(1 − κ²ξ²)√(1 − ξ²) (Rayleigh 1885), by scipy."""
+    from scipy.optimize import brentq
+
+    k2 = (1 - 2 * nu) / (2 * (1 - nu))
+
+    def g(x):
+        return (2 - x * x) ** 2 - 4 * np.sqrt(1 - k2 * x * x) * np.sqrt(1 - x * x)
+
+    return vs * brentq(g, 0.5, 1 - 1e-12, xtol=1e-15)
+
+
+def lawn_rotation_psds(f, s_x, s_y, s_z):
+    """Ground tilt and twist PSDs (rx, ry, rz) under the lawn preset (G 20 MPa, ρ 1600 kg/m³, ν 0.33),
+    from the plane-wave relations of docs/references.md#s20: tilt ω u_z / c split over two axes,
+    twist ω u_T / (2c) with S_T = (S_x + S_y)/2, c the Rayleigh speed found with scipy."""
+    k2 = (2 * np.pi * np.asarray(f) / rayleigh_speed(0.33, np.sqrt(20e6 / 1600))) ** 2
+    return 0.5 * k2 * s_z, 0.5 * k2 * s_z, 0.125 * k2 * (s_x + s_y)

@@ -6,18 +6,10 @@ import numpy as np
 import pytest
 
 import stillsky
+from conftest import lawn_rotation_psds
 
 ARCSEC_PER_RAD = 648000.0 / np.pi
 EXAMPLE = pathlib.Path(__file__).resolve().parents[2] / "docs" / "examples" / "tripod-lawn.toml"
-
-
-def rayleigh_speed(nu, vs):
-    """Rayleigh-wave speed: the root of (2 − ξ²)² = 4√(1 − κ²ξ²)√(1 − ξ²) (Rayleigh 1885), by scipy."""
-    from scipy.optimize import brentq
-
-    k2 = (1 - 2 * nu) / (2 * (1 - nu))
-    g = lambda x: (2 - x * x) ** 2 - 4 * np.sqrt(1 - k2 * x * x) * np.sqrt(1 - x * x)  # noqa: E731
-    return vs * brentq(g, 0.5, 1 - 1e-12, xtol=1e-15)
 
 
 @pytest.fixture(scope="module")
@@ -35,11 +27,8 @@ def test_image_rms_equals_numpy_from_frf(model):
     r = model.image_motion(freq_hz=f, ground={"x": ground, "y": ground, "z": ground}, mode_shares=False)
     inputs = ["ground_x", "ground_y", "ground_z", "ground_rx", "ground_ry", "ground_rz"]
     h = model.frf(f, inputs, ["image_x", "image_y"])
-    # The lawn's ground also tilts and twists (docs/references.md#s20): plane-wave tilt ω u_z / c
-    # split over two axes, twist ω u_T / (2c) with S_T = (S_x + S_y)/2, c the Rayleigh speed of the
-    # lawn preset (G 20 MPa, ρ 1600 kg/m³, ν 0.33) found here with scipy's root finder.
-    k2 = (2 * np.pi * f / rayleigh_speed(0.33, np.sqrt(20e6 / 1600))) ** 2
-    s_in = np.stack([s_disp, s_disp, s_disp, 0.5 * k2 * s_disp, 0.5 * k2 * s_disp, 0.125 * k2 * 2 * s_disp], axis=1)
+    # The lawn's ground also tilts and twists (conftest.lawn_rotation_psds).
+    s_in = np.stack([s_disp, s_disp, s_disp, *lawn_rotation_psds(f, s_disp, s_disp, s_disp)], axis=1)
     s_img = (np.abs(h) ** 2 * s_in[:, None, :]).sum(axis=2) * ARCSEC_PER_RAD**2
     per_axis = np.sqrt(np.trapezoid(s_img, f, axis=0))
     np.testing.assert_allclose(r.per_axis_arcsec, per_axis, rtol=1e-12)

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 import stillsky
-from conftest import sdof_toml, two_dof_toml
+from conftest import lawn_rotation_psds, sdof_toml, two_dof_toml
 
 EXAMPLE = pathlib.Path(__file__).resolve().parents[2] / "docs" / "examples" / "tripod-lawn.toml"
 
@@ -37,10 +37,13 @@ def test_response_several_outputs_and_angles():
     r = m.response(f, ground={"x": g, "y": g, "z": g}, output=["payload:rx", "image_x"])
     assert set(r) == {"payload:rx", "image_x"}
     assert r["image_x"].quantity == "angle" and r["payload:rx"].quantity == "angle"
-    # Σ over the three uncorrelated ground axes of |H|² S_d, from frf (same relation as above).
+    # Σ over the uncorrelated ground inputs of |H|² S, from frf (same relation as above); the lawn's
+    # ground also tilts and twists (conftest.lawn_rotation_psds).
     s_d = g.to("displacement").values
-    h = m.frf(f, ["ground_x", "ground_y", "ground_z"], ["image_x"])[:, 0, :]
-    np.testing.assert_allclose(r["image_x"].values, (np.abs(h) ** 2).sum(axis=1) * s_d, rtol=1e-9)
+    inputs = ["ground_x", "ground_y", "ground_z", "ground_rx", "ground_ry", "ground_rz"]
+    h = m.frf(f, inputs, ["image_x"])[:, 0, :]
+    s_in = np.stack([s_d, s_d, s_d, *lawn_rotation_psds(f, s_d, s_d, s_d)], axis=1)
+    np.testing.assert_allclose(r["image_x"].values, (np.abs(h) ** 2 * s_in).sum(axis=1), rtol=1e-9)
 
 
 def test_response_wind_matches_image_motion_path():

@@ -69,6 +69,10 @@ enum Cmd {
     /// deflection, first bending and torsion frequencies, from cantilever formulas and from the
     /// beam model, over outer diameter × wall × height × material.
     PierTable(PierTableArgs),
+    /// People on the deck of a model with a [floor]: a walking pass (peak and RMS image
+    /// motion), the steady footfall lines, and the static tilt of a person standing at each
+    /// distance from the stand.
+    DeckLoad(DeckLoadArgs),
     /// Identify frequency and damping from a tap-test ring-down recording.
     Tap {
         /// Recording (CSV/text/WAV/miniSEED).
@@ -213,6 +217,8 @@ struct ReportArgs {
     sky_map: bool,
     #[command(flatten)]
     sky: SkyGridArgs,
+    #[command(flatten)]
+    person: PersonArgs,
     #[arg(long)]
     focal_length_mm: Option<f64>,
     #[arg(long)]
@@ -310,6 +316,44 @@ struct SweepArgs {
     /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
     #[arg(long, value_parser = parse_sensitivity)]
     sensitivity: Option<Sensitivity>,
+}
+
+/// The person on the deck (report and deck-load).
+#[derive(Args)]
+struct PersonArgs {
+    /// Body mass of the person on the deck (kg; 75 is common practice, no source).
+    #[arg(long, default_value_t = stillsky::people::DEFAULT_BODY_MASS_KG)]
+    person_kg: f64,
+    /// Walking pace (steps per second, Hz; 1-2.8).
+    #[arg(long, default_value_t = stillsky::people::DEFAULT_PACE_HZ)]
+    pace_hz: f64,
+    /// Load factors of the footfall harmonics: fixed (0.5, 0.2, 0.1, 0.05) or pace (growing
+    /// with the pace).
+    #[arg(long, default_value = "fixed")]
+    footfall: String,
+    /// Where the walker treads: x,y (m, x east, y north) from the stand's axis.
+    #[arg(long, value_delimiter = ',', num_args = 2, allow_negative_numbers = true, default_values_t = [stillsky::people::DEFAULT_WALK_DISTANCE_M, 0.0])]
+    walk_at_m: Vec<f64>,
+    /// Length of the walking pass (s).
+    #[arg(long, default_value_t = stillsky::people::DEFAULT_PASS_S)]
+    walk_s: f64,
+}
+
+#[derive(Args)]
+struct DeckLoadArgs {
+    /// Model file with a [floor] and [optics].
+    model: PathBuf,
+    #[command(flatten)]
+    person: PersonArgs,
+    /// Distances from the stand for the standing table (m), comma-separated, increasing.
+    #[arg(long, value_delimiter = ',')]
+    distances_m: Option<Vec<f64>>,
+    /// Image limit of the standing table (px).
+    #[arg(long, default_value_t = stillsky::people::DEFAULT_LIMIT_PX)]
+    limit_px: f64,
+    /// Write the standing table as CSV.
+    #[arg(long)]
+    csv: Option<PathBuf>,
 }
 
 #[derive(Args)]
@@ -453,6 +497,7 @@ fn main() -> ExitCode {
         Cmd::Demo { out } => demo(&out),
         Cmd::Calibrate(a) => calibrate(&a),
         Cmd::PierTable(a) => pier_table(&a),
+        Cmd::DeckLoad(a) => deck_load(&a),
         Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
         Cmd::Transfer(a) => transfer(&a),
         Cmd::Check { model, design_wind_m_s, gust_factor, top_load_n, foot_surface } => {
@@ -593,6 +638,7 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     if a.sky_map || grid.is_some() {
         o.sky_map = Some(grid);
     }
+    o.people = people_options(&a.person, None, stillsky::people::DEFAULT_LIMIT_PX)?;
     o.focal_length_mm = a.focal_length_mm;
     o.pixel_um = a.pixel_um;
     o.seeing_fwhm_arcsec = a.seeing_arcsec;
@@ -995,6 +1041,39 @@ fn calibrate(a: &CalibrateArgs) -> CliResult {
         );
         stillsky::io::atomic::write_atomic(out, body.as_bytes())?;
         println!("fitted model written to {}", out.display());
+    }
+    Ok(())
+}
+
+fn people_options(
+    p: &PersonArgs,
+    distances_m: Option<&[f64]>,
+    limit_px: f64,
+) -> Result<batch::PeopleOptions, Failure> {
+    use stillsky::people::{FootfallModel, PassOptions, Walker};
+    let mut o = batch::PeopleOptions::new()?;
+    o.walker = Walker {
+        pace_hz: p.pace_hz,
+        model: FootfallModel::parse(&p.footfall)?,
+        ..Walker::of_mass(p.person_kg)?
+    };
+    o.walk_at_m = [p.walk_at_m[0], p.walk_at_m[1]];
+    o.pass = PassOptions { duration_s: p.walk_s, ..PassOptions::default() };
+    if let Some(d) = distances_m {
+        o.distances_m = d.to_vec();
+    }
+    o.limit_px = limit_px;
+    Ok(o)
+}
+
+fn deck_load(a: &DeckLoadArgs) -> CliResult {
+    let mut o = ReportOptions::new()?;
+    o.people = people_options(&a.person, a.distances_m.as_deref(), a.limit_px)?;
+    let p = batch::file_people_report(&ModelFile::read(&a.model)?, &o)?;
+    print!("{}", print::people_text(&p));
+    if let Some(path) = &a.csv {
+        stillsky::io::atomic::write_atomic(path, p.standing.csv_text().as_bytes())?;
+        println!("CSV written to {}", path.display());
     }
     Ok(())
 }

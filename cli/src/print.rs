@@ -133,6 +133,10 @@ pub fn report_text(model: &str, r: &Report) -> String {
         gust_text(&mut s, g);
     }
     budget_text(&mut s, im);
+    if let Some(p) = &r.people {
+        s.push('\n');
+        s.push_str(&people_text(p));
+    }
     if let Some(m) = &r.sky_map {
         let _ = writeln!(
             s,
@@ -549,4 +553,81 @@ pub fn pier_table_text(
          defaults for top mass and inertia are placeholders."
     );
     o
+}
+
+/// The people section: walking pass, steady footfall lines, standing table.
+pub fn people_text(p: &stillsky::batch::PeopleReport) -> String {
+    let mut s = String::new();
+    let w = &p.walker;
+    let pass = &p.walking;
+    let _ = writeln!(
+        s,
+        "people on the deck '{}': {:.0} N ({:.0} kg) walking at {:.2} Hz ({} load factors) at x {:.2}, y {:.2} m:",
+        p.deck,
+        w.weight_n,
+        w.weight_n / stillsky::people::STANDARD_GRAVITY_M_S2,
+        w.pace_hz,
+        w.model.name(),
+        pass.point_m[0],
+        pass.point_m[1]
+    );
+    let _ = writeln!(
+        s,
+        "  walking pass: peak {:.3} arcsec ({:.2} px) at {:.2} s, weight's tilt included; RMS about the mean {:.3} arcsec ({:.2} px)",
+        pass.peak_arcsec, pass.peak_px, pass.peak_time_s, pass.rms_arcsec, pass.rms_px
+    );
+    let lines: Vec<String> = p
+        .steady
+        .lines
+        .iter()
+        .map(|l| format!("{:.1} Hz {:.0} N -> {:.3}\"", l.frequency_hz, l.force_n, l.image_rms_arcsec))
+        .collect();
+    let _ = writeln!(
+        s,
+        "  steady footfall lines: {}; total RMS {:.3} arcsec ({:.2} px)",
+        lines.join(", "),
+        p.steady.rms_arcsec,
+        p.steady.rms_px
+    );
+    let t = &p.standing;
+    let _ = writeln!(
+        s,
+        "  standing still ({:.0} N), static image angle{}:",
+        t.weight_n,
+        if t.worst_azimuth { " at the worst azimuth" } else { "" }
+    );
+    let _ = writeln!(
+        s,
+        "    {:>8} {:>8} {:>12} {:>10} {:>12}",
+        "dist m", "az deg", "image arcsec", "image px", "deck arcsec"
+    );
+    for r in &t.rows {
+        let _ = writeln!(
+            s,
+            "    {:>8.3} {:>8.0} {:>12.4} {:>10.3} {:>12.4}",
+            r.distance_m, r.azimuth_deg, r.image_arcsec, r.image_px, r.deck_tilt_arcsec
+        );
+    }
+    let first = t.rows.first().map(|r| r.distance_m).unwrap_or(0.0);
+    let last = t.rows.last().map(|r| r.distance_m).unwrap_or(0.0);
+    let verdict = match (t.under_within_m(), t.under_beyond_m()) {
+        (Some(d), _) => format!(
+            "under {} px within {:.3} m of the stand, over it farther out (to {last} m)",
+            t.limit_px, d
+        ),
+        (None, Some(d)) => format!("under {} px beyond {:.3} m from the stand", t.limit_px, d),
+        _ if t.crossings_m.is_empty() && t.under_at_nearest => {
+            format!("under {} px at every distance from {first} to {last} m", t.limit_px)
+        }
+        _ if t.crossings_m.is_empty() => {
+            format!("over {} px at every distance from {first} to {last} m", t.limit_px)
+        }
+        _ => format!("crosses {} px at {:?} m", t.limit_px, t.crossings_m),
+    };
+    let _ = writeln!(s, "  standing: {verdict}");
+    let _ = writeln!(
+        s,
+        "  (rigid deck: the local dip of boards and joists under a foot is not modelled; a real deck tilts a stand on it more near the foot)"
+    );
+    s
 }

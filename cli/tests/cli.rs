@@ -629,3 +629,30 @@ fn pier_table_bad_input_names_the_field() {
     assert_eq!(o.status.code(), Some(2), "{err}");
     assert!(err.contains("moon") && err.contains("lawn"), "{err}");
 }
+
+#[test]
+fn deck_load_prints_the_walking_pass_and_the_standing_table_with_its_csv() {
+    // The demo deck rocks at 5e6 N·m/rad with the stand on its CG: a 735.5 N person 1 m away
+    // tilts it by W d / k_rock = 1.471e-4 rad = 30.34 arcsec (statics of a rigid body) and the
+    // image, at the worst azimuth, by the same.
+    let d = tmp("deck");
+    let csv = d.join("standing.csv");
+    let model = examples().join("tripod-deck.toml");
+    let o = run(&["deck-load", s(&model), "--distances-m", "0.5,1,2", "--csv", s(&csv)]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{out}\n{err}");
+    assert_no_escapes(&out);
+    assert!(out.contains("walking pass: peak") && out.contains("steady footfall lines"), "{out}");
+    assert!(out.contains("over 0.5 px at every distance from 0.5 to 2 m"), "{out}");
+    let body = std::fs::read_to_string(&csv).unwrap();
+    let rows: Vec<Vec<f64>> =
+        body.lines().skip(1).map(|l| l.split(',').map(|v| v.parse().unwrap()).collect()).collect();
+    assert_eq!(rows.len(), 3);
+    let hand = 75.0 * 9.80665 * 1.0 / 5.0e6 * 206_264.806;
+    assert!((rows[1][4] / hand - 1.0).abs() < 1e-3, "deck tilt {} vs {hand}", rows[1][4]);
+    assert!(rows[1][2] >= 0.999 * rows[1][4], "image at the worst azimuth follows the deck");
+    let o = run(&["deck-load", s(&examples().join("pier.toml"))]);
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("floor"), "{err}");
+}

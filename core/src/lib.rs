@@ -51,6 +51,8 @@
 //! - [`identify`], [`checks`]: tap-test identification; static safety checks.
 //! - [`pier_table`]: pier sizing table (tilt under a top load, rocking, bending and torsion
 //!   frequencies) from cantilever formulas and from the beam model.
+//! - [`people`]: a person on the deck: the walking force (harmonic load factors) as a time
+//!   history and a line spectrum, and the static tilt of a person standing at a distance.
 //! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
 //! - [`schema`]: the model file (TOML): both layers, reading, expansion, writing.
 //! - [`io`]: text and TOML reading, recordings, PSD files, atomic writes.
@@ -76,6 +78,7 @@ pub mod model;
 pub mod modes;
 pub mod monitor;
 pub mod peak;
+pub mod people;
 pub mod pier_table;
 pub mod response;
 pub mod rig;

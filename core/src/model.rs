@@ -10,6 +10,9 @@
 //!   proportion to their C_d A, each at its centre of pressure along its own direction.
 //! - `force:NAME:x|y|z`: unit force at the CG of body or node NAME; `moment:NAME:x|y|z`: unit
 //!   moment (N·m) on body NAME.
+//! - `force:NAME:x|y|z@X,Y,Z`: unit force at the point (X, Y, Z) (m, model frame) of body NAME:
+//!   the force at its CG plus the moment r × F, r from the CG to the point (a footfall on a
+//!   deck, a hand on a tube).
 //!
 //! Outputs (one row each):
 //! - `NAME:x|y|z|rx|ry|rz`: absolute displacement (m) or rotation (rad) of a body's CG or a node.
@@ -296,7 +299,7 @@ impl Model {
             Error::UnknownName {
             kind: "input".into(),
             name: name.into(),
-            known: "ground_x, ground_y, ground_z, ground_rx, ground_ry, ground_rz, ground_x|y|z@STATION, wind, force:BODY:x|y|z, moment:BODY:x|y|z".into(),
+            known: "ground_x, ground_y, ground_z, ground_rx, ground_ry, ground_rz, ground_x|y|z@STATION, wind, force:BODY:x|y|z[@X,Y,Z], moment:BODY:x|y|z".into(),
         }
         };
         let n = self.n;
@@ -320,12 +323,27 @@ impl Model {
             }
             return Ok(Input::Load(v));
         }
-        let parts: Vec<&str> = name.split(':').collect();
+        let (base, at) = match name.split_once('@') {
+            Some((b, p)) => (b, Some(parse_point(name, p)?)),
+            None => (name, None),
+        };
+        let parts: Vec<&str> = base.split(':').collect();
         if parts.len() != 3 || !(parts[0] == "force" || parts[0] == "moment") {
             return Err(unknown());
         }
         let c = self.carrier(parts[1], name)?;
         let axis = ["x", "y", "z"].iter().position(|a| *a == parts[2]).ok_or_else(unknown)?;
+        if let Some(p) = at {
+            if parts[0] == "moment" {
+                return Err(Error::invalid(
+                    format!("input '{name}'"),
+                    "a moment acts on the whole body; a point ('@X,Y,Z') goes with a force only",
+                ));
+            }
+            // F at p = F at the CG plus r × F: the transpose of the point's motion map.
+            let map = c.point_map_free(p, n);
+            return Ok(Input::Load(map[axis].clone()));
+        }
         let k = if parts[0] == "force" { axis } else { 3 + axis };
         let g = c.index[k].ok_or_else(|| {
             Error::invalid(
@@ -505,6 +523,25 @@ impl assembly::Carrier {
             })
             .collect()
     }
+}
+
+/// The point of a `force:NAME:x@X,Y,Z` input (three finite numbers in m).
+fn parse_point(name: &str, text: &str) -> Result<[f64; 3]> {
+    let bad = || {
+        Error::invalid(
+            format!("input '{name}'"),
+            "the point after '@' must be X,Y,Z in m (three finite numbers)",
+        )
+    };
+    let v: Vec<f64> = text
+        .split(',')
+        .map(|t| t.trim().parse::<f64>())
+        .collect::<std::result::Result<_, _>>()
+        .map_err(|_| bad())?;
+    if v.len() != 3 || v.iter().any(|x| !x.is_finite()) {
+        return Err(bad());
+    }
+    Ok([v[0], v[1], v[2]])
 }
 
 fn col_major<T: Copy>(rows: usize, cols: usize, v: &[T]) -> Array2<T> {

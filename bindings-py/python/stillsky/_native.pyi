@@ -1169,3 +1169,74 @@ def sweep_columns() -> list[str]:
 
 def sweep_key(spec: str, spectrum: str, wind: str) -> str:
     """The key of one combination (``spec|spectrum|wind``), as sweep rows carry it."""
+
+def footfall_force(
+    fs_hz: float,
+    n: int,
+    *,
+    mass_kg: float = ...,
+    pace_hz: float = ...,
+    footfall: str = "fixed",
+    start_s: float = 0.0,
+    duration_s: float | None = None,
+) -> npt.NDArray[np.float64]:
+    """The downward walking force (N) of a person, ``n`` samples at ``fs_hz`` from t = 0.
+
+    W[1 + Σ α_h cos(2π h f_p t)] for h = 1…4, faded in and out over one step; ``footfall``
+    ``"fixed"`` (α = 0.5, 0.2, 0.1, 0.05; Murray, Allen & Ungar 1997) or ``"pace"`` (growing
+    with the pace; Young 2001). Defaults: 75 kg, 2 Hz (common practice); ``duration_s`` None
+    runs past the record.
+    """
+
+def walking_pass(
+    model: Model,
+    deck: str = "floor",
+    at_m: tuple[float, float] = (1.0, 0.0),
+    *,
+    mass_kg: float = ...,
+    pace_hz: float = ...,
+    footfall: str = "fixed",
+    duration_s: float = ...,
+    fs_hz: float = ...,
+) -> dict[str, Any]:
+    """Image motion while a person treads at ``at_m`` (x, y in m) on body ``deck``.
+
+    The force enters as ``force:DECK:z@X,Y,Z`` and runs through the FFT transient (0.5 s of
+    rest before, 2 s after; defaults 10 s at 400 Hz). Returns ``time_s``, ``force_n``,
+    ``image_x_arcsec``, ``image_y_arcsec`` (arrays), ``point_m``, ``peak_arcsec``, ``peak_px``,
+    ``peak_time_s`` (the weight's tilt included) and ``rms_arcsec``, ``rms_px`` (radial RMS
+    about the mean over the pass).
+    """
+
+def footfall_steady(
+    model: Model,
+    deck: str = "floor",
+    at_m: tuple[float, float] = (1.0, 0.0),
+    *,
+    mass_kg: float = ...,
+    pace_hz: float = ...,
+    footfall: str = "fixed",
+) -> dict[str, Any]:
+    """Steady walking in place: each force line α_h W at h f_p through the FRF.
+
+    Returns ``frequency_hz``, ``force_n``, ``image_rms_arcsec`` (one per harmonic, arrays) and
+    the total ``rms_arcsec``, ``rms_px``.
+    """
+
+def standing_tilt(
+    model: Model,
+    distances_m: Sequence[float],
+    deck: str = "floor",
+    *,
+    mass_kg: float = ...,
+    azimuth_deg: float | None = None,
+    limit_px: float = ...,
+) -> dict[str, Any]:
+    """Static image angle when a person stands on ``deck`` at each distance (m, increasing)
+    from the stand's axis, along ``azimuth_deg`` (from north through east) or, with None, the
+    worst azimuth. Defaults 75 kg, limit ½ px.
+
+    Returns ``distance_m``, ``azimuth_deg``, ``image_arcsec``, ``image_px``,
+    ``deck_tilt_arcsec`` (arrays), ``weight_n``, ``crossings_m`` (where the image crosses the
+    limit), ``under_within_m`` and ``under_beyond_m`` (None when not applicable).
+    """

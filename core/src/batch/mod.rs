@@ -23,8 +23,8 @@ pub use gust::{
 };
 pub use ranking::{RankEntry, RankTable, SweepSummary, Verdict, Visibility, summarize};
 pub use report::{
-    CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, Report,
-    ReportOptions, build_file_report, build_report, report_sky_map,
+    CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, PeopleOptions,
+    PeopleReport, Report, ReportOptions, build_file_report, build_report, file_people_report, report_sky_map,
 };
 pub use sweep::{
     PadMechanism, SweepConfig, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,

@@ -11,6 +11,7 @@ use crate::guider::GuideLoop;
 use crate::image::{Guiding, ImageMotion, ImageOptions};
 use crate::io::series::SeriesOptions;
 use crate::model::{GROUND_INPUTS, Model};
+use crate::people::{FootfallSteady, PassOptions, PassSummary, StandingTable, Walker};
 use crate::response::Disturbances;
 use crate::schema::ModelFile;
 use crate::skymap::{SkyGrid, SkyMap, sky_map};
@@ -54,6 +55,67 @@ pub struct ReportOptions {
     /// Add a sky map ([`crate::skymap`]) on this grid, or on the file's default grid when
     /// `Some(None)`; needs the model file ([`build_file_report`]).
     pub sky_map: Option<Option<SkyGrid>>,
+    /// The person of the "people on the deck" section (a model file with a `[floor]`).
+    pub people: PeopleOptions,
+}
+
+/// Settings of the report's people section ([`crate::people`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct PeopleOptions {
+    pub walker: Walker,
+    /// Where the walker treads (x, y in m from the stand's axis).
+    pub walk_at_m: [f64; 2],
+    pub pass: PassOptions,
+    /// Distances of the standing table (m) and its image limit (px).
+    pub distances_m: Vec<f64>,
+    pub limit_px: f64,
+}
+
+impl PeopleOptions {
+    /// A 75 kg walker at 2 Hz (fixed load factors) one metre east of the stand; the standing
+    /// table at [`crate::people::DEFAULT_DISTANCES_M`] against ½ px.
+    pub fn new() -> Result<PeopleOptions> {
+        Ok(PeopleOptions {
+            walker: Walker::of_mass(crate::people::DEFAULT_BODY_MASS_KG)?,
+            walk_at_m: [crate::people::DEFAULT_WALK_DISTANCE_M, 0.0],
+            pass: PassOptions::default(),
+            distances_m: crate::people::DEFAULT_DISTANCES_M.to_vec(),
+            limit_px: crate::people::DEFAULT_LIMIT_PX,
+        })
+    }
+}
+
+/// The people section: a walking pass, the steady footfall lines, the standing table.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PeopleReport {
+    pub deck: String,
+    pub walker: Walker,
+    pub walking: PassSummary,
+    pub steady: FootfallSteady,
+    pub standing: StandingTable,
+}
+
+/// The people section of a model file with a `[floor]` (its pointing as written; the optics
+/// overrides of `o` applied).
+pub fn file_people_report(file: &ModelFile, o: &ReportOptions) -> Result<PeopleReport> {
+    let deck = file.rig.floor.as_ref().map(|f| f.body().to_string()).ok_or_else(|| {
+        Error::invalid("floor", "the model file has no [floor] (deck) for people to stand on")
+    })?;
+    let mut spec = file.expanded()?;
+    apply_optics_overrides(&mut spec, o)?;
+    people_report(&Model::from_spec(&spec)?, &deck, &o.people)
+}
+
+/// The people section for `deck` (errors name what could not be run).
+fn people_report(model: &Model, deck: &str, o: &PeopleOptions) -> Result<PeopleReport> {
+    use crate::people::{footfall_steady, standing_tilt, walking_pass};
+    Ok(PeopleReport {
+        deck: deck.to_string(),
+        walker: o.walker,
+        walking: walking_pass(model, deck, &o.walker, o.walk_at_m, &o.pass)?.summary,
+        steady: footfall_steady(model, deck, &o.walker, o.walk_at_m)?,
+        standing: standing_tilt(model, deck, o.walker.weight_n, &o.distances_m, None, o.limit_px)?,
+    })
 }
 
 impl ReportOptions {
@@ -79,6 +141,7 @@ impl ReportOptions {
             alternatives: Vec::new(),
             wind_from_deg: None,
             sky_map: None,
+            people: PeopleOptions::new()?,
         })
     }
 }
@@ -154,6 +217,8 @@ pub struct Report {
     pub gust: Option<GustReport>,
     /// Image RMS over the sky, when asked for ([`ReportOptions::sky_map`]).
     pub sky_map: Option<SkyMap>,
+    /// A person walking and standing on the deck, when the model file has a `[floor]`.
+    pub people: Option<PeopleReport>,
     pub notes: Vec<String>,
 }
 
@@ -353,6 +418,11 @@ const THIRD_OCTAVE_WIDTH: f64 = 0.231_616_2;
 
 /// Build the report of a generic-layer model.
 pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
+    build_report_with(spec, o, None)
+}
+
+/// [`build_report`] with the people section for the deck body `deck`.
+fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) -> Result<Report> {
     if o.sky_map.is_some() {
         return Err(Error::invalid(
             "sky_map",
@@ -529,8 +599,19 @@ pub fn build_report(spec: &ModelSpec, o: &ReportOptions) -> Result<Report> {
         },
         None => None,
     };
+    let people = match deck {
+        Some(d) => match people_report(&model, d, &o.people) {
+            Ok(p) => Some(p),
+            Err(e) => {
+                notes.push(format!("people on the deck not computed: {e}"));
+                None
+            }
+        },
+        None => None,
+    };
     Ok(Report {
         gust,
+        people,
         sky_map: None,
         dof_count: model.dof_count(),
         optics_body,
@@ -579,7 +660,8 @@ pub fn build_file_report(file: &ModelFile, o: &ReportOptions) -> Result<Report> 
         file.set_wind_from(a)?;
     }
     let plain = ReportOptions { sky_map: None, wind_from_deg: None, ..o.clone() };
-    let mut r = build_report(&file.expanded()?, &plain)?;
+    let deck = file.rig.floor.as_ref().map(|f| f.body().to_string());
+    let mut r = build_report_with(&file.expanded()?, &plain, deck.as_deref())?;
     if let Some(g) = &o.sky_map {
         r.sky_map = Some(report_sky_map(&file, g.as_ref(), &plain)?);
     }

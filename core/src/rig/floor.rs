@@ -53,6 +53,11 @@ pub struct FloorSpec {
 }
 
 impl FloorSpec {
+    /// The deck body's name.
+    pub fn body(&self) -> &str {
+        self.name.as_deref().unwrap_or("floor")
+    }
+
     /// The deck body and its supports; returns (name, walking-surface height).
     pub(super) fn build(&self, out: &mut ModelSpec) -> Result<(String, f64)> {
         let name = body_name("floor.name", &self.name, "floor")?;
