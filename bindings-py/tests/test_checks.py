@@ -124,9 +124,9 @@ def test_static_checks_bad_inputs(tmp_path):
 
 def test_sliding_uses_the_surface():
     # Sliding capacity is μ × the vertical reactions: rubber on a paver (μ 0.6, common practice)
-    # holds twice what the unknown-surface default (μ 0.3) does.
+    # holds twice what plastic on concrete (μ 0.3) does.
     slide = lambda rep: next(c for c in rep if c["name"].startswith("sliding"))
     a = slide(stillsky.static_checks(EXAMPLE, foot_surface="rubber-on-paver"))
-    b = slide(stillsky.static_checks(EXAMPLE))
+    b = slide(stillsky.static_checks(EXAMPLE, foot_surface="plastic-on-concrete"))
     assert a["limit"] / b["limit"] == pytest.approx(2.0, rel=1e-12)
     assert a["value"] == b["value"]

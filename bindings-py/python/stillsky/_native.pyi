@@ -1044,6 +1044,7 @@ def static_checks(
         licensed engineer for piers, footings and observatory structures.
     """
 
+@final
 class StaticChecks:
     def __len__(self) -> int: ...
     def __getitem__(self, i: int, /) -> dict[str, object]: ...
@@ -1191,7 +1192,7 @@ def footfall_force(
 def walking_pass(
     model: Model,
     deck: str = "floor",
-    at_m: tuple[float, float] = (1.0, 0.0),
+    at_m: tuple[float, float] = ...,
     *,
     mass_kg: float = ...,
     pace_hz: float = ...,
@@ -1199,7 +1200,8 @@ def walking_pass(
     duration_s: float = ...,
     fs_hz: float = ...,
 ) -> dict[str, Any]:
-    """Image motion while a person treads at ``at_m`` (x, y in m) on body ``deck``.
+    """Image motion while a person treads at ``at_m`` (x, y in m; default (1, 0)) on body ``deck``
+    (defaults 75 kg, 2 Hz pace).
 
     The force enters as ``force:DECK:z@X,Y,Z`` and runs through the FFT transient (0.5 s of
     rest before, 2 s after; defaults 10 s at 400 Hz). Returns ``time_s``, ``force_n``,
@@ -1211,13 +1213,14 @@ def walking_pass(
 def footfall_steady(
     model: Model,
     deck: str = "floor",
-    at_m: tuple[float, float] = (1.0, 0.0),
+    at_m: tuple[float, float] = ...,
     *,
     mass_kg: float = ...,
     pace_hz: float = ...,
     footfall: str = "fixed",
 ) -> dict[str, Any]:
-    """Steady walking in place: each force line α_h W at h f_p through the FRF.
+    """Steady walking in place at ``at_m`` (x, y in m; default (1, 0)) on body ``deck``: each
+    force line α_h W at h f_p through the FRF (defaults 75 kg, 2 Hz pace).
 
     Returns ``frequency_hz``, ``force_n``, ``image_rms_arcsec`` (one per harmonic, arrays) and
     the total ``rms_arcsec``, ``rms_px``.

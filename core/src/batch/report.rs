@@ -469,6 +469,20 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
     if let Some(n) = ground.as_ref().and_then(|g| g.note.clone()) {
         notes.push(n);
     }
+    if ground.is_some() {
+        notes.push(match &spec.ground_waves {
+            Some(w) => format!(
+                "the ground also tilts and twists as surface waves of phase velocity {:.0} m/s pass (ground_rx, ground_ry, ground_rz){}",
+                w.phase_velocity_m_s,
+                if w.incoherence.is_some_and(|a| a > 0.0) && model.ground_stations().len() >= 2 {
+                    format!("; the {} stations also move partly on their own (Luco–Wong)", model.ground_stations().len())
+                } else {
+                    String::new()
+                }
+            ),
+            None => "the ground is taken not to tilt (rigid ground without a phase velocity): give [ground] phase_velocity_m_s to include tilt and twist".into(),
+        });
+    }
     let d = disturbances(ground.as_ref(), o);
     let io = image_options(o);
     let image = model.image_motion(grid, &d, &io)?;
