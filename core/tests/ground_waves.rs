@@ -175,9 +175,12 @@ fn a_soil_ground_gets_the_rayleigh_speed_and_a_rigid_one_none() {
     let vs = (20e6f64 / 1600.0).sqrt();
     let fit = (0.87 + 1.12 * 0.33) / 1.33;
     assert!((w.phase_velocity_m_s / (fit * vs) - 1.0).abs() < 5e-3, "{}", w.phase_velocity_m_s);
+    let rigid =
+        stillsky::schema::ModelFile::read(&root.join("equatorial-pier.toml")).unwrap().expanded().unwrap();
+    assert!(rigid.ground_waves.is_none(), "rigid ground without a phase velocity");
     let paver =
         stillsky::schema::ModelFile::read(&root.join("tripod-paver.toml")).unwrap().expanded().unwrap();
-    assert!(paver.ground_waves.is_none(), "rigid ground without a phase velocity");
+    assert_eq!(paver.ground_waves.map(|w| w.phase_velocity_m_s), Some(150.0), "rigid ground with one");
     let bad = "[[body]]\nname = \"b\"\nmass_kg = 1\ncg_m = [0, 0, 0]\ninertia_kgm2 = [1, 1, 1]\n\
         [[general_spring]]\nname = \"g\"\nfrom = \"ground\"\nto = \"b\"\nat_m = [0, 0, 0]\n\
         matrix = [[1e6,0,0,0,0,0],[0,1e6,0,0,0,0],[0,0,1e6,0,0,0],[0,0,0,1e4,0,0],[0,0,0,0,1e4,0],[0,0,0,0,0,1e4]]\n\
