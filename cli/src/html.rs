@@ -640,6 +640,61 @@ fn plot_caption(p: &Plot, r: &Report) -> String {
 }
 
 /// The sky map's best and worst cells in words, with the rule for skipped cells.
+/// The people section: a walking pass, the steady footfall lines, and the standing table.
+fn people_html(p: &stillsky::batch::PeopleReport) -> String {
+    let (w, pass) = (&p.walker, &p.walking);
+    let lines: Vec<String> = p
+        .steady
+        .lines
+        .iter()
+        .map(|l| format!("{:.1} Hz {:.0} N → {:.3}″", l.frequency_hz, l.force_n, l.image_rms_arcsec))
+        .collect();
+    let mut h = para(&format!(
+        "A person of {:.0} N walking at {:.2} Hz ({} load factors) at x {:.2}, y {:.2} m on the deck '{}': \
+         peak {:.3}″ ({:.2} px) at {:.2} s, the weight's tilt included; RMS about the mean {:.3}″ ({:.2} px). \
+         Steady footfall lines: {}; total RMS {:.3}″ ({:.2} px).",
+        w.weight_n,
+        w.pace_hz,
+        w.model.name(),
+        pass.point_m[0],
+        pass.point_m[1],
+        p.deck,
+        pass.peak_arcsec,
+        pass.peak_px,
+        pass.peak_time_s,
+        pass.rms_arcsec,
+        pass.rms_px,
+        lines.join(", "),
+        p.steady.rms_arcsec,
+        p.steady.rms_px
+    ));
+    let t = &p.standing;
+    let rows: Vec<Vec<String>> = t
+        .rows
+        .iter()
+        .map(|r| {
+            vec![
+                format!("{:.3}", r.distance_m),
+                format!("{:.0}", r.azimuth_deg),
+                format!("{:.4}", r.image_arcsec),
+                format!("{:.3}", r.image_px),
+                format!("{:.4}", r.deck_tilt_arcsec),
+            ]
+        })
+        .collect();
+    h.push_str(&table(
+        "standing",
+        &["distance m", "azimuth deg", "image arcsec", "image px", "deck tilt arcsec"],
+        &rows,
+    ));
+    h.push_str(&para(&format!(
+        "Standing still ({:.0} N): {}. The deck is a rigid body here: the local dip of boards and joists under a foot is not modelled, so a real deck tilts a stand on it more near the foot.",
+        t.weight_n,
+        crate::print::standing_verdict(t)
+    )));
+    h
+}
+
 pub fn sky_map_words(m: &stillsky::skymap::SkyMap) -> String {
     let cap = |s: String| {
         let mut c = s.chars();
@@ -673,6 +728,9 @@ pub fn report_page(c: &ReportContent) -> String {
     page.section("modes-section", "Modes", &modes_html(r));
     if let Some(g) = &r.gust {
         page.section("gusts", "Gusts", &gusts_html(g));
+    }
+    if let Some(p) = &r.people {
+        page.section("people-section", "People on the deck", &people_html(p));
     }
     if let Some(m) = &r.sky_map {
         page.section("sky-map-section", "Sky map", &para(&format!("{}.", sky_map_words(m))));

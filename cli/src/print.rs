@@ -608,9 +608,19 @@ pub fn people_text(p: &stillsky::batch::PeopleReport) -> String {
             r.distance_m, r.azimuth_deg, r.image_arcsec, r.image_px, r.deck_tilt_arcsec
         );
     }
+    let _ = writeln!(s, "  standing: {}", standing_verdict(t));
+    let _ = writeln!(
+        s,
+        "  (rigid deck: the local dip of boards and joists under a foot is not modelled; a real deck tilts a stand on it more near the foot)"
+    );
+    s
+}
+
+/// Where a standing person keeps the image under the limit, in words.
+pub fn standing_verdict(t: &stillsky::people::StandingTable) -> String {
     let first = t.rows.first().map(|r| r.distance_m).unwrap_or(0.0);
     let last = t.rows.last().map(|r| r.distance_m).unwrap_or(0.0);
-    let verdict = match (t.under_within_m(), t.under_beyond_m()) {
+    match (t.under_within_m(), t.under_beyond_m()) {
         (Some(d), _) => format!(
             "under {} px within {:.3} m of the stand, over it farther out (to {last} m)",
             t.limit_px, d
@@ -623,11 +633,5 @@ pub fn people_text(p: &stillsky::batch::PeopleReport) -> String {
             format!("over {} px at every distance from {first} to {last} m", t.limit_px)
         }
         _ => format!("crosses {} px at {:?} m", t.limit_px, t.crossings_m),
-    };
-    let _ = writeln!(s, "  standing: {verdict}");
-    let _ = writeln!(
-        s,
-        "  (rigid deck: the local dip of boards and joists under a foot is not modelled; a real deck tilts a stand on it more near the foot)"
-    );
-    s
+    }
 }

@@ -655,4 +655,11 @@ fn deck_load_prints_the_walking_pass_and_the_standing_table_with_its_csv() {
     let (_, err) = text(&o);
     assert_eq!(o.status.code(), Some(2), "{err}");
     assert!(err.contains("floor"), "{err}");
+    // The report's page carries the same section, its standing table one row per distance.
+    let page = d.join("deck.html");
+    let o = run(&["report", s(&model), "--html", s(&page)]);
+    assert!(o.status.success(), "{}", text(&o).1);
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(html.contains("People on the deck") && html.contains("id=\"standing\""), "people section");
+    assert!(html.contains("Standing still (735 N): over 0.5 px"), "standing verdict");
 }
