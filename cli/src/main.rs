@@ -156,10 +156,6 @@ struct GroundArgs {
     /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
     #[arg(long, value_parser = parse_sensitivity)]
     sensitivity: Option<Sensitivity>,
-    /// The night's temperature (°C): pads with a temperature table take their values at it
-    /// (linear between rows, refused outside); default 20, the catalogue as written.
-    #[arg(long, allow_negative_numbers = true, default_value_t = batch::NOMINAL_TEMPERATURE_C)]
-    temperature_c: f64,
 }
 
 /// The cells of a sky map; without any of these the rig's default grid is used.
@@ -338,6 +334,10 @@ struct SweepArgs {
     /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
     #[arg(long, value_parser = parse_sensitivity)]
     sensitivity: Option<Sensitivity>,
+    /// The night's temperature (°C): pads with a temperature table take their values at it
+    /// (linear between rows, refused outside); default 20, the catalogue as written.
+    #[arg(long, allow_negative_numbers = true, default_value_t = batch::NOMINAL_TEMPERATURE_C)]
+    temperature_c: f64,
 }
 
 /// The person on the deck (report and deck-load).
