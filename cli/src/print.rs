@@ -177,7 +177,10 @@ pub fn report_text(model: &str, r: &Report) -> String {
 
 /// The tonal lines: each line's image RMS and share, then the lines with the broadband motion.
 fn tones_text(s: &mut String, t: &stillsky::tonal::ToneImage, broad_arcsec: f64, broad_px: f64) {
-    let _ = writeln!(s, "\ntonal lines (RMS amplitudes; FRF at each line's own frequency):");
+    let _ = writeln!(
+        s,
+        "\ntonal lines (RMS amplitudes at the rig, after --ground-distance-m if given; FRF at each line's own frequency):"
+    );
     for l in &t.lines {
         let _ = writeln!(
             s,
