@@ -15,6 +15,7 @@ mod pier_table;
 mod response;
 mod series;
 mod skymap;
+mod sources;
 mod spectrum;
 mod sweep;
 mod transient;
@@ -40,6 +41,7 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(model::_model_from_toml, m)?)?;
     m.add_function(wrap_pyfunction!(pier_table::pier_table, m)?)?;
     people::register(m)?;
+    sources::register(m)?;
     sweep::register(m)?;
     Ok(())
 }

@@ -47,6 +47,7 @@ fn parse(
     ground_scale: Option<[f64; 3]>,
     fs_hz: Option<f64>,
     threads: Option<usize>,
+    temperature_c: Option<f64>,
 ) -> stillsky::Result<Parsed> {
     let mut cfg = SweepConfig::new()?;
     if grid.0.is_some() || grid.1.is_some() || grid.2.is_some() {
@@ -65,6 +66,9 @@ fn parse(
     }
     if let Some(n) = threads {
         cfg = cfg.with_threads(n);
+    }
+    if let Some(t) = temperature_c {
+        cfg = cfg.with_temperature_c(t);
     }
     Ok(Parsed {
         model: ModelFile::parse(model.0, model.1)?,
@@ -111,7 +115,7 @@ fn dict_row(d: &Bound<'_, PyAny>, i: usize) -> PyResult<SweepRow> {
 #[pyfunction]
 #[pyo3(signature = (model_text, model_name, catalogue_text, catalogue_name, spectra, wind, *,
     labels = None, f_min_hz = None, f_max_hz = None, n_freq = None, pad_prefix = None,
-    ground_scale = None, fs_hz = None, threads = None))]
+    ground_scale = None, fs_hz = None, threads = None, temperature_c = None))]
 #[allow(clippy::too_many_arguments)]
 pub fn sweep_rows<'py>(
     py: Python<'py>,
@@ -129,6 +133,7 @@ pub fn sweep_rows<'py>(
     ground_scale: Option<[f64; 3]>,
     fs_hz: Option<f64>,
     threads: Option<usize>,
+    temperature_c: Option<f64>,
 ) -> PyResult<Bound<'py, PyList>> {
     let rows = py
         .detach(|| {
@@ -142,6 +147,7 @@ pub fn sweep_rows<'py>(
                 ground_scale,
                 fs_hz,
                 threads,
+                temperature_c,
             )?;
             match &labels {
                 Some(l) => batch::sweep_rows_labelled(&p.inputs(), l, &p.cfg),
@@ -157,7 +163,7 @@ pub fn sweep_rows<'py>(
 #[pyfunction]
 #[pyo3(signature = (model_text, model_name, catalogue_text, catalogue_name, spectra, wind, *,
     f_min_hz = None, f_max_hz = None, n_freq = None, pad_prefix = None,
-    ground_scale = None, fs_hz = None, threads = None))]
+    ground_scale = None, fs_hz = None, threads = None, temperature_c = None))]
 #[allow(clippy::too_many_arguments)]
 pub fn sweep_plan<'py>(
     py: Python<'py>,
@@ -174,6 +180,7 @@ pub fn sweep_plan<'py>(
     ground_scale: Option<[f64; 3]>,
     fs_hz: Option<f64>,
     threads: Option<usize>,
+    temperature_c: Option<f64>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let p = parse(
         (model_text, model_name),
@@ -185,6 +192,7 @@ pub fn sweep_plan<'py>(
         ground_scale,
         fs_hz,
         threads,
+        temperature_c,
     )
     .py_err()?;
     batch::check_sweep(&p.inputs(), &p.cfg).py_err()?;

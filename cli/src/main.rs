@@ -266,6 +266,24 @@ struct ReportArgs {
     /// Seeing FWHM (arcsec), overrides the model's.
     #[arg(long)]
     seeing_arcsec: Option<f64>,
+    /// A tonal disturbance line, FREQ_HZ:INPUT:RMS_AMPLITUDE:UNIT (repeatable), e.g.
+    /// 24:ground_z:1e-6:m_s or 50:force:deck:z@1,0,0.1:2:N. Units m, m_s, m_s2 (ground
+    /// translation), rad, N, N_m. The amplitude is the RMS (a sinusoid of peak a: a/√2).
+    #[arg(long = "tone")]
+    tones: Vec<String>,
+    /// Carry the ground spectrum and the ground tonal lines from FROM m to TO m from their
+    /// source (Bornitz spreading and soil damping; a rough estimate), e.g. 5:20.
+    #[arg(long)]
+    ground_distance_m: Option<String>,
+    /// Wave kind of --ground-distance-m: surface (spreading 0.5), body (1), body-at-surface (2).
+    #[arg(long, default_value = "surface", requires = "ground_distance_m")]
+    wave_kind: String,
+    /// Soil loss factor of --ground-distance-m (2 × damping ratio).
+    #[arg(long, default_value_t = stillsky::distance_attenuation::DEFAULT_SOIL_LOSS_FACTOR, requires = "ground_distance_m")]
+    soil_loss_factor: f64,
+    /// Soil wave speed (m/s) of --ground-distance-m.
+    #[arg(long, default_value_t = stillsky::distance_attenuation::DEFAULT_SOIL_WAVE_SPEED_M_S, requires = "ground_distance_m")]
+    soil_wave_speed_m_s: f64,
     /// Isolator catalogue (TOML): the gust table and plot show the rig with each pad beside it.
     #[arg(long)]
     catalogue: Option<PathBuf>,
@@ -316,6 +334,10 @@ struct SweepArgs {
     /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
     #[arg(long, value_parser = parse_sensitivity)]
     sensitivity: Option<Sensitivity>,
+    /// The night's temperature (°C): pads with a temperature table take their values at it
+    /// (linear between rows, refused outside); default 20, the catalogue as written.
+    #[arg(long, allow_negative_numbers = true, default_value_t = batch::NOMINAL_TEMPERATURE_C)]
+    temperature_c: f64,
 }
 
 /// The person on the deck (report and deck-load).
@@ -658,6 +680,13 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     }
     o.aperture_mm = a.aperture_mm;
     o.wavelength_nm = a.wavelength_nm;
+    o.tones = a.tones.iter().map(|t| stillsky::tonal::ToneLine::parse(t)).collect::<Result<_, _>>()?;
+    if let Some(d) = &a.ground_distance_m {
+        use stillsky::distance_attenuation::GroundPath;
+        let (r1, r2) = GroundPath::parse_distances(d)?;
+        let n = GroundPath::spreading_of(&a.wave_kind)?;
+        o.ground_path = Some(GroundPath::with_soil(r1, r2, n, a.soil_loss_factor, a.soil_wave_speed_m_s)?);
+    }
     Ok(o)
 }
 
@@ -854,6 +883,7 @@ fn sweep_inputs(s: &SweepRun) -> Vec<(String, String)> {
         ("frequency grid".into(), html::grid_text(s.cfg.grid.hz())),
         ("ground scale x, y, z".into(), format!("{:?}", s.cfg.ground_scale)),
         ("pad prefix (generic models)".into(), s.cfg.pad_prefix.clone()),
+        ("temperature (°C)".into(), format!("{}", s.cfg.temperature_c)),
         ("recording options".into(), format!("{:?}", s.cfg.series)),
     ]
 }
@@ -864,6 +894,7 @@ fn sweep(a: &SweepArgs) -> CliResult {
         cfg = cfg.with_ground_scale(s);
     }
     cfg.series = series_options(a.fs, a.sensitivity);
+    cfg = cfg.with_temperature_c(a.temperature_c);
     let winds = a.wind.iter().map(|w| WindCase::parse(w)).collect::<Result<Vec<_>, _>>()?;
     let run = SweepRun {
         model: &a.model,

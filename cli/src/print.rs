@@ -133,6 +133,9 @@ pub fn report_text(model: &str, r: &Report) -> String {
         gust_text(&mut s, g);
     }
     budget_text(&mut s, im);
+    if let Some(t) = &r.tones {
+        tones_text(&mut s, t, im.rms_arcsec, im.rms_px);
+    }
     if let Some(p) = &r.people {
         s.push('\n');
         s.push_str(&people_text(p));
@@ -170,6 +173,39 @@ pub fn report_text(model: &str, r: &Report) -> String {
         }
     }
     s
+}
+
+/// The tonal lines: each line's image RMS and share, then the lines with the broadband motion.
+fn tones_text(s: &mut String, t: &stillsky::tonal::ToneImage, broad_arcsec: f64, broad_px: f64) {
+    let _ = writeln!(
+        s,
+        "\ntonal lines (RMS amplitudes at the rig, after --ground-distance-m if given; FRF at each line's own frequency):"
+    );
+    for l in &t.lines {
+        let _ = writeln!(
+            s,
+            "  {:>8.3} Hz {:<24} {:.3e} {:<4} -> x {:.4}, y {:.4}; radial {:.4} arcsec = {:.4} um = {:.4} px ({:.1} %)",
+            l.line.frequency_hz,
+            l.line.input,
+            l.line.amplitude_rms,
+            l.line.unit.name(),
+            l.image_rms_arcsec[0],
+            l.image_rms_arcsec[1],
+            l.rms_arcsec,
+            l.rms_um,
+            l.rms_px,
+            100.0 * l.share
+        );
+    }
+    let _ = writeln!(
+        s,
+        "  all lines: radial RMS {:.4} arcsec = {:.4} um = {:.4} px; with the broadband motion {:.4} arcsec = {:.4} px",
+        t.rms_arcsec,
+        t.rms_um,
+        t.rms_px,
+        t.rms_arcsec.hypot(broad_arcsec),
+        t.rms_px.hypot(broad_px)
+    );
 }
 
 /// The star image budget: one line per term, the FWHM it makes, elongation and direction.

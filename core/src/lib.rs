@@ -53,6 +53,10 @@
 //!   frequencies) from cantilever formulas and from the beam model.
 //! - [`people`]: a person on the deck: the walking force (harmonic load factors) as a time
 //!   history and a line spectrum, and the static tilt of a person standing at a distance.
+//! - [`distance_attenuation`]: ground vibration carried from one distance from its source to
+//!   another (Bornitz spreading and soil damping), a rough estimate.
+//! - [`tonal`]: tonal disturbance lines (a machine near the rig) carried to the image at their
+//!   own frequencies.
 //! - [`monitor`]: streaming estimate of image motion from live accelerometer samples.
 //! - [`schema`]: the model file (TOML): both layers, reading, expansion, writing.
 //! - [`io`]: text and TOML reading, recordings, PSD files, atomic writes.
@@ -64,6 +68,7 @@ pub mod assembly;
 pub mod batch;
 pub mod budget;
 pub mod checks;
+pub mod distance_attenuation;
 pub mod error;
 pub mod footing_impedance;
 pub mod frf;
@@ -93,6 +98,7 @@ pub mod stiffness;
 pub mod surface_waves;
 #[cfg(test)]
 mod test_signals;
+pub mod tonal;
 pub mod transient;
 pub mod units;
 pub mod wind;

@@ -1113,6 +1113,7 @@ def sweep_rows(
     ground_scale: list[float] | None = None,
     fs_hz: float | None = None,
     threads: int | None = None,
+    temperature_c: float | None = None,
 ) -> list[dict[str, object]]:
     """Rows of an isolator sweep (catalogue × spectra × wind cases), GIL released.
 
@@ -1128,6 +1129,8 @@ def sweep_rows(
         ground_scale: per-axis factor on PSD files and reference models.
         fs_hz: sample rate of text recordings without a time column or ``# fs_hz=`` line.
         threads: threads of the sweep's own pool (default: all cores).
+        temperature_c: the night's temperature (°C): pads with a ``temperature`` table take
+            their values at it, linear between rows, refused outside (default 20, as written).
 
     Returns:
         one dict per row with the keys of ``sweep_columns()``; NaN where the CSV is empty,
@@ -1150,6 +1153,7 @@ def sweep_plan(
     ground_scale: list[float] | None = None,
     fs_hz: float | None = None,
     threads: int | None = None,
+    temperature_c: float | None = None,
 ) -> dict[str, list[str]]:
     """Check a sweep without reading any spectrum: ``{"labels", "winds", "specs"}``."""
 
@@ -1224,6 +1228,36 @@ def footfall_steady(
 
     Returns ``frequency_hz``, ``force_n``, ``image_rms_arcsec`` (one per harmonic, arrays) and
     the total ``rms_arcsec``, ``rms_px``.
+    """
+
+def tone_image(model: Model, lines: Sequence[str]) -> dict[str, Any]:
+    """Tonal disturbance lines carried to the image through the FRF at each line's frequency.
+
+    Each line is ``"FREQ_HZ:INPUT:RMS_AMPLITUDE:UNIT"``, e.g. ``"24:ground_z:1e-6:m_s"`` or
+    ``"50:force:deck:z@1,0,0.1:2:N"``; units ``m``, ``m_s``, ``m_s2`` (ground translation),
+    ``rad`` (ground rotation), ``N`` (force), ``N_m`` (moment). The amplitude is the RMS (a
+    sinusoid of peak ``a`` has RMS ``a/√2``); a line adds ``|H(f0)|² A²`` to the mean square.
+
+    Returns per line (arrays, lists for ``input`` and ``unit``): ``frequency_hz``, ``input``,
+    ``amplitude_rms``, ``unit``, ``input_amplitude_rms`` (m, rad, N or N·m),
+    ``image_x_rms_arcsec``, ``image_y_rms_arcsec``, ``line_rms_arcsec``, ``line_rms_um``,
+    ``line_rms_px``, ``share``; and the totals ``rms_arcsec``, ``rms_um``, ``rms_px``.
+    """
+
+def ground_distance_ratio(
+    freq_hz: Sequence[float],
+    from_m: float,
+    to_m: float,
+    *,
+    wave: str = "surface",
+    loss_factor: float = ...,
+    wave_speed_m_s: float = ...,
+) -> _F64:
+    """Amplitude ratio of ground vibration carried from ``from_m`` to ``to_m`` from its source.
+
+    Bornitz (1931): ``(r1/r2)**n * exp(-pi f eta (r2 - r1) / c)``, ``n`` 0.5 for ``surface``,
+    1 for ``body``, 2 for ``body-at-surface`` waves; ``loss_factor`` eta (default 0.1) and
+    ``wave_speed_m_s`` c (default 200). A PSD scales with the ratio squared. A rough estimate.
     """
 
 def standing_tilt(

@@ -167,6 +167,7 @@ def sweep(
     ground_scale=None,
     fs_hz: float | None = None,
     threads: int | None = None,
+    temperature_c: float | None = None,
 ) -> SweepTable:
     """Sweep isolator specs over ground spectra and wind cases on this machine.
 
@@ -175,7 +176,7 @@ def sweep(
     options = dict(
         f_min_hz=f_min_hz, f_max_hz=f_max_hz, n_freq=n_freq, pad_prefix=pad_prefix,
         ground_scale=None if ground_scale is None else [float(v) for v in ground_scale],
-        fs_hz=fs_hz, threads=threads,
+        fs_hz=fs_hz, threads=threads, temperature_c=temperature_c,
     )
     m, mn = model_text(model)
     c, cn = catalogue_text(specs)

@@ -28,6 +28,7 @@ def sweep(
     ground_scale: Sequence[float] | None = None,
     fs_hz: float | None = None,
     threads: int | None = None,
+    temperature_c: float | None = None,
 ) -> SweepTable:
     """Sweep isolator specs over ground spectra and wind cases; the command-line sweep's rows.
 
@@ -38,6 +39,8 @@ def sweep(
         spectra: recording / PSD file paths, URLs (fetched with fsspec), ``nlnm``/``nhnm``.
         wind: ``calm`` or ``SPEED[:HEIGHT[:SPECTRUM[:INTENSITY]]]`` cases (default calm).
         threads: threads of the core's pool (default all cores); rows do not depend on it.
+        temperature_c: the night's temperature (°C) for pads with a temperature table
+            (default 20: the catalogue as written).
 
     Computed in Rust with the GIL released. Bad input raises InvalidInputError; a recording
     that cannot be read gives error rows (one per spec and wind case) naming file and line.

@@ -106,6 +106,118 @@ pub struct Isolator {
     /// Free text (what the pad is).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub description: Option<String>,
+    /// How the pad's stiffness (and loss factor) change with temperature; None: the same at
+    /// every temperature.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature: Option<TemperatureTable>,
+}
+
+/// The pad's nominal values are at this temperature (°C): a sweep without a temperature uses
+/// them as written.
+pub const NOMINAL_TEMPERATURE_C: f64 = 20.0;
+
+/// A pad's values against temperature: scale factors on the nominal values at each listed
+/// temperature, interpolated linearly in temperature between rows and refused outside the
+/// table ([`Error::OutOfRange`]: extrapolating toward a glass transition would be a guess).
+/// The table must cover [`NOMINAL_TEMPERATURE_C`] with factors 1 there, so that the nominal
+/// values are the 20 °C values.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TemperatureTable {
+    /// Strictly increasing temperatures (°C).
+    pub celsius: Vec<f64>,
+    /// Factor on every stiffness of the pad (compression and shear; k0 and k∞ of a zener).
+    pub stiffness_scale: Vec<f64>,
+    /// Factor on the loss factor (hysteretic pads only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub loss_scale: Option<Vec<f64>>,
+}
+
+/// Linear interpolation of `y` over strictly increasing `x` at `t` (None outside).
+fn interpolate(x: &[f64], y: &[f64], t: f64) -> Option<f64> {
+    if x.len() < 2 || y.len() != x.len() || !(x[0]..=x[x.len() - 1]).contains(&t) {
+        return None;
+    }
+    let j = x.partition_point(|v| *v <= t).clamp(1, x.len() - 1);
+    let (x0, x1, y0, y1) = (x[j - 1], x[j], y[j - 1], y[j]);
+    Some(y0 + (y1 - y0) * (t - x0) / (x1 - x0))
+}
+
+impl TemperatureTable {
+    /// Check the table (`who` names the pad).
+    pub fn validate(&self, who: &str, hysteretic: bool) -> Result<()> {
+        let n = self.celsius.len();
+        if n < 2 {
+            return Err(Error::invalid(
+                format!("{who}.temperature.celsius"),
+                "needs at least two temperatures",
+            ));
+        }
+        if self.stiffness_scale.len() != n {
+            return Err(Error::shape(
+                format!("{who}.temperature.stiffness_scale"),
+                n,
+                self.stiffness_scale.len(),
+            ));
+        }
+        if self.celsius.iter().any(|t| !t.is_finite()) || self.celsius.windows(2).any(|w| w[1] <= w[0]) {
+            return Err(Error::invalid(
+                format!("{who}.temperature.celsius"),
+                "must be finite and strictly increasing",
+            ));
+        }
+        for v in &self.stiffness_scale {
+            require_positive(|| format!("{who}.temperature.stiffness_scale"), *v)?;
+        }
+        if let Some(l) = &self.loss_scale {
+            if !hysteretic {
+                return Err(Error::invalid(
+                    format!("{who}.temperature.loss_scale"),
+                    "is used by hysteretic pads only",
+                ));
+            }
+            if l.len() != n {
+                return Err(Error::shape(format!("{who}.temperature.loss_scale"), n, l.len()));
+            }
+            for v in l {
+                require_non_negative(|| format!("{who}.temperature.loss_scale"), *v)?;
+            }
+        }
+        let (k20, l20) = self.scales_at(NOMINAL_TEMPERATURE_C).map_err(|_| {
+            Error::invalid(
+                format!("{who}.temperature.celsius"),
+                format!(
+                    "must cover the nominal {NOMINAL_TEMPERATURE_C} °C (where the catalogue values hold)"
+                ),
+            )
+        })?;
+        if (k20 - 1.0).abs() > 1e-9 || (l20 - 1.0).abs() > 1e-9 {
+            return Err(Error::invalid(
+                format!("{who}.temperature"),
+                format!(
+                    "the factors at {NOMINAL_TEMPERATURE_C} °C must be 1 (the nominal values are the {NOMINAL_TEMPERATURE_C} °C values); got stiffness {k20}, loss {l20}"
+                ),
+            ));
+        }
+        Ok(())
+    }
+
+    /// The stiffness and loss factors at `t_c` (°C), linear between rows; outside the table an
+    /// [`Error::OutOfRange`].
+    pub fn scales_at(&self, t_c: f64) -> Result<(f64, f64)> {
+        let out = || Error::OutOfRange {
+            what: "pad temperature (°C)".into(),
+            value: t_c,
+            min: self.celsius.first().copied().unwrap_or(f64::NAN),
+            max: self.celsius.last().copied().unwrap_or(f64::NAN),
+        };
+        let k = interpolate(&self.celsius, &self.stiffness_scale, t_c).ok_or_else(out)?;
+        let l = match &self.loss_scale {
+            Some(l) => interpolate(&self.celsius, l, t_c).ok_or_else(out)?,
+            None => 1.0,
+        };
+        Ok((k, l))
+    }
 }
 
 /// Which way a pad is loaded.
@@ -130,7 +242,41 @@ impl Isolator {
             tau_s: None,
             rated_load_n: None,
             description: Some("no pad: the support alone".into()),
+            temperature: None,
         }
+    }
+
+    /// The pad at `t_c` (°C): its stiffnesses (and loss factor) scaled by its temperature
+    /// table, the table dropped. A pad without a table is returned as it is; at
+    /// [`NOMINAL_TEMPERATURE_C`] every pad is as written. Outside a pad's table:
+    /// [`Error::OutOfRange`] naming the pad.
+    pub fn at_temperature(&self, t_c: f64) -> Result<Isolator> {
+        crate::error::require_finite("temperature_c", t_c)?;
+        let Some(table) = &self.temperature else { return Ok(self.clone()) };
+        let (k, l) = table.scales_at(t_c).map_err(|e| match e {
+            Error::OutOfRange { value, min, max, .. } => Error::OutOfRange {
+                what: format!("temperature (°C) of isolator '{}' (its table)", self.name),
+                value,
+                min,
+                max,
+            },
+            other => other,
+        })?;
+        // Away from the nominal temperature the pad is named with it, so that its sweep rows
+        // say so and a resumed sweep at another temperature recomputes them.
+        let name = if t_c == NOMINAL_TEMPERATURE_C {
+            self.name.clone()
+        } else {
+            format!("{} at {t_c} °C", self.name)
+        };
+        Ok(Isolator {
+            name,
+            compression_n_per_m: self.compression_n_per_m.map(|v| v * k),
+            shear_n_per_m: self.shear_n_per_m.map(|v| v * k),
+            loss_factor: self.loss_factor.map(|v| v * l),
+            temperature: None,
+            ..self.clone()
+        })
     }
 
     /// True for the no-pad baseline.
@@ -199,6 +345,12 @@ impl Isolator {
         nonneg("shear_damping_ns_per_m", self.shear_damping_ns_per_m)?;
         pos("tau_s", self.tau_s)?;
         pos("rated_load_n", self.rated_load_n)?;
+        if let Some(t) = &self.temperature {
+            if self.is_none() {
+                return Err(Error::invalid(format!("{who}.temperature"), "is not used by this model"));
+            }
+            t.validate(&who, self.model == PadModel::Hysteretic)?;
+        }
         if let Some(r) = self.dynamic_ratio
             && !(r.is_finite() && r >= 1.0)
         {
@@ -317,6 +469,14 @@ impl Catalogue {
             .collect())
     }
 
+    /// Every pad at `t_c` (°C) ([`Isolator::at_temperature`]).
+    pub fn at_temperature(&self, t_c: f64) -> Result<Catalogue> {
+        Ok(Catalogue {
+            isolators: self.isolators.iter().map(|i| i.at_temperature(t_c)).collect::<Result<_>>()?,
+            source: self.source.clone(),
+        })
+    }
+
     /// Read a catalogue file.
     pub fn read(path: &Path) -> Result<Catalogue> {
         let name = path.display().to_string();
@@ -430,6 +590,86 @@ pub fn apply_isolator(spec: &ModelSpec, sites: &[PadSite], iso: &Isolator) -> Re
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    const COLD: &str = r#"
+[[isolator]]
+name = "cold"
+model = "hysteretic"
+compression_n_per_m = 4e5
+shear_n_per_m = 1e5
+loss_factor = 0.2
+[isolator.temperature]
+celsius = [-20, 0, 20, 40]
+stiffness_scale = [4.0, 2.0, 1.0, 0.8]
+loss_scale = [1.5, 1.2, 1.0, 0.9]
+"#;
+
+    #[test]
+    fn temperature_table_interpolates_at_and_between_rows() {
+        let cat = Catalogue::parse(COLD, "cold.toml").unwrap();
+        let pad = &cat.isolators[1];
+        // At table rows: the listed factors.
+        let at0 = pad.at_temperature(0.0).unwrap();
+        assert_eq!(at0.compression_n_per_m, Some(8e5));
+        assert_eq!(at0.shear_n_per_m, Some(2e5));
+        assert!((at0.loss_factor.unwrap() - 0.24).abs() < 1e-15);
+        assert!(at0.temperature.is_none());
+        // Between rows, linear: -15 °C is a quarter of the way from -20 to 0 → 4 − 0.25·2 = 3.5.
+        let at = pad.at_temperature(-15.0).unwrap();
+        assert!((at.compression_n_per_m.unwrap() - 3.5 * 4e5).abs() < 1e-6);
+        assert!((at.loss_factor.unwrap() - 0.2 * (1.5 - 0.25 * 0.3)).abs() < 1e-15);
+        // 30 °C: halfway between 1.0 and 0.8.
+        assert!((pad.at_temperature(30.0).unwrap().shear_n_per_m.unwrap() - 0.9e5).abs() < 1e-6);
+        // The nominal temperature gives the values as written; the ends are inside.
+        let at20 = pad.at_temperature(NOMINAL_TEMPERATURE_C).unwrap();
+        assert_eq!(at20.compression_n_per_m, pad.compression_n_per_m);
+        assert_eq!(pad.at_temperature(-20.0).unwrap().compression_n_per_m, Some(16e5));
+        assert_eq!(pad.at_temperature(40.0).unwrap().compression_n_per_m, Some(3.2e5));
+        // Outside the table: refused, naming the pad.
+        match pad.at_temperature(-25.0) {
+            Err(Error::OutOfRange { what, min, max, .. }) => {
+                assert!(what.contains("'cold'"), "{what}");
+                assert_eq!((min, max), (-20.0, 40.0));
+            }
+            other => panic!("{other:?}"),
+        }
+        assert!(matches!(pad.at_temperature(f64::NAN), Err(Error::InvalidArgument { .. })));
+        // Pads without a table do not change; the whole catalogue round-trips its table.
+        assert_eq!(cat.isolators[0].at_temperature(-25.0).unwrap(), cat.isolators[0]);
+        assert_eq!(Catalogue::parse(&cat.to_toml().unwrap(), "again").unwrap().isolators, cat.isolators);
+    }
+
+    #[test]
+    fn bad_temperature_tables_are_refused() {
+        let bad = |table: &str| {
+            let text = COLD.split("[isolator.temperature]").next().unwrap().to_string()
+                + "[isolator.temperature]\n"
+                + table;
+            Catalogue::parse(&text, "t.toml").unwrap_err()
+        };
+        // 20 °C not covered, factor at 20 °C not 1, not increasing, lengths differ, zero stiffness.
+        assert!(matches!(
+            bad("celsius = [-20, 0]\nstiffness_scale = [2, 1]\n"),
+            Error::InvalidArgument { .. }
+        ));
+        assert!(matches!(
+            bad("celsius = [0, 20]\nstiffness_scale = [2, 1.1]\n"),
+            Error::InvalidArgument { .. }
+        ));
+        assert!(matches!(
+            bad("celsius = [20, 0]\nstiffness_scale = [1, 2]\n"),
+            Error::InvalidArgument { .. }
+        ));
+        assert!(matches!(bad("celsius = [0, 20]\nstiffness_scale = [2]\n"), Error::ShapeMismatch { .. }));
+        assert!(matches!(
+            bad("celsius = [0, 20]\nstiffness_scale = [0, 1]\n"),
+            Error::InvalidArgument { .. }
+        ));
+        assert!(matches!(bad("celsius = [0, 20]\nfactor = [2, 1]\n"), Error::Parse { .. }));
+        // loss_scale on a pad without a loss factor.
+        let kv = "[[isolator]]\nname = \"gel\"\nmodel = \"kelvin-voigt\"\ncompression_n_per_m = 1e5\nshear_n_per_m = 2e4\ncompression_damping_ns_per_m = 300\nshear_damping_ns_per_m = 60\n[isolator.temperature]\ncelsius = [0, 20]\nstiffness_scale = [2, 1]\nloss_scale = [2, 1]\n";
+        assert!(matches!(Catalogue::parse(kv, "kv.toml"), Err(Error::InvalidArgument { .. })));
+    }
 
     const CAT: &str = r#"
 [[isolator]]

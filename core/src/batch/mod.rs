@@ -15,7 +15,10 @@ pub mod report;
 pub mod sweep;
 pub mod sweep_row;
 
-pub use catalogue::{Catalogue, DEFAULT_PAD_PREFIX, Isolator, NO_PAD, PadDirection, PadModel, PadSite};
+pub use catalogue::{
+    Catalogue, DEFAULT_PAD_PREFIX, Isolator, NO_PAD, NOMINAL_TEMPERATURE_C, PadDirection, PadModel, PadSite,
+    TemperatureTable,
+};
 pub use ground::{GroundSource, GroundSpectrum, recording_nperseg};
 pub use gust::{
     GUST_START_S, GustCase, GustFamily, GustPlan, gust_amplitude_m_s, gust_durations, gust_family,

@@ -5,6 +5,7 @@
 use super::ground::{GroundSource, GroundSpectrum};
 use super::gust::{GUST_START_S, GustCase, GustFamily, GustPlan, gust_family_responses, gust_family_with};
 use crate::assembly::ModelSpec;
+use crate::distance_attenuation::GroundPath;
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::guider::GuideLoop;
@@ -16,6 +17,7 @@ use crate::response::Disturbances;
 use crate::schema::ModelFile;
 use crate::skymap::{SkyGrid, SkyMap, sky_map};
 use crate::spectrum::{CriterionCurve, Extrapolate, Quantity, ReferenceGround};
+use crate::tonal::{ToneImage, ToneLine, tone_image};
 use crate::transient::ImageTransient;
 use crate::units::ARCSEC_PER_RAD;
 use crate::wind::WindSpec;
@@ -57,6 +59,11 @@ pub struct ReportOptions {
     pub sky_map: Option<Option<SkyGrid>>,
     /// The person of the "people on the deck" section (a model file with a `[floor]`).
     pub people: PeopleOptions,
+    /// Tonal disturbance lines carried to the image at their own frequencies ([`crate::tonal`]).
+    pub tones: Vec<ToneLine>,
+    /// Carry the ground spectrum and the ground-translation tonal lines from the distance they
+    /// were measured at to the rig's ([`crate::distance_attenuation`]).
+    pub ground_path: Option<GroundPath>,
 }
 
 /// Settings of the report's people section ([`crate::people`]).
@@ -142,6 +149,8 @@ impl ReportOptions {
             wind_from_deg: None,
             sky_map: None,
             people: PeopleOptions::new()?,
+            tones: Vec::new(),
+            ground_path: None,
         })
     }
 }
@@ -219,6 +228,8 @@ pub struct Report {
     pub sky_map: Option<SkyMap>,
     /// A person walking and standing on the deck, when the model file has a `[floor]`.
     pub people: Option<PeopleReport>,
+    /// The image motion of the tonal lines, when given ([`ReportOptions::tones`]).
+    pub tones: Option<ToneImage>,
     pub notes: Vec<String>,
 }
 
@@ -464,7 +475,7 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
                 GroundSource::Reference(ReferenceGround::Nhnm)
             }
         };
-        Some(src.load(grid, o.ground_scale, &o.series)?)
+        Some(carried(src.load(grid, o.ground_scale, &o.series)?, o)?)
     };
     if let Some(n) = ground.as_ref().and_then(|g| g.note.clone()) {
         notes.push(n);
@@ -482,6 +493,9 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
             ),
             None => "the ground is taken not to tilt (rigid ground without a phase velocity): give [ground] phase_velocity_m_s to include tilt and twist".into(),
         });
+    }
+    if let Some(p) = &o.ground_path {
+        notes.push(p.note());
     }
     let d = disturbances(ground.as_ref(), o);
     let io = image_options(o);
@@ -623,9 +637,11 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
         },
         None => None,
     };
+    let tones = if o.tones.is_empty() { None } else { Some(tone_image(&model, &carried_tones(o))?) };
     Ok(Report {
         gust,
         people,
+        tones,
         sky_map: None,
         dof_count: model.dof_count(),
         optics_body,
@@ -645,6 +661,29 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
         criteria,
         notes,
     })
+}
+
+/// The ground spectrum carried along the report's ground path, if any.
+fn carried(mut g: GroundSpectrum, o: &ReportOptions) -> Result<GroundSpectrum> {
+    if let Some(p) = &o.ground_path {
+        for a in g.axes.iter_mut().flatten() {
+            *a = p.apply_psd(a)?;
+        }
+    }
+    Ok(g)
+}
+
+/// The tonal lines, ground translations carried along the report's ground path.
+fn carried_tones(o: &ReportOptions) -> Vec<ToneLine> {
+    o.tones
+        .iter()
+        .map(|l| match &o.ground_path {
+            Some(p) if l.is_ground_translation() => {
+                ToneLine { amplitude_rms: l.amplitude_rms * p.amplitude_ratio(l.frequency_hz), ..l.clone() }
+            }
+            _ => l.clone(),
+        })
+        .collect()
 }
 
 fn disturbances(ground: Option<&GroundSpectrum>, o: &ReportOptions) -> Disturbances {
@@ -696,7 +735,7 @@ pub fn report_sky_map(file: &ModelFile, sky: Option<&SkyGrid>, o: &ReportOptions
         None
     } else {
         let src = o.ground.clone().unwrap_or(GroundSource::Reference(ReferenceGround::Nhnm));
-        Some(src.load(&o.grid, o.ground_scale, &o.series)?)
+        Some(carried(src.load(&o.grid, o.ground_scale, &o.series)?, o)?)
     };
     let sky = match sky {
         Some(s) => s.clone(),

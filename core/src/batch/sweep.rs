@@ -120,6 +120,10 @@ pub struct SweepConfig {
     pub threads: Option<usize>,
     /// When a difference from no pad counts as visible (the summary's verdicts only).
     pub visibility: Visibility,
+    /// The night's temperature (°C): pads with a temperature table take their values at it
+    /// ([`Isolator::at_temperature`]); the default [`catalogue::NOMINAL_TEMPERATURE_C`] is the
+    /// catalogue as written.
+    pub temperature_c: f64,
 }
 
 impl SweepConfig {
@@ -133,7 +137,13 @@ impl SweepConfig {
             series: SeriesOptions::default(),
             threads: None,
             visibility: Visibility::default(),
+            temperature_c: catalogue::NOMINAL_TEMPERATURE_C,
         })
+    }
+    /// Replace the temperature (°C).
+    pub fn with_temperature_c(mut self, t_c: f64) -> Self {
+        self.temperature_c = t_c;
+        self
     }
     /// Replace the grid.
     pub fn with_grid(mut self, grid: FreqGrid) -> Self {
@@ -426,6 +436,7 @@ fn prepare(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<(PadMechanism,
     if cfg.threads == Some(0) {
         return Err(Error::invalid("threads", "must be at least 1"));
     }
+    inputs.catalogue.at_temperature(cfg.temperature_c)?;
     Ok((mech, winds))
 }
 
@@ -439,7 +450,8 @@ pub fn check_sweep(inputs: &SweepInputs<'_>, cfg: &SweepConfig) -> Result<()> {
 
 /// Everything the rows of a sweep are made from, computed once; row `i` is then independent.
 struct PreparedSweep<'a> {
-    catalogue: &'a Catalogue,
+    /// The catalogue at the sweep's temperature.
+    catalogue: Catalogue,
     winds: Vec<WindCase>,
     labels: Vec<String>,
     grid: &'a FreqGrid,
@@ -456,7 +468,7 @@ impl<'a> PreparedSweep<'a> {
     fn new(inputs: &SweepInputs<'a>, labels: &[String], cfg: &'a SweepConfig) -> Result<PreparedSweep<'a>> {
         let (mech, winds) = prepare(inputs, cfg)?;
         check_labels(labels, inputs.grounds.len())?;
-        let catalogue = inputs.catalogue;
+        let catalogue = inputs.catalogue.at_temperature(cfg.temperature_c)?;
         let built: Vec<BuiltSpec> =
             catalogue.isolators.par_iter().map(|iso| build_spec(&mech, iso)).collect();
         let spectra: Vec<std::result::Result<GroundSpectrum, String>> = inputs
@@ -688,6 +700,7 @@ mod tests {
 
     const MODEL: &str = include_str!("../../../docs/examples/tripod-paver-generic.toml");
     const CATALOGUE: &str = include_str!("../../../docs/examples/isolators.toml");
+    const COLD_CATALOGUE: &str = include_str!("../../../docs/examples/isolators-cold.toml");
 
     fn tmpdir(tag: &str) -> PathBuf {
         let d = std::env::temp_dir().join(format!("stillsky-batch-{tag}-{}", std::process::id()));
@@ -730,6 +743,47 @@ mod tests {
             (crate::Complex64::new(2.0e5, 0.4 * 2.0e5), crate::Complex64::new(1.0e8, 0.05 * 1.0e8));
         let want = 1.0 / (1.0 / kp + 1.0 / ks);
         assert!((k.at(3.0) - want).norm() / want.norm() < 1e-12);
+    }
+
+    #[test]
+    fn a_cold_sweep_uses_the_interpolated_pad_stiffness() {
+        // The demo's cold-elastomer pad at -15 °C: halfway between its -20 and -10 °C rows,
+        // stiffness factor (3.5 + 2.2) / 2 = 2.85 and loss factor 0.2 (1.8 + 1.5) / 2 = 0.33.
+        let cat = Catalogue::parse(COLD_CATALOGUE, "isolators-cold.toml").unwrap();
+        let s = file();
+        let grounds = [GroundSource::Reference(crate::spectrum::ReferenceGround::Nhnm)];
+        let run = |c: &Catalogue, t: f64| {
+            let inputs = SweepInputs { model: &s, catalogue: c, grounds: &grounds, winds: &[] };
+            sweep_rows(&inputs, &SweepConfig::new().unwrap().with_temperature_c(t)).unwrap()
+        };
+        let cold = run(&cat, -15.0);
+        let warm = run(&cat, 20.0);
+        let mut by_hand = cat.clone();
+        let pad = by_hand.isolators.iter_mut().find(|i| i.name == "cold-elastomer").unwrap();
+        pad.compression_n_per_m = Some(4.0e5 * 2.85);
+        pad.shear_n_per_m = Some(1.0e5 * 2.85);
+        pad.loss_factor = Some(0.2 * 1.65);
+        pad.temperature = None;
+        let hand = run(&by_hand, 20.0);
+        let row = |rows: &[SweepRow], n: &str| rows.iter().find(|r| r.spec == n).unwrap().clone();
+        // Away from 20 °C the row names the temperature (a resumed sweep at another one recomputes it).
+        assert!(!cold.iter().any(|r| r.spec == "cold-elastomer"));
+        let (c, h, w) = (
+            row(&cold, "cold-elastomer at -15 °C"),
+            row(&hand, "cold-elastomer"),
+            row(&warm, "cold-elastomer"),
+        );
+        assert!(c.error.is_none(), "{:?}", c.error);
+        assert!((c.first_mode_hz / h.first_mode_hz - 1.0).abs() < 1e-9);
+        assert!((c.rms_arcsec / h.rms_arcsec - 1.0).abs() < 1e-9);
+        // Stiffer in the cold: the first mode rises (a softer-pad rig's lowest mode is the pad's).
+        assert!(c.first_mode_hz > w.first_mode_hz * 1.2, "{} vs {}", c.first_mode_hz, w.first_mode_hz);
+        // The baseline (no pad, no table) is the same at any temperature.
+        assert_eq!(row(&cold, "none").rms_arcsec, row(&warm, "none").rms_arcsec);
+        // Outside the pad's table (-30..40 °C): the sweep is refused before it starts.
+        let inputs = SweepInputs { model: &s, catalogue: &cat, grounds: &grounds, winds: &[] };
+        let e = check_sweep(&inputs, &SweepConfig::new().unwrap().with_temperature_c(-40.0)).unwrap_err();
+        assert!(matches!(e, Error::OutOfRange { .. }), "{e}");
     }
 
     #[test]
