@@ -295,12 +295,12 @@ impl Model {
                 return Ok(Input::Ground(GROUND_DOFS + 3 * (k - 1) + d));
             }
         }
-        let unknown = || {
-            Error::UnknownName {
+        let unknown = || Error::UnknownName {
             kind: "input".into(),
             name: name.into(),
-            known: "ground_x, ground_y, ground_z, ground_rx, ground_ry, ground_rz, ground_x|y|z@STATION, wind, force:BODY:x|y|z[@X,Y,Z], moment:BODY:x|y|z".into(),
-        }
+            known: "ground_x, ground_y, ground_z, ground_rx, ground_ry, ground_rz, ground_x|y|z@STATION, \
+                    wind, force:BODY:x|y|z[@X,Y,Z], moment:BODY:x|y|z"
+                .into(),
         };
         let n = self.n;
         if name == "wind" {

@@ -77,9 +77,9 @@ impl Disturbances {
                 let mut own = Vec::new();
                 for (name, v) in out.iter_mut() {
                     if let Some(d) = GROUND_INPUTS.iter().position(|g| g == name) {
+                        let s: Vec<f64> = v.iter().zip(&gbar).map(|(s, g)| s * (1.0 - g)).collect();
                         for k in 1..=stations.len() {
-                            let s: Vec<f64> = v.iter().zip(&gbar).map(|(s, g)| s * (1.0 - g)).collect();
-                            own.push((format!("{name}@{k}"), s, d));
+                            own.push((format!("{name}@{k}"), s.clone(), d));
                         }
                         v.iter_mut().zip(&gbar).for_each(|(s, g)| *s *= g);
                     }

@@ -12,7 +12,7 @@
 //! d = v / (2π f0) = a / (2π f0)².
 
 use crate::error::{Error, Result, require_non_negative, require_positive};
-use crate::model::Model;
+use crate::model::{GROUND_INPUTS, GROUND_ROTATION_INPUTS, Model};
 use crate::units::ARCSEC_PER_RAD;
 use serde::Serialize;
 use std::f64::consts::PI;
@@ -81,8 +81,8 @@ enum InputKind {
 fn input_kind(input: &str) -> Result<InputKind> {
     let base = input.split('@').next().unwrap_or(input);
     Ok(match base {
-        "ground_x" | "ground_y" | "ground_z" => InputKind::GroundTranslation,
-        "ground_rx" | "ground_ry" | "ground_rz" => InputKind::GroundRotation,
+        b if GROUND_INPUTS.contains(&b) => InputKind::GroundTranslation,
+        b if GROUND_ROTATION_INPUTS.contains(&b) => InputKind::GroundRotation,
         b if b.starts_with("force:") => InputKind::Force,
         b if b.starts_with("moment:") => InputKind::Moment,
         _ => {
