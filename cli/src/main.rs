@@ -281,9 +281,10 @@ struct ReportArgs {
     /// Soil loss factor of --ground-distance-m (2 × damping ratio).
     #[arg(long, default_value_t = stillsky::distance_attenuation::DEFAULT_SOIL_LOSS_FACTOR, requires = "ground_distance_m")]
     soil_loss_factor: f64,
-    /// Soil wave speed (m/s) of --ground-distance-m.
-    #[arg(long, default_value_t = stillsky::distance_attenuation::DEFAULT_SOIL_WAVE_SPEED_M_S, requires = "ground_distance_m")]
-    soil_wave_speed_m_s: f64,
+    /// Soil wave speed (m/s) of --ground-distance-m; default the site's phase velocity from the
+    /// model (on soil its Rayleigh-wave speed), else 200 m/s.
+    #[arg(long, requires = "ground_distance_m")]
+    soil_wave_speed_m_s: Option<f64>,
     /// Isolator catalogue (TOML): the gust table and plot show the rig with each pad beside it.
     #[arg(long)]
     catalogue: Option<PathBuf>,
@@ -682,10 +683,15 @@ fn report_options(a: &ReportArgs) -> Result<ReportOptions, Failure> {
     o.wavelength_nm = a.wavelength_nm;
     o.tones = a.tones.iter().map(|t| stillsky::tonal::ToneLine::parse(t)).collect::<Result<_, _>>()?;
     if let Some(d) = &a.ground_distance_m {
-        use stillsky::distance_attenuation::GroundPath;
-        let (r1, r2) = GroundPath::parse_distances(d)?;
-        let n = GroundPath::spreading_of(&a.wave_kind)?;
-        o.ground_path = Some(GroundPath::with_soil(r1, r2, n, a.soil_loss_factor, a.soil_wave_speed_m_s)?);
+        use stillsky::distance_attenuation::{GroundPath, GroundPathSpec};
+        let (from_m, to_m) = GroundPath::parse_distances(d)?;
+        o.ground_path = Some(GroundPathSpec {
+            from_m,
+            to_m,
+            spreading: GroundPath::spreading_of(&a.wave_kind)?,
+            loss_factor: a.soil_loss_factor,
+            wave_speed_m_s: a.soil_wave_speed_m_s,
+        });
     }
     Ok(o)
 }

@@ -39,18 +39,59 @@ pub struct GroundPath {
     pub loss_factor: f64,
     /// Wave speed c (m/s).
     pub wave_speed_m_s: f64,
+    /// Where c came from.
+    pub wave_speed_from: WaveSpeedFrom,
+}
+
+/// Where a ground path's wave speed came from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum WaveSpeedFrom {
+    /// Given by the user.
+    Given,
+    /// The site's phase velocity from the model (`[ground] phase_velocity_m_s`, or on soil the
+    /// half-space's Rayleigh-wave speed).
+    Site,
+    /// [`DEFAULT_SOIL_WAVE_SPEED_M_S`]: neither given nor known from the model.
+    Default,
+}
+
+/// A ground path as asked for, its wave speed optional: [`GroundPathSpec::resolve`] takes the
+/// site's phase velocity when none is given, and [`DEFAULT_SOIL_WAVE_SPEED_M_S`] when the model
+/// knows none either.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct GroundPathSpec {
+    pub from_m: f64,
+    pub to_m: f64,
+    pub spreading: f64,
+    pub loss_factor: f64,
+    pub wave_speed_m_s: Option<f64>,
+}
+
+impl GroundPathSpec {
+    /// The checked path for a site whose phase velocity is `site_m_s` (None: unknown).
+    pub fn resolve(&self, site_m_s: Option<f64>) -> Result<GroundPath> {
+        let (c, from) = match (self.wave_speed_m_s, site_m_s) {
+            (Some(c), _) => (c, WaveSpeedFrom::Given),
+            (None, Some(c)) => (c, WaveSpeedFrom::Site),
+            (None, None) => (DEFAULT_SOIL_WAVE_SPEED_M_S, WaveSpeedFrom::Default),
+        };
+        let p = GroundPath::with_soil(self.from_m, self.to_m, self.spreading, self.loss_factor, c)?;
+        Ok(GroundPath { wave_speed_from: from, ..p })
+    }
 }
 
 impl GroundPath {
     /// Surface waves (n = 0.5) through the default soil.
     pub fn new(from_m: f64, to_m: f64) -> Result<GroundPath> {
-        GroundPath::with_soil(
+        let p = GroundPath::with_soil(
             from_m,
             to_m,
             SURFACE_WAVE_SPREADING,
             DEFAULT_SOIL_LOSS_FACTOR,
             DEFAULT_SOIL_WAVE_SPEED_M_S,
-        )
+        )?;
+        Ok(GroundPath { wave_speed_from: WaveSpeedFrom::Default, ..p })
     }
 
     /// A checked path: distances > 0, n ≥ 0, η ≥ 0, c > 0.
@@ -66,7 +107,14 @@ impl GroundPath {
         require_non_negative("spreading exponent", spreading)?;
         require_non_negative("soil loss factor", loss_factor)?;
         require_positive("soil wave speed (m/s)", wave_speed_m_s)?;
-        Ok(GroundPath { from_m, to_m, spreading, loss_factor, wave_speed_m_s })
+        Ok(GroundPath {
+            from_m,
+            to_m,
+            spreading,
+            loss_factor,
+            wave_speed_m_s,
+            wave_speed_from: WaveSpeedFrom::Given,
+        })
     }
 
     /// Read `FROM:TO` (m).
@@ -115,12 +163,18 @@ impl GroundPath {
     /// One line of text for a report's notes.
     pub fn note(&self) -> String {
         format!(
-            "ground carried from {} m to {} m from its source (Bornitz: spreading (r1/r2)^{} times exp(-pi f eta (r2-r1) / c), eta {}, c {} m/s): a rough estimate, amplitude ratio {:.3} at 1 Hz, {:.3} at 10 Hz, {:.3} at 50 Hz",
+            "ground carried from {} m to {} m from its source (Bornitz: spreading (r1/r2)^{} times exp(-pi f eta (r2-r1) / c), eta {}, c {} m/s {}): a rough estimate, amplitude ratio {:.3} at 1 Hz, {:.3} at 10 Hz, {:.3} at 50 Hz",
             self.from_m,
             self.to_m,
             self.spreading,
             self.loss_factor,
             self.wave_speed_m_s,
+            match self.wave_speed_from {
+                WaveSpeedFrom::Given => "as given",
+                WaveSpeedFrom::Site => "the site's phase velocity from the model",
+                WaveSpeedFrom::Default =>
+                    "a default for medium-stiff soil; the model gives no phase velocity",
+            },
             self.amplitude_ratio(1.0),
             self.amplitude_ratio(10.0),
             self.amplitude_ratio(50.0)
@@ -179,5 +233,32 @@ mod tests {
         assert!(matches!(GroundPath::parse_distances("5:x"), Err(Error::Parse { .. })));
         assert_eq!(GroundPath::parse_distances("5:20").unwrap(), (5.0, 20.0));
         assert!(matches!(GroundPath::spreading_of("love"), Err(Error::UnknownName { .. })));
+    }
+
+    #[test]
+    fn the_wave_speed_comes_from_the_user_then_the_site_then_the_default() {
+        let spec = GroundPathSpec {
+            from_m: 5.0,
+            to_m: 25.0,
+            spreading: 0.5,
+            loss_factor: 0.1,
+            wave_speed_m_s: None,
+        };
+        let site = spec.resolve(Some(104.0)).unwrap();
+        assert_eq!((site.wave_speed_m_s, site.wave_speed_from), (104.0, WaveSpeedFrom::Site));
+        let none = spec.resolve(None).unwrap();
+        assert_eq!(
+            (none.wave_speed_m_s, none.wave_speed_from),
+            (DEFAULT_SOIL_WAVE_SPEED_M_S, WaveSpeedFrom::Default)
+        );
+        let given = GroundPathSpec { wave_speed_m_s: Some(300.0), ..spec }.resolve(Some(104.0)).unwrap();
+        assert_eq!((given.wave_speed_m_s, given.wave_speed_from), (300.0, WaveSpeedFrom::Given));
+        // Slower soil damps more over the same path: α = π f η / c (Bornitz).
+        assert!(site.amplitude_ratio(20.0) < none.amplitude_ratio(20.0));
+        assert!(site.note().contains("the site's phase velocity"));
+        assert!(matches!(
+            GroundPathSpec { wave_speed_m_s: Some(-1.0), ..spec }.resolve(None),
+            Err(Error::InvalidArgument { .. })
+        ));
     }
 }

@@ -5,7 +5,7 @@
 use super::ground::{GroundSource, GroundSpectrum};
 use super::gust::{GUST_START_S, GustCase, GustFamily, GustPlan, gust_family_responses, gust_family_with};
 use crate::assembly::ModelSpec;
-use crate::distance_attenuation::GroundPath;
+use crate::distance_attenuation::{GroundPath, GroundPathSpec};
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::guider::GuideLoop;
@@ -62,8 +62,9 @@ pub struct ReportOptions {
     /// Tonal disturbance lines carried to the image at their own frequencies ([`crate::tonal`]).
     pub tones: Vec<ToneLine>,
     /// Carry the ground spectrum and the ground-translation tonal lines from the distance they
-    /// were measured at to the rig's ([`crate::distance_attenuation`]).
-    pub ground_path: Option<GroundPath>,
+    /// were measured at to the rig's ([`crate::distance_attenuation`]); without a wave speed it
+    /// takes the site's phase velocity from the model.
+    pub ground_path: Option<GroundPathSpec>,
 }
 
 /// Settings of the report's people section ([`crate::people`]).
@@ -451,6 +452,7 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
     let model = Model::from_spec(&spec)?;
     let optics_body = spec.optics.as_ref().map(|op| op.body.clone()).unwrap_or_default();
     let grid = &o.grid;
+    let path = ground_path(&spec, o)?;
     let mut notes = Vec::new();
     if let (Some(w), Some(load)) = (&o.wind, model.wind()) {
         let c = model.wind_at_load(w)?;
@@ -475,7 +477,7 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
                 GroundSource::Reference(ReferenceGround::Nhnm)
             }
         };
-        Some(carried(src.load(grid, o.ground_scale, &o.series)?, o)?)
+        Some(carried(src.load(grid, o.ground_scale, &o.series)?, path.as_ref())?)
     };
     if let Some(n) = ground.as_ref().and_then(|g| g.note.clone()) {
         notes.push(n);
@@ -494,7 +496,7 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
             None => "the ground is taken not to tilt (rigid ground without a phase velocity): give [ground] phase_velocity_m_s to include tilt and twist".into(),
         });
     }
-    if let Some(p) = &o.ground_path {
+    if let Some(p) = &path {
         notes.push(p.note());
     }
     let d = disturbances(ground.as_ref(), o);
@@ -637,7 +639,8 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
         },
         None => None,
     };
-    let tones = if o.tones.is_empty() { None } else { Some(tone_image(&model, &carried_tones(o))?) };
+    let tones =
+        if o.tones.is_empty() { None } else { Some(tone_image(&model, &carried_tones(o, path.as_ref()))?) };
     Ok(Report {
         gust,
         people,
@@ -663,9 +666,15 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
     })
 }
 
+/// The report's ground path for a model, its wave speed the site's when none is given.
+fn ground_path(spec: &ModelSpec, o: &ReportOptions) -> Result<Option<GroundPath>> {
+    let site = spec.ground_waves.as_ref().map(|w| w.phase_velocity_m_s);
+    o.ground_path.as_ref().map(|p| p.resolve(site)).transpose()
+}
+
 /// The ground spectrum carried along the report's ground path, if any.
-fn carried(mut g: GroundSpectrum, o: &ReportOptions) -> Result<GroundSpectrum> {
-    if let Some(p) = &o.ground_path {
+fn carried(mut g: GroundSpectrum, path: Option<&GroundPath>) -> Result<GroundSpectrum> {
+    if let Some(p) = path {
         for a in g.axes.iter_mut().flatten() {
             *a = p.apply_psd(a)?;
         }
@@ -674,10 +683,10 @@ fn carried(mut g: GroundSpectrum, o: &ReportOptions) -> Result<GroundSpectrum> {
 }
 
 /// The tonal lines, ground translations carried along the report's ground path.
-fn carried_tones(o: &ReportOptions) -> Vec<ToneLine> {
+fn carried_tones(o: &ReportOptions, path: Option<&GroundPath>) -> Vec<ToneLine> {
     o.tones
         .iter()
-        .map(|l| match &o.ground_path {
+        .map(|l| match path {
             Some(p) if l.is_ground_translation() => {
                 ToneLine { amplitude_rms: l.amplitude_rms * p.amplitude_ratio(l.frequency_hz), ..l.clone() }
             }
@@ -731,11 +740,12 @@ pub fn report_sky_map(file: &ModelFile, sky: Option<&SkyGrid>, o: &ReportOptions
     // The optics overrides except the pointing, which the map sets cell by cell.
     let optics_only = ReportOptions { altitude_deg: None, azimuth_deg: None, ..o.clone() };
     apply_optics_overrides(&mut file.generic, &optics_only)?;
+    let path = ground_path(&file.expanded()?, o)?;
     let ground = if o.ground_off {
         None
     } else {
         let src = o.ground.clone().unwrap_or(GroundSource::Reference(ReferenceGround::Nhnm));
-        Some(carried(src.load(&o.grid, o.ground_scale, &o.series)?, o)?)
+        Some(carried(src.load(&o.grid, o.ground_scale, &o.series)?, path.as_ref())?)
     };
     let sky = match sky {
         Some(s) => s.clone(),
