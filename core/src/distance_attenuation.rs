@@ -163,7 +163,7 @@ impl GroundPath {
     /// One line of text for a report's notes.
     pub fn note(&self) -> String {
         format!(
-            "ground carried from {} m to {} m from its source (Bornitz: spreading (r1/r2)^{} times exp(-pi f eta (r2-r1) / c), eta {}, c {} m/s {}): a rough estimate, amplitude ratio {:.3} at 1 Hz, {:.3} at 10 Hz, {:.3} at 50 Hz",
+            "ground carried from {} m to {} m from its source (Bornitz: spreading (r1/r2)^{} times exp(-pi f eta (r2-r1) / c), eta {}, c {:.0} m/s, {}): a rough estimate, amplitude ratio {:.3} at 1 Hz, {:.3} at 10 Hz, {:.3} at 50 Hz",
             self.from_m,
             self.to_m,
             self.spreading,
