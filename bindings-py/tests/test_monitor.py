@@ -342,3 +342,23 @@ def test_bad_input_raises_named_errors(rig):
         stillsky.Monitor.from_calibration([1.0, 2.0], np.zeros((2, 2, 1)), -1.0)
     with pytest.raises(TypeError, match="float32"):
         m.push(5.0, np.zeros((10, 2), dtype=np.float32))
+
+
+def test_a_busy_monitor_refuses_a_second_thread():
+    # push releases the GIL; a call from another thread meanwhile gets RuntimeError (pyo3's
+    # borrow check), never a data race.
+    import threading
+
+    m = flat(1e-6, 200.0, window_s=1.0, fir_taps=1024, highpass_hz=1.0)
+    x = np.zeros(100_000)
+    th = threading.Thread(target=m.push, args=(0.0, x))
+    caught = False
+    th.start()
+    while th.is_alive() and not caught:
+        try:
+            m.tick(0.0)
+        except RuntimeError as e:
+            caught = "borrow" in str(e).lower()
+    th.join()
+    assert caught
+    assert m.tick(99_999 / 200.0).state == "quiet"
