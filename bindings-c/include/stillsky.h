@@ -342,6 +342,74 @@ typedef struct stillsky_monitor_info {
 } stillsky_monitor_info;
 
 /**
+ * The numbers of a walking pass (`stillsky_walking_pass`).
+ */
+typedef struct stillsky_walking_pass_summary {
+  /**
+   * Where the walker treads (m, model frame; z is the deck's centre of gravity height).
+   */
+  double point_m[3];
+  /**
+   * Largest radial image excursion (the weight's tilt included): arcsec, px, and when (s).
+   */
+  double peak_arcsec;
+  double peak_px;
+  double peak_time_s;
+  /**
+   * Radial RMS about the mean over the pass, first and last step left out (arcsec, px).
+   */
+  double rms_arcsec;
+  double rms_px;
+} stillsky_walking_pass_summary;
+
+/**
+ * One distance of the standing table (`stillsky_standing_tilt`).
+ */
+typedef struct stillsky_standing_row {
+  double distance_m;
+  /**
+   * Azimuth of the person seen from the stand (deg from north through east): the one asked
+   * for, or the worst.
+   */
+  double azimuth_deg;
+  /**
+   * Static image angle (radial): arcsec and px.
+   */
+  double image_arcsec;
+  double image_px;
+  /**
+   * Static tilt of the deck itself (arcsec).
+   */
+  double deck_tilt_arcsec;
+} stillsky_standing_row;
+
+/**
+ * The image motion of one tonal line (`stillsky_tone_image`).
+ */
+typedef struct stillsky_tone_line_image {
+  double frequency_hz;
+  /**
+   * RMS amplitude in the input's own unit (m, rad, N or N·m).
+   */
+  double input_amplitude_rms;
+  /**
+   * RMS along image_x and image_y (arcsec).
+   */
+  double image_x_rms_arcsec;
+  double image_y_rms_arcsec;
+  /**
+   * Radial RMS: arcsec, µm at the focal plane, px.
+   */
+  double rms_arcsec;
+  double rms_um;
+  double rms_px;
+  /**
+   * This line's share of the lines' total mean square.
+   */
+  double share;
+} stillsky_tone_line_image;
+
+/**
  * Every status, in numeric order.
  */
 #define stillsky_status_ALL { stillsky_status_Ok, stillsky_status_InvalidArgument, stillsky_status_NullPointer, stillsky_status_Parse, stillsky_status_UnsupportedModel, stillsky_status_Io, stillsky_status_Singular, stillsky_status_BufferTooSmall, stillsky_status_UnknownName, stillsky_status_TooLarge, stillsky_status_NoConvergence, stillsky_status_Internal, stillsky_status_ShapeMismatch, stillsky_status_InvalidGrid, stillsky_status_OutOfRange, stillsky_status_NotPositiveDefinite, }
@@ -615,6 +683,127 @@ int32_t stillsky_monitor_info_get(const struct stillsky_monitor *monitor,
  * `monitor` is NULL or a handle from this library, not freed and not in use.
  */
 void stillsky_monitor_free(struct stillsky_monitor *monitor);
+
+/**
+ * The four force lines of a walking person: `freq_hz[h]` = (h + 1) × pace and `force_n[h]` =
+ * α_h × weight (N, amplitude) for h = 0..3, weight = mass × 9.80665 m/s².
+ *
+ * # Safety
+ * `footfall` NUL-terminated; `freq_hz` and `force_n` NULL or 4 writable doubles each.
+ */
+int32_t stillsky_footfall_harmonics(double mass_kg,
+                                    double pace_hz,
+                                    const char *footfall,
+                                    double *freq_hz,
+                                    double *force_n);
+
+/**
+ * The downward walking force (N), `n` samples at `fs_hz` from t = 0: zero before `start_s`
+ * and after `start_s + duration_s`, W[1 + Σ α_h cos(2π h f_p (t − start))] between, faded in
+ * and out over one step.
+ *
+ * # Safety
+ * `footfall` NUL-terminated; `out` points to `n` writable doubles.
+ */
+int32_t stillsky_footfall_force(double mass_kg,
+                                double pace_hz,
+                                const char *footfall,
+                                double fs_hz,
+                                double start_s,
+                                double duration_s,
+                                double *out,
+                                size_t n);
+
+/**
+ * Image motion while a person treads at (`at_x_m`, `at_y_m`) on body `deck` for `duration_s`
+ * (sampled at `fs_hz`; 0.5 s of rest before, 2 s after). The model needs `[optics]`.
+ *
+ * # Safety
+ * `model` NULL or a live handle; `deck`, `footfall` NUL-terminated; `out` NULL or writable.
+ */
+int32_t stillsky_walking_pass(const struct stillsky_model *model,
+                              const char *deck,
+                              double at_x_m,
+                              double at_y_m,
+                              double mass_kg,
+                              double pace_hz,
+                              const char *footfall,
+                              double duration_s,
+                              double fs_hz,
+                              struct stillsky_walking_pass_summary *out);
+
+/**
+ * Steady walking in place at (`at_x_m`, `at_y_m`) on `deck`: each of the four force lines
+ * through the FRF. Writes each line's radial image RMS (arcsec) to `line_rms_arcsec[0..4]`
+ * (NULL to skip) and the total (√Σ of the lines' mean squares) to `*rms_arcsec`.
+ *
+ * # Safety
+ * `model` NULL or live; strings NUL-terminated; `line_rms_arcsec` NULL or 4 writable doubles;
+ * `rms_arcsec` NULL or writable.
+ */
+int32_t stillsky_footfall_steady(const struct stillsky_model *model,
+                                 const char *deck,
+                                 double at_x_m,
+                                 double at_y_m,
+                                 double mass_kg,
+                                 double pace_hz,
+                                 const char *footfall,
+                                 double *line_rms_arcsec,
+                                 double *rms_arcsec);
+
+/**
+ * Static image angle when a person of `mass_kg` stands on `deck` at each of
+ * `distances_m[0..n]` (m, strictly increasing) from the stand's axis, along `azimuth_deg`
+ * (deg from north through east) or, when `azimuth_deg` is NaN, the worst azimuth. One row per
+ * distance into `rows` (capacity `capacity` ≥ `n`, else `..._BUFFER_TOO_SMALL`).
+ *
+ * # Safety
+ * `model` NULL or live; `deck` NUL-terminated; `distances_m` points to `n` doubles; `rows` to
+ * `capacity` writable rows.
+ */
+int32_t stillsky_standing_tilt(const struct stillsky_model *model,
+                               const char *deck,
+                               double mass_kg,
+                               const double *distances_m,
+                               size_t n,
+                               double azimuth_deg,
+                               struct stillsky_standing_row *rows,
+                               size_t capacity);
+
+/**
+ * Tonal lines carried to the image through the FRF at each line's own frequency. Each of
+ * `lines[0..n_lines]` is `"FREQ_HZ:INPUT:RMS_AMPLITUDE:UNIT"` (units `m`, `m_s`, `m_s2` for a
+ * ground translation, `rad`, `N`, `N_m`), e.g. `"24:ground_z:1e-6:m_s"`. Writes one row per
+ * line to `out` (capacity ≥ `n_lines`) and the radial RMS of all lines to `*rms_arcsec`.
+ *
+ * # Safety
+ * `model` NULL or live; `lines` points to `n_lines` NUL-terminated strings; `out` to
+ * `capacity` writable rows; `rms_arcsec` NULL or writable.
+ */
+int32_t stillsky_tone_image(const struct stillsky_model *model,
+                            const char *const *lines,
+                            size_t n_lines,
+                            struct stillsky_tone_line_image *out,
+                            size_t capacity,
+                            double *rms_arcsec);
+
+/**
+ * Amplitude ratio of ground vibration carried from `from_m` to `to_m` from its source, at each
+ * of `freq_hz[0..n]` (Hz, ≥ 0): Bornitz, (r1/r2)^n · exp(−π f η (r2 − r1)/c), with `wave`
+ * `"surface"` (n = 0.5), `"body"` (1) or `"body-at-surface"` (2), soil loss factor η =
+ * `loss_factor` and wave speed c = `wave_speed_m_s`. A rough estimate; square it for a PSD.
+ *
+ * # Safety
+ * `freq_hz` points to `n` doubles; `wave` NUL-terminated; `out` to `n` writable doubles.
+ */
+int32_t stillsky_ground_distance_ratio(const double *freq_hz,
+                                       size_t n,
+                                       double from_m,
+                                       double to_m,
+                                       const char *wave,
+                                       double loss_factor,
+                                       double wave_speed_m_s,
+                                       double *out);
 
 #ifdef __cplusplus
 }  // extern "C"

@@ -9,6 +9,7 @@ mod error;
 mod image;
 mod model;
 mod monitor;
+mod people;
 mod status;
 
 pub use error::{stillsky_last_error_message, stillsky_status_str, stillsky_version};
@@ -24,6 +25,11 @@ pub use monitor::{
     stillsky_monitor_from_calibration, stillsky_monitor_from_model, stillsky_monitor_info,
     stillsky_monitor_info_get, stillsky_monitor_push, stillsky_monitor_reading, stillsky_monitor_reset,
     stillsky_monitor_state, stillsky_monitor_tick, stillsky_unsafe_reason,
+};
+pub use people::{
+    stillsky_footfall_force, stillsky_footfall_harmonics, stillsky_footfall_steady,
+    stillsky_ground_distance_ratio, stillsky_standing_row, stillsky_standing_tilt, stillsky_tone_image,
+    stillsky_tone_line_image, stillsky_walking_pass, stillsky_walking_pass_summary,
 };
 pub use status::{status_of, stillsky_status};
 

@@ -86,6 +86,7 @@ fn c_programs_pass_and_match_core() {
     let errors = compile("errors");
     let monitor = compile("monitor");
     let matrix = compile("errors_matrix");
+    let people = compile("people");
 
     // Happy path: the C program checks the closed form itself; here the numbers it wrote are
     // compared with the core crate called directly.
@@ -129,6 +130,8 @@ fn c_programs_pass_and_match_core() {
     let mut seen = reached(&run(&mut Command::new(&errors), "errors"));
     let mon = run(&mut Command::new(&monitor), "monitor");
     seen.extend(reached(&mon));
+    // People and machines near the rig: hand formulas checked in the C program itself.
+    seen.extend(reached(&run(&mut Command::new(&people), "people")));
     for l in mon.lines().filter(|l| l.starts_with("rel_err")) {
         let v: f64 = l.split_whitespace().nth(2).expect("value").parse().expect("number");
         assert!(v.is_finite(), "{l}");
@@ -156,6 +159,7 @@ fn c_programs_pass_and_match_core() {
                 (&errors, None),
                 (&monitor, Some(quick)),
                 (&matrix, None),
+                (&people, None),
             ] {
                 let mut c = Command::new("valgrind");
                 c.args([

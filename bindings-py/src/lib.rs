@@ -10,6 +10,7 @@ mod errors;
 mod identify;
 mod image;
 mod model;
+mod monitor;
 mod people;
 mod pier_table;
 mod response;
@@ -41,6 +42,7 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(model::_model_from_toml, m)?)?;
     m.add_function(wrap_pyfunction!(pier_table::pier_table, m)?)?;
     people::register(m)?;
+    monitor::register(m)?;
     sources::register(m)?;
     sweep::register(m)?;
     Ok(())

@@ -7,12 +7,15 @@ threading and exceptions.
 
 from ._native import (
     ConvergenceError,
+    ExposureQuality,
     Gust,
     ImageTransient,
     ImageMotion,
     InvalidInputError,
     Model,
     Modes,
+    Monitor,
+    MonitorReading,
     NotPositiveDefiniteError,
     Psd,
     RingdownComparison,
@@ -53,6 +56,9 @@ from ._native import (
 
 __all__ = [
     "Model",
+    "Monitor",
+    "MonitorReading",
+    "ExposureQuality",
     "Modes",
     "Psd",
     "Wind",

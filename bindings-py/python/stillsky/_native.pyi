@@ -1277,3 +1277,147 @@ def standing_tilt(
     ``deck_tilt_arcsec`` (arrays), ``weight_n``, ``crossings_m`` (where the image crosses the
     limit), ``under_within_m`` and ``under_beyond_m`` (None when not applicable).
     """
+
+@final
+class MonitorReading:
+    """One reading of a :class:`Monitor` (as of its last tick)."""
+
+    @property
+    def state(self) -> Literal["quiet", "above", "unsafe"]:
+        """``"quiet"`` (fresh, valid, flag off), ``"above"`` (flag on) or ``"unsafe"`` (no
+        trustworthy reading: treat as not quiet)."""
+    @property
+    def reason(self) -> Literal["none", "warming_up", "bad_sample", "gap", "stale"]:
+        """Why the reading is unsafe (``"none"`` when it is not)."""
+    @property
+    def rms_arcsec(self) -> float:
+        """Radial RMS image motion over the window (arcsec); NaN while warming up."""
+    @property
+    def rms_x_arcsec(self) -> float:
+        """RMS of image_x over the window (arcsec)."""
+    @property
+    def rms_y_arcsec(self) -> float:
+        """RMS of image_y over the window (arcsec)."""
+    @property
+    def rms_px(self) -> float:
+        """Radial RMS in pixels."""
+    @property
+    def last_sample_time_s(self) -> float:
+        """Time of the newest sample (s, caller's clock); NaN before the first."""
+    @property
+    def age_s(self) -> float:
+        """``now`` of the last tick minus ``last_sample_time_s`` (s); NaN before both exist."""
+
+@final
+class ExposureQuality:
+    """The image motion of one exposure (from :meth:`Monitor.exposure_end`)."""
+
+    @property
+    def duration_s(self) -> float: ...
+    @property
+    def rms_arcsec(self) -> float:
+        """Radial RMS over the valid samples of the exposure (arcsec); NaN if none."""
+    @property
+    def rms_px(self) -> float: ...
+    @property
+    def max_window_rms_arcsec(self) -> float:
+        """Largest windowed RMS seen during the exposure (arcsec); NaN if none."""
+    @property
+    def coverage(self) -> float:
+        """Valid samples counted / samples the duration implies (at most 1)."""
+    @property
+    def above_fraction(self) -> float:
+        """Fraction of the counted samples during which the flag was on."""
+
+@final
+class Monitor:
+    """Streaming image-motion monitor: accelerometer samples (m/s²) in, image motion out.
+
+    The core's monitor (the same code as the C API's ``stillsky_monitor``): one FIR filter per
+    channel × image axis designed from the model's image FRF over −ω² (or a measured
+    calibration) with a 4th-order Butterworth high-pass at ``highpass_hz``; a running RMS over
+    ``window_s``; a flag that turns on above ``threshold_arcsec`` and off below
+    ``threshold_arcsec × (1 − hysteresis)`` once it has been on ``hold_off_s``; UNSAFE while
+    warming up (``fir_taps`` + window samples), after a NaN sample or a gap, and when the newest
+    sample is older than ``max_age_s`` at a tick. It only reports; it commands nothing.
+
+    Settings left ``None`` take the defaults: 200 Hz, 10 s window, 1 arcsec, hysteresis 0.2,
+    hold-off 2 s, max age 0.5 s, high-pass 1 Hz, 1024 taps (typical starting values, not advice
+    for a given rig). Single producer: a second thread calling into a monitor that is busy gets
+    ``RuntimeError`` (already borrowed); ``push`` releases the GIL.
+    """
+
+    @staticmethod
+    def from_model(
+        model: Model,
+        axes: str,
+        *,
+        sample_rate_hz: float | None = None,
+        window_s: float | None = None,
+        threshold_arcsec: float | None = None,
+        hysteresis: float | None = None,
+        hold_off_s: float | None = None,
+        max_age_s: float | None = None,
+        highpass_hz: float | None = None,
+        fir_taps: int | None = None,
+    ) -> Monitor:
+        """A monitor for ``model``'s image motion (needs ``[optics]``) from accelerometers along
+        the ground axes ``axes`` (``"z"``, ``"xy"``, ``"xyz"``..., in the order of the columns
+        given to :meth:`push`)."""
+    @staticmethod
+    def from_calibration(
+        freq_hz: _F64In,
+        frf: npt.ArrayLike,
+        plate_scale_arcsec_per_px: float,
+        *,
+        sample_rate_hz: float | None = None,
+        window_s: float | None = None,
+        threshold_arcsec: float | None = None,
+        hysteresis: float | None = None,
+        hold_off_s: float | None = None,
+        max_age_s: float | None = None,
+        highpass_hz: float | None = None,
+        fir_taps: int | None = None,
+    ) -> Monitor:
+        """A monitor from a measured accelerometer-to-image FRF ``frf`` (rad per m/s², complex,
+        shape (n_freq, 2 image axes, n_axes)) on ``freq_hz``; interpolated linearly, zero
+        outside the grid."""
+    def push(self, t0_s: float, samples: _F64In) -> None:
+        """Feed samples (m/s²), shape (n, n_axes) or (n,) for one channel, the first taken at
+        ``t0_s`` (s, the caller's clock; the rest at 1/fs). A C-contiguous float64 array is read
+        in place. A jump of more than half a sample in time is a gap (UNSAFE until refilled); a
+        time going backwards raises ``InvalidInputError``; a non-finite sample refuses the block,
+        restarts the filters (UNSAFE, ``"bad_sample"``) and raises ``InvalidInputError``."""
+    def tick(self, now_s: float) -> MonitorReading:
+        """Set the clock to ``now_s`` and return the reading (staleness is judged here: call it
+        even when no data arrive)."""
+    def reading(self) -> MonitorReading:
+        """The reading as of the last tick (no clock update)."""
+    def exposure_begin(self, t_s: float) -> None:
+        """Open an exposure at ``t_s``; samples whose motion time (sample time − latency) is at
+        or after ``t_s`` count. ``InvalidInputError`` if one is open."""
+    def exposure_end(self, t_s: float) -> ExposureQuality:
+        """Close the open exposure at ``t_s`` (push data up to ``t_s + latency_s`` first)."""
+    def reset(self) -> None:
+        """Clear filters, window, flag, clock and any open exposure (UNSAFE, warming up)."""
+    def fir(self, image_axis: int, channel: int) -> _F64:
+        """A copy of the FIR taps (arcsec per m/s²) from ``channel`` to image axis
+        ``image_axis`` (0 = x, 1 = y), shape (fir_taps,)."""
+    @property
+    def n_axes(self) -> int: ...
+    @property
+    def fir_taps(self) -> int: ...
+    @property
+    def window_samples(self) -> int: ...
+    @property
+    def warmup_samples(self) -> int:
+        """Samples needed after a restart before the reading is valid (taps + window)."""
+    @property
+    def latency_s(self) -> float:
+        """Delay of the estimate behind the data (s) = (taps/8)/fs."""
+    @property
+    def plate_scale_arcsec_per_px(self) -> float: ...
+    @property
+    def sample_rate_hz(self) -> float: ...
+    @property
+    def threshold_arcsec(self) -> float: ...
