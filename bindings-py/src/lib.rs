@@ -13,6 +13,7 @@ mod model;
 mod people;
 mod pier_table;
 mod response;
+mod sensor;
 mod series;
 mod skymap;
 mod sources;
@@ -43,5 +44,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     people::register(m)?;
     sources::register(m)?;
     sweep::register(m)?;
+    sensor::register(m)?;
     Ok(())
 }
