@@ -77,6 +77,6 @@ def test_read_series_converts_px_with_the_plate_scale(tmp_path):
     p = tmp_path / "track.csv"
     p.write_text("# fs_hz=30\nx_px\n2\n-1\n")
     s = stillsky.read_series(p, plate_scale_arcsec_per_px=0.5)
-    assert s.unit == "arcsec" and list(s.axis("x")) == [1.0, -0.5]
+    assert s.unit == "arcsec" and list(s.samples[:, 0]) == [1.0, -0.5]
     with pytest.raises(stillsky.InvalidInputError, match="plate_scale"):
         stillsky.read_series(p)

@@ -328,8 +328,8 @@ fn fit_damped_sine(y: &[f64], dt: f64, mut p: [f64; NP]) -> Result<([f64; NP], V
 
 /// The ring-down card of one record `x` sampled at `fs_hz` (see the module docs).
 ///
-/// Errors: those of [`identify_ringdown`]; a plate scale or threshold that is not finite and
-/// > 0 ([`Error::InvalidArgument`] naming it); fewer than 20 samples after the first excursion
+/// Errors: those of [`identify_ringdown`]; a plate scale or threshold that is not positive
+/// and finite ([`Error::InvalidArgument`] naming it); fewer than 20 samples after the first excursion
 /// or a fit that does not converge ([`Error::NoConvergence`]).
 pub fn ringdown_card(x: &[f64], fs_hz: f64, opts: &CardOptions) -> Result<RingdownCard> {
     let fs = require_positive("fs_hz", fs_hz)?;
