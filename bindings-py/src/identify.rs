@@ -350,7 +350,80 @@ pub fn model_parameters(model: PyRef<'_, crate::model::PyModel>) -> PyResult<Vec
     core_id::numeric_paths(&src.text).py_err()
 }
 
+fn card_options(
+    plate_scale_arcsec_per_px: Option<f64>,
+    threshold: Option<f64>,
+    coverage_factor: f64,
+    min_frequency_hz: Option<f64>,
+    max_frequency_hz: Option<f64>,
+) -> core_id::CardOptions {
+    let mut o = core_id::CardOptions::default();
+    o.ringdown = ringdown_options(min_frequency_hz, max_frequency_hz, 8);
+    o.plate_scale_arcsec_per_px = plate_scale_arcsec_per_px;
+    o.threshold = threshold;
+    o.coverage_factor = coverage_factor;
+    o
+}
+
+/// The ring-down card of `x` (an image track in arcsec when a plate scale is given): f and ζ
+/// with their uncertainty, the fit, first excursion and settle time, as a dict.
+#[pyfunction]
+#[pyo3(signature = (x, fs, *, plate_scale_arcsec_per_px = None, threshold = None, coverage_factor = 2.0,
+                    min_frequency_hz = None, max_frequency_hz = None))]
+#[allow(clippy::too_many_arguments)]
+pub fn ringdown_card<'py>(
+    py: Python<'py>,
+    x: &Bound<'py, PyAny>,
+    fs: f64,
+    plate_scale_arcsec_per_px: Option<f64>,
+    threshold: Option<f64>,
+    coverage_factor: f64,
+    min_frequency_hz: Option<f64>,
+    max_frequency_hz: Option<f64>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let x = f64_1d(x, "x")?;
+    let x = slice_or_copy(&x);
+    let o = card_options(
+        plate_scale_arcsec_per_px,
+        threshold,
+        coverage_factor,
+        min_frequency_hz,
+        max_frequency_hz,
+    );
+    let c = py.detach(|| core_id::ringdown_card(&x, fs, &o)).py_err()?;
+    to_dict(py, &c)
+}
+
+/// Cards of two recordings (same options) and their comparison: dict with `before`, `after`
+/// and `comparison` (ratios after / before).
+#[pyfunction]
+#[pyo3(signature = (before, after, fs, *, plate_scale_arcsec_per_px = None, threshold = None,
+                    coverage_factor = 2.0))]
+pub fn compare_ringdown_cards<'py>(
+    py: Python<'py>,
+    before: &Bound<'py, PyAny>,
+    after: &Bound<'py, PyAny>,
+    fs: f64,
+    plate_scale_arcsec_per_px: Option<f64>,
+    threshold: Option<f64>,
+    coverage_factor: f64,
+) -> PyResult<Bound<'py, PyDict>> {
+    let (b, a) = (f64_1d(before, "before")?, f64_1d(after, "after")?);
+    let (b, a) = (slice_or_copy(&b), slice_or_copy(&a));
+    let o = card_options(plate_scale_arcsec_per_px, threshold, coverage_factor, None, None);
+    let (cb, ca) = py
+        .detach(|| Ok::<_, Error>((core_id::ringdown_card(&b, fs, &o)?, core_id::ringdown_card(&a, fs, &o)?)))
+        .py_err()?;
+    let d = PyDict::new(py);
+    d.set_item("comparison", to_dict(py, &core_id::compare_cards(&cb, &ca))?)?;
+    d.set_item("before", to_dict(py, &cb)?)?;
+    d.set_item("after", to_dict(py, &ca)?)?;
+    Ok(d)
+}
+
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_function(wrap_pyfunction!(ringdown_card, m)?)?;
+    m.add_function(wrap_pyfunction!(compare_ringdown_cards, m)?)?;
     m.add_class::<PyRingdownId>()?;
     m.add_class::<PyRingdownComparison>()?;
     m.add_function(wrap_pyfunction!(identify_ringdown, m)?)?;

@@ -14,6 +14,7 @@ mod monitor;
 mod people;
 mod pier_table;
 mod response;
+mod sensor;
 mod series;
 mod skymap;
 mod sources;
@@ -45,5 +46,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     monitor::register(m)?;
     sources::register(m)?;
     sweep::register(m)?;
+    sensor::register(m)?;
     Ok(())
 }

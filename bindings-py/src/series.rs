@@ -38,7 +38,7 @@ impl PySeries {
     fn fs(&self) -> f64 {
         self.fs
     }
-    /// SI unit of the samples ("m/s^2", "m/s", "m", or "counts").
+    /// SI unit of the samples ("m/s^2", "m/s", "m", "counts", or "arcsec" for an image track).
     #[getter]
     fn unit(&self) -> &'static str {
         self.unit
@@ -87,7 +87,7 @@ impl PySeries {
 /// Read a recording (CSV/whitespace text, WAV or miniSEED).
 #[pyfunction]
 #[pyo3(signature = (path, *, fs_hz = None, unit = None, wav_full_scale = None, sensitivity = None,
-                    channel = None, max_jitter_fraction = None))]
+                    channel = None, max_jitter_fraction = None, plate_scale_arcsec_per_px = None))]
 #[allow(clippy::too_many_arguments)]
 pub fn read_series(
     py: Python<'_>,
@@ -98,8 +98,10 @@ pub fn read_series(
     sensitivity: Option<(f64, String)>,
     channel: Option<String>,
     max_jitter_fraction: Option<f64>,
+    plate_scale_arcsec_per_px: Option<f64>,
 ) -> PyResult<PySeries> {
     let mut opts = SeriesOptions::default();
+    opts.plate_scale_arcsec_per_px = plate_scale_arcsec_per_px;
     opts.fs_hz = fs_hz;
     opts.unit = unit.map(Unit::parse).transpose().py_err()?;
     if let Some((v, u)) = wav_full_scale {

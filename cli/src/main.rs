@@ -73,20 +73,56 @@ enum Cmd {
     /// motion), the steady footfall lines, and the static tilt of a person standing at each
     /// distance from the stand.
     DeckLoad(DeckLoadArgs),
-    /// Identify frequency and damping from a tap-test ring-down recording.
-    Tap {
-        /// Recording (CSV/text/WAV/miniSEED).
-        file: PathBuf,
-        /// Sample rate (Hz) for text files without a time column or `# fs_hz=` line.
-        #[arg(long)]
-        fs: Option<f64>,
-        /// Axis (column) to analyse; default the first.
-        #[arg(long)]
-        axis: Option<String>,
-    },
+    /// Identify frequency and damping from a tap-test ring-down recording: a card with f and ζ
+    /// with their uncertainty, the first excursion and the settle time; optionally an SVG and a
+    /// before/after comparison.
+    Tap(TapArgs),
     /// Transfer function from one recorded channel to another (H1, H2) with their coherence,
     /// e.g. ground to pier top, or a hammer's force to the tube's response.
     Transfer(TransferArgs),
+}
+
+#[derive(Args)]
+struct TapArgs {
+    /// Recording (CSV/text/WAV/miniSEED); a centroid track has columns in px or arcsec.
+    file: PathBuf,
+    /// Sample rate (Hz) for text files without a time column or `# fs_hz=` line.
+    #[arg(long)]
+    fs: Option<f64>,
+    /// Axis (column) to analyse; default the first.
+    #[arg(long)]
+    axis: Option<String>,
+    /// WAV: the value of digital full scale, as VALUE:UNIT (e.g. 2:g, 0.05:m_s, 40:px).
+    #[arg(long, value_parser = parse_full_scale)]
+    full_scale: Option<stillsky::io::series::PhysicalValue>,
+    /// miniSEED: counts per unit, as COUNTS:UNIT (e.g. 6.0e8:m_s).
+    #[arg(long, value_parser = parse_sensitivity)]
+    sensitivity: Option<Sensitivity>,
+    /// Plate scale (arcsec per px) of an image track; or give --focal-length-mm and --pixel-um.
+    #[arg(long, conflicts_with_all = ["focal_length_mm", "pixel_um"])]
+    plate_scale: Option<f64>,
+    /// Focal length (mm) for the plate scale.
+    #[arg(long, requires = "pixel_um")]
+    focal_length_mm: Option<f64>,
+    /// Pixel size (µm) for the plate scale.
+    #[arg(long, requires = "focal_length_mm")]
+    pixel_um: Option<f64>,
+    /// Settle threshold in the recording's unit (arcsec for an image track; default ½ px with
+    /// a plate scale, else 10 % of the first excursion).
+    #[arg(long, conflicts_with = "threshold_px")]
+    threshold: Option<f64>,
+    /// Settle threshold in px (image tracks with a plate scale).
+    #[arg(long)]
+    threshold_px: Option<f64>,
+    /// A second recording (e.g. after fitting pads) to compare with the first.
+    #[arg(long)]
+    compare: Option<PathBuf>,
+    /// Write the card's plot (trace, fitted envelope, threshold band) as SVG.
+    #[arg(long)]
+    svg: Option<PathBuf>,
+    /// Write the card(s) as JSON.
+    #[arg(long)]
+    json: Option<PathBuf>,
 }
 
 #[derive(Args)]
@@ -521,7 +557,7 @@ fn main() -> ExitCode {
         Cmd::Calibrate(a) => calibrate(&a),
         Cmd::PierTable(a) => pier_table(&a),
         Cmd::DeckLoad(a) => deck_load(&a),
-        Cmd::Tap { file, fs, axis } => tap(&file, fs, axis.as_deref()),
+        Cmd::Tap(a) => tap(&a),
         Cmd::Transfer(a) => transfer(&a),
         Cmd::Check { model, design_wind_m_s, gust_factor, top_load_n, foot_surface } => {
             let options = stillsky::checks::StaticOptions { top_load_n, foot_surface };
@@ -1011,11 +1047,84 @@ fn recording_axis(
     Ok((name, x.to_vec(), s.fs_hz))
 }
 
-fn tap(file: &Path, fs: Option<f64>, axis: Option<&str>) -> CliResult {
-    let (name, x, fs_hz) = recording_axis(file, fs, axis)?;
-    let id =
-        stillsky::identify::identify_ringdown(&x, fs_hz, &stillsky::identify::RingdownOptions::default())?;
-    print!("{}", print::tap_text(&file.display().to_string(), &name, fs_hz, &id));
+fn parse_full_scale(s: &str) -> Result<stillsky::io::series::PhysicalValue, String> {
+    let (v, u) = s.split_once(':').ok_or_else(|| format!("expected VALUE:UNIT (e.g. 2:g), got '{s}'"))?;
+    let value: f64 = v.trim().parse().map_err(|_| format!("full scale '{v}' is not a number"))?;
+    let unit = Unit::parse(u).map_err(|e| e.to_string())?;
+    Ok(stillsky::io::series::PhysicalValue::new(value, unit))
+}
+
+/// One tap recording read for the card: axis name, samples, rate and unit symbol.
+fn tap_recording(
+    a: &TapArgs,
+    file: &Path,
+    plate: Option<f64>,
+) -> Result<(String, Vec<f64>, f64, String), Failure> {
+    let mut o = series_options(a.fs, a.sensitivity);
+    o.wav_full_scale = a.full_scale;
+    o.plate_scale_arcsec_per_px = plate;
+    let s = read_series(file, &o)?;
+    let (name, x) = match a.axis.as_deref() {
+        Some(ax) => (
+            ax.to_string(),
+            s.axis_by_name(ax).ok_or_else(|| Failure {
+                code: 2,
+                message: format!("{}: no axis '{ax}'; the file has {:?}", file.display(), s.axis_names),
+            })?,
+        ),
+        None => (s.axis_names.first().cloned().unwrap_or_default(), s.axis(0).unwrap_or_default()),
+    };
+    let image = s.quantity == stillsky::io::series::SeriesQuantity::ImageAngle;
+    let unit = if image { "arcsec".to_string() } else { s.quantity.si_unit().to_string() };
+    Ok((name, x.to_vec(), s.fs_hz, unit))
+}
+
+fn tap(a: &TapArgs) -> CliResult {
+    use stillsky::identify::{CardOptions, compare_cards, ringdown_card};
+    let plate = match (a.plate_scale, a.focal_length_mm, a.pixel_um) {
+        (Some(p), _, _) => Some(p),
+        (None, Some(f), Some(px)) => Some(stillsky::image::plate_scale_arcsec_per_px(px, f)),
+        _ => None,
+    };
+    let mut cards = Vec::new();
+    for file in std::iter::once(&a.file).chain(a.compare.as_ref()) {
+        let (name, x, fs_hz, unit) = tap_recording(a, file, plate)?;
+        let mut o = CardOptions::default();
+        // The plate scale belongs to image tracks only.
+        o.plate_scale_arcsec_per_px = plate.filter(|_| unit == "arcsec");
+        o.threshold = match (a.threshold, a.threshold_px, o.plate_scale_arcsec_per_px) {
+            (Some(t), _, _) => Some(t),
+            (None, Some(t), Some(p)) => Some(t * p),
+            (None, Some(_), None) => {
+                return Err(Failure {
+                    code: 2,
+                    message: "--threshold-px needs an image track (px or arcsec) and a plate scale".into(),
+                });
+            }
+            (None, None, _) => None,
+        };
+        let card = ringdown_card(&x, fs_hz, &o)?;
+        print!("{}", print::card_text(&file.display().to_string(), &name, &unit, &card));
+        cards.push((file.display().to_string(), x, unit, card));
+    }
+    if let [(_, _, _, b), (_, _, _, af)] = cards.as_slice() {
+        print!("{}", print::card_comparison_text(&compare_cards(b, af)));
+    }
+    if let Some(p) = &a.svg {
+        let traces: Vec<plots::CardTrace> = cards
+            .iter()
+            .map(|(f, x, unit, c)| plots::CardTrace { label: f.clone(), x, unit, card: c })
+            .collect();
+        let plot = plots::ringdown_card_svg(&traces).map_err(|e| Failure::io("plots", e))?;
+        stillsky::io::atomic::write_atomic(p, plot.svg.as_bytes())?;
+        println!("svg: {}", p.display());
+    }
+    if let Some(p) = &a.json {
+        let all: Vec<&stillsky::identify::RingdownCard> = cards.iter().map(|c| &c.3).collect();
+        let text = serde_json::to_string_pretty(&all).map_err(|e| Failure::io("json", e))?;
+        stillsky::io::atomic::write_atomic(p, text.as_bytes())?;
+        println!("json: {}", p.display());
+    }
     Ok(())
 }
 

@@ -800,6 +800,79 @@ pub fn sky_map_svg(m: &stillsky::skymap::SkyMap) -> PlotResult<Plot> {
     Ok(Plot { file_name: "sky-map.svg", title, svg })
 }
 
+/// One recording on a ring-down card plot.
+pub struct CardTrace<'a> {
+    pub label: String,
+    pub x: &'a [f64],
+    pub unit: &'a str,
+    pub card: &'a stillsky::identify::RingdownCard,
+}
+
+/// The ring-down card's plot: each trace minus its rest level, its fitted envelope ±A e^{−σt}
+/// over the fit window, and the ±threshold band (±½ px for an image track by default).
+pub fn ringdown_card_svg(traces: &[CardTrace]) -> PlotResult<Plot> {
+    let first = traces.first().ok_or("no trace")?;
+    let times: Vec<Vec<f64>> =
+        traces.iter().map(|t| (0..t.x.len()).map(|i| i as f64 / t.card.fs_hz).collect()).collect();
+    let fit_t: Vec<Vec<f64>> = traces
+        .iter()
+        .map(|t| {
+            let f = &t.card.fit;
+            (0..=400).map(|i| f.t0_s + (f.t_end_s - f.t0_s) * i as f64 / 400.0).collect()
+        })
+        .collect();
+    let mut lines = Vec::new();
+    for (k, t) in traces.iter().enumerate() {
+        let c = t.card;
+        let name =
+            if traces.len() > 1 { format!("{} ", ["before", "after"][k.min(1)]) } else { String::new() };
+        let short = std::path::Path::new(&t.label)
+            .file_name()
+            .map_or(t.label.clone(), |s| s.to_string_lossy().into_owned());
+        lines.push(data_line(
+            &format!("{name}trace ({short})"),
+            &times[k],
+            t.x.iter().map(|v| v - c.rest_level).collect(),
+        ));
+        let env: Vec<f64> = fit_t[k].iter().map(|&s| c.fit.envelope_at(s)).collect();
+        lines.push(data_line(
+            &format!(
+                "{name}fitted envelope (f {:.3} Hz, ζ {:.4})",
+                c.frequency_hz.value, c.damping_ratio.value
+            ),
+            &fit_t[k],
+            env.clone(),
+        ));
+        lines.push(data_line(&format!("{name}− envelope"), &fit_t[k], env.iter().map(|v| -v).collect()));
+    }
+    let c0 = first.card;
+    let band = match c0.threshold_px {
+        Some(px) => format!("±{px:.2} px"),
+        None => format!("±{}", tick_label(c0.threshold)),
+    };
+    let all_t = &times[0];
+    let mut up = threshold(&band, all_t, c0.threshold);
+    up.label = band.clone();
+    lines.push(up);
+    let mut down = threshold(&format!("−{}", &band[2..]), all_t, -c0.threshold);
+    down.end_label = None;
+    lines.push(down);
+    let title = match c0.first_excursion_px {
+        Some(px) => format!("Ring-down card: first excursion {px:.2} px"),
+        None => "Ring-down card".to_string(),
+    };
+    let svg = chart(
+        &title,
+        "time (s)",
+        &format!("{} − rest level ({})", "track", first.unit),
+        &lines,
+        false,
+        false,
+        SeriesLabelPosition::UpperRight,
+    )?;
+    Ok(Plot { file_name: "ringdown-card.svg", title, svg })
+}
+
 #[cfg(test)]
 mod tests {
     use super::tick_label;

@@ -349,6 +349,82 @@ pub fn tap_text(file: &str, axis: &str, fs: f64, id: &RingdownId) -> String {
     s
 }
 
+/// The ring-down card of one recording.
+pub fn card_text(file: &str, axis: &str, unit: &str, c: &stillsky::identify::RingdownCard) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "== ring-down card: {file}, axis '{axis}', fs {} Hz ==", c.fs_hz);
+    let (f, z) = (&c.frequency_hz, &c.damping_ratio);
+    let methods = |m: &[(String, f64)], p: usize| {
+        m.iter().map(|(n, v)| format!("{n} {v:.p$}")).collect::<Vec<_>>().join(", ")
+    };
+    let _ = writeln!(
+        s,
+        "  frequency     {:.4} ± {:.4} Hz   (fit σ {:.2e}; methods {})",
+        f.value,
+        f.uncertainty,
+        f.fit_std,
+        methods(&f.methods, 4)
+    );
+    let _ = writeln!(
+        s,
+        "  damping ratio {:.5} ± {:.5}    (fit σ {:.2e}; methods {})",
+        z.value,
+        z.uncertainty,
+        z.fit_std,
+        methods(&z.methods, 5)
+    );
+    let px = |v: Option<f64>| v.map_or(String::new(), |v| format!(" = {v:.3} px"));
+    let _ = writeln!(
+        s,
+        "  first excursion {:.4e} {unit}{} at {:.3} s",
+        c.first_excursion,
+        px(c.first_excursion_px),
+        c.first_excursion_time_s
+    );
+    let measured = c.settle_time_s.map_or("not within the record".to_string(), |t| format!("{t:.3} s"));
+    let _ = writeln!(
+        s,
+        "  inside ±{:.4e} {unit}{}: after {measured} (samples), {:.3} s (fitted envelope)",
+        c.threshold,
+        px(c.threshold_px),
+        c.settle_time_fit_s
+    );
+    let _ = writeln!(
+        s,
+        "  fit: {} samples from {:.3} s, residual RMS {:.3e} {unit}, rest level {:.4e} {unit}",
+        c.fit.samples, c.fit.t0_s, c.fit.residual_rms, c.rest_level
+    );
+    for w in &c.warnings {
+        let _ = writeln!(s, "  warning: {w}");
+    }
+    s
+}
+
+/// Before/after ratios of two ring-down cards.
+pub fn card_comparison_text(c: &stillsky::identify::CardComparison) -> String {
+    let mut s = String::from("== before/after (after / before) ==\n");
+    let opt = |v: Option<f64>| v.map_or("-".to_string(), |v| format!("{v:.3}"));
+    let _ = writeln!(s, "  first excursion {:.3}", c.excursion_ratio);
+    let _ = writeln!(
+        s,
+        "  damping ratio   {:.3}  ({})",
+        c.damping_ratio_ratio,
+        if c.damping_change_resolved {
+            "the change is larger than the two uncertainties"
+        } else {
+            "within the uncertainties: not resolved"
+        }
+    );
+    let _ = writeln!(s, "  frequency       {:.4}", c.frequency_ratio);
+    let _ = writeln!(
+        s,
+        "  settle time     {} (fitted envelope), {} (samples)",
+        opt(c.settle_time_fit_ratio),
+        opt(c.settle_time_ratio)
+    );
+    s
+}
+
 /// Static checks with their verdicts and the cautions that always go with them.
 pub fn checks_text(wind: &stillsky::checks::StaticWind, r: &stillsky::checks::CheckReport) -> String {
     let mut o = String::new();

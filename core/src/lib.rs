@@ -89,6 +89,7 @@ pub mod response;
 pub mod rig;
 pub mod schema;
 pub mod section;
+pub mod sensor_response;
 pub mod sky;
 pub mod skymap;
 pub mod soil;

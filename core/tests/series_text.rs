@@ -369,3 +369,25 @@ fn in_memory_text_reads_like_the_same_file() {
     let e = SeriesReader::from_text("z_g\n1\n", "m", &opts().with_format(SeriesFormat::Wav)).err().unwrap();
     assert!(matches!(e, Error::InvalidArgument { .. }), "{e}");
 }
+
+#[test]
+fn image_tracks_in_px_and_arcsec_share_arcsec() {
+    // A centroid track: px columns become arcsec with the plate scale (exact here: 0.5 is a
+    // power of two), arcsec columns stay; without a plate scale a px column is refused by name.
+    let p = write("track", "track.csv", "# fs_hz=30\nx_px,y_arcsec\n2,1.5\n-1,0.25\n");
+    let s = read_series(&p, &opts().with_plate_scale(0.5)).unwrap();
+    assert_eq!(s.quantity, SeriesQuantity::ImageAngle);
+    assert_eq!(s.quantity.si_unit(), "arcsec");
+    assert_eq!(s.axis(0).unwrap(), [1.0, -0.5]);
+    assert_eq!(s.axis(1).unwrap(), [1.5, 0.25]);
+    let e = read_series(&p, &opts()).unwrap_err();
+    assert!(
+        matches!(&e, Error::InvalidArgument { name, reason }
+        if name == "plate_scale_arcsec_per_px" && reason.contains("track.csv")),
+        "{e}"
+    );
+    // Mixing an image column with ground motion is one file, two quantities: refused.
+    let p = write("mixed", "m.csv", "# fs_hz=30\nx_px,z_m_s2\n1,2\n");
+    let (_, loc, reason) = parse_err(read_series(&p, &opts().with_plate_scale(0.5)));
+    assert!(loc.contains("column 2") && reason.contains("one quantity"), "{loc} {reason}");
+}

@@ -709,7 +709,7 @@ def wind_spectrum(
         shelter_factor: factor in (0, 1] on the mean speed.
     """
 
-_UnitToken = Literal["m_s2", "g", "m_s", "mm_s", "um_s", "m", "mm", "um"]
+_UnitToken = Literal["m_s2", "g", "m_s", "mm_s", "um_s", "m", "mm", "um", "arcsec", "px"]
 
 @final
 class Series:
@@ -745,6 +745,7 @@ def read_series(
     sensitivity: tuple[float, _UnitToken] | None = None,
     channel: str | None = None,
     max_jitter_fraction: float | None = None,
+    plate_scale_arcsec_per_px: float | None = ...,
 ) -> Series:
     """Read a recording (CSV/whitespace text, WAV, miniSEED); large files are refused above the
     core's sample limit rather than exhausting memory. GIL released.
@@ -761,7 +762,98 @@ def read_series(
         max_jitter_fraction: timestamped text: largest |interval − median| / median that is
             still resampled onto a uniform grid (default 0.10); beyond it the reader refuses
             with the measured rate, jitter and gaps.
+        plate_scale_arcsec_per_px: image tracks (columns ``*_px`` or ``*_arcsec``): arcsec per
+            px; px columns are converted to arcsec with it (required for px). ``unit`` is then
+            "arcsec".
     """
+
+def ringdown_card(
+    x: _F64In,
+    fs: float,
+    *,
+    plate_scale_arcsec_per_px: float | None = ...,
+    threshold: float | None = ...,
+    coverage_factor: float = ...,
+    min_frequency_hz: float | None = ...,
+    max_frequency_hz: float | None = ...,
+) -> dict[str, Any]:
+    """The ring-down card of one record (a tap test): a damped sine fitted from the first
+    excursion on, started from ``identify_ringdown``. GIL released.
+
+    Returns a dict: ``frequency_hz`` and ``damping_ratio`` (each ``value``, ``uncertainty``
+    u = √((k σ_fit)² + r²), ``fit_std``, ``method_spread`` r, ``methods``), ``fit``, the
+    ``identification``, ``first_excursion`` (units of x; ``first_excursion_arcsec`` and
+    ``first_excursion_px`` for an image track in arcsec with a plate scale), ``threshold``
+    (default ½ px with a plate scale, else 10 % of the first excursion), ``settle_time_s``
+    (samples) and ``settle_time_fit_s`` (fitted envelope), ``warnings``.
+    """
+
+def compare_ringdown_cards(
+    before: _F64In,
+    after: _F64In,
+    fs: float,
+    *,
+    plate_scale_arcsec_per_px: float | None = ...,
+    threshold: float | None = ...,
+    coverage_factor: float = ...,
+) -> dict[str, Any]:
+    """Cards of two recordings and their comparison: ``before``, ``after`` and ``comparison``
+    (ratios after / before of the first excursion, ζ, f and the settle times;
+    ``damping_change_resolved`` when the ζ intervals do not overlap)."""
+
+@final
+class SensorResponse:
+    """A sensor's response H(s) = k Π(s − z)/Π(s − p) (rad/s, s = 2πi f) with the band where
+    removing it is valid."""
+
+    def __new__(
+        cls,
+        zeros: _F64In,
+        poles: _F64In,
+        gain: float,
+        input: str,
+        valid_band_hz: tuple[float, float],
+    ) -> SensorResponse:
+        """From poles and zeros (rad/s, poles in the left half-plane), gain k, the input
+        quantity ("velocity", "acceleration", "displacement") and the valid band (Hz)."""
+    @staticmethod
+    def geophone(natural_hz: float, damping: float, generator_v_per_m_s: float) -> SensorResponse:
+        """A moving-coil geophone, H(s) = G s²/(s² + 2ζω₀s + ω₀²), velocity in; valid from
+        where |H| = 0.1 G upward."""
+    @staticmethod
+    def flat_accelerometer(sensitivity: float, bandwidth_hz: float) -> SensorResponse:
+        """A MEMS accelerometer flat to its bandwidth (acceleration in)."""
+    @property
+    def zeros(self) -> _C128: ...
+    @property
+    def poles(self) -> _C128: ...
+    @property
+    def gain(self) -> float: ...
+    @property
+    def input(self) -> str: ...
+    @property
+    def valid_band_hz(self) -> tuple[float, float]: ...
+    def response(self, freq_hz: _F64In) -> _C128:
+        """Complex response at each frequency (Hz)."""
+    def remove(self, x: _F64In, fs: float, band: tuple[float, float] | None = ...) -> _F64:
+        """Remove the response from a record of the sensor's output within ``band`` (Hz;
+        default the valid band up to Nyquist): X/H on the FFT bins inside, zero outside.
+        A band outside the valid band raises InvalidInputError naming the limits."""
+
+def noise_curve(name: str) -> dict[str, Any]:
+    """A bundled self-noise curve ("phone-mems", "low-noise-mems", "geophone-4.5hz"):
+    ``name``, ``source``, ``freq_hz``, ``psd`` ((m/s²)²/Hz), ``quantity``."""
+
+def noise_floor_check(
+    freq_hz: _F64In,
+    psd: _F64In,
+    quantity: str,
+    sensor: str,
+    *,
+    factor: float | None = ...,
+) -> dict[str, Any]:
+    """How much of a recorded PSD lies within ``factor`` (PSD, default 4) of a bundled
+    sensor's noise floor: ``fraction_at_floor``, ``span_at_floor_hz``, ``warning``."""
 
 def identify_ringdown(
     x: _F64In,

@@ -165,6 +165,12 @@ fn recording_psds(path: &Path, scale: [f64; 3], opts: &SeriesOptions) -> Result<
                 "is in raw counts; give the sensor's sensitivity to convert to SI",
             ));
         }
+        SeriesQuantity::ImageAngle => {
+            return Err(Error::invalid(
+                format!("recording {file}"),
+                "is an image track (arcsec or px), not ground motion",
+            ));
+        }
     };
     let mapped: Vec<Option<usize>> = s.axis_names.iter().map(|n| axis_index(n)).collect();
     let map: Vec<usize> = if mapped.iter().all(Option::is_some) {

@@ -54,6 +54,7 @@
 //! receptance, which |X|² of a free decay follows; from memory: verify).
 
 mod calibrate;
+mod card;
 mod compare;
 mod dsp;
 mod frf_fit;
@@ -62,6 +63,10 @@ mod pencil;
 pub use calibrate::{
     Calibration, CalibrationOptions, CalibrationParameter, ModalTarget, TargetResidual, calibrate,
     get_parameter, numeric_paths, set_parameter,
+};
+pub use card::{
+    CardComparison, CardOptions, DEFAULT_THRESHOLD_PX, DampedSineFit, Estimate, RingdownCard, compare_cards,
+    ringdown_card,
 };
 pub use compare::{CompareOptions, RingdownComparison, RingdownMetrics, SettleThreshold, compare_ringdowns};
 pub use frf_fit::{FrfMode, FrfModeOptions, fit_frf_band, frf_modes};

@@ -21,7 +21,8 @@
 //!   `start_time` are read from comments before the header; other comments are ignored.
 //! - An axis column is named `<axis>_<unit>`: the axis name (no underscore), an underscore, and
 //!   a unit token: `m_s2` (m/s²), `g` (9.80665 m/s²), `m_s`, `mm_s`, `um_s` (velocity), `m`,
-//!   `mm`, `um` (displacement). Examples: `z_m_s2`, `ax_g`, `n_um_s`, `z_mm`. A bare name (`z`)
+//!   `mm`, `um` (displacement), `arcsec`, `px` (an image track, a star's centroid: px is
+//!   converted to arcsec with [`SeriesOptions::plate_scale_arcsec_per_px`]). Examples: `z_m_s2`, `ax_g`, `n_um_s`, `z_mm`. A bare name (`z`)
 //!   takes the unit of [`SeriesOptions::unit`]; an unknown token is an error listing the known
 //!   ones. All axis columns must measure one quantity; 1 to 3 axis columns.
 //! - Time: a column named `time_s`, `t_s` or `t` (seconds), or else a sample rate from
@@ -146,6 +147,9 @@ pub struct SeriesOptions {
     pub wav_full_scale: Option<PhysicalValue>,
     /// miniSEED: counts per unit; without it samples stay in counts.
     pub sensitivity: Option<Sensitivity>,
+    /// Image tracks: arcsec per px, to convert `px` columns (and a WAV full scale in px) to
+    /// arcsec. Required when a column is in px.
+    pub plate_scale_arcsec_per_px: Option<f64>,
     /// miniSEED: the channel to read, as `NET.STA.LOC.CHA` or just `CHA` (needed when a file
     /// holds several).
     pub channel: Option<String>,
@@ -163,6 +167,7 @@ impl Default for SeriesOptions {
             unit: None,
             wav_full_scale: None,
             sensitivity: None,
+            plate_scale_arcsec_per_px: None,
             channel: None,
             max_jitter_fraction: DEFAULT_MAX_JITTER_FRACTION,
             max_samples: DEFAULT_MAX_SAMPLES,
@@ -196,6 +201,26 @@ impl SeriesOptions {
         self.sensitivity = Some(s);
         self
     }
+    /// Plate scale (arcsec per px) for image tracks in px.
+    pub fn with_plate_scale(mut self, arcsec_per_px: f64) -> Self {
+        self.plate_scale_arcsec_per_px = Some(arcsec_per_px);
+        self
+    }
+    /// Factor from a value in `unit` after [`Unit::to_si`] to the stored value: the plate
+    /// scale for px, else 1. Errors (naming `plate_scale_arcsec_per_px` and `file`) when a px
+    /// column has no plate scale.
+    pub(crate) fn stored_factor(&self, unit: Unit, file: &str) -> Result<f64> {
+        match (unit, self.plate_scale_arcsec_per_px) {
+            (Unit::Pixel, Some(p)) => Ok(p),
+            (Unit::Pixel, None) => Err(Error::invalid(
+                "plate_scale_arcsec_per_px",
+                format!(
+                    "{file} holds an image track in px: give the plate scale (arcsec per px) to convert it to arcsec"
+                ),
+            )),
+            _ => Ok(1.0),
+        }
+    }
     /// miniSEED channel to read.
     pub fn with_channel(mut self, c: impl Into<String>) -> Self {
         self.channel = Some(c.into());
@@ -221,6 +246,9 @@ impl SeriesOptions {
         }
         if let Some(s) = self.sensitivity {
             crate::error::require_positive("sensitivity.counts_per_unit", s.counts_per_unit)?;
+        }
+        if let Some(p) = self.plate_scale_arcsec_per_px {
+            crate::error::require_positive("plate_scale_arcsec_per_px", p)?;
         }
         let j = self.max_jitter_fraction;
         if !(j.is_finite() && j > 0.0 && j < 1.0) {

@@ -460,6 +460,12 @@ pub(crate) fn open(path: &Path, opts: &SeriesOptions) -> Result<(SeriesHeader, M
             ),
         ));
     }
+    if let Some(s) = opts.sensitivity.filter(|s| s.unit.quantity() == SeriesQuantity::ImageAngle) {
+        return Err(Error::invalid(
+            "sensitivity",
+            format!("{file}: miniSEED holds ground motion; {} is an image unit", s.unit.symbol()),
+        ));
+    }
     let (quantity, unit_text) = match opts.sensitivity {
         Some(s) => {
             (s.unit.quantity(), format!("counts ({} counts per {})", s.counts_per_unit, s.unit.symbol()))

@@ -345,6 +345,8 @@ pub(crate) struct TextBackend {
     time_col: Option<usize>,
     axis_cols: Vec<usize>,
     units: Vec<Unit>,
+    /// Per axis: factor after `Unit::to_si` (the plate scale for px, else 1).
+    factors: Vec<f64>,
     resampler: Option<Resampler>,
 }
 
@@ -442,11 +444,14 @@ pub(crate) fn open(
         n_frames,
         report,
     };
+    let factors =
+        layout.units.iter().map(|&u| opts.stored_factor(u, &header.path)).collect::<Result<Vec<f64>>>()?;
     let backend = TextBackend {
         rows,
         time_col: layout.time_col,
         axis_cols: layout.axis_cols,
         units: layout.units,
+        factors,
         resampler,
     };
     Ok((header, backend))
@@ -456,7 +461,13 @@ impl TextBackend {
     /// Convert the current row's axis columns to SI into `dst`.
     fn row_si(&self, dst: &mut Vec<f64>) {
         dst.clear();
-        dst.extend(self.axis_cols.iter().zip(&self.units).map(|(&c, u)| u.to_si(self.rows.row[c])));
+        dst.extend(
+            self.axis_cols
+                .iter()
+                .zip(&self.units)
+                .zip(&self.factors)
+                .map(|((&c, u), k)| u.to_si(self.rows.row[c]) * k),
+        );
     }
 
     pub(crate) fn read(&mut self, max_frames: usize, out: &mut SeriesChunk) -> Result<usize> {
@@ -466,8 +477,9 @@ impl TextBackend {
                 if self.rows.next(None)?.is_none() {
                     break;
                 }
-                for (a, (&c, u)) in self.axis_cols.iter().zip(&self.units).enumerate() {
-                    out.axes[a].push(u.to_si(self.rows.row[c]));
+                for (a, ((&c, u), k)) in self.axis_cols.iter().zip(&self.units).zip(&self.factors).enumerate()
+                {
+                    out.axes[a].push(u.to_si(self.rows.row[c]) * k);
                 }
                 got += 1;
             }

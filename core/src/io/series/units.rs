@@ -16,6 +16,9 @@ pub enum SeriesQuantity {
     Displacement,
     /// Raw digitizer counts (no physical unit was supplied).
     Counts,
+    /// An image position (a star's centroid track) in arcsec; tracks in px are converted with
+    /// the plate scale ([`super::SeriesOptions::plate_scale_arcsec_per_px`]).
+    ImageAngle,
 }
 
 impl SeriesQuantity {
@@ -26,6 +29,7 @@ impl SeriesQuantity {
             SeriesQuantity::Velocity => "m/s",
             SeriesQuantity::Displacement => "m",
             SeriesQuantity::Counts => "counts",
+            SeriesQuantity::ImageAngle => "arcsec",
         }
     }
 }
@@ -52,6 +56,11 @@ pub enum Unit {
     Millimetre,
     /// µm (token `um`).
     Micrometre,
+    /// Image position in arcsec (token `arcsec`), kept in arcsec.
+    Arcsecond,
+    /// Image position in pixels (token `px`): readers convert it to arcsec with the plate
+    /// scale; [`Unit::to_si`] leaves it in px.
+    Pixel,
 }
 
 /// How a unit maps to SI: multiply by an exact factor or divide by an exact power of ten.
@@ -65,7 +74,7 @@ enum Scale {
 
 impl Unit {
     /// Every unit with its column-name token, in the order errors list them.
-    pub const TOKENS: [(&'static str, Unit); 8] = [
+    pub const TOKENS: [(&'static str, Unit); 10] = [
         ("m_s2", Unit::MetrePerSecondSquared),
         ("g", Unit::StandardGravity),
         ("m_s", Unit::MetrePerSecond),
@@ -74,6 +83,8 @@ impl Unit {
         ("m", Unit::Metre),
         ("mm", Unit::Millimetre),
         ("um", Unit::Micrometre),
+        ("arcsec", Unit::Arcsecond),
+        ("px", Unit::Pixel),
     ];
 
     /// Comma-separated list of the known tokens, for error messages.
@@ -113,6 +124,8 @@ impl Unit {
             Unit::Metre => "m",
             Unit::Millimetre => "mm",
             Unit::Micrometre => "um",
+            Unit::Arcsecond => "arcsec",
+            Unit::Pixel => "px",
         }
     }
 
@@ -124,19 +137,22 @@ impl Unit {
                 SeriesQuantity::Velocity
             }
             Unit::Metre | Unit::Millimetre | Unit::Micrometre => SeriesQuantity::Displacement,
+            Unit::Arcsecond | Unit::Pixel => SeriesQuantity::ImageAngle,
         }
     }
 
     fn scale(self) -> Scale {
         match self {
             Unit::MetrePerSecondSquared | Unit::MetrePerSecond | Unit::Metre => Scale::Mul(1.0),
+            Unit::Arcsecond | Unit::Pixel => Scale::Mul(1.0),
             Unit::StandardGravity => Scale::Mul(STANDARD_GRAVITY_M_S2),
             Unit::MillimetrePerSecond | Unit::Millimetre => Scale::Div(1e3),
             Unit::MicrometrePerSecond | Unit::Micrometre => Scale::Div(1e6),
         }
     }
 
-    /// Convert a value in this unit to SI (m/s², m/s or m).
+    /// Convert a value in this unit to SI (m/s², m/s or m); image units stay as they are
+    /// (arcsec; px needs a plate scale, which the readers apply).
     ///
     /// ```
     /// use stillsky::io::series::Unit;

@@ -38,6 +38,7 @@ pub(crate) fn open(path: &Path, opts: &SeriesOptions) -> Result<(SeriesHeader, W
             ),
         ));
     };
+    let factor = opts.stored_factor(full_scale.unit, &file)?;
     let rdr = hound::WavReader::open(path).map_err(|e| wav_err(&file, e))?;
     let spec = rdr.spec();
     let n_axes = spec.channels as usize;
@@ -49,9 +50,9 @@ pub(crate) fn open(path: &Path, opts: &SeriesOptions) -> Result<(SeriesHeader, W
         });
     }
     let (float, gain) = match spec.sample_format {
-        hound::SampleFormat::Float if spec.bits_per_sample == 32 => (true, full_scale.si()),
+        hound::SampleFormat::Float if spec.bits_per_sample == 32 => (true, full_scale.si() * factor),
         hound::SampleFormat::Int if (8..=32).contains(&spec.bits_per_sample) => {
-            (false, full_scale.si() / 2f64.powi(i32::from(spec.bits_per_sample) - 1))
+            (false, full_scale.si() * factor / 2f64.powi(i32::from(spec.bits_per_sample) - 1))
         }
         f => {
             return Err(Error::Parse {
