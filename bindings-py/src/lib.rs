@@ -12,6 +12,7 @@ mod image;
 mod model;
 mod people;
 mod pier_table;
+mod probabilistic;
 mod response;
 mod series;
 mod skymap;
@@ -43,5 +44,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     people::register(m)?;
     sources::register(m)?;
     sweep::register(m)?;
+    probabilistic::register(m)?;
     Ok(())
 }
