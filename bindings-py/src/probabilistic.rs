@@ -8,7 +8,11 @@ use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList};
 use stillsky::spectrum::{CriterionCurve, PpsdConfig, Quantity, probabilistic_psd_axes};
 
-fn rows<'py, T: numpy::Element + Copy>(py: Python<'py>, v: Vec<T>, n_cols: usize) -> PyResult<Bound<'py, PyArray2<T>>> {
+fn rows<'py, T: numpy::Element + Copy>(
+    py: Python<'py>,
+    v: Vec<T>,
+    n_cols: usize,
+) -> PyResult<Bound<'py, PyArray2<T>>> {
     let n_rows = v.len().checked_div(n_cols).unwrap_or(0);
     let a = ndarray::Array2::from_shape_vec((n_rows, n_cols), v)
         .map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
@@ -44,7 +48,8 @@ pub fn probabilistic_psd<'py>(
     } else {
         x.try_iter()?.map(|a| f64_1d(&a?, "x")).collect::<PyResult<Vec<_>>>()?
     };
-    let mut cfg = PpsdConfig::default().with_block_s(block_s).with_input(Quantity::from_name(input).py_err()?, scale);
+    let mut cfg =
+        PpsdConfig::default().with_block_s(block_s).with_input(Quantity::from_name(input).py_err()?, scale);
     (cfg.overlap, cfg.smoothing_octaves, cfg.step_octaves) = (overlap, smoothing_octaves, step_octaves);
     (cfg.db_min, cfg.db_max, cfg.db_step) = db_bins;
     cfg.criterion = criterion.map(CriterionCurve::from_name).transpose().py_err()?;

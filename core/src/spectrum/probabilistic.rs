@@ -210,7 +210,10 @@ impl Layout {
         }
         let block = fs * cfg.block_s;
         if block > 1e9 {
-            return Err(Error::invalid("block_s", format!("{} s at {fs} Hz is too many samples", cfg.block_s)));
+            return Err(Error::invalid(
+                "block_s",
+                format!("{} s at {fs} Hz is too many samples", cfg.block_s),
+            ));
         }
         // ObsPy: len = int(fs·ppsd_length); step in time ppsd_length·(1 − overlap).
         let block_len = block as usize;
@@ -248,11 +251,15 @@ impl Layout {
             }
             // Periods 1/f in [l, r]  ⇔  frequencies with l <= 1/f <= r (tested on the period,
             // as ObsPy does, so the rounding of 1/f decides the same way).
-            let idx: Vec<usize> = (0..freq_hz.len()).filter(|&k| (l..=r).contains(&(1.0 / freq_hz[k]))).collect();
+            let idx: Vec<usize> =
+                (0..freq_hz.len()).filter(|&k| (l..=r).contains(&(1.0 / freq_hz[k]))).collect();
             let (Some(&a), Some(&b)) = (idx.first(), idx.last()) else {
                 return Err(Error::invalid(
                     "smoothing_octaves",
-                    format!("{} octaves leaves the period bin at {c} s without PSD values", cfg.smoothing_octaves),
+                    format!(
+                        "{} octaves leaves the period bin at {c} s without PSD values",
+                        cfg.smoothing_octaves
+                    ),
                 ));
             };
             bin_ranges.push((a, b + 1));
@@ -275,7 +282,8 @@ impl Layout {
 /// against it in the Python tests).
 pub fn cosine_taper_20(n: usize) -> Vec<f64> {
     let frac = (n as f64 * 0.2 / 2.0 + 0.5) as usize;
-    let (i1, mut i2, mut i3, i4) = (0usize, frac.saturating_sub(1), n.saturating_sub(frac), n.saturating_sub(1));
+    let (i1, mut i2, mut i3, i4) =
+        (0usize, frac.saturating_sub(1), n.saturating_sub(frac), n.saturating_sub(1));
     if i1 == i2 {
         i2 += 1;
     }
@@ -324,16 +332,23 @@ impl ProbabilisticPsd {
         }
         for (i, &(a, b)) in cfg.bands_hz.iter().enumerate() {
             if !(a > 0.0 && b > a && b.is_finite()) {
-                return Err(Error::invalid(format!("bands_hz[{i}]"), format!("needs 0 < lo < hi, got {a}–{b}")));
+                return Err(Error::invalid(
+                    format!("bands_hz[{i}]"),
+                    format!("needs 0 < lo < hi, got {a}–{b}"),
+                ));
             }
         }
         if cfg.band_quantity.motion_order().is_none() {
-            return Err(Error::invalid("band_quantity", format!("{} is not a motion quantity", cfg.band_quantity.name())));
+            return Err(Error::invalid(
+                "band_quantity",
+                format!("{} is not a motion quantity", cfg.band_quantity.name()),
+            ));
         }
         let engine = SegmentEngine::new(&wcfg)?;
         let nb = layout.centres_s.len();
         let n_db = layout.db_edges.len() - 1;
-        let model = |m: ReferenceGround| layout.centres_s.iter().map(|&t| m.accel_db_at_period(t).ok()).collect();
+        let model =
+            |m: ReferenceGround| layout.centres_s.iter().map(|&t| m.accel_db_at_period(t).ok()).collect();
         Ok(Self {
             cfg: cfg.clone(),
             buf: vec![0.0; layout.block_len],
@@ -558,7 +573,8 @@ impl ProbabilisticPsd {
                 if n == 0 {
                     return f64::NAN;
                 }
-                row.iter().enumerate().map(|(i, &c)| c as f64 * 0.5 * (e[i] + e[i + 1])).sum::<f64>() / n as f64
+                row.iter().enumerate().map(|(i, &c)| c as f64 * 0.5 * (e[i] + e[i + 1])).sum::<f64>()
+                    / n as f64
             })
             .collect()
     }
@@ -578,7 +594,11 @@ impl ProbabilisticPsd {
         counts
             .iter()
             .zip(model)
-            .map(|(&c, m)| if m.is_some() && self.n_blocks > 0 { c as f64 / self.n_blocks as f64 } else { f64::NAN })
+            .map(
+                |(&c, m)| {
+                    if m.is_some() && self.n_blocks > 0 { c as f64 / self.n_blocks as f64 } else { f64::NAN }
+                },
+            )
             .collect()
     }
 }
@@ -705,7 +725,8 @@ mod tests {
         assert!(e.to_string().contains("overlap"), "{e}");
         let e = ProbabilisticPsd::new(1.0, &PpsdConfig::default().with_block_s(10.0)).unwrap_err();
         assert!(e.to_string().contains("block_s"), "{e}");
-        let e = ProbabilisticPsd::new(100.0, &PpsdConfig::default().with_input(Quantity::Velocity, 0.0)).unwrap_err();
+        let e = ProbabilisticPsd::new(100.0, &PpsdConfig::default().with_input(Quantity::Velocity, 0.0))
+            .unwrap_err();
         assert!(e.to_string().contains("scale"), "{e}");
         let mut p = ProbabilisticPsd::new(100.0, &PpsdConfig::default().with_block_s(10.0)).unwrap();
         assert!(p.percentile_db(50.0).unwrap_err().to_string().contains("no complete block"));
