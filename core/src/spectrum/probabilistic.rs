@@ -132,9 +132,9 @@ pub struct HourMap {
     pub ms_sum: Vec<f64>,
     /// Largest band RMS per hour.
     pub max_rms: Vec<f64>,
-    /// Blocks per hour judged by the image-motion path (see [`ProbabilisticPsd::record_image_px`]).
+    /// Blocks per hour judged by the image-motion path (see [`ProbabilisticPsd::record_verdict`]).
     pub judged: Vec<u64>,
-    /// Of those, blocks whose RMS image motion was at most the limit.
+    /// Of those, blocks during which the rig held its limit.
     pub held: Vec<u64>,
     n_bands: usize,
 }
@@ -519,12 +519,13 @@ impl ProbabilisticPsd {
         Ok(block)
     }
 
-    /// Record the image motion of a block (RMS, px) judged by a rig model against `limit_px`
-    /// (for example ½ px), in the block's hour of the day. Blocks without an hour are ignored.
-    pub fn record_image_px(&mut self, block: &PpsdBlock, rms_px: f64, limit_px: f64) {
+    /// Record whether the rig held its image-motion limit during a block (judged elsewhere, e.g.
+    /// by `quiet_hours` through a rig model), in the block's hour of the day. Blocks without an
+    /// hour are ignored.
+    pub fn record_verdict(&mut self, block: &PpsdBlock, holds: bool) {
         if let Some(h) = block.hour_of_day {
             self.hours.judged[h] += 1;
-            if rms_px <= limit_px {
+            if holds {
                 self.hours.held[h] += 1;
             }
         }
@@ -713,8 +714,8 @@ mod tests {
         let r = p.hours().rms();
         assert!((r[2] / (1e-4 * 0.4f64.sqrt()) - 1.0).abs() < 0.3, "{}", r[2]);
         assert!(r[5].is_nan());
-        p.record_image_px(&b[0], 0.3, 0.5);
-        p.record_image_px(&b[1], 0.7, 0.5);
+        p.record_verdict(&b[0], true);
+        p.record_verdict(&b[1], false);
         assert_eq!((p.hours().judged[1], p.hours().held[1]), (1, 1));
         assert_eq!((p.hours().judged[2], p.hours().held[2]), (1, 0));
     }
