@@ -13,6 +13,7 @@ mod model;
 mod monitor;
 mod people;
 mod pier_table;
+mod probabilistic;
 mod response;
 mod sensor;
 mod series;
@@ -47,5 +48,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     sources::register(m)?;
     sweep::register(m)?;
     sensor::register(m)?;
+    probabilistic::register(m)?;
     Ok(())
 }

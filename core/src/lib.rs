@@ -85,6 +85,7 @@ pub mod monitor;
 pub mod peak;
 pub mod people;
 pub mod pier_table;
+pub mod quiet_hours;
 pub mod response;
 pub mod rig;
 pub mod schema;

@@ -608,6 +608,34 @@ def coherence(
 ) -> tuple[_F64, _F64]:
     """Magnitude-squared coherence |Pxy|²/(Pxx Pyy) (meaning of ``scipy.signal.coherence``)."""
 
+def probabilistic_psd(
+    x: _F64In | Sequence[_F64In],
+    fs: float,
+    *,
+    block_s: float = ...,
+    overlap: float = ...,
+    input: str = ...,
+    scale: float = ...,
+    db_bins: tuple[float, float, float] = ...,
+    smoothing_octaves: float = ...,
+    step_octaves: float = ...,
+    percentiles: Sequence[float] = ...,
+    criterion: str | None = ...,
+    start_of_day_s: float | None = ...,
+    bands_hz: Sequence[tuple[float, float]] = ...,
+    band_quantity: str = ...,
+) -> Any:
+    """Probabilistic PSD (McNamara & Buland 2004 blocks, ObsPy PPSD defaults: 3600 s blocks at
+    50 % overlap, 1-octave period averaging in 1/8-octave steps, 1 dB bins from -200 to -50 dB).
+
+    ``x`` is one axis (1-D float64) or a list/tuple of axes (run in parallel); samples times
+    ``scale`` measure ``input`` ("velocity" by default). Returns a dict per axis (a list for
+    several axes): ``period_s``, ``db_edges``, ``histogram`` (periods × dB bins, uint64),
+    ``percentiles`` ({q: dB per period}), ``mean_db``, ``n_blocks``, ``nfft``,
+    ``share_below_nlnm``, ``share_above_nhnm``, ``blocks_above_criterion``, ``block_start_s``,
+    ``block_db`` (blocks × periods), ``hour_blocks`` (24,), ``hour_band_rms`` (24 × bands).
+    """
+
 def transfer_estimate(
     x: _F64In,
     y: _F64In,

@@ -31,6 +31,7 @@
 //! ```
 
 pub mod interval;
+pub mod probabilistic;
 pub mod psd;
 pub mod psd_file;
 pub mod reference;
@@ -39,6 +40,7 @@ pub mod welch;
 pub mod window;
 
 pub use interval::{BandRmsStats, IntervalStream, band_rms_distribution, interval_psds, percentile_linear};
+pub use probabilistic::{HourMap, PpsdBlock, PpsdConfig, ProbabilisticPsd, probabilistic_psd_axes};
 pub use psd::{BandLevels, BandWidth, Extrapolate, Psd, Quantity};
 pub use psd_file::MAX_PSD_FILE_BYTES;
 pub use reference::{CriterionCurve, CriterionResult, ReferenceGround};
