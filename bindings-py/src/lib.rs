@@ -17,6 +17,7 @@ mod series;
 mod skymap;
 mod sources;
 mod spectrum;
+mod study;
 mod sweep;
 mod transient;
 mod wind;
@@ -43,5 +44,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     people::register(m)?;
     sources::register(m)?;
     sweep::register(m)?;
+    study::register(m)?;
     Ok(())
 }
