@@ -114,11 +114,8 @@ impl PyStudyPlan {
     fn csv(&self, rows: &Bound<'_, PyAny>) -> PyResult<String> {
         let cols = study_columns(&self.inner);
         let n = self.inner.variables.len();
-        let rows: Vec<StudyRow> = rows
-            .try_iter()?
-            .enumerate()
-            .map(|(i, r)| dict_row(&r?, &cols, n, i))
-            .collect::<PyResult<_>>()?;
+        let rows: Vec<StudyRow> =
+            rows.try_iter()?.enumerate().map(|(i, r)| dict_row(&r?, &cols, n, i)).collect::<PyResult<_>>()?;
         study_csv_text(&self.inner, &rows).py_err()
     }
 }

@@ -955,7 +955,11 @@ fn study(a: &StudyArgs) -> CliResult {
     if !failures.is_empty() {
         return Err(Failure {
             code: 1,
-            message: format!("{} row(s) failed; see the error rows in {}", failures.len(), outcome.path.display()),
+            message: format!(
+                "{} row(s) failed; see the error rows in {}",
+                failures.len(),
+                outcome.path.display()
+            ),
         });
     }
     Ok(())

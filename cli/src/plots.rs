@@ -800,36 +800,6 @@ pub fn sky_map_svg(m: &stillsky::skymap::SkyMap) -> PlotResult<Plot> {
     Ok(Plot { file_name: "sky-map.svg", title, svg })
 }
 
-#[cfg(test)]
-mod tests {
-    use super::tick_label;
-
-    #[test]
-    fn ticks_are_plain_decimals_or_powers_of_ten_with_superscripts() {
-        let cases = [
-            (1.0, "1"),
-            (10.0, "10"),
-            (0.001, "0.001"),
-            (0.25, "0.25"),
-            (2.5, "2.5"),
-            (1000.0, "1000"),
-            (1e-4, "10⁻⁴"),
-            (1e-12, "10⁻¹²"),
-            (1e5, "10⁵"),
-            (3e-7, "3×10⁻⁷"),
-            (2.5e-5, "2.5×10⁻⁵"),
-            (9.9999999e-5, "10⁻⁴"),
-            (-0.5, "−0.5"),
-            (-1e-6, "−10⁻⁶"),
-            (0.0, "0"),
-            (0.30000000000000004, "0.3"),
-        ];
-        for (v, want) in cases {
-            assert_eq!(tick_label(v), want, "tick for {v:e}");
-        }
-    }
-}
-
 /// A study plot: a file name of its own (variables name the outcome-against-variable plots).
 pub struct StudyPlot {
     pub file_name: String,
@@ -853,7 +823,10 @@ const STUDY_PLOTTED: [(&str, &str); 4] = [
 /// The plots of a study: a sensitivity chart per outcome (the range of each variable's main
 /// effect, one bar per disturbance) and, per variable, image RMS against its values (one line
 /// per disturbance). Outcomes without numbers (e.g. gusts in a calm-only study) are skipped.
-pub fn study_svgs(study: &stillsky::batch::Study, s: &[stillsky::batch::Sensitivity]) -> PlotResult<Vec<StudyPlot>> {
+pub fn study_svgs(
+    study: &stillsky::batch::Study,
+    s: &[stillsky::batch::Sensitivity],
+) -> PlotResult<Vec<StudyPlot>> {
     let mut out = Vec::new();
     let disturbances: Vec<(String, String)> = {
         let mut d: Vec<(String, String)> = Vec::new();
@@ -947,10 +920,21 @@ fn sensitivity_chart(
                 let y = top - 1.0 - di as f64;
                 let col = COLOURS[di % COLOURS.len()];
                 if r.is_finite() {
-                    c.draw_series(std::iter::once(Rectangle::new([(0.0, y - 0.1), (r, y - 0.8)], col.filled())))?;
+                    c.draw_series(std::iter::once(Rectangle::new(
+                        [(0.0, y - 0.1), (r, y - 0.8)],
+                        col.filled(),
+                    )))?;
                 }
-                let txt = if r.is_finite() { format!("{g}, {w}: {}", tick_label(r)) } else { format!("{g}, {w}: n/a") };
-                c.draw_series(std::iter::once(Text::new(txt, (r.max(0.0) + 0.02 * vmax, y - 0.45), font.clone())))?;
+                let txt = if r.is_finite() {
+                    format!("{g}, {w}: {}", tick_label(r))
+                } else {
+                    format!("{g}, {w}: n/a")
+                };
+                c.draw_series(std::iter::once(Text::new(
+                    txt,
+                    (r.max(0.0) + 0.02 * vmax, y - 0.45),
+                    font.clone(),
+                )))?;
             }
         }
         root.present()?;
@@ -972,7 +956,8 @@ fn levels_chart(
         Some(n) => n.to_vec(),
         None => (0..labels.len()).map(|k| k as f64).collect(),
     };
-    let (mut x0, mut x1) = xs.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |a, &x| (a.0.min(x), a.1.max(x)));
+    let (mut x0, mut x1) =
+        xs.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |a, &x| (a.0.min(x), a.1.max(x)));
     let pad = 0.08 * (x1 - x0).max(1e-9);
     if numbers.is_none() {
         (x0, x1) = (-0.5, labels.len() as f64 - 0.5);
@@ -1048,4 +1033,34 @@ fn levels_chart(
         root.present()?;
     }
     Ok(svg)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::tick_label;
+
+    #[test]
+    fn ticks_are_plain_decimals_or_powers_of_ten_with_superscripts() {
+        let cases = [
+            (1.0, "1"),
+            (10.0, "10"),
+            (0.001, "0.001"),
+            (0.25, "0.25"),
+            (2.5, "2.5"),
+            (1000.0, "1000"),
+            (1e-4, "10⁻⁴"),
+            (1e-12, "10⁻¹²"),
+            (1e5, "10⁵"),
+            (3e-7, "3×10⁻⁷"),
+            (2.5e-5, "2.5×10⁻⁵"),
+            (9.9999999e-5, "10⁻⁴"),
+            (-0.5, "−0.5"),
+            (-1e-6, "−10⁻⁶"),
+            (0.0, "0"),
+            (0.30000000000000004, "0.3"),
+        ];
+        for (v, want) in cases {
+            assert_eq!(tick_label(v), want, "tick for {v:e}");
+        }
+    }
 }

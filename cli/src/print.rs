@@ -694,7 +694,11 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
     for t in &o.summary.per_disturbance {
         let windy = t.entries.iter().any(|e| e.gust_peak_px.is_finite());
         let _ = writeln!(s, "\nranking, ground {}, wind {} (image RMS, lower is better):", t.ground, t.wind);
-        let _ = write!(s, "  {:>3} {:<48} {:>9} {:>11} {:>7} {:>8}", "", "variant", "rms px", "P(>1/2 px)", "ratio", "f1 Hz");
+        let _ = write!(
+            s,
+            "  {:>3} {:<48} {:>9} {:>11} {:>7} {:>8}",
+            "", "variant", "rms px", "P(>1/2 px)", "ratio", "f1 Hz"
+        );
         if windy {
             let _ = write!(s, " {:>8}", "gust px");
         }
@@ -720,7 +724,11 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
         s,
         "\nsensitivity: range of each outcome's mean over a variable's values (the other variables averaged)"
     );
-    let _ = writeln!(s, "  {:<32} {:<34} {:>10} {:>10} {:>10} {:>10}", "variable", "ground, wind", "rms px", "gust px", "f1 Hz", "FoS");
+    let _ = writeln!(
+        s,
+        "  {:<32} {:<34} {:>10} {:>10} {:>10} {:>10}",
+        "variable", "ground, wind", "rms px", "gust px", "f1 Hz", "FoS"
+    );
     let mut seen = Vec::new();
     for x in &o.sensitivity {
         let k = (x.variable.clone(), x.ground.clone(), x.wind.clone());
@@ -731,7 +739,9 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
         let get = |name: &str| {
             o.sensitivity
                 .iter()
-                .find(|y| y.variable == x.variable && y.ground == x.ground && y.wind == x.wind && y.outcome == name)
+                .find(|y| {
+                    y.variable == x.variable && y.ground == x.ground && y.wind == x.wind && y.outcome == name
+                })
                 .map_or(f64::NAN, |y| y.range)
         };
         let _ = writeln!(

@@ -33,14 +33,14 @@ pub use report::{
     CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, PeopleOptions,
     PeopleReport, Report, ReportOptions, build_file_report, build_report, file_people_report, report_sky_map,
 };
-pub use sweep::{
-    PadMechanism, SweepConfig, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
-    ground_labels, pad_alternatives, run_sweep, sweep_csv_text, sweep_rows, sweep_rows_labelled,
-};
 pub use study::{
     BASE, OUTCOMES, Sensitivity, StudyOutcome, StudyRankEntry, StudyRanking, StudyRow, StudySummary, Variant,
     evaluate_variant, read_study_csv, run_study, sensitivity, study_columns, study_csv_text, study_rows,
     study_rows_of, summarize_study, variants,
 };
 pub use study_file::{Combine, Study, StudySettings, Variable, VariableKind};
+pub use sweep::{
+    PadMechanism, SweepConfig, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
+    ground_labels, pad_alternatives, run_sweep, sweep_csv_text, sweep_rows, sweep_rows_labelled,
+};
 pub use sweep_row::{ColumnKind, SWEEP_COLUMNS, SWEEP_ROW, SweepRow, SweepValue, read_sweep_csv};

@@ -245,8 +245,14 @@ impl StudyRow {
         f.extend([self.rms_arcsec, self.rms_px, self.p_outside_half_px, self.ratio_to_base].map(sig6));
         f.push(self.vs_base.clone());
         f.extend(
-            [self.first_mode_hz, self.first_mode_zeta, self.gust_peak_px, self.gust_ringdown_s, self.min_static_fos]
-                .map(sig6),
+            [
+                self.first_mode_hz,
+                self.first_mode_zeta,
+                self.gust_peak_px,
+                self.gust_ringdown_s,
+                self.min_static_fos,
+            ]
+            .map(sig6),
         );
         f.push(self.error.clone().unwrap_or_default());
         f
@@ -254,7 +260,8 @@ impl StudyRow {
 
     /// A row from its CSV fields (`n_vars` variable columns; `line` names it in errors).
     pub fn from_fields(f: &[&str], n_vars: usize, file: &str, line: usize) -> Result<StudyRow> {
-        let perr = |reason: String| Error::Parse { file: file.into(), location: format!("line {line}"), reason };
+        let perr =
+            |reason: String| Error::Parse { file: file.into(), location: format!("line {line}"), reason };
         if f.len() != LEAD_COLUMNS.len() + n_vars + TAIL_COLUMNS.len() {
             return Err(perr(format!(
                 "expected {} fields, got {}",
@@ -326,7 +333,9 @@ impl<'a> PreparedStudy<'a> {
             .variables
             .iter()
             .map(|v| match &v.kind {
-                VariableKind::Pads { catalogue } => catalogue.at_temperature(study.settings.temperature_c).map(Some),
+                VariableKind::Pads { catalogue } => {
+                    catalogue.at_temperature(study.settings.temperature_c).map(Some)
+                }
                 _ => Ok(None),
             })
             .collect::<Result<Vec<_>>>()?;
@@ -345,7 +354,8 @@ impl<'a> PreparedStudy<'a> {
             })
             .collect();
         let variants = variants(study);
-        let mut p = PreparedStudy { study, variants, labels, winds, spectra, catalogues, base: BTreeMap::new() };
+        let mut p =
+            PreparedStudy { study, variants, labels, winds, spectra, catalogues, base: BTreeMap::new() };
         if p.winds.iter().any(|w| w.wind.is_some()) {
             let file = ModelFile::parse(&study.model_text, &study.model_name)?;
             if file.expanded()?.wind.is_none() {
@@ -482,7 +492,12 @@ fn image_of(
     study: &Study,
 ) -> std::result::Result<(f64, f64, f64), String> {
     let model = built.model.as_ref().map_err(Clone::clone)?;
-    let d = Disturbances { ground: ground.axes.clone(), wind: wind.wind.clone(), loads: Vec::new(), ground_waves: None };
+    let d = Disturbances {
+        ground: ground.axes.clone(),
+        wind: wind.wind.clone(),
+        loads: Vec::new(),
+        ground_waves: None,
+    };
     let opts = ImageOptions { skip_mode_shares: true, ..ImageOptions::default() };
     let im = model.image_motion(&study.settings.grid, &d, &opts).map_err(|e| e.to_string())?;
     Ok((im.rms_arcsec, im.rms_px, im.p_outside))
@@ -501,7 +516,11 @@ pub fn verdict_words(v: Verdict) -> &'static str {
 /// The rows of variant `v` for every disturbance whose key `want` accepts, in row order: the
 /// variant is built once from its edited model file ([`PreparedStudy::build`]), then evaluated
 /// under each ground and wind case; every row of a variant that cannot be built is an error row.
-pub fn evaluate_variant(p: &PreparedStudy<'_>, v: usize, want: &(dyn Fn(&str) -> bool + Sync)) -> Vec<StudyRow> {
+pub fn evaluate_variant(
+    p: &PreparedStudy<'_>,
+    v: usize,
+    want: &(dyn Fn(&str) -> bool + Sync),
+) -> Vec<StudyRow> {
     let var = &p.variants[v];
     let jobs: Vec<(usize, usize)> = (0..p.labels.len())
         .flat_map(|g| (0..p.winds.len()).map(move |w| (g, w)))
@@ -574,7 +593,11 @@ pub fn study_rows(study: &Study, threads: Option<usize>) -> Result<Vec<StudyRow>
 /// [`study_rows`] for some variants only (indices into [`variants`]; None: all), in row order:
 /// a study split into parts gives the whole's rows (each row depends on its variant and
 /// disturbance and on the base only).
-pub fn study_rows_of(study: &Study, which: Option<&[usize]>, threads: Option<usize>) -> Result<Vec<StudyRow>> {
+pub fn study_rows_of(
+    study: &Study,
+    which: Option<&[usize]>,
+    threads: Option<usize>,
+) -> Result<Vec<StudyRow>> {
     if threads == Some(0) {
         return Err(Error::invalid("threads", "must be at least 1"));
     }
@@ -742,7 +765,11 @@ pub fn sensitivity(study: &Study, rows: &[StudyRow]) -> Vec<Sensitivity> {
                                 .filter_map(|r| r.outcome(outcome))
                                 .filter(|x| x.is_finite())
                                 .collect();
-                            let m = if xs.is_empty() { f64::NAN } else { xs.iter().sum::<f64>() / xs.len() as f64 };
+                            let m = if xs.is_empty() {
+                                f64::NAN
+                            } else {
+                                xs.iter().sum::<f64>() / xs.len() as f64
+                            };
                             (l, m)
                         })
                         .collect();
@@ -805,8 +832,11 @@ pub fn run_study(
         let p = PreparedStudy::new(study)?;
         let total = p.len();
         let header = study_columns(study);
-        let mut writer =
-            if resume { AtomicCsvWriter::resume(out, &header)? } else { AtomicCsvWriter::create(out, &header)? };
+        let mut writer = if resume {
+            AtomicCsvWriter::resume(out, &header)?
+        } else {
+            AtomicCsvWriter::create(out, &header)?
+        };
         let kept = writer.rows();
         let per_variant = p.labels.len() * p.winds.len();
         let todo: Vec<usize> = (0..p.variants.len())
@@ -964,7 +994,10 @@ mod tests {
 
     #[test]
     fn a_grid_steps_from_start_to_stop_and_longer_legs_lower_the_first_mode() {
-        let s = study("[[vary]]\npath = \"tripod.leg_length_m\"\ngrid = { start = 1.0, stop = 1.4, step = 0.1 }\n", "");
+        let s = study(
+            "[[vary]]\npath = \"tripod.leg_length_m\"\ngrid = { start = 1.0, stop = 1.4, step = 0.1 }\n",
+            "",
+        );
         let VariableKind::Path { values, .. } = &s.variables[0].kind else { panic!() };
         assert_eq!(values, &[1.0, 1.1, 1.2, 1.3, 1.4]);
         let rows = study_rows(&s, None).unwrap();
@@ -972,16 +1005,17 @@ mod tests {
         assert_eq!(row(&rows, "tripod.leg_length_m=1.3").values, ["1.3"]);
         // Longer legs: softer in bending and axially (k ∝ 1/L, elementary mechanics), so the
         // first mode falls along the grid.
-        let f: Vec<f64> = values
-            .iter()
-            .map(|v| row(&rows, &format!("tripod.leg_length_m={v}")).first_mode_hz)
-            .collect();
+        let f: Vec<f64> =
+            values.iter().map(|v| row(&rows, &format!("tripod.leg_length_m={v}")).first_mode_hz).collect();
         assert!(f.windows(2).all(|w| w[1] < w[0]), "{f:?}");
     }
 
     #[test]
     fn an_alternative_file_row_is_the_report_of_that_file() {
-        let s = study("[[vary]]\nrigs = [{ label = \"heavier tripod\", file = \"tripod-paver-heavy.toml\" }]\n", "");
+        let s = study(
+            "[[vary]]\nrigs = [{ label = \"heavier tripod\", file = \"tripod-paver-heavy.toml\" }]\n",
+            "",
+        );
         let rows = study_rows(&s, None).unwrap();
         assert_eq!(rows.iter().map(|r| r.variant.as_str()).collect::<Vec<_>>(), [BASE, "rig=heavier tripod"]);
         let heavy = std::fs::read_to_string(examples().join("tripod-paver-heavy.toml")).unwrap();
@@ -1003,12 +1037,21 @@ mod tests {
         let file = ModelFile::read(&examples().join("tripod-paver.toml")).unwrap();
         let grounds = [GroundSource::Reference(ReferenceGround::Nhnm)];
         let inputs = SweepInputs { model: &file, catalogue: &cat, grounds: &grounds, winds: &[] };
-        let sw = crate::batch::sweep_rows(&inputs, &SweepConfig::new().unwrap().with_grid(s.settings.grid.clone()))
-            .unwrap();
+        let sw = crate::batch::sweep_rows(
+            &inputs,
+            &SweepConfig::new().unwrap().with_grid(s.settings.grid.clone()),
+        )
+        .unwrap();
         for iso in cat.isolators.iter().filter(|i| !i.is_none()) {
             let a = row(&rows, &format!("pads={}", iso.name));
             let b = sw.iter().find(|r| r.spec == iso.name).unwrap();
-            assert!(close(a.rms_arcsec, b.rms_arcsec, 1e-12), "{}: {} vs {}", iso.name, a.rms_arcsec, b.rms_arcsec);
+            assert!(
+                close(a.rms_arcsec, b.rms_arcsec, 1e-12),
+                "{}: {} vs {}",
+                iso.name,
+                a.rms_arcsec,
+                b.rms_arcsec
+            );
             assert!(close(a.first_mode_hz, b.first_mode_hz, 1e-12));
             assert!(close(a.ratio_to_base, b.ratio_to_none, 1e-12));
         }
@@ -1025,11 +1068,14 @@ mod tests {
         assert_eq!(v[2].label, "tripod.leg_length_m=1.1, mount.tilt_stiffness_nm_per_rad=30000");
         let paired = study(vary, "combine = \"paired\"");
         let vp = variants(&paired);
-        assert_eq!(vp.iter().map(|x| x.label.as_str()).collect::<Vec<_>>(), [
-            BASE,
-            "tripod.leg_length_m=1.1, mount.tilt_stiffness_nm_per_rad=15000",
-            "tripod.leg_length_m=1.4, mount.tilt_stiffness_nm_per_rad=30000",
-        ]);
+        assert_eq!(
+            vp.iter().map(|x| x.label.as_str()).collect::<Vec<_>>(),
+            [
+                BASE,
+                "tripod.leg_length_m=1.1, mount.tilt_stiffness_nm_per_rad=15000",
+                "tripod.leg_length_m=1.4, mount.tilt_stiffness_nm_per_rad=30000",
+            ]
+        );
         let rc = study_rows(&crossed, None).unwrap();
         let rp = study_rows(&paired, None).unwrap();
         for r in &rp {
@@ -1040,11 +1086,9 @@ mod tests {
         let sens = sensitivity(&crossed, &rc);
         assert!(sens.iter().filter(|x| x.outcome == "rms_px").all(|x| x.range > 0.0));
         let ex = examples();
-        let text = format!(
-            "model = \"tripod-paver.toml\"\ncombine = \"paired\"\n[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.1, 1.4]\n\
-             [[vary]]\npads = \"isolators.toml\"\n[disturbances]\ngrounds = [\"nhnm\"]\n"
-        );
-        let e = Study::load(&text, "s.toml", &ex).unwrap_err();
+        let text = "model = \"tripod-paver.toml\"\ncombine = \"paired\"\n[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.1, 1.4]\n\
+             [[vary]]\npads = \"isolators.toml\"\n[disturbances]\ngrounds = [\"nhnm\"]\n";
+        let e = Study::load(text, "s.toml", &ex).unwrap_err();
         assert!(matches!(e, Error::ShapeMismatch { .. }), "{e}");
         assert!(e.to_string().contains("paired") && e.to_string().contains("pads"), "{e}");
     }
@@ -1118,9 +1162,13 @@ mod tests {
         let g = "[disturbances]\ngrounds = [\"nhnm\"]\n";
         let e = load(&format!("model = \"tripod-paver.toml\"\nvariable = 3\n{g}"));
         assert!(matches!(e, Error::Parse { .. }) && e.to_string().contains("line 2"), "{e}");
-        let e = load(&format!("model = \"tripod-paver.toml\"\n[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.0]\ngrid = {{ start = 1, stop = 2, step = 1 }}\n{g}"));
+        let e = load(&format!(
+            "model = \"tripod-paver.toml\"\n[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.0]\ngrid = {{ start = 1, stop = 2, step = 1 }}\n{g}"
+        ));
         assert!(e.to_string().contains("exactly one of values, range or grid"), "{e}");
-        let e = load(&format!("model = \"tripod-paver.toml\"\n[[vary]]\npath = \"tripod.no_such\"\nvalues = [1.0]\n{g}"));
+        let e = load(&format!(
+            "model = \"tripod-paver.toml\"\n[[vary]]\npath = \"tripod.no_such\"\nvalues = [1.0]\n{g}"
+        ));
         assert!(matches!(e, Error::UnknownName { .. }) && e.to_string().contains("tripod.no_such"), "{e}");
         let e = load(&format!("model = \"missing.toml\"\n{g}"));
         assert!(matches!(e, Error::Io { .. }) && e.to_string().contains("missing.toml"), "{e}");

@@ -285,10 +285,17 @@ fn path_values(who: &str, v: &VaryDoc) -> Result<Vec<f64>> {
         vals.clone()
     } else if let Some(r) = &v.range {
         if r.count < 2 {
-            return Err(Error::invalid(format!("{who}.range.count"), format!("must be at least 2, got {}", r.count)));
+            return Err(Error::invalid(
+                format!("{who}.range.count"),
+                format!("must be at least 2, got {}", r.count),
+            ));
         }
         if r.count > MAX_VALUES {
-            return Err(Error::TooLarge { what: format!("{who}.range.count"), value: r.count, limit: MAX_VALUES });
+            return Err(Error::TooLarge {
+                what: format!("{who}.range.count"),
+                value: r.count,
+                limit: MAX_VALUES,
+            });
         }
         crate::error::require_finite(|| format!("{who}.range.start"), r.start)?;
         crate::error::require_finite(|| format!("{who}.range.stop"), r.stop)?;
@@ -321,7 +328,11 @@ fn path_values(who: &str, v: &VaryDoc) -> Result<Vec<f64>> {
         }
         let n = ((g.stop - g.start) / g.step + 1e-9).floor();
         if n + 1.0 > MAX_VALUES as f64 {
-            return Err(Error::TooLarge { what: format!("{who}.grid values"), value: usize::MAX, limit: MAX_VALUES });
+            return Err(Error::TooLarge {
+                what: format!("{who}.grid values"),
+                value: usize::MAX,
+                limit: MAX_VALUES,
+            });
         }
         (0..=n as usize).map(|k| tidy(g.start + g.step * k as f64)).collect()
     } else {
@@ -358,7 +369,10 @@ impl Study {
             "crossed" => Combine::Crossed,
             "paired" => Combine::Paired,
             c => {
-                return Err(Error::invalid(format!("{file}: combine"), format!("'{c}' is not crossed or paired")));
+                return Err(Error::invalid(
+                    format!("{file}: combine"),
+                    format!("'{c}' is not crossed or paired"),
+                ));
             }
         };
         let mut variables = Vec::new();
@@ -371,7 +385,10 @@ impl Study {
             let var = if let Some(path) = &v.path {
                 let values = path_values(&who, v)?;
                 let base = get_parameter(&model_text, path)?;
-                Variable { name: v.name.clone().unwrap_or_else(|| path.clone()), kind: VariableKind::Path { path: path.clone(), values, base } }
+                Variable {
+                    name: v.name.clone().unwrap_or_else(|| path.clone()),
+                    kind: VariableKind::Path { path: path.clone(), values, base },
+                }
             } else {
                 if v.values.is_some() || v.range.is_some() || v.grid.is_some() {
                     return Err(Error::invalid(who, "values, range and grid go with a path"));
@@ -386,12 +403,18 @@ impl Study {
                         ModelFile::parse(&t, &n)?;
                         out.push((r.label.clone(), n, t));
                     }
-                    Variable { name: v.name.clone().unwrap_or_else(|| "rig".into()), kind: VariableKind::Rig { rigs: out } }
+                    Variable {
+                        name: v.name.clone().unwrap_or_else(|| "rig".into()),
+                        kind: VariableKind::Rig { rigs: out },
+                    }
                 } else {
                     let pads = v.pads.as_deref().unwrap_or_default();
                     let (n, t) = read_file(dir, pads)?;
                     let catalogue = Catalogue::parse(&t, &n)?;
-                    Variable { name: v.name.clone().unwrap_or_else(|| "pads".into()), kind: VariableKind::Pads { catalogue } }
+                    Variable {
+                        name: v.name.clone().unwrap_or_else(|| "pads".into()),
+                        kind: VariableKind::Pads { catalogue },
+                    }
                 }
             };
             variables.push(var);
@@ -412,7 +435,11 @@ impl Study {
         let s = &doc.settings;
         let mut settings = StudySettings::new()?;
         if s.f_min_hz.is_some() || s.f_max_hz.is_some() || s.n_freq.is_some() {
-            settings.grid = FreqGrid::log(s.f_min_hz.unwrap_or(0.2), s.f_max_hz.unwrap_or(100.0), s.n_freq.unwrap_or(600))?;
+            settings.grid = FreqGrid::log(
+                s.f_min_hz.unwrap_or(0.2),
+                s.f_max_hz.unwrap_or(100.0),
+                s.n_freq.unwrap_or(600),
+            )?;
         }
         if let Some(v) = s.visibility_px {
             settings.visibility.rms_px = crate::error::require_non_negative("settings.visibility_px", v)?;
@@ -459,13 +486,22 @@ impl Study {
         let mut names = std::collections::HashSet::new();
         for v in &self.variables {
             if v.name.trim().is_empty() || v.name.contains(['|', '\n', '\r']) {
-                return Err(Error::invalid(format!("{}: variable name '{}'", self.source, v.name), "must be non-empty, without '|' or line breaks"));
+                return Err(Error::invalid(
+                    format!("{}: variable name '{}'", self.source, v.name),
+                    "must be non-empty, without '|' or line breaks",
+                ));
             }
             if fixed.contains(&v.name.as_str()) {
-                return Err(Error::invalid(format!("{}: variable name '{}'", self.source, v.name), "is the name of a fixed column; give the variable a name"));
+                return Err(Error::invalid(
+                    format!("{}: variable name '{}'", self.source, v.name),
+                    "is the name of a fixed column; give the variable a name",
+                ));
             }
             if !names.insert(v.name.clone()) {
-                return Err(Error::invalid(format!("{}: variable '{}'", self.source, v.name), "is given twice; give one of them a name"));
+                return Err(Error::invalid(
+                    format!("{}: variable '{}'", self.source, v.name),
+                    "is given twice; give one of them a name",
+                ));
             }
             for i in 0..v.len() {
                 let l = v.label(i);
@@ -478,7 +514,10 @@ impl Study {
             }
             let labels: std::collections::HashSet<String> = (0..v.len()).map(|i| v.label(i)).collect();
             if labels.len() != v.len() {
-                return Err(Error::invalid(format!("{}: variable '{}'", self.source, v.name), "has a value twice"));
+                return Err(Error::invalid(
+                    format!("{}: variable '{}'", self.source, v.name),
+                    "has a value twice",
+                ));
             }
         }
         if self.combine == Combine::Paired
@@ -487,7 +526,14 @@ impl Study {
             for v in &self.variables[1..] {
                 if v.len() != first.len() {
                     return Err(Error::shape(
-                        format!("{}: paired variables ('{}' has {} values, '{}' has {})", self.source, first.name, first.len(), v.name, v.len()),
+                        format!(
+                            "{}: paired variables ('{}' has {} values, '{}' has {})",
+                            self.source,
+                            first.name,
+                            first.len(),
+                            v.name,
+                            v.len()
+                        ),
                         first.len(),
                         v.len(),
                     ));
@@ -501,11 +547,18 @@ impl Study {
         match n {
             Some(n) if n <= MAX_VARIANTS => {}
             _ => {
-                return Err(Error::TooLarge { what: format!("{}: variants", self.source), value: n.unwrap_or(usize::MAX), limit: MAX_VARIANTS });
+                return Err(Error::TooLarge {
+                    what: format!("{}: variants", self.source),
+                    value: n.unwrap_or(usize::MAX),
+                    limit: MAX_VARIANTS,
+                });
             }
         }
         if self.grounds.is_empty() {
-            return Err(Error::invalid(format!("{}: disturbances.grounds", self.source), "give at least one ground (recording, PSD file, nlnm, nhnm)"));
+            return Err(Error::invalid(
+                format!("{}: disturbances.grounds", self.source),
+                "give at least one ground (recording, PSD file, nlnm, nhnm)",
+            ));
         }
         super::sweep::ground_labels(&self.grounds)?;
         let mut seen = std::collections::HashSet::new();
