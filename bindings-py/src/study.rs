@@ -21,7 +21,6 @@ pub struct PyStudyPlan {
 fn row_dict<'py>(py: Python<'py>, cols: &[String], r: &StudyRow) -> PyResult<Bound<'py, PyDict>> {
     let d = PyDict::new(py);
     let f = r.fields();
-    let n = r.values.len();
     for (i, c) in cols.iter().enumerate() {
         match c.as_str() {
             "rms_arcsec" => d.set_item(c, r.rms_arcsec)?,
@@ -37,7 +36,6 @@ fn row_dict<'py>(py: Python<'py>, cols: &[String], r: &StudyRow) -> PyResult<Bou
             _ => d.set_item(c, &f[i])?,
         }
     }
-    let _ = n;
     Ok(d)
 }
 

@@ -850,8 +850,7 @@ pub fn study_svgs(
             title,
         });
     }
-    for (vi, var) in study.variables.iter().enumerate() {
-        let _ = vi;
+    for var in &study.variables {
         for (outcome, words) in STUDY_PLOTTED.iter().take(2) {
             let series: Vec<(String, Vec<f64>)> = disturbances
                 .iter()

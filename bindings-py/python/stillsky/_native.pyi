@@ -1283,7 +1283,7 @@ def standing_tilt(
 class StudyPlan:
     """A loaded study: the study file and every file it names, read once."""
 
-    def __init__(self, text: str, name: str, folder: str | PathLike[str]) -> None:
+    def __new__(cls, text: str, name: str, folder: str | PathLike[str]) -> StudyPlan:
         """Load study text (``name`` for messages); file names are relative to ``folder``."""
     def columns(self) -> list[str]:
         """The CSV columns, in order: key, variant, one per variable, then the outcomes."""
