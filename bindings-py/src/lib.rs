@@ -20,6 +20,7 @@ mod series;
 mod skymap;
 mod sources;
 mod spectrum;
+mod study;
 mod sweep;
 mod transient;
 mod wind;
@@ -49,5 +50,6 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     sweep::register(m)?;
     sensor::register(m)?;
     probabilistic::register(m)?;
+    study::register(m)?;
     Ok(())
 }

@@ -35,6 +35,9 @@ enum Cmd {
     SkyMap(Box<SkyMapArgs>),
     /// Sweep an isolator catalogue over ground spectra and wind cases into a CSV.
     Sweep(SweepArgs),
+    /// Run a design study (a study file: variables, alternative model files, pads, grounds and
+    /// winds) into a CSV, with a ranked summary per disturbance and a sensitivity table.
+    Study(StudyArgs),
     /// Print the generic-layer TOML a model file expands to.
     Expand {
         /// Model file (TOML).
@@ -377,6 +380,24 @@ struct SweepArgs {
     temperature_c: f64,
 }
 
+#[derive(Args)]
+struct StudyArgs {
+    /// Study file (TOML; see docs/study-file.md).
+    study: PathBuf,
+    /// Output CSV (one row per variant, ground and wind).
+    #[arg(long)]
+    out: PathBuf,
+    /// Continue an interrupted run, keeping its complete rows.
+    #[arg(long)]
+    resume: bool,
+    /// Write the sensitivity chart and outcome-against-variable plots (SVG) into this folder.
+    #[arg(long)]
+    plots: Option<PathBuf>,
+    /// Threads (default: all cores); the rows do not depend on it.
+    #[arg(long)]
+    threads: Option<usize>,
+}
+
 /// The person on the deck (report and deck-load).
 #[derive(Args)]
 struct PersonArgs {
@@ -552,6 +573,7 @@ fn main() -> ExitCode {
         Cmd::Report(a) => report(&a),
         Cmd::SkyMap(a) => sky_map(&a),
         Cmd::Sweep(a) => sweep(&a),
+        Cmd::Study(a) => study(&a),
         Cmd::Expand { model } => expand(&model),
         Cmd::Demo { out } => demo(&out),
         Cmd::Calibrate(a) => calibrate(&a),
@@ -957,6 +979,32 @@ fn sweep(a: &SweepArgs) -> CliResult {
         println!("html: {}", h.display());
     }
     sweep_failures(&outcome)
+}
+
+fn study(a: &StudyArgs) -> CliResult {
+    let st = batch::Study::read(&a.study)?;
+    let outcome = batch::run_study(&st, &a.out, a.resume, a.threads, &|_| {})?;
+    print!("{}", print::study_text(&st, &outcome));
+    if let Some(dir) = &a.plots {
+        std::fs::create_dir_all(dir).map_err(|e| Failure::io(&dir.display().to_string(), e))?;
+        for p in plots::study_svgs(&st, &outcome.sensitivity).map_err(|e| Failure::io("plots", e))? {
+            let path = dir.join(&p.file_name);
+            stillsky::io::atomic::write_atomic(&path, p.svg.as_bytes())?;
+            println!("plot: {} ({})", path.display(), p.title);
+        }
+    }
+    let failures = outcome.failures();
+    if !failures.is_empty() {
+        return Err(Failure {
+            code: 1,
+            message: format!(
+                "{} row(s) failed; see the error rows in {}",
+                failures.len(),
+                outcome.path.display()
+            ),
+        });
+    }
+    Ok(())
 }
 
 fn expand(model: &Path) -> CliResult {

@@ -873,6 +873,240 @@ pub fn ringdown_card_svg(traces: &[CardTrace]) -> PlotResult<Plot> {
     Ok(Plot { file_name: "ringdown-card.svg", title, svg })
 }
 
+/// A study plot: a file name of its own (variables name the outcome-against-variable plots).
+pub struct StudyPlot {
+    pub file_name: String,
+    pub title: String,
+    pub svg: String,
+}
+
+/// A file-name-safe form of a variable or outcome name.
+fn file_stem(s: &str) -> String {
+    s.chars().map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' { c } else { '-' }).collect()
+}
+
+/// The outcomes a study plots, with their axis words.
+const STUDY_PLOTTED: [(&str, &str); 4] = [
+    ("rms_px", "image RMS (px)"),
+    ("gust_peak_px", "worst gust peak (px)"),
+    ("first_mode_hz", "first natural frequency (Hz)"),
+    ("min_static_fos", "lowest static factor of safety"),
+];
+
+/// The plots of a study: a sensitivity chart per outcome (the range of each variable's main
+/// effect, one bar per disturbance) and, per variable, image RMS against its values (one line
+/// per disturbance). Outcomes without numbers (e.g. gusts in a calm-only study) are skipped.
+pub fn study_svgs(
+    study: &stillsky::batch::Study,
+    s: &[stillsky::batch::Sensitivity],
+) -> PlotResult<Vec<StudyPlot>> {
+    let mut out = Vec::new();
+    let disturbances: Vec<(String, String)> = {
+        let mut d: Vec<(String, String)> = Vec::new();
+        for x in s {
+            let k = (x.ground.clone(), x.wind.clone());
+            if !d.contains(&k) {
+                d.push(k);
+            }
+        }
+        d
+    };
+    for (outcome, words) in STUDY_PLOTTED {
+        let of: Vec<&stillsky::batch::Sensitivity> = s.iter().filter(|x| x.outcome == outcome).collect();
+        if of.iter().all(|x| !x.range.is_finite()) {
+            continue;
+        }
+        let title = format!("Sensitivity: how much each variable moves the {words}");
+        out.push(StudyPlot {
+            file_name: format!("study-sensitivity-{}.svg", file_stem(outcome)),
+            svg: sensitivity_chart(&title, words, study, &of, &disturbances)?,
+            title,
+        });
+    }
+    for var in &study.variables {
+        for (outcome, words) in STUDY_PLOTTED.iter().take(2) {
+            let series: Vec<(String, Vec<f64>)> = disturbances
+                .iter()
+                .filter_map(|(g, w)| {
+                    let x = s.iter().find(|x| {
+                        x.variable == var.name && x.outcome == *outcome && &x.ground == g && &x.wind == w
+                    })?;
+                    Some((format!("{g}, {w}"), x.levels.iter().map(|l| l.1).collect::<Vec<f64>>()))
+                })
+                .filter(|(_, v)| v.iter().any(|x| x.is_finite()))
+                .collect();
+            if series.is_empty() {
+                continue;
+            }
+            let labels: Vec<String> = (0..var.len()).map(|k| var.label(k)).collect();
+            let title = format!("{words} against {}", var.name);
+            out.push(StudyPlot {
+                file_name: format!("study-{}-{}.svg", file_stem(outcome), file_stem(&var.name)),
+                svg: levels_chart(&title, &var.name, words, &labels, var.numbers(), &series)?,
+                title,
+            });
+        }
+    }
+    Ok(out)
+}
+
+/// Horizontal bars: per variable, one bar per disturbance of the outcome's main-effect range.
+fn sensitivity_chart(
+    title: &str,
+    words: &str,
+    study: &stillsky::batch::Study,
+    of: &[&stillsky::batch::Sensitivity],
+    disturbances: &[(String, String)],
+) -> PlotResult<String> {
+    let nv = study.variables.len().max(1);
+    let nd = disturbances.len().max(1);
+    let vmax = of.iter().map(|x| x.range).filter(|v| v.is_finite()).fold(0.0f64, f64::max).max(1e-12);
+    let rows = nv * (nd + 1);
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (SIZE.0, 160 + 30 * rows as u32)).into_drawing_area();
+        root.fill(&WHITE)?;
+        let mut c = ChartBuilder::on(&root)
+            .caption(title, (FONT, CAPTION_PT))
+            .margin(16)
+            .x_label_area_size(64)
+            .y_label_area_size(10)
+            .build_cartesian_2d(0.0..vmax * 1.9, 0.0..rows as f64 + 0.5)?;
+        c.configure_mesh()
+            .disable_y_mesh()
+            .y_labels(0)
+            .label_style((FONT, TICK_PT))
+            .axis_desc_style((FONT, AXIS_PT))
+            .x_desc(format!("range of the mean {words} over the variable's values"))
+            .x_label_formatter(&|v| tick_label(*v))
+            .draw()?;
+        let font = TextStyle::from((FONT, LEGEND_PT).into_font()).pos(Pos::new(HPos::Left, VPos::Center));
+        for (vi, var) in study.variables.iter().enumerate() {
+            let top = rows as f64 - (vi * (nd + 1)) as f64;
+            c.draw_series(std::iter::once(Text::new(var.name.clone(), (0.0, top - 0.3), font.clone())))?;
+            for (di, (g, w)) in disturbances.iter().enumerate() {
+                let r = of
+                    .iter()
+                    .find(|x| x.variable == var.name && &x.ground == g && &x.wind == w)
+                    .map_or(f64::NAN, |x| x.range);
+                let y = top - 1.0 - di as f64;
+                let col = COLOURS[di % COLOURS.len()];
+                if r.is_finite() {
+                    c.draw_series(std::iter::once(Rectangle::new(
+                        [(0.0, y - 0.1), (r, y - 0.8)],
+                        col.filled(),
+                    )))?;
+                }
+                let txt = if r.is_finite() {
+                    format!("{g}, {w}: {}", tick_label(r))
+                } else {
+                    format!("{g}, {w}: n/a")
+                };
+                c.draw_series(std::iter::once(Text::new(
+                    txt,
+                    (r.max(0.0) + 0.02 * vmax, y - 0.45),
+                    font.clone(),
+                )))?;
+            }
+        }
+        root.present()?;
+    }
+    Ok(svg)
+}
+
+/// An outcome's main-effect means against a variable's values: numbers on a linear axis, other
+/// values (rigs, pads) at even steps named below.
+fn levels_chart(
+    title: &str,
+    x_desc: &str,
+    y_desc: &str,
+    labels: &[String],
+    numbers: Option<&[f64]>,
+    series: &[(String, Vec<f64>)],
+) -> PlotResult<String> {
+    let xs: Vec<f64> = match numbers {
+        Some(n) => n.to_vec(),
+        None => (0..labels.len()).map(|k| k as f64).collect(),
+    };
+    let (mut x0, mut x1) =
+        xs.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |a, &x| (a.0.min(x), a.1.max(x)));
+    let pad = 0.08 * (x1 - x0).max(1e-9);
+    if numbers.is_none() {
+        (x0, x1) = (-0.5, labels.len() as f64 - 0.5);
+    } else {
+        (x0, x1) = (x0 - pad, x1 + pad);
+    }
+    let ys = series.iter().flat_map(|s| s.1.iter().copied()).filter(|y| y.is_finite());
+    let (y0, y1) = ys.fold((f64::INFINITY, f64::NEG_INFINITY), |a, y| (a.0.min(y), a.1.max(y)));
+    let yp = 0.1 * (y1 - y0).max(1e-6 * y1.abs()).max(1e-12);
+    let (y0, y1) = ((y0 - yp).min(0.0_f64.max(y0 - yp)), y1 + 3.0 * yp);
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
+        root.fill(&WHITE)?;
+        let mut c = ChartBuilder::on(&root)
+            .caption(title, (FONT, CAPTION_PT))
+            .margin(16)
+            .x_label_area_size(64)
+            .y_label_area_size(96)
+            .build_cartesian_2d(x0..x1, y0..y1)?;
+        let categorical = numbers.is_none();
+        let fmt = |v: &f64| {
+            if categorical {
+                let k = v.round();
+                if (v - k).abs() < 1e-6 && k >= 0.0 {
+                    labels.get(k as usize).cloned().unwrap_or_default()
+                } else {
+                    String::new()
+                }
+            } else {
+                tick_label(*v)
+            }
+        };
+        let mut mesh = c.configure_mesh();
+        mesh.x_desc(x_desc)
+            .y_desc(y_desc)
+            .label_style((FONT, TICK_PT))
+            .axis_desc_style((FONT, AXIS_PT))
+            .light_line_style(RGBColor(235, 235, 235))
+            .y_label_formatter(&|v| tick_label(*v))
+            .x_label_formatter(&fmt);
+        if categorical {
+            mesh.x_labels(labels.len() * 4 + 1);
+        }
+        mesh.draw()?;
+        for (k, (label, ys)) in series.iter().enumerate() {
+            let col = COLOURS[k % COLOURS.len()];
+            let style = ShapeStyle { color: col.to_rgba(), filled: false, stroke_width: 2 };
+            let data: Vec<(f64, f64)> =
+                xs.iter().zip(ys).filter(|(_, y)| y.is_finite()).map(|(x, y)| (*x, *y)).collect();
+            let marker = k % 3;
+            c.draw_series(LineSeries::new(data.clone(), style))?;
+            c.draw_series(data.iter().map(move |&p| -> DynElement<'static, SVGBackend, (f64, f64)> {
+                match marker {
+                    0 => Circle::new(p, 5, style).into_dyn(),
+                    1 => TriangleMarker::new(p, 6, style).into_dyn(),
+                    _ => Cross::new(p, 5, style).into_dyn(),
+                }
+            }))?
+            .label(label.clone())
+            .legend(move |(x, y)| {
+                EmptyElement::at((x, y))
+                    + PathElement::new(vec![(0, 0), (LEGEND_W, 0)], style)
+                    + Circle::new((LEGEND_W / 2, 0), 4, style)
+            });
+        }
+        c.configure_series_labels()
+            .position(SeriesLabelPosition::UpperRight)
+            .label_font((FONT, LEGEND_PT))
+            .background_style(WHITE.mix(0.9))
+            .border_style(BLACK)
+            .draw()?;
+        root.present()?;
+    }
+    Ok(svg)
+}
+
 #[cfg(test)]
 mod tests {
     use super::tick_label;

@@ -747,3 +747,96 @@ pub fn standing_verdict(t: &stillsky::people::StandingTable) -> String {
         _ => format!("crosses {} px at {:?} m", t.limit_px, t.crossings_m),
     }
 }
+
+/// A study's ranked summary per disturbance and its sensitivity table, as plain text.
+pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutcome) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "study{}: {} rows ({} computed, {} kept from an earlier run) -> {}",
+        study.title.as_deref().map(|t| format!(" '{t}'")).unwrap_or_default(),
+        o.rows.len(),
+        o.computed,
+        o.kept,
+        o.path.display()
+    );
+    let v = &o.summary.visibility;
+    let _ = writeln!(
+        s,
+        "\nverdicts against the base: no visible difference when both stay below {} px RMS and P(>1/2 px) {} %, or differ by less than that",
+        v.rms_px,
+        100.0 * v.p_outside
+    );
+    for t in &o.summary.per_disturbance {
+        let windy = t.entries.iter().any(|e| e.gust_peak_px.is_finite());
+        let _ = writeln!(s, "\nranking, ground {}, wind {} (image RMS, lower is better):", t.ground, t.wind);
+        let _ = write!(
+            s,
+            "  {:>3} {:<48} {:>9} {:>11} {:>7} {:>8}",
+            "", "variant", "rms px", "P(>1/2 px)", "ratio", "f1 Hz"
+        );
+        if windy {
+            let _ = write!(s, " {:>8}", "gust px");
+        }
+        let _ = writeln!(s, " {:>6}  vs base", "FoS");
+        for (k, e) in t.entries.iter().enumerate() {
+            let _ = write!(
+                s,
+                "  {:>3} {:<48} {:>9.4} {:>11.3e} {:>7.3} {:>8.2}",
+                k + 1,
+                e.variant,
+                e.rms_px,
+                e.p_outside_half_px,
+                e.ratio_to_base,
+                e.first_mode_hz
+            );
+            if windy {
+                let _ = write!(s, " {:>8.3}", e.gust_peak_px);
+            }
+            let _ = writeln!(s, " {:>6.2}  {}", e.min_static_fos, e.vs_base);
+        }
+    }
+    let _ = writeln!(
+        s,
+        "\nsensitivity: range of each outcome's mean over a variable's values (the other variables averaged)"
+    );
+    let _ = writeln!(
+        s,
+        "  {:<32} {:<34} {:>10} {:>10} {:>10} {:>10}",
+        "variable", "ground, wind", "rms px", "gust px", "f1 Hz", "FoS"
+    );
+    let mut seen = Vec::new();
+    for x in &o.sensitivity {
+        let k = (x.variable.clone(), x.ground.clone(), x.wind.clone());
+        if seen.contains(&k) {
+            continue;
+        }
+        seen.push(k);
+        let get = |name: &str| {
+            o.sensitivity
+                .iter()
+                .find(|y| {
+                    y.variable == x.variable && y.ground == x.ground && y.wind == x.wind && y.outcome == name
+                })
+                .map_or(f64::NAN, |y| y.range)
+        };
+        let _ = writeln!(
+            s,
+            "  {:<32} {:<34} {:>10.4} {:>10.4} {:>10.3} {:>10.3}",
+            x.variable,
+            format!("{}, {}", x.ground, x.wind),
+            get("rms_px"),
+            get("gust_peak_px"),
+            get("first_mode_hz"),
+            get("min_static_fos")
+        );
+    }
+    if !o.summary.failures.is_empty() {
+        let _ = writeln!(s, "\n{} error row(s):", o.summary.failures.len());
+        for (k, e) in o.summary.failures.iter().take(20) {
+            let _ = writeln!(s, "  {k}: {e}");
+        }
+    }
+    let _ = writeln!(s, "\n{}", stillsky::checks::CAUTIONS.join("\n"));
+    s
+}

@@ -119,3 +119,6 @@ __all__ = [
 from ._sweep import SweepTable, sweep  # noqa: E402
 
 __all__ += ["sweep", "SweepTable"]
+from ._study import StudyTable, study  # noqa: E402
+
+__all__ += ["study", "StudyTable"]

@@ -10,7 +10,7 @@ release the GIL: do not modify an input array from another thread during a call.
 """
 
 from os import PathLike
-from typing import Any, Literal, Mapping, Sequence, final, overload
+from typing import Any, Iterable, Literal, Mapping, Sequence, final, overload
 
 import numpy as np
 import numpy.typing as npt
@@ -1541,3 +1541,22 @@ class Monitor:
     def sample_rate_hz(self) -> float: ...
     @property
     def threshold_arcsec(self) -> float: ...
+
+# --- design studies (stillsky.study in _study.py is the public entry; StudyPlan is its part) ---
+@final
+class StudyPlan:
+    """A loaded study: the study file and every file it names, read once."""
+
+    def __new__(cls, text: str, name: str, folder: str | PathLike[str]) -> StudyPlan:
+        """Load study text (``name`` for messages); file names are relative to ``folder``."""
+    def columns(self) -> list[str]:
+        """The CSV columns, in order: key, variant, one per variable, then the outcomes."""
+    def variants(self) -> list[str]:
+        """The variants' labels, in row order (``base`` first)."""
+    def disturbances(self) -> tuple[list[str], list[str]]:
+        """The ground labels and the wind labels, in row order."""
+    def rows(self, which: Sequence[int] | None = None, threads: int | None = None) -> list[dict[str, Any]]:
+        """Rows of the variants ``which`` (indices into ``variants()``; None: all), in row
+        order, at full precision; the interpreter is released."""
+    def csv(self, rows: Iterable[dict[str, Any]]) -> str:
+        """The command line's CSV text of these rows (six significant digits)."""

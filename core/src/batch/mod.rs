@@ -5,13 +5,17 @@
 //! - [`catalogue`]: isolator specs and how pads enter a model; [`ground`]: ground spectra from
 //!   recordings, PSD files or reference curves; [`gust`]: the gust family (worst peak, ring-down);
 //! - [`ranking`]: the sweep's ranked summary and verdicts against no pad, per wind case;
-//! - [`report`]: the one-model report (modes, image motion, gust, checks).
+//! - [`report`]: the one-model report (modes, image motion, gust, checks);
+//! - [`study`]: design studies over model numbers, alternative model files and the isolator
+//!   catalogue ([`study_file`] reads the study file).
 
 pub mod catalogue;
 pub mod ground;
 pub mod gust;
 pub mod ranking;
 pub mod report;
+pub mod study;
+pub mod study_file;
 pub mod sweep;
 pub mod sweep_row;
 
@@ -29,6 +33,12 @@ pub use report::{
     CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, PeopleOptions,
     PeopleReport, Report, ReportOptions, build_file_report, build_report, file_people_report, report_sky_map,
 };
+pub use study::{
+    BASE, OUTCOMES, Sensitivity, StudyOutcome, StudyRankEntry, StudyRanking, StudyRow, StudySummary, Variant,
+    evaluate_variant, read_study_csv, run_study, sensitivity, study_columns, study_csv_text, study_rows,
+    study_rows_of, summarize_study, variants,
+};
+pub use study_file::{Combine, Study, StudySettings, Variable, VariableKind};
 pub use sweep::{
     PadMechanism, SweepConfig, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
     ground_labels, pad_alternatives, run_sweep, sweep_csv_text, sweep_rows, sweep_rows_labelled,

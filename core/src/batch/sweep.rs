@@ -588,7 +588,7 @@ impl<'a> PreparedSweep<'a> {
 }
 
 /// Run `f` on a rayon pool of `threads` threads, or on the global pool.
-fn in_pool<T: Send>(threads: Option<usize>, f: impl FnOnce() -> Result<T> + Send) -> Result<T> {
+pub(crate) fn in_pool<T: Send>(threads: Option<usize>, f: impl FnOnce() -> Result<T> + Send) -> Result<T> {
     match threads {
         None => f(),
         Some(n) => rayon::ThreadPoolBuilder::new()

@@ -1,0 +1,1180 @@
+//! Design studies: which change buys the most? A study ([`Study`], read from a study file,
+//! [`super::study_file`]) varies numbers of the model file, whole alternative model files and the
+//! isolator catalogue, crossed or paired, and evaluates every variant under every ground and
+//! wind case.
+//!
+//! - **Variants.** Crossed: every combination of the variables' values (the first variable
+//!   varies slowest); paired: the k-th value of every variable together. The variant whose
+//!   values are all the base model's (path values equal to the file's, rig "base", pads "none")
+//!   is labelled `base`; when no variant is, a `base` variant is put first. Other variants are
+//!   labelled `name=value, name=value`.
+//! - **Rows.** One per variant × ground × wind, in that order ([`study_columns`]): the
+//!   variables' values, image RMS (arcsec, px), P(outside ½ px), the ratio of image RMS to the
+//!   base for the same disturbance and the verdict against it (`vs_base`: "better", "worse" or
+//!   "no visible difference" by the sweep's [`Visibility`] levels, [`Visibility::judge`]), the
+//!   first natural frequency and its damping, the worst gust peak and ring-down of the gust
+//!   family ([`super::gust`], windy cases only) and the lowest factor of safety of the static
+//!   checks ([`crate::checks::rig_checks`], at the study's design wind; NaN where the model has no
+//!   rig layer to check). `key` = `variant|ground|wind`, the unit of resume.
+//! - **Evaluation.** Each variant's model file is rebuilt from the edited text
+//!   ([`evaluate_variant`]): the rig's file, each path set with
+//!   [`crate::identify::set_parameter`], pads put in with [`PadMechanism::spec_with`]. A variant
+//!   that cannot be built (a value that makes the model invalid, a path missing from an
+//!   alternative file) gives error rows naming why, and the rest finish.
+//! - **Output.** [`run_study`] writes the CSV with an [`AtomicCsvWriter`] in row order as soon
+//!   as each variant is done; `resume` keeps the complete rows of an interrupted run (error rows
+//!   count as complete). [`study_rows`] returns the same rows in memory at full precision.
+//! - **Summary** ([`summarize_study`]): per disturbance the variants ranked by image RMS, with
+//!   their verdicts; **sensitivity** ([`sensitivity`]): for each variable and outcome the range of
+//!   the outcome's main effect (the mean over the other variables' values, per value of this
+//!   one) — how much the variable moves the outcome.
+
+use super::catalogue::Catalogue;
+use super::ground::GroundSpectrum;
+use super::gust::gust_family;
+use super::ranking::{Verdict, Visibility};
+use super::study_file::{Combine, Study, VariableKind};
+use super::sweep::{PadMechanism, SweepProgress, WindCase, ground_labels, in_pool};
+use super::sweep_row::sig6;
+use crate::error::{Error, Result};
+use crate::image::ImageOptions;
+use crate::io::atomic::{AtomicCsvWriter, completed_keys, encode_row};
+use crate::model::Model;
+use crate::response::Disturbances;
+use crate::schema::ModelFile;
+use rayon::prelude::*;
+use serde::Serialize;
+use std::collections::{BTreeMap, HashSet};
+use std::path::{Path, PathBuf};
+
+/// The label of the base variant.
+pub const BASE: &str = "base";
+
+/// The columns before the variables' columns.
+const LEAD_COLUMNS: [&str; 2] = ["key", "variant"];
+/// The columns after the variables' columns.
+const TAIL_COLUMNS: [&str; 14] = [
+    "ground",
+    "wind",
+    "status",
+    "rms_arcsec",
+    "rms_px",
+    "p_outside_half_px",
+    "ratio_to_base",
+    "vs_base",
+    "first_mode_hz",
+    "first_mode_zeta",
+    "gust_peak_px",
+    "gust_ringdown_s",
+    "min_static_fos",
+    "error",
+];
+
+/// Every fixed column name (a variable may not take one).
+pub const FIXED_COLUMNS: [&str; 16] = [
+    "key",
+    "variant",
+    "ground",
+    "wind",
+    "status",
+    "rms_arcsec",
+    "rms_px",
+    "p_outside_half_px",
+    "ratio_to_base",
+    "vs_base",
+    "first_mode_hz",
+    "first_mode_zeta",
+    "gust_peak_px",
+    "gust_ringdown_s",
+    "min_static_fos",
+    "error",
+];
+
+/// The outcomes of a row that the summary and sensitivity use, with their units.
+pub const OUTCOMES: [(&str, &str); 6] = [
+    ("rms_px", "px"),
+    ("p_outside_half_px", ""),
+    ("first_mode_hz", "Hz"),
+    ("gust_peak_px", "px"),
+    ("gust_ringdown_s", "s"),
+    ("min_static_fos", ""),
+];
+
+/// The columns of a study's CSV: key, variant, one per variable, then the outcomes.
+pub fn study_columns(study: &Study) -> Vec<String> {
+    LEAD_COLUMNS
+        .iter()
+        .map(|s| s.to_string())
+        .chain(study.variables.iter().map(|v| v.name.clone()))
+        .chain(TAIL_COLUMNS.iter().map(|s| s.to_string()))
+        .collect()
+}
+
+/// One variant: its label and, per variable, the index of its value (None: the base model's).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct Variant {
+    pub label: String,
+    pub levels: Vec<Option<usize>>,
+    /// Part of the crossed or paired set (false for a `base` put first).
+    pub in_set: bool,
+}
+
+/// The variants of a study in row order (module docs).
+pub fn variants(study: &Study) -> Vec<Variant> {
+    let vars = &study.variables;
+    let mut set: Vec<Vec<usize>> = Vec::new();
+    match study.combine {
+        Combine::Paired => {
+            let n = vars.first().map_or(1, |v| v.len());
+            set.extend((0..n).map(|k| vec![k; vars.len()]));
+        }
+        Combine::Crossed => {
+            let total: usize = vars.iter().map(|v| v.len()).product();
+            for mut n in 0..total {
+                let mut idx = vec![0usize; vars.len()];
+                for d in (0..vars.len()).rev() {
+                    idx[d] = n % vars[d].len();
+                    n /= vars[d].len();
+                }
+                set.push(idx);
+            }
+        }
+    }
+    let is_base = |l: &[usize]| l.iter().enumerate().all(|(i, k)| vars[i].is_base(*k));
+    let mut out: Vec<Variant> = set
+        .iter()
+        .map(|l| Variant {
+            label: if is_base(l) {
+                BASE.to_string()
+            } else {
+                l.iter()
+                    .enumerate()
+                    .map(|(i, k)| format!("{}={}", vars[i].name, vars[i].label(*k)))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            },
+            levels: l.iter().map(|k| Some(*k)).collect(),
+            in_set: true,
+        })
+        .collect();
+    if !out.iter().any(|v| v.label == BASE) {
+        out.insert(0, Variant { label: BASE.into(), levels: vec![None; vars.len()], in_set: false });
+    }
+    out
+}
+
+/// One row of a study (see [`study_columns`]).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct StudyRow {
+    pub key: String,
+    pub variant: String,
+    /// The variables' values, in the study's order.
+    pub values: Vec<String>,
+    pub ground: String,
+    pub wind: String,
+    /// None for a good row.
+    pub error: Option<String>,
+    pub rms_arcsec: f64,
+    pub rms_px: f64,
+    pub p_outside_half_px: f64,
+    pub ratio_to_base: f64,
+    /// "base", "better", "worse", "no visible difference", or empty when the base failed.
+    pub vs_base: String,
+    pub first_mode_hz: f64,
+    pub first_mode_zeta: f64,
+    pub gust_peak_px: f64,
+    pub gust_ringdown_s: f64,
+    pub min_static_fos: f64,
+}
+
+impl StudyRow {
+    /// The key of a combination: `variant|ground|wind`.
+    pub fn key_of(variant: &str, ground: &str, wind: &str) -> String {
+        format!("{variant}|{ground}|{wind}")
+    }
+
+    fn failed(variant: &Variant, values: Vec<String>, ground: &str, wind: &str, reason: &str) -> StudyRow {
+        StudyRow {
+            key: Self::key_of(&variant.label, ground, wind),
+            variant: variant.label.clone(),
+            values,
+            ground: ground.into(),
+            wind: wind.into(),
+            error: Some(reason.replace(['\n', '\r'], " ")),
+            rms_arcsec: f64::NAN,
+            rms_px: f64::NAN,
+            p_outside_half_px: f64::NAN,
+            ratio_to_base: f64::NAN,
+            vs_base: String::new(),
+            first_mode_hz: f64::NAN,
+            first_mode_zeta: f64::NAN,
+            gust_peak_px: f64::NAN,
+            gust_ringdown_s: f64::NAN,
+            min_static_fos: f64::NAN,
+        }
+    }
+
+    /// True for an error row.
+    pub fn is_error(&self) -> bool {
+        self.error.is_some()
+    }
+
+    /// An outcome by its column name ([`OUTCOMES`] and `rms_arcsec`, `ratio_to_base`).
+    pub fn outcome(&self, name: &str) -> Option<f64> {
+        Some(match name {
+            "rms_arcsec" => self.rms_arcsec,
+            "rms_px" => self.rms_px,
+            "p_outside_half_px" => self.p_outside_half_px,
+            "ratio_to_base" => self.ratio_to_base,
+            "first_mode_hz" => self.first_mode_hz,
+            "first_mode_zeta" => self.first_mode_zeta,
+            "gust_peak_px" => self.gust_peak_px,
+            "gust_ringdown_s" => self.gust_ringdown_s,
+            "min_static_fos" => self.min_static_fos,
+            _ => return None,
+        })
+    }
+
+    /// The CSV fields in [`study_columns`] order (numbers to six significant digits, empty for
+    /// NaN and infinity, as the sweep writes them).
+    pub fn fields(&self) -> Vec<String> {
+        let bad = self.is_error();
+        let mut f = vec![self.key.clone(), self.variant.clone()];
+        f.extend(self.values.iter().cloned());
+        f.extend([self.ground.clone(), self.wind.clone(), if bad { "error" } else { "ok" }.to_string()]);
+        f.extend([self.rms_arcsec, self.rms_px, self.p_outside_half_px, self.ratio_to_base].map(sig6));
+        f.push(self.vs_base.clone());
+        f.extend(
+            [
+                self.first_mode_hz,
+                self.first_mode_zeta,
+                self.gust_peak_px,
+                self.gust_ringdown_s,
+                self.min_static_fos,
+            ]
+            .map(sig6),
+        );
+        f.push(self.error.clone().unwrap_or_default());
+        f
+    }
+
+    /// A row from its CSV fields (`n_vars` variable columns; `line` names it in errors).
+    pub fn from_fields(f: &[&str], n_vars: usize, file: &str, line: usize) -> Result<StudyRow> {
+        let perr =
+            |reason: String| Error::Parse { file: file.into(), location: format!("line {line}"), reason };
+        if f.len() != LEAD_COLUMNS.len() + n_vars + TAIL_COLUMNS.len() {
+            return Err(perr(format!(
+                "expected {} fields, got {}",
+                LEAD_COLUMNS.len() + n_vars + TAIL_COLUMNS.len(),
+                f.len()
+            )));
+        }
+        let t = &f[2 + n_vars..];
+        let num = |s: &str, col: &str| -> Result<f64> {
+            if s.is_empty() {
+                return Ok(f64::NAN);
+            }
+            s.parse::<f64>().map_err(|_| perr(format!("{col} '{s}' is not a number")))
+        };
+        let error = match t[2] {
+            "ok" => None,
+            "error" => Some(t[13].to_string()),
+            s => return Err(perr(format!("status '{s}' is not ok/error"))),
+        };
+        Ok(StudyRow {
+            key: f[0].into(),
+            variant: f[1].into(),
+            values: f[2..2 + n_vars].iter().map(|s| s.to_string()).collect(),
+            ground: t[0].into(),
+            wind: t[1].into(),
+            error,
+            rms_arcsec: num(t[3], "rms_arcsec")?,
+            rms_px: num(t[4], "rms_px")?,
+            p_outside_half_px: num(t[5], "p_outside_half_px")?,
+            ratio_to_base: num(t[6], "ratio_to_base")?,
+            vs_base: t[7].into(),
+            first_mode_hz: num(t[8], "first_mode_hz")?,
+            first_mode_zeta: num(t[9], "first_mode_zeta")?,
+            gust_peak_px: num(t[10], "gust_peak_px")?,
+            gust_ringdown_s: num(t[11], "gust_ringdown_s")?,
+            min_static_fos: num(t[12], "min_static_fos")?,
+        })
+    }
+}
+
+/// A variant's model, built from its edited model file, or why it could not be.
+pub struct BuiltVariant {
+    pub model: std::result::Result<Model, String>,
+    pub first_mode: (f64, f64),
+    pub min_static_fos: f64,
+}
+
+/// Everything the rows of a study are made from, computed once.
+pub struct PreparedStudy<'a> {
+    pub study: &'a Study,
+    pub variants: Vec<Variant>,
+    pub labels: Vec<String>,
+    pub winds: Vec<WindCase>,
+    spectra: Vec<std::result::Result<GroundSpectrum, String>>,
+    /// Per variable, its catalogue at the study's temperature (pads variables only).
+    catalogues: Vec<Option<Catalogue>>,
+    /// The base variant's (rms_px, p_outside, rms_arcsec) per (ground, wind), when it could be
+    /// evaluated.
+    base: BTreeMap<(usize, usize), (f64, f64, f64)>,
+}
+
+impl<'a> PreparedStudy<'a> {
+    /// Check the study, read the grounds and evaluate the base variant.
+    pub fn new(study: &'a Study) -> Result<PreparedStudy<'a>> {
+        study.check()?;
+        let labels = ground_labels(&study.grounds)?;
+        let winds = study.wind_cases();
+        let catalogues = study
+            .variables
+            .iter()
+            .map(|v| match &v.kind {
+                VariableKind::Pads { catalogue } => {
+                    catalogue.at_temperature(study.settings.temperature_c).map(Some)
+                }
+                _ => Ok(None),
+            })
+            .collect::<Result<Vec<_>>>()?;
+        let s = &study.settings;
+        let spectra = study
+            .grounds
+            .par_iter()
+            .zip(labels.par_iter())
+            .map(|(g, l)| {
+                g.load(&s.grid, s.ground_scale, &crate::io::series::SeriesOptions::default())
+                    .map(|mut sp| {
+                        sp.label = l.clone();
+                        sp
+                    })
+                    .map_err(|e| e.to_string())
+            })
+            .collect();
+        let variants = variants(study);
+        let mut p =
+            PreparedStudy { study, variants, labels, winds, spectra, catalogues, base: BTreeMap::new() };
+        if p.winds.iter().any(|w| w.wind.is_some()) {
+            let file = ModelFile::parse(&study.model_text, &study.model_name)?;
+            if file.expanded()?.wind.is_none() {
+                return Err(Error::invalid(
+                    "wind",
+                    format!("the model {} has no [wind] section or derived wind parts", study.model_name),
+                ));
+            }
+        }
+        let bi = p.base_index();
+        let built = p.build(bi);
+        let jobs: Vec<(usize, usize)> =
+            (0..p.labels.len()).flat_map(|g| (0..p.winds.len()).map(move |w| (g, w))).collect();
+        let base: BTreeMap<(usize, usize), (f64, f64, f64)> = jobs
+            .par_iter()
+            .filter_map(|&(g, w)| {
+                let sp = p.spectra[g].as_ref().ok()?;
+                let (a, px, pr) = image_of(&built, sp, &p.winds[w], study).ok()?;
+                Some(((g, w), (px, pr, a)))
+            })
+            .collect();
+        p.base = base;
+        Ok(p)
+    }
+
+    /// Index of the base variant.
+    pub fn base_index(&self) -> usize {
+        self.variants.iter().position(|v| v.label == BASE).unwrap_or(0)
+    }
+
+    /// Number of rows.
+    pub fn len(&self) -> usize {
+        self.variants.len() * self.labels.len() * self.winds.len()
+    }
+
+    /// True when the study has no rows (never: there is always the base and one ground).
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The key of row `i` (variant-major, then ground, then wind).
+    pub fn key(&self, i: usize) -> String {
+        let (nw, ng) = (self.winds.len(), self.labels.len());
+        let (v, g, w) = (i / (nw * ng), (i / nw) % ng, i % nw);
+        StudyRow::key_of(&self.variants[v].label, &self.labels[g], &self.winds[w].label)
+    }
+
+    /// The values of variant `v` as row text.
+    fn values(&self, v: usize) -> Vec<String> {
+        let vars = &self.study.variables;
+        self.variants[v]
+            .levels
+            .iter()
+            .enumerate()
+            .map(|(i, l)| match l {
+                Some(k) => vars[i].label(*k),
+                None => vars[i].base_label(),
+            })
+            .collect()
+    }
+
+    /// The model file of variant `v` (the rig's file with each path set), and the pad to put in.
+    fn variant_file(&self, v: usize) -> Result<(ModelFile, Option<&super::Isolator>)> {
+        let vars = &self.study.variables;
+        let lv = &self.variants[v].levels;
+        let (mut name, mut text) = (self.study.model_name.clone(), self.study.model_text.clone());
+        for (i, var) in vars.iter().enumerate() {
+            if let (VariableKind::Rig { rigs }, Some(k)) = (&var.kind, lv[i])
+                && let Some(r) = rigs.get(k)
+            {
+                (name, text) = (r.1.clone(), r.2.clone());
+            }
+        }
+        for (i, var) in vars.iter().enumerate() {
+            if let (VariableKind::Path { path, values, .. }, Some(k)) = (&var.kind, lv[i]) {
+                let x = values.get(k).copied().unwrap_or(f64::NAN);
+                text = crate::identify::set_parameter(&text, path, x)
+                    .map_err(|e| Error::invalid(format!("{} = {x} in {name}", var.name), e.to_string()))?;
+            }
+        }
+        let file = ModelFile::parse(&text, &name)?;
+        let mut pad = None;
+        for (i, c) in self.catalogues.iter().enumerate() {
+            if let (Some(c), Some(k)) = (c, lv[i]) {
+                pad = c.isolators.get(k);
+            }
+        }
+        Ok((file, pad))
+    }
+
+    /// Build variant `v`: its model from the edited model file, first mode and static checks.
+    pub fn build(&self, v: usize) -> BuiltVariant {
+        let fail = |e: Error| BuiltVariant {
+            model: Err(format!("variant '{}': {e}", self.variants[v].label)),
+            first_mode: (f64::NAN, f64::NAN),
+            min_static_fos: f64::NAN,
+        };
+        let s = &self.study.settings;
+        let (file, pad) = match self.variant_file(v) {
+            Ok(x) => x,
+            Err(e) => return fail(e),
+        };
+        let spec = match pad {
+            Some(iso) => PadMechanism::for_file(&file, &s.pad_prefix).and_then(|m| m.spec_with(iso)),
+            None => file.expanded(),
+        };
+        let model = match spec.and_then(|sp| Model::from_spec(&sp)) {
+            Ok(m) => m,
+            Err(e) => return fail(e),
+        };
+        let modes = match model.modes() {
+            Ok(m) => m,
+            Err(e) => return fail(e),
+        };
+        let first = (
+            modes.frequency_hz.first().copied().unwrap_or(f64::NAN),
+            modes.damping_ratio.first().copied().unwrap_or(f64::NAN),
+        );
+        let wind = crate::checks::StaticWind { speed_m_s: s.design_wind_m_s, ..Default::default() };
+        let fos = crate::checks::rig_checks(&file, &wind, &crate::checks::StaticOptions::default())
+            .map(|r| r.min_margin())
+            .ok()
+            .filter(|m| m.is_finite())
+            .unwrap_or(f64::NAN);
+        BuiltVariant { model: Ok(model), first_mode: first, min_static_fos: fos }
+    }
+}
+
+/// RMS arcsec, RMS px and P(outside ½ px) of a built variant under one disturbance.
+fn image_of(
+    built: &BuiltVariant,
+    ground: &GroundSpectrum,
+    wind: &WindCase,
+    study: &Study,
+) -> std::result::Result<(f64, f64, f64), String> {
+    let model = built.model.as_ref().map_err(Clone::clone)?;
+    let d = Disturbances {
+        ground: ground.axes.clone(),
+        wind: wind.wind.clone(),
+        loads: Vec::new(),
+        ground_waves: None,
+    };
+    let opts = ImageOptions { skip_mode_shares: true, ..ImageOptions::default() };
+    let im = model.image_motion(&study.settings.grid, &d, &opts).map_err(|e| e.to_string())?;
+    Ok((im.rms_arcsec, im.rms_px, im.p_outside))
+}
+
+/// The words of a verdict against the base.
+pub fn verdict_words(v: Verdict) -> &'static str {
+    match v {
+        Verdict::Better => "better",
+        Verdict::NoVisibleDifference => "no visible difference",
+        Verdict::Worse => "worse",
+        Verdict::Mixed => "mixed",
+    }
+}
+
+/// The rows of variant `v` for every disturbance whose key `want` accepts, in row order: the
+/// variant is built once from its edited model file ([`PreparedStudy::build`]), then evaluated
+/// under each ground and wind case; every row of a variant that cannot be built is an error row.
+pub fn evaluate_variant(
+    p: &PreparedStudy<'_>,
+    v: usize,
+    want: &(dyn Fn(&str) -> bool + Sync),
+) -> Vec<StudyRow> {
+    let var = &p.variants[v];
+    let jobs: Vec<(usize, usize)> = (0..p.labels.len())
+        .flat_map(|g| (0..p.winds.len()).map(move |w| (g, w)))
+        .filter(|&(g, w)| want(&StudyRow::key_of(&var.label, &p.labels[g], &p.winds[w].label)))
+        .collect();
+    if jobs.is_empty() {
+        return Vec::new();
+    }
+    let values = p.values(v);
+    let built = p.build(v);
+    let gusts: BTreeMap<usize, (f64, f64)> = (0..p.winds.len())
+        .filter(|w| jobs.iter().any(|j| j.1 == *w))
+        .filter_map(|w| {
+            let m = built.model.as_ref().ok()?;
+            let wind = p.winds[w].wind.as_ref()?;
+            gust_family(m, wind).ok().map(|g| (w, (g.worst_peak_px(), g.worst_ringdown_s())))
+        })
+        .collect();
+    let vis: &Visibility = &p.study.settings.visibility;
+    jobs.iter()
+        .map(|&(g, w)| {
+            let (gl, wl) = (&p.labels[g], &p.winds[w].label);
+            let ground = match &p.spectra[g] {
+                Ok(s) => s,
+                Err(e) => return StudyRow::failed(var, values.clone(), gl, wl, e),
+            };
+            match image_of(&built, ground, &p.winds[w], p.study) {
+                Err(e) => StudyRow::failed(var, values.clone(), gl, wl, &e),
+                Ok((rms_arcsec, rms_px, pr)) => {
+                    let base = p.base.get(&(g, w));
+                    let (ratio, vs) = match base {
+                        _ if var.label == BASE => (1.0, BASE.to_string()),
+                        Some(&(bpx, bp, ba)) => (
+                            if ba > 0.0 { rms_arcsec / ba } else { f64::NAN },
+                            verdict_words(vis.judge((rms_px, pr), (bpx, bp))).to_string(),
+                        ),
+                        None => (f64::NAN, String::new()),
+                    };
+                    let gust = gusts.get(&w);
+                    StudyRow {
+                        key: StudyRow::key_of(&var.label, gl, wl),
+                        variant: var.label.clone(),
+                        values: values.clone(),
+                        ground: gl.clone(),
+                        wind: wl.clone(),
+                        error: None,
+                        rms_arcsec,
+                        rms_px,
+                        p_outside_half_px: pr,
+                        ratio_to_base: ratio,
+                        vs_base: vs,
+                        first_mode_hz: built.first_mode.0,
+                        first_mode_zeta: built.first_mode.1,
+                        gust_peak_px: gust.map_or(f64::NAN, |x| x.0),
+                        gust_ringdown_s: gust.map_or(f64::NAN, |x| x.1),
+                        min_static_fos: built.min_static_fos,
+                    }
+                }
+            }
+        })
+        .collect()
+}
+
+/// The rows of a study in memory at full precision, in row order (the rows [`run_study`]
+/// writes, before rounding). `threads`: a pool of that many threads, or the global pool.
+pub fn study_rows(study: &Study, threads: Option<usize>) -> Result<Vec<StudyRow>> {
+    study_rows_of(study, None, threads)
+}
+
+/// [`study_rows`] for some variants only (indices into [`variants`]; None: all), in row order:
+/// a study split into parts gives the whole's rows (each row depends on its variant and
+/// disturbance and on the base only).
+pub fn study_rows_of(
+    study: &Study,
+    which: Option<&[usize]>,
+    threads: Option<usize>,
+) -> Result<Vec<StudyRow>> {
+    if threads == Some(0) {
+        return Err(Error::invalid("threads", "must be at least 1"));
+    }
+    in_pool(threads, || {
+        let p = PreparedStudy::new(study)?;
+        let all: Vec<usize> = (0..p.variants.len()).collect();
+        let which = which.unwrap_or(&all);
+        if let Some(bad) = which.iter().find(|&&v| v >= p.variants.len()) {
+            return Err(Error::OutOfRange {
+                what: "variant index".into(),
+                value: *bad as f64,
+                min: 0.0,
+                max: p.variants.len().saturating_sub(1) as f64,
+            });
+        }
+        let per: Vec<Vec<StudyRow>> = which.par_iter().map(|&v| evaluate_variant(&p, v, &|_| true)).collect();
+        Ok(per.into_iter().flatten().collect())
+    })
+}
+
+/// A study table as the CSV text [`run_study`] writes (header and rows, `\n` line ends).
+pub fn study_csv_text(study: &Study, rows: &[StudyRow]) -> Result<String> {
+    let what = Path::new("study table");
+    let mut out = encode_row(&study_columns(study), what)?;
+    for r in rows {
+        out.extend(encode_row(&r.fields(), what)?);
+    }
+    String::from_utf8(out).map_err(|e| Error::invalid("study table", e.to_string()))
+}
+
+/// Read the rows of a study CSV written for `study` (header checked).
+pub fn read_study_csv(study: &Study, path: &Path) -> Result<Vec<StudyRow>> {
+    let file = path.display().to_string();
+    let bytes = std::fs::read(path).map_err(|e| Error::Io { path: file.clone(), reason: e.to_string() })?;
+    let mut rdr = csv::ReaderBuilder::new().has_headers(true).from_reader(bytes.as_slice());
+    let header: Vec<String> = rdr
+        .headers()
+        .map_err(|e| Error::Parse { file: file.clone(), location: "line 1".into(), reason: e.to_string() })?
+        .iter()
+        .map(str::to_string)
+        .collect();
+    if header != study_columns(study) {
+        return Err(Error::Parse {
+            file,
+            location: "line 1".into(),
+            reason: format!("not this study's table: header {header:?}"),
+        });
+    }
+    let n = study.variables.len();
+    let mut rows = Vec::new();
+    for (i, rec) in rdr.records().enumerate() {
+        let rec = rec.map_err(|e| Error::Parse {
+            file: file.clone(),
+            location: format!("line {}", i + 2),
+            reason: e.to_string(),
+        })?;
+        let f: Vec<&str> = rec.iter().collect();
+        rows.push(StudyRow::from_fields(&f, n, &file, i + 2)?);
+    }
+    Ok(rows)
+}
+
+/// One variant's standing under one disturbance.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct StudyRankEntry {
+    pub variant: String,
+    pub rms_px: f64,
+    pub p_outside_half_px: f64,
+    pub ratio_to_base: f64,
+    pub vs_base: String,
+    pub first_mode_hz: f64,
+    pub gust_peak_px: f64,
+    pub min_static_fos: f64,
+}
+
+/// The variants ranked under one disturbance (smallest image RMS first).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct StudyRanking {
+    pub ground: String,
+    pub wind: String,
+    pub entries: Vec<StudyRankEntry>,
+}
+
+/// The ranked summary of a study.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct StudySummary {
+    pub visibility: Visibility,
+    pub per_disturbance: Vec<StudyRanking>,
+    /// Error rows (key and message).
+    pub failures: Vec<(String, String)>,
+}
+
+fn unique<'r>(it: impl Iterator<Item = &'r String>) -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for s in it {
+        if !out.contains(s) {
+            out.push(s.clone());
+        }
+    }
+    out
+}
+
+/// Rank the variants per disturbance (ground × wind, in row order).
+pub fn summarize_study(rows: &[StudyRow], vis: &Visibility) -> StudySummary {
+    let good: Vec<&StudyRow> = rows.iter().filter(|r| !r.is_error()).collect();
+    let mut per = Vec::new();
+    for g in unique(rows.iter().map(|r| &r.ground)) {
+        for w in unique(rows.iter().map(|r| &r.wind)) {
+            let mut entries: Vec<StudyRankEntry> = good
+                .iter()
+                .filter(|r| r.ground == g && r.wind == w)
+                .map(|r| StudyRankEntry {
+                    variant: r.variant.clone(),
+                    rms_px: r.rms_px,
+                    p_outside_half_px: r.p_outside_half_px,
+                    ratio_to_base: r.ratio_to_base,
+                    vs_base: r.vs_base.clone(),
+                    first_mode_hz: r.first_mode_hz,
+                    gust_peak_px: r.gust_peak_px,
+                    min_static_fos: r.min_static_fos,
+                })
+                .collect();
+            entries.sort_by(|a, b| a.rms_px.total_cmp(&b.rms_px).then_with(|| a.variant.cmp(&b.variant)));
+            per.push(StudyRanking { ground: g.clone(), wind: w.clone(), entries });
+        }
+    }
+    StudySummary {
+        visibility: *vis,
+        per_disturbance: per,
+        failures: rows.iter().filter_map(|r| r.error.as_ref().map(|e| (r.key.clone(), e.clone()))).collect(),
+    }
+}
+
+/// How much one variable moves one outcome under one disturbance.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Sensitivity {
+    pub variable: String,
+    pub outcome: String,
+    pub ground: String,
+    pub wind: String,
+    /// Per value of the variable (its order): the label and the mean of the outcome over the
+    /// study's variants with that value (NaN when none gave a number).
+    pub levels: Vec<(String, f64)>,
+    /// Largest minus smallest of the finite means (NaN with fewer than two).
+    pub range: f64,
+}
+
+/// The sensitivity of every outcome of [`OUTCOMES`] to every variable, per disturbance: main
+/// effects over the crossed or paired variants (a `base` put first is left out).
+pub fn sensitivity(study: &Study, rows: &[StudyRow]) -> Vec<Sensitivity> {
+    let in_set: HashSet<String> = variants(study).into_iter().filter(|v| v.in_set).map(|v| v.label).collect();
+    let good: Vec<&StudyRow> = rows.iter().filter(|r| !r.is_error() && in_set.contains(&r.variant)).collect();
+    let mut out = Vec::new();
+    for g in unique(rows.iter().map(|r| &r.ground)) {
+        for w in unique(rows.iter().map(|r| &r.wind)) {
+            let here: Vec<&&StudyRow> = good.iter().filter(|r| r.ground == g && r.wind == w).collect();
+            for (vi, var) in study.variables.iter().enumerate() {
+                for (outcome, _) in OUTCOMES {
+                    let levels: Vec<(String, f64)> = (0..var.len())
+                        .map(|k| {
+                            let l = var.label(k);
+                            let xs: Vec<f64> = here
+                                .iter()
+                                .filter(|r| r.values.get(vi) == Some(&l))
+                                .filter_map(|r| r.outcome(outcome))
+                                .filter(|x| x.is_finite())
+                                .collect();
+                            let m = if xs.is_empty() {
+                                f64::NAN
+                            } else {
+                                xs.iter().sum::<f64>() / xs.len() as f64
+                            };
+                            (l, m)
+                        })
+                        .collect();
+                    let fin: Vec<f64> = levels.iter().map(|l| l.1).filter(|x| x.is_finite()).collect();
+                    let range = if fin.len() < 2 {
+                        f64::NAN
+                    } else {
+                        fin.iter().copied().fold(f64::NEG_INFINITY, f64::max)
+                            - fin.iter().copied().fold(f64::INFINITY, f64::min)
+                    };
+                    out.push(Sensitivity {
+                        variable: var.name.clone(),
+                        outcome: outcome.into(),
+                        ground: g.clone(),
+                        wind: w.clone(),
+                        levels,
+                        range,
+                    });
+                }
+            }
+        }
+    }
+    out
+}
+
+/// What a study run did.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StudyOutcome {
+    pub path: PathBuf,
+    /// All rows of the finished file (as written: six significant digits).
+    pub rows: Vec<StudyRow>,
+    pub computed: usize,
+    pub kept: usize,
+    pub summary: StudySummary,
+    pub sensitivity: Vec<Sensitivity>,
+}
+
+impl StudyOutcome {
+    /// Error rows.
+    pub fn failures(&self) -> Vec<&StudyRow> {
+        self.rows.iter().filter(|r| r.is_error()).collect()
+    }
+}
+
+/// Run a study, writing `out` (module docs); with `resume`, continue an interrupted output.
+/// `progress` is called after every finished variant.
+pub fn run_study(
+    study: &Study,
+    out: &Path,
+    resume: bool,
+    threads: Option<usize>,
+    progress: &(dyn Fn(SweepProgress) + Sync),
+) -> Result<StudyOutcome> {
+    if threads == Some(0) {
+        return Err(Error::invalid("threads", "must be at least 1"));
+    }
+    study.check()?;
+    let done_keys = if resume { completed_keys(out, "key")? } else { HashSet::new() };
+    in_pool(threads, || {
+        let p = PreparedStudy::new(study)?;
+        let total = p.len();
+        let header = study_columns(study);
+        let mut writer = if resume {
+            AtomicCsvWriter::resume(out, &header)?
+        } else {
+            AtomicCsvWriter::create(out, &header)?
+        };
+        let kept = writer.rows();
+        let per_variant = p.labels.len() * p.winds.len();
+        let todo: Vec<usize> = (0..p.variants.len())
+            .filter(|&v| (0..per_variant).any(|j| !done_keys.contains(&p.key(v * per_variant + j))))
+            .collect();
+        let mut done = (0..total).filter(|&i| done_keys.contains(&p.key(i))).count();
+        progress(SweepProgress { done, total });
+        let (tx, rx) = std::sync::mpsc::channel::<(usize, Vec<StudyRow>)>();
+        let mut write_err: Option<Error> = None;
+        let mut computed = 0usize;
+        let want = |k: &str| !done_keys.contains(k);
+        std::thread::scope(|scope| {
+            let (todo, p, want) = (&todo, &p, &want);
+            scope.spawn(move || {
+                todo.par_iter().for_each_with(tx, |tx, &v| {
+                    let _ = tx.send((v, evaluate_variant(p, v, want)));
+                });
+            });
+            let mut pending: BTreeMap<usize, Vec<StudyRow>> = BTreeMap::new();
+            let mut next = 0usize;
+            for (v, rows) in rx {
+                pending.insert(v, rows);
+                while next < todo.len() {
+                    let Some(rows) = pending.remove(&todo[next]) else { break };
+                    for row in rows {
+                        if write_err.is_none()
+                            && let Err(e) = writer.write_row(&row.fields())
+                        {
+                            write_err = Some(e);
+                        }
+                        computed += 1;
+                        done += 1;
+                    }
+                    next += 1;
+                    progress(SweepProgress { done, total });
+                }
+            }
+        });
+        if let Some(e) = write_err {
+            return Err(e);
+        }
+        let path = writer.finish()?;
+        let mut rows = read_study_csv(study, &path)?;
+        // Resumed files hold the kept rows first: put every row in study order.
+        let order: BTreeMap<String, usize> = (0..total).map(|i| (p.key(i), i)).collect();
+        rows.sort_by_key(|r| order.get(&r.key).copied().unwrap_or(usize::MAX));
+        let summary = summarize_study(&rows, &study.settings.visibility);
+        let sens = sensitivity(study, &rows);
+        Ok(StudyOutcome { path, rows, computed, kept, summary, sensitivity: sens })
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::batch::{Catalogue, GroundSource, ReportOptions, SweepConfig, SweepInputs, build_file_report};
+    use crate::grid::FreqGrid;
+    use crate::spectrum::ReferenceGround;
+
+    fn examples() -> PathBuf {
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("..").join("docs").join("examples")
+    }
+
+    fn tmpdir(tag: &str) -> PathBuf {
+        let d = std::env::temp_dir().join(format!("stillsky-study-{tag}-{}", std::process::id()));
+        std::fs::create_dir_all(&d).unwrap();
+        d
+    }
+
+    /// A study of the demo rig on NHNM (calm unless `winds` say otherwise) on a small grid.
+    fn study(vary: &str, extra: &str) -> Study {
+        let ex = examples();
+        let text = format!(
+            "model = \"tripod-paver.toml\"\n{extra}\n{vary}\n[disturbances]\ngrounds = [\"nhnm\"]\n\
+             [settings]\nf_min_hz = 0.5\nf_max_hz = 60\nn_freq = 160\n"
+        );
+        Study::load(&text, "test-study.toml", &ex).unwrap()
+    }
+
+    fn report_rms(model_text: &str, grid: &FreqGrid) -> (f64, f64) {
+        let file = ModelFile::parse(model_text, "hand-edited.toml").unwrap();
+        let mut o = ReportOptions::new().unwrap();
+        o.grid = grid.clone();
+        o.ground = Some(GroundSource::Reference(ReferenceGround::Nhnm));
+        let r = build_file_report(&file, &o).unwrap();
+        (r.image.rms_arcsec, r.modes[0].frequency_hz)
+    }
+
+    fn row<'r>(rows: &'r [StudyRow], variant: &str) -> &'r StudyRow {
+        rows.iter().find(|r| r.variant == variant).unwrap_or_else(|| panic!("no row {variant}"))
+    }
+
+    fn close(a: f64, b: f64, tol: f64) -> bool {
+        (a - b).abs() <= tol * b.abs().max(1e-300)
+    }
+
+    #[test]
+    fn a_path_list_row_is_the_report_of_the_hand_edited_file() {
+        let s = study("[[vary]]\npath = \"tripod.joint_stiffness_n_per_m\"\nvalues = [1.5e7, 3.0e7]\n", "");
+        let rows = study_rows(&s, None).unwrap();
+        // 1.5e7 is the file's own value: that variant is the base (no extra row).
+        assert_eq!(rows.len(), 2);
+        assert_eq!(rows[0].variant, BASE);
+        assert_eq!(rows[0].values, ["15000000"]);
+        let r = row(&rows, "tripod.joint_stiffness_n_per_m=30000000");
+        let text = std::fs::read_to_string(examples().join("tripod-paver.toml")).unwrap();
+        let edited = text.replace("joint_stiffness_n_per_m = 1.5e7", "joint_stiffness_n_per_m = 3.0e7");
+        assert_ne!(edited, text);
+        let (rms, f1) = report_rms(&edited, &s.settings.grid);
+        assert!(close(r.rms_arcsec, rms, 1e-12), "{} vs {rms}", r.rms_arcsec);
+        assert!(close(r.first_mode_hz, f1, 1e-12), "{} vs {f1}", r.first_mode_hz);
+        let (rms0, _) = report_rms(&text, &s.settings.grid);
+        assert!(close(rows[0].rms_arcsec, rms0, 1e-12));
+        assert!(close(r.ratio_to_base, r.rms_arcsec / rows[0].rms_arcsec, 1e-15));
+        // Stiffer joints raise the first mode (k up, same mass: f ∝ √k, elementary mechanics).
+        assert!(r.first_mode_hz > rows[0].first_mode_hz);
+        assert_eq!(rows[0].vs_base, BASE);
+        // The static checks ran on the rig layer (a finite factor of safety).
+        assert!(rows[0].min_static_fos.is_finite() && rows[0].min_static_fos > 0.0);
+    }
+
+    #[test]
+    fn a_range_gives_evenly_spaced_values_and_the_same_rows_as_a_list() {
+        let s = study(
+            "[[vary]]\npath = \"tripod.joint_stiffness_n_per_m\"\nrange = { start = 1.0e7, stop = 3.0e7, count = 3 }\n",
+            "",
+        );
+        let VariableKind::Path { values, base, .. } = &s.variables[0].kind else { panic!() };
+        assert_eq!(values, &[1.0e7, 2.0e7, 3.0e7]);
+        assert_eq!(*base, 1.5e7);
+        let rows = study_rows(&s, None).unwrap();
+        // The base (1.5e7) is not among the values: it goes first.
+        assert_eq!(rows.iter().map(|r| r.variant.as_str()).collect::<Vec<_>>()[0], BASE);
+        assert_eq!(rows.len(), 4);
+        let list = study("[[vary]]\npath = \"tripod.joint_stiffness_n_per_m\"\nvalues = [2.0e7]\n", "");
+        let l = study_rows(&list, None).unwrap();
+        let key = "tripod.joint_stiffness_n_per_m=20000000";
+        assert_eq!(row(&rows, key).rms_arcsec.to_bits(), row(&l, key).rms_arcsec.to_bits());
+        let log = study(
+            "[[vary]]\npath = \"tripod.joint_stiffness_n_per_m\"\nrange = { start = 1.0e6, stop = 1.0e8, count = 3, spacing = \"log\" }\n",
+            "",
+        );
+        let VariableKind::Path { values, .. } = &log.variables[0].kind else { panic!() };
+        assert_eq!(values, &[1.0e6, 1.0e7, 1.0e8]);
+        // The main effect of the joints on the first mode is the range over the three values.
+        let sens = sensitivity(&s, &rows);
+        let f = sens.iter().find(|x| x.outcome == "first_mode_hz").unwrap();
+        let fs: Vec<f64> = ["10000000", "20000000", "30000000"]
+            .iter()
+            .map(|v| row(&rows, &format!("tripod.joint_stiffness_n_per_m={v}")).first_mode_hz)
+            .collect();
+        assert!(fs[0] < fs[1] && fs[1] < fs[2], "{fs:?}");
+        assert!(close(f.range, fs[2] - fs[0], 1e-12));
+    }
+
+    #[test]
+    fn a_grid_steps_from_start_to_stop_and_longer_legs_lower_the_first_mode() {
+        let s = study(
+            "[[vary]]\npath = \"tripod.leg_length_m\"\ngrid = { start = 1.0, stop = 1.4, step = 0.1 }\n",
+            "",
+        );
+        let VariableKind::Path { values, .. } = &s.variables[0].kind else { panic!() };
+        assert_eq!(values, &[1.0, 1.1, 1.2, 1.3, 1.4]);
+        let rows = study_rows(&s, None).unwrap();
+        assert_eq!(rows.len(), 6);
+        assert_eq!(row(&rows, "tripod.leg_length_m=1.3").values, ["1.3"]);
+        // Longer legs: softer in bending and axially (k ∝ 1/L, elementary mechanics), so the
+        // first mode falls along the grid.
+        let f: Vec<f64> =
+            values.iter().map(|v| row(&rows, &format!("tripod.leg_length_m={v}")).first_mode_hz).collect();
+        assert!(f.windows(2).all(|w| w[1] < w[0]), "{f:?}");
+    }
+
+    #[test]
+    fn an_alternative_file_row_is_the_report_of_that_file() {
+        let s = study(
+            "[[vary]]\nrigs = [{ label = \"heavier tripod\", file = \"tripod-paver-heavy.toml\" }]\n",
+            "",
+        );
+        let rows = study_rows(&s, None).unwrap();
+        assert_eq!(rows.iter().map(|r| r.variant.as_str()).collect::<Vec<_>>(), [BASE, "rig=heavier tripod"]);
+        let heavy = std::fs::read_to_string(examples().join("tripod-paver-heavy.toml")).unwrap();
+        let (rms, f1) = report_rms(&heavy, &s.settings.grid);
+        let r = &rows[1];
+        assert!(close(r.rms_arcsec, rms, 1e-12), "{} vs {rms}", r.rms_arcsec);
+        assert!(close(r.first_mode_hz, f1, 1e-12));
+        assert_eq!(r.values, ["heavier tripod"]);
+    }
+
+    #[test]
+    fn the_catalogue_variable_gives_the_sweep_rows() {
+        let s = study("[[vary]]\npads = \"isolators.toml\"\n", "");
+        let rows = study_rows(&s, None).unwrap();
+        let cat = Catalogue::read(&examples().join("isolators.toml")).unwrap();
+        assert_eq!(rows.len(), cat.isolators.len());
+        assert_eq!(rows[0].variant, BASE);
+        assert_eq!(rows[0].values, ["none"]);
+        let file = ModelFile::read(&examples().join("tripod-paver.toml")).unwrap();
+        let grounds = [GroundSource::Reference(ReferenceGround::Nhnm)];
+        let inputs = SweepInputs { model: &file, catalogue: &cat, grounds: &grounds, winds: &[] };
+        let sw = crate::batch::sweep_rows(
+            &inputs,
+            &SweepConfig::new().unwrap().with_grid(s.settings.grid.clone()),
+        )
+        .unwrap();
+        for iso in cat.isolators.iter().filter(|i| !i.is_none()) {
+            let a = row(&rows, &format!("pads={}", iso.name));
+            let b = sw.iter().find(|r| r.spec == iso.name).unwrap();
+            assert!(
+                close(a.rms_arcsec, b.rms_arcsec, 1e-12),
+                "{}: {} vs {}",
+                iso.name,
+                a.rms_arcsec,
+                b.rms_arcsec
+            );
+            assert!(close(a.first_mode_hz, b.first_mode_hz, 1e-12));
+            assert!(close(a.ratio_to_base, b.ratio_to_none, 1e-12));
+        }
+    }
+
+    #[test]
+    fn crossed_is_the_product_paired_the_zip_and_unequal_pairs_are_refused() {
+        let vary = "[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.1, 1.4]\n\
+                    [[vary]]\npath = \"mount.tilt_stiffness_nm_per_rad\"\nvalues = [1.5e4, 3.0e4]\n";
+        let crossed = study(vary, "combine = \"crossed\"");
+        let v = variants(&crossed);
+        assert_eq!(v.len(), 5); // base first (neither value is the file's) and 2 × 2
+        assert_eq!(v[0].label, BASE);
+        assert_eq!(v[2].label, "tripod.leg_length_m=1.1, mount.tilt_stiffness_nm_per_rad=30000");
+        let paired = study(vary, "combine = \"paired\"");
+        let vp = variants(&paired);
+        assert_eq!(
+            vp.iter().map(|x| x.label.as_str()).collect::<Vec<_>>(),
+            [
+                BASE,
+                "tripod.leg_length_m=1.1, mount.tilt_stiffness_nm_per_rad=15000",
+                "tripod.leg_length_m=1.4, mount.tilt_stiffness_nm_per_rad=30000",
+            ]
+        );
+        let rc = study_rows(&crossed, None).unwrap();
+        let rp = study_rows(&paired, None).unwrap();
+        for r in &rp {
+            let c = row(&rc, &r.variant);
+            assert_eq!(format!("{c:?}"), format!("{r:?}"));
+        }
+        // Both variables move the image: the mount's tilt spring and the legs.
+        let sens = sensitivity(&crossed, &rc);
+        assert!(sens.iter().filter(|x| x.outcome == "rms_px").all(|x| x.range > 0.0));
+        let ex = examples();
+        let text = "model = \"tripod-paver.toml\"\ncombine = \"paired\"\n[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.1, 1.4]\n\
+             [[vary]]\npads = \"isolators.toml\"\n[disturbances]\ngrounds = [\"nhnm\"]\n";
+        let e = Study::load(text, "s.toml", &ex).unwrap_err();
+        assert!(matches!(e, Error::ShapeMismatch { .. }), "{e}");
+        assert!(e.to_string().contains("paired") && e.to_string().contains("pads"), "{e}");
+    }
+
+    #[test]
+    fn a_bad_variant_is_an_error_row_and_the_rest_finish() {
+        let s = study(
+            "[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.1, -1.0]\n\
+             [[vary]]\nrigs = [{ label = \"generic\", file = \"tripod-paver-generic.toml\" }]\n",
+            "",
+        );
+        let rows = study_rows(&s, None).unwrap();
+        assert_eq!(rows.len(), 5);
+        let bad = row(&rows, "tripod.leg_length_m=-1, rig=base");
+        let msg = bad.error.as_deref().unwrap();
+        assert!(msg.contains("leg_length"), "{msg}");
+        assert!(bad.rms_arcsec.is_nan() && bad.fields()[4 + 2] == "error");
+        // The generic-layer file has no tripod.leg_length_m: its variants fail naming the path.
+        let missing = row(&rows, "tripod.leg_length_m=1.1, rig=generic");
+        assert!(missing.error.as_deref().unwrap().contains("tripod.leg_length_m"), "{:?}", missing.error);
+        let good = row(&rows, "tripod.leg_length_m=1.1, rig=base");
+        assert!(good.error.is_none() && good.rms_arcsec > 0.0);
+        assert_eq!(rows.iter().filter(|r| r.is_error()).count(), 3);
+    }
+
+    #[test]
+    fn resume_after_a_torn_tail_equals_the_uninterrupted_file() {
+        let dir = tmpdir("resume");
+        let ex = examples();
+        let text = format!(
+            "model = \"{m}\"\n[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.1, 1.4]\n\
+             [[vary]]\npads = \"{c}\"\n[disturbances]\ngrounds = [\"nhnm\", \"nlnm\"]\nwinds = [\"calm\", \"4\"]\n\
+             [settings]\nf_min_hz = 0.5\nf_max_hz = 60\nn_freq = 120\n",
+            m = ex.join("tripod-paver.toml").display(),
+            c = ex.join("isolators.toml").display()
+        );
+        let s = Study::load(&text, "resume.toml", &dir).unwrap();
+        let full = dir.join("full.csv");
+        let a = run_study(&s, &full, false, None, &|_| {}).unwrap();
+        let n_iso = Catalogue::read(&ex.join("isolators.toml")).unwrap().isolators.len();
+        assert_eq!(a.rows.len(), (1 + 2 * n_iso) * 4);
+        assert_eq!(a.computed, a.rows.len());
+        let bytes = std::fs::read_to_string(&full).unwrap();
+        // The file is the in-memory rows, rounded.
+        assert_eq!(study_csv_text(&s, &study_rows(&s, Some(1)).unwrap()).unwrap(), bytes);
+        // Windy rows carry the gust family, calm rows none.
+        let windy = a.rows.iter().find(|r| r.wind != "calm" && !r.is_error()).unwrap();
+        assert!(windy.gust_peak_px > 0.0);
+        assert!(a.rows.iter().filter(|r| r.wind == "calm").all(|r| r.gust_peak_px.is_nan()));
+        let lines: Vec<&str> = bytes.lines().collect();
+        let part = dir.join("part.csv");
+        let torn = format!("{}\n{}", lines[..10].join("\n"), &lines[10][..lines[10].len() / 2]);
+        std::fs::write(crate::io::atomic::partial_path(&part), torn).unwrap();
+        let b = run_study(&s, &part, true, None, &|_| {}).unwrap();
+        assert_eq!(b.kept, 9);
+        assert_eq!(b.computed, a.rows.len() - 9);
+        assert_eq!(std::fs::read_to_string(&part).unwrap(), bytes);
+        // (Debug text: NaN fields compare equal as text.)
+        assert_eq!(format!("{:?}", b.rows), format!("{:?}", a.rows));
+        // The summary ranks every disturbance; the base reads "base".
+        assert_eq!(a.summary.per_disturbance.len(), 4);
+        let calm = &a.summary.per_disturbance[0];
+        assert!(calm.entries.windows(2).all(|w| w[0].rms_px <= w[1].rms_px));
+        assert!(calm.entries.iter().any(|e| e.vs_base == BASE));
+    }
+
+    #[test]
+    fn study_files_are_checked() {
+        let ex = examples();
+        let load = |t: &str| Study::load(t, "bad.toml", &ex).unwrap_err();
+        let g = "[disturbances]\ngrounds = [\"nhnm\"]\n";
+        let e = load(&format!("model = \"tripod-paver.toml\"\nvariable = 3\n{g}"));
+        assert!(matches!(e, Error::Parse { .. }) && e.to_string().contains("line 2"), "{e}");
+        let e = load(&format!(
+            "model = \"tripod-paver.toml\"\n[[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.0]\ngrid = {{ start = 1, stop = 2, step = 1 }}\n{g}"
+        ));
+        assert!(e.to_string().contains("exactly one of values, range or grid"), "{e}");
+        let e = load(&format!(
+            "model = \"tripod-paver.toml\"\n[[vary]]\npath = \"tripod.no_such\"\nvalues = [1.0]\n{g}"
+        ));
+        assert!(matches!(e, Error::UnknownName { .. }) && e.to_string().contains("tripod.no_such"), "{e}");
+        let e = load(&format!("model = \"missing.toml\"\n{g}"));
+        assert!(matches!(e, Error::Io { .. }) && e.to_string().contains("missing.toml"), "{e}");
+        let e = load(&format!("model = \"tripod-paver.toml\"\ncombine = \"zipped\"\n{g}"));
+        assert!(e.to_string().contains("crossed or paired"), "{e}");
+        let e = load("model = \"tripod-paver.toml\"\n[disturbances]\ngrounds = []\n");
+        assert!(e.to_string().contains("at least one ground"), "{e}");
+    }
+}

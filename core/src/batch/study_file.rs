@@ -1,0 +1,577 @@
+//! The study file: a base model, the variables to change, the disturbances and the settings of a
+//! design study ([`super::study`] runs it). Key names and examples: `docs/study-file.md`.
+//!
+//! ```toml
+//! title = "upgrade the tripod, add pads, or both?"
+//! model = "tripod-paver.toml"        # relative to the study file
+//! combine = "crossed"                # or "paired" (equal lengths)
+//!
+//! [[vary]]
+//! path = "tripod.leg_length_m"       # a dotted number of the model file (as `calibrate` uses)
+//! values = [1.0, 1.25]               # or range = { start, stop, count[, spacing = "log"] }
+//!                                    # or grid = { start, stop, step }
+//! [[vary]]
+//! name = "rig"
+//! rigs = [{ label = "heavier tripod", file = "tripod-heavy.toml" }]   # the base model is "base"
+//!
+//! [[vary]]
+//! pads = "isolators.toml"            # the catalogue; "none" (no pads) first
+//!
+//! [disturbances]
+//! grounds = ["recordings/quiet-night.csv", "nhnm"]
+//! winds = ["calm", "4"]
+//! ```
+//!
+//! Every file a study names is read once, when the study is loaded ([`Study::load`]); the
+//! loaded [`Study`] carries model texts, the catalogue and the ground sources (paths made
+//! absolute against the study file's folder), so it can be evaluated anywhere that can read the
+//! grounds.
+
+use super::catalogue::{Catalogue, DEFAULT_PAD_PREFIX, Isolator, NOMINAL_TEMPERATURE_C};
+use super::ground::GroundSource;
+use super::ranking::Visibility;
+use super::sweep::WindCase;
+use crate::error::{Error, Result};
+use crate::grid::FreqGrid;
+use crate::identify::get_parameter;
+use crate::schema::ModelFile;
+use serde::Deserialize;
+use std::path::{Path, PathBuf};
+
+/// Largest study file, model file or catalogue read (bytes).
+const MAX_STUDY_BYTES: usize = 4 << 20;
+/// Most variants a study may hold (refused up front: each builds and solves a model).
+pub const MAX_VARIANTS: usize = 100_000;
+/// Most values one variable may take.
+pub const MAX_VALUES: usize = 10_000;
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct StudyDoc {
+    #[serde(default)]
+    title: Option<String>,
+    model: String,
+    #[serde(default)]
+    combine: Option<String>,
+    #[serde(default)]
+    vary: Vec<VaryDoc>,
+    disturbances: DisturbanceDoc,
+    #[serde(default)]
+    settings: SettingsDoc,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct VaryDoc {
+    #[serde(default)]
+    name: Option<String>,
+    #[serde(default)]
+    path: Option<String>,
+    #[serde(default)]
+    values: Option<Vec<f64>>,
+    #[serde(default)]
+    range: Option<RangeDoc>,
+    #[serde(default)]
+    grid: Option<GridDoc>,
+    #[serde(default)]
+    rigs: Option<Vec<RigDoc>>,
+    #[serde(default)]
+    pads: Option<String>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RangeDoc {
+    start: f64,
+    stop: f64,
+    count: usize,
+    #[serde(default)]
+    spacing: Option<String>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct GridDoc {
+    start: f64,
+    stop: f64,
+    step: f64,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RigDoc {
+    label: String,
+    file: String,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct DisturbanceDoc {
+    grounds: Vec<String>,
+    #[serde(default)]
+    winds: Vec<String>,
+}
+
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct SettingsDoc {
+    f_min_hz: Option<f64>,
+    f_max_hz: Option<f64>,
+    n_freq: Option<usize>,
+    visibility_px: Option<f64>,
+    visibility_p: Option<f64>,
+    temperature_c: Option<f64>,
+    pad_prefix: Option<String>,
+    design_wind_m_s: Option<f64>,
+    ground_scale: Option<[f64; 3]>,
+}
+
+/// How the variables' values are combined into variants.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Combine {
+    /// Every combination (the full product).
+    Crossed,
+    /// The k-th value of every variable together (all variables need as many values).
+    Paired,
+}
+
+/// What a variable changes.
+#[derive(Debug, Clone, PartialEq)]
+pub enum VariableKind {
+    /// A number of the model file at a dotted path ([`crate::identify::set_parameter`]);
+    /// `base` is its value in the base model file.
+    Path { path: String, values: Vec<f64>, base: f64 },
+    /// Whole model files: the base model (label "base") first, then each alternative (label, file
+    /// name, text).
+    Rig { rigs: Vec<(String, String, String)> },
+    /// The isolator catalogue ("none" first).
+    Pads { catalogue: Catalogue },
+}
+
+/// One variable of a study: its column name and what it changes.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Variable {
+    pub name: String,
+    pub kind: VariableKind,
+}
+
+impl Variable {
+    /// Number of values.
+    pub fn len(&self) -> usize {
+        match &self.kind {
+            VariableKind::Path { values, .. } => values.len(),
+            VariableKind::Rig { rigs } => rigs.len(),
+            VariableKind::Pads { catalogue } => catalogue.isolators.len(),
+        }
+    }
+
+    /// True when the variable has no values (never, once loaded).
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The text of value `i` in rows (numbers in shortest round-trip form).
+    pub fn label(&self, i: usize) -> String {
+        match &self.kind {
+            VariableKind::Path { values, .. } => values.get(i).map(|v| format!("{v}")).unwrap_or_default(),
+            VariableKind::Rig { rigs } => rigs.get(i).map(|r| r.0.clone()).unwrap_or_default(),
+            VariableKind::Pads { catalogue } => {
+                catalogue.isolators.get(i).map(|p| p.name.clone()).unwrap_or_default()
+            }
+        }
+    }
+
+    /// The text of the base model's value.
+    pub fn base_label(&self) -> String {
+        match &self.kind {
+            VariableKind::Path { base, .. } => format!("{base}"),
+            VariableKind::Rig { rigs } => rigs.first().map(|r| r.0.clone()).unwrap_or_default(),
+            VariableKind::Pads { .. } => super::NO_PAD.to_string(),
+        }
+    }
+
+    /// Whether value `i` is the base model's value.
+    pub fn is_base(&self, i: usize) -> bool {
+        match &self.kind {
+            VariableKind::Path { values, base, .. } => values.get(i) == Some(base),
+            VariableKind::Rig { .. } => i == 0,
+            VariableKind::Pads { catalogue } => catalogue.isolators.get(i).is_some_and(Isolator::is_none),
+        }
+    }
+
+    /// Numeric values (path variables), for plots against the value.
+    pub fn numbers(&self) -> Option<&[f64]> {
+        match &self.kind {
+            VariableKind::Path { values, .. } => Some(values),
+            _ => None,
+        }
+    }
+}
+
+/// The settings of a study.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StudySettings {
+    pub grid: FreqGrid,
+    /// When a change from the base counts as visible (the sweep's levels by default).
+    pub visibility: Visibility,
+    /// The night's temperature (°C) for pads with a temperature table.
+    pub temperature_c: f64,
+    /// Prefix of pad springs in a generic-layer model.
+    pub pad_prefix: String,
+    /// Design wind (m/s) of the static checks (gust factor 2, ISA sea-level air).
+    pub design_wind_m_s: f64,
+    /// Per-axis factor on PSD files and reference spectra.
+    pub ground_scale: [f64; 3],
+}
+
+impl StudySettings {
+    /// The sweep's defaults: 0.2–100 Hz on 600 log-spaced points, 0.1 px and 1 %, 20 °C,
+    /// prefix `pad`, design wind 10 m/s, ground scale 1.
+    pub fn new() -> Result<StudySettings> {
+        Ok(StudySettings {
+            grid: FreqGrid::log(0.2, 100.0, 600)?,
+            visibility: Visibility::default(),
+            temperature_c: NOMINAL_TEMPERATURE_C,
+            pad_prefix: DEFAULT_PAD_PREFIX.into(),
+            design_wind_m_s: 10.0,
+            ground_scale: [1.0; 3],
+        })
+    }
+}
+
+/// A loaded study: everything it names, read.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Study {
+    pub title: Option<String>,
+    /// Where the study came from (for messages).
+    pub source: String,
+    /// The base model file's name (for messages) and text.
+    pub model_name: String,
+    pub model_text: String,
+    pub combine: Combine,
+    pub variables: Vec<Variable>,
+    pub grounds: Vec<GroundSource>,
+    pub winds: Vec<WindCase>,
+    pub settings: StudySettings,
+}
+
+fn parse_err(text: &str, file: &str, e: &toml::de::Error) -> Error {
+    let location = e
+        .span()
+        .map(|s| format!("line {}", text[..s.start.min(text.len())].matches('\n').count() + 1))
+        .unwrap_or_else(|| "unknown line".into());
+    Error::Parse { file: file.into(), location, reason: e.message().trim().to_string() }
+}
+
+/// Reads the files a study names; tests and bindings may supply their own.
+fn read_file(dir: &Path, name: &str) -> Result<(String, String)> {
+    let p = dir.join(name);
+    let text = crate::io::read_text_capped(&p, MAX_STUDY_BYTES)?;
+    Ok((p.display().to_string(), text))
+}
+
+/// A computed value rounded to 12 significant digits, so `1.1 + 0.1` is the 1.2 a user means
+/// (and reads in the rows) rather than 1.2000000000000002.
+fn tidy(x: f64) -> f64 {
+    format!("{x:.11e}").parse().unwrap_or(x)
+}
+
+fn path_values(who: &str, v: &VaryDoc) -> Result<Vec<f64>> {
+    let given = [v.values.is_some(), v.range.is_some(), v.grid.is_some()].iter().filter(|x| **x).count();
+    if given != 1 {
+        return Err(Error::invalid(who, "give exactly one of values, range or grid"));
+    }
+    let out = if let Some(vals) = &v.values {
+        vals.clone()
+    } else if let Some(r) = &v.range {
+        if r.count < 2 {
+            return Err(Error::invalid(
+                format!("{who}.range.count"),
+                format!("must be at least 2, got {}", r.count),
+            ));
+        }
+        if r.count > MAX_VALUES {
+            return Err(Error::TooLarge {
+                what: format!("{who}.range.count"),
+                value: r.count,
+                limit: MAX_VALUES,
+            });
+        }
+        crate::error::require_finite(|| format!("{who}.range.start"), r.start)?;
+        crate::error::require_finite(|| format!("{who}.range.stop"), r.stop)?;
+        let n = r.count - 1;
+        match r.spacing.as_deref().unwrap_or("linear") {
+            "linear" => (0..=n).map(|k| tidy(r.start + (r.stop - r.start) * k as f64 / n as f64)).collect(),
+            "log" => {
+                if !(r.start > 0.0 && r.stop > 0.0) {
+                    return Err(Error::invalid(
+                        format!("{who}.range"),
+                        "log spacing needs start and stop > 0",
+                    ));
+                }
+                let (a, b) = (r.start.ln(), r.stop.ln());
+                (0..=n).map(|k| tidy((a + (b - a) * k as f64 / n as f64).exp())).collect()
+            }
+            s => {
+                return Err(Error::invalid(
+                    format!("{who}.range.spacing"),
+                    format!("'{s}' is not linear or log"),
+                ));
+            }
+        }
+    } else if let Some(g) = &v.grid {
+        crate::error::require_finite(|| format!("{who}.grid.start"), g.start)?;
+        crate::error::require_finite(|| format!("{who}.grid.stop"), g.stop)?;
+        crate::error::require_positive(|| format!("{who}.grid.step"), g.step)?;
+        if g.stop < g.start {
+            return Err(Error::invalid(format!("{who}.grid"), "stop must not be below start"));
+        }
+        let n = ((g.stop - g.start) / g.step + 1e-9).floor();
+        if n + 1.0 > MAX_VALUES as f64 {
+            return Err(Error::TooLarge {
+                what: format!("{who}.grid values"),
+                value: usize::MAX,
+                limit: MAX_VALUES,
+            });
+        }
+        (0..=n as usize).map(|k| tidy(g.start + g.step * k as f64)).collect()
+    } else {
+        Vec::new()
+    };
+    if out.is_empty() {
+        return Err(Error::invalid(who, "has no values"));
+    }
+    if out.len() > MAX_VALUES {
+        return Err(Error::TooLarge { what: format!("{who} values"), value: out.len(), limit: MAX_VALUES });
+    }
+    crate::error::require_all_finite(who, &out)?;
+    Ok(out)
+}
+
+impl Study {
+    /// Read a study file; the files it names are read relative to its folder.
+    pub fn read(path: &Path) -> Result<Study> {
+        let name = path.display().to_string();
+        let text = crate::io::read_text_capped(path, MAX_STUDY_BYTES)?;
+        let dir = match path.parent() {
+            Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+            _ => PathBuf::from("."),
+        };
+        Self::load(&text, &name, &dir)
+    }
+
+    /// Parse study text (`file` names it in errors) and read what it names relative to `dir`.
+    pub fn load(text: &str, file: &str, dir: &Path) -> Result<Study> {
+        let doc: StudyDoc = toml::from_str(text).map_err(|e| parse_err(text, file, &e))?;
+        let (model_name, model_text) = read_file(dir, &doc.model)?;
+        ModelFile::parse(&model_text, &model_name)?;
+        let combine = match doc.combine.as_deref().unwrap_or("crossed") {
+            "crossed" => Combine::Crossed,
+            "paired" => Combine::Paired,
+            c => {
+                return Err(Error::invalid(
+                    format!("{file}: combine"),
+                    format!("'{c}' is not crossed or paired"),
+                ));
+            }
+        };
+        let mut variables = Vec::new();
+        for (i, v) in doc.vary.iter().enumerate() {
+            let who = format!("{file}: vary[{i}]");
+            let kinds = [v.path.is_some(), v.rigs.is_some(), v.pads.is_some()].iter().filter(|x| **x).count();
+            if kinds != 1 {
+                return Err(Error::invalid(who, "give exactly one of path, rigs or pads"));
+            }
+            let var = if let Some(path) = &v.path {
+                let values = path_values(&who, v)?;
+                let base = get_parameter(&model_text, path)?;
+                Variable {
+                    name: v.name.clone().unwrap_or_else(|| path.clone()),
+                    kind: VariableKind::Path { path: path.clone(), values, base },
+                }
+            } else {
+                if v.values.is_some() || v.range.is_some() || v.grid.is_some() {
+                    return Err(Error::invalid(who, "values, range and grid go with a path"));
+                }
+                if let Some(rigs) = &v.rigs {
+                    if rigs.is_empty() {
+                        return Err(Error::invalid(format!("{who}.rigs"), "is empty"));
+                    }
+                    let mut out = vec![("base".to_string(), model_name.clone(), model_text.clone())];
+                    for r in rigs {
+                        let (n, t) = read_file(dir, &r.file)?;
+                        ModelFile::parse(&t, &n)?;
+                        out.push((r.label.clone(), n, t));
+                    }
+                    Variable {
+                        name: v.name.clone().unwrap_or_else(|| "rig".into()),
+                        kind: VariableKind::Rig { rigs: out },
+                    }
+                } else {
+                    let pads = v.pads.as_deref().unwrap_or_default();
+                    let (n, t) = read_file(dir, pads)?;
+                    let catalogue = Catalogue::parse(&t, &n)?;
+                    Variable {
+                        name: v.name.clone().unwrap_or_else(|| "pads".into()),
+                        kind: VariableKind::Pads { catalogue },
+                    }
+                }
+            };
+            variables.push(var);
+        }
+        let grounds = doc
+            .disturbances
+            .grounds
+            .iter()
+            .map(|g| {
+                if crate::spectrum::ReferenceGround::from_name(g).is_ok() && !dir.join(g).exists() {
+                    GroundSource::parse(g)
+                } else {
+                    GroundSource::parse(&dir.join(g).display().to_string())
+                }
+            })
+            .collect();
+        let winds = doc.disturbances.winds.iter().map(|w| WindCase::parse(w)).collect::<Result<Vec<_>>>()?;
+        let s = &doc.settings;
+        let mut settings = StudySettings::new()?;
+        if s.f_min_hz.is_some() || s.f_max_hz.is_some() || s.n_freq.is_some() {
+            settings.grid = FreqGrid::log(
+                s.f_min_hz.unwrap_or(0.2),
+                s.f_max_hz.unwrap_or(100.0),
+                s.n_freq.unwrap_or(600),
+            )?;
+        }
+        if let Some(v) = s.visibility_px {
+            settings.visibility.rms_px = crate::error::require_non_negative("settings.visibility_px", v)?;
+        }
+        if let Some(v) = s.visibility_p {
+            settings.visibility.p_outside = crate::error::require_non_negative("settings.visibility_p", v)?;
+        }
+        if let Some(t) = s.temperature_c {
+            settings.temperature_c = crate::error::require_finite("settings.temperature_c", t)?;
+        }
+        if let Some(p) = &s.pad_prefix {
+            settings.pad_prefix = p.clone();
+        }
+        if let Some(w) = s.design_wind_m_s {
+            settings.design_wind_m_s = crate::error::require_non_negative("settings.design_wind_m_s", w)?;
+        }
+        if let Some(g) = s.ground_scale {
+            settings.ground_scale = g;
+        }
+        let study = Study {
+            title: doc.title,
+            source: file.to_string(),
+            model_name,
+            model_text,
+            combine,
+            variables,
+            grounds,
+            winds,
+            settings,
+        };
+        study.check()?;
+        Ok(study)
+    }
+
+    /// The wind cases (one calm case when none is given).
+    pub fn wind_cases(&self) -> Vec<WindCase> {
+        if self.winds.is_empty() { vec![WindCase::calm()] } else { self.winds.clone() }
+    }
+
+    /// Check the study's shape before anything is evaluated: unique variable names that are no
+    /// fixed column, no `|` in labels, paired variables of equal length, not too many variants.
+    pub fn check(&self) -> Result<()> {
+        let fixed = super::study::FIXED_COLUMNS;
+        let mut names = std::collections::HashSet::new();
+        for v in &self.variables {
+            if v.name.trim().is_empty() || v.name.contains(['|', '\n', '\r']) {
+                return Err(Error::invalid(
+                    format!("{}: variable name '{}'", self.source, v.name),
+                    "must be non-empty, without '|' or line breaks",
+                ));
+            }
+            if fixed.contains(&v.name.as_str()) {
+                return Err(Error::invalid(
+                    format!("{}: variable name '{}'", self.source, v.name),
+                    "is the name of a fixed column; give the variable a name",
+                ));
+            }
+            if !names.insert(v.name.clone()) {
+                return Err(Error::invalid(
+                    format!("{}: variable '{}'", self.source, v.name),
+                    "is given twice; give one of them a name",
+                ));
+            }
+            for i in 0..v.len() {
+                let l = v.label(i);
+                if l.trim().is_empty() || l.contains(['|', '\n', '\r', ',', '=']) {
+                    return Err(Error::invalid(
+                        format!("{}: value '{l}' of variable '{}'", self.source, v.name),
+                        "labels must be non-empty, without '|', ',', '=' or line breaks",
+                    ));
+                }
+            }
+            let labels: std::collections::HashSet<String> = (0..v.len()).map(|i| v.label(i)).collect();
+            if labels.len() != v.len() {
+                return Err(Error::invalid(
+                    format!("{}: variable '{}'", self.source, v.name),
+                    "has a value twice",
+                ));
+            }
+        }
+        if self.combine == Combine::Paired
+            && let Some(first) = self.variables.first()
+        {
+            for v in &self.variables[1..] {
+                if v.len() != first.len() {
+                    return Err(Error::shape(
+                        format!(
+                            "{}: paired variables ('{}' has {} values, '{}' has {})",
+                            self.source,
+                            first.name,
+                            first.len(),
+                            v.name,
+                            v.len()
+                        ),
+                        first.len(),
+                        v.len(),
+                    ));
+                }
+            }
+        }
+        let n = match self.combine {
+            Combine::Crossed => self.variables.iter().try_fold(1usize, |a, v| a.checked_mul(v.len())),
+            Combine::Paired => Some(self.variables.first().map_or(1, Variable::len)),
+        };
+        match n {
+            Some(n) if n <= MAX_VARIANTS => {}
+            _ => {
+                return Err(Error::TooLarge {
+                    what: format!("{}: variants", self.source),
+                    value: n.unwrap_or(usize::MAX),
+                    limit: MAX_VARIANTS,
+                });
+            }
+        }
+        if self.grounds.is_empty() {
+            return Err(Error::invalid(
+                format!("{}: disturbances.grounds", self.source),
+                "give at least one ground (recording, PSD file, nlnm, nhnm)",
+            ));
+        }
+        super::sweep::ground_labels(&self.grounds)?;
+        let mut seen = std::collections::HashSet::new();
+        for w in self.wind_cases() {
+            if !seen.insert(w.label.clone()) {
+                return Err(Error::invalid(format!("wind case '{}'", w.label), "is given twice"));
+            }
+        }
+        for v in &self.variables {
+            if let VariableKind::Pads { catalogue } = &v.kind {
+                catalogue.at_temperature(self.settings.temperature_c)?;
+            }
+        }
+        Ok(())
+    }
+}
