@@ -27,6 +27,8 @@ pub struct QuietBlock {
     pub start_s: f64,
     /// Hour of the day of the block's centre.
     pub hour_of_day: Option<usize>,
+    /// Band RMS of the first axis, one per configured band.
+    pub band_rms: Vec<f64>,
     /// Radial RMS image motion (px).
     pub rms_radial_px: f64,
     /// Share of time the star's centre is outside ½ px.
@@ -105,6 +107,7 @@ impl<'m> QuietHours<'m> {
                 index: b.index,
                 start_s: b.start_s,
                 hour_of_day: b.hour_of_day,
+                band_rms: b.band_rms.clone(),
                 rms_radial_px: est.rms_radial_px,
                 p_outside: est.p_outside,
                 holds,

@@ -152,38 +152,38 @@ pub fn recording_nperseg(fs_hz: f64, n_frames: usize) -> usize {
     n
 }
 
-fn recording_psds(path: &Path, scale: [f64; 3], opts: &SeriesOptions) -> Result<[Option<Psd>; 3]> {
-    let s = read_series(path, opts)?;
-    let file = path.display().to_string();
-    let quantity = match s.quantity {
-        SeriesQuantity::Acceleration => Quantity::Acceleration,
-        SeriesQuantity::Velocity => Quantity::Velocity,
-        SeriesQuantity::Displacement => Quantity::Displacement,
-        SeriesQuantity::Counts => {
-            return Err(Error::invalid(
-                format!("recording {file}"),
-                "is in raw counts; give the sensor's sensitivity to convert to SI",
-            ));
-        }
-        SeriesQuantity::ImageAngle => {
-            return Err(Error::invalid(
-                format!("recording {file}"),
-                "is an image track (arcsec or px), not ground motion",
-            ));
-        }
-    };
-    let mapped: Vec<Option<usize>> = s.axis_names.iter().map(|n| axis_index(n)).collect();
+/// The spectrum quantity of a ground recording; counts and image tracks are refused.
+pub(crate) fn ground_quantity(q: SeriesQuantity, file: &str) -> Result<Quantity> {
+    match q {
+        SeriesQuantity::Acceleration => Ok(Quantity::Acceleration),
+        SeriesQuantity::Velocity => Ok(Quantity::Velocity),
+        SeriesQuantity::Displacement => Ok(Quantity::Displacement),
+        SeriesQuantity::Counts => Err(Error::invalid(
+            format!("recording {file}"),
+            "is in raw counts; give the sensor's sensitivity to convert to SI",
+        )),
+        SeriesQuantity::ImageAngle => Err(Error::invalid(
+            format!("recording {file}"),
+            "is an image track (arcsec or px), not ground motion",
+        )),
+    }
+}
+
+/// The model ground axis (0 = x, 1 = y, 2 = z) of each column of a recording: by name
+/// (x/y/z, e/n/u, SEED orientation codes), else x, y, z for three columns and z for one.
+pub(crate) fn ground_axis_map(names: &[String], file: &str) -> Result<Vec<usize>> {
+    let mapped: Vec<Option<usize>> = names.iter().map(|n| axis_index(n)).collect();
     let map: Vec<usize> = if mapped.iter().all(Option::is_some) {
         mapped.into_iter().flatten().collect()
-    } else if s.n_axes == 3 {
+    } else if names.len() == 3 {
         vec![0, 1, 2]
-    } else if s.n_axes == 1 {
-        if let Some(c) = s.axis_names.first().and_then(|n| seed_orientation(n)) {
+    } else if names.len() == 1 {
+        if let Some(c) = names.first().and_then(|n| seed_orientation(n)) {
             return Err(Error::invalid(
                 format!("recording {file}"),
                 format!(
                     "channel {} has orientation code '{c}', which is not east (E), north (N) or vertical (Z); rotate it to the site's axes first",
-                    s.axis_names[0]
+                    names[0]
                 ),
             ));
         }
@@ -191,10 +191,7 @@ fn recording_psds(path: &Path, scale: [f64; 3], opts: &SeriesOptions) -> Result<
     } else {
         return Err(Error::invalid(
             format!("recording {file}"),
-            format!(
-                "cannot tell which model axis each of the columns {:?} is; name them x/y/z (or e/n/u)",
-                s.axis_names
-            ),
+            format!("cannot tell which model axis each of the columns {names:?} is; name them x/y/z (or e/n/u)"),
         ));
     };
     let mut seen = [false; 3];
@@ -202,10 +199,18 @@ fn recording_psds(path: &Path, scale: [f64; 3], opts: &SeriesOptions) -> Result<
         if std::mem::replace(&mut seen[k], true) {
             return Err(Error::invalid(
                 format!("recording {file}"),
-                format!("two columns map to the same axis ({:?})", s.axis_names),
+                format!("two columns map to the same axis ({names:?})"),
             ));
         }
     }
+    Ok(map)
+}
+
+fn recording_psds(path: &Path, scale: [f64; 3], opts: &SeriesOptions) -> Result<[Option<Psd>; 3]> {
+    let s = read_series(path, opts)?;
+    let file = path.display().to_string();
+    let quantity = ground_quantity(s.quantity, &file)?;
+    let map = ground_axis_map(&s.axis_names, &file)?;
     let n = s.n_frames();
     if n < 16 {
         return Err(Error::Parse {

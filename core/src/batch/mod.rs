@@ -4,6 +4,7 @@
 //!   spectrum and wind case, one CSV row per combination ([`sweep_row`] defines the row);
 //! - [`catalogue`]: isolator specs and how pads enter a model; [`ground`]: ground spectra from
 //!   recordings, PSD files or reference curves; [`gust`]: the gust family (worst peak, ring-down);
+//! - [`quiet_survey`]: a quiet-hours survey of one long recording, read in chunks;
 //! - [`ranking`]: the sweep's ranked summary and verdicts against no pad, per wind case;
 //! - [`report`]: the one-model report (modes, image motion, gust, checks);
 //! - [`study`]: design studies over model numbers, alternative model files and the isolator
@@ -12,6 +13,7 @@
 pub mod catalogue;
 pub mod ground;
 pub mod gust;
+pub mod quiet_survey;
 pub mod ranking;
 pub mod report;
 pub mod study;
@@ -28,6 +30,7 @@ pub use gust::{
     GUST_START_S, GustCase, GustFamily, GustPlan, gust_amplitude_m_s, gust_durations, gust_family,
     gust_family_responses, gust_family_with,
 };
+pub use quiet_survey::{QuietSurvey, SURVEY_PERCENTILES, SurveyAxis, SurveyBlock, SurveyOptions, survey_recording};
 pub use ranking::{RankEntry, RankTable, SweepSummary, Verdict, Visibility, summarize};
 pub use report::{
     CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, PeopleOptions,
