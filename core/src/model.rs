@@ -84,6 +84,9 @@ pub struct Model {
     carriers: std::collections::BTreeMap<String, assembly::Carrier>,
     /// The ground's stations (horizontal positions, m); empty when it is touched at one place.
     stations: Vec<[f64; 2]>,
+    /// [`Model::modes`], computed on first use (the model is immutable): a sweep row, its gust
+    /// plan and its transients ask for the same modes several times.
+    pub(crate) modes_cache: std::sync::OnceLock<crate::modes::Modes>,
 }
 
 impl Model {
@@ -155,6 +158,7 @@ impl Model {
             springs,
             carriers: a.carriers,
             stations: a.stations,
+            modes_cache: std::sync::OnceLock::new(),
         })
     }
 

@@ -4,6 +4,8 @@
 //!   spectrum and wind case, one CSV row per combination ([`sweep_row`] defines the row);
 //! - [`catalogue`]: isolator specs and how pads enter a model; [`ground`]: ground spectra from
 //!   recordings, PSD files or reference curves; [`gust`]: the gust family (worst peak, ring-down);
+//! - [`spring_sets`]: alternatives that only replace springs, evaluated by the spring-variant
+//!   engine without a model each (the sweep's fast path);
 //! - [`ranking`]: the sweep's ranked summary and verdicts against no pad, per wind case;
 //! - [`report`]: the one-model report (modes, image motion, gust, checks).
 
@@ -12,6 +14,7 @@ pub mod ground;
 pub mod gust;
 pub mod ranking;
 pub mod report;
+pub mod spring_sets;
 pub mod sweep;
 pub mod sweep_row;
 
@@ -29,8 +32,9 @@ pub use report::{
     CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, PeopleOptions,
     PeopleReport, Report, ReportOptions, build_file_report, build_report, file_people_report, report_sky_map,
 };
+pub use spring_sets::{ImageStats, SpringSets, spring_changes};
 pub use sweep::{
-    PadMechanism, SweepConfig, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
+    PadMechanism, SweepConfig, SweepEngine, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
     ground_labels, pad_alternatives, run_sweep, sweep_csv_text, sweep_rows, sweep_rows_labelled,
 };
 pub use sweep_row::{ColumnKind, SWEEP_COLUMNS, SWEEP_ROW, SweepRow, SweepValue, read_sweep_csv};
