@@ -86,6 +86,9 @@ fn geometry(s: &SpringSpec) -> SpringSpec {
     }
 }
 
+/// A disturbance's inputs on the grid: (input name, PSD) pairs.
+type InputPsds = Vec<(String, Vec<f64>)>;
+
 /// Image statistics of one alternative under one disturbance, as [`Model::image_motion`] gives
 /// them on the rebuilt model.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -142,7 +145,7 @@ impl<'m> SpringSets<'m> {
         let optics =
             self.model.optics().ok_or_else(|| Error::invalid("optics", "the model has no [optics]"))?;
         let plate = optics.plate_scale_arcsec_per_px();
-        let on_grid: Vec<Result<Vec<(String, Vec<f64>)>>> =
+        let on_grid: Vec<Result<InputPsds>> =
             disturbances.iter().map(|d| d.on_grid(self.model, grid)).collect();
         // The union of the disturbances' inputs, in first-seen order; each disturbance's own
         // inputs as columns of it, in its own order (the order image_motion sums them in).
