@@ -86,7 +86,8 @@ pub struct Model {
     stations: Vec<[f64; 2]>,
     /// [`Model::modes`], computed on first use (the model is immutable): a sweep row, its gust
     /// plan and its transients ask for the same modes several times.
-    pub(crate) modes_cache: std::sync::OnceLock<crate::modes::Modes>,
+    /// Type-erased so that `model` does not import `modes` (which imports `model`).
+    pub(crate) modes_cache: std::sync::OnceLock<std::sync::Arc<dyn std::any::Any + Send + Sync>>,
 }
 
 impl Model {

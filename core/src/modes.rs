@@ -210,11 +210,12 @@ impl Modes {
 impl Model {
     /// All modes of the model (computed once per model, then cloned).
     pub fn modes(&self) -> Result<Modes> {
-        if let Some(m) = self.modes_cache.get() {
+        if let Some(m) = self.modes_cache.get().and_then(|a| a.downcast_ref::<Modes>()) {
             return Ok(m.clone());
         }
         let m = self.compute_modes()?;
-        Ok(self.modes_cache.get_or_init(|| m).clone())
+        let _ = self.modes_cache.set(std::sync::Arc::new(m.clone()));
+        Ok(m)
     }
 
     fn compute_modes(&self) -> Result<Modes> {
