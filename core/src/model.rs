@@ -84,6 +84,10 @@ pub struct Model {
     carriers: std::collections::BTreeMap<String, assembly::Carrier>,
     /// The ground's stations (horizontal positions, m); empty when it is touched at one place.
     stations: Vec<[f64; 2]>,
+    /// [`Model::modes`], computed on first use (the model is immutable): a sweep row, its gust
+    /// plan and its transients ask for the same modes several times.
+    /// Type-erased so that `model` does not import `modes` (which imports `model`).
+    pub(crate) modes_cache: std::sync::OnceLock<std::sync::Arc<dyn std::any::Any + Send + Sync>>,
 }
 
 impl Model {
@@ -155,6 +159,7 @@ impl Model {
             springs,
             carriers: a.carriers,
             stations: a.stations,
+            modes_cache: std::sync::OnceLock::new(),
         })
     }
 

@@ -208,8 +208,17 @@ impl Modes {
 }
 
 impl Model {
-    /// All modes of the model.
+    /// All modes of the model (computed once per model, then cloned).
     pub fn modes(&self) -> Result<Modes> {
+        if let Some(m) = self.modes_cache.get().and_then(|a| a.downcast_ref::<Modes>()) {
+            return Ok(m.clone());
+        }
+        let m = self.compute_modes()?;
+        let _ = self.modes_cache.set(std::sync::Arc::new(m.clone()));
+        Ok(m)
+    }
+
+    fn compute_modes(&self) -> Result<Modes> {
         let n = self.dof_count();
         let (vals0, vecs0) = crate::linalg::sym_generalized_eigen(&self.static_stiffness(), &self.m_ff, n)?;
         let mut freqs: Vec<f64> = vals0.iter().map(|l| l.max(0.0).sqrt() / (2.0 * PI)).collect();

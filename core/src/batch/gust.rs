@@ -116,10 +116,20 @@ pub fn half_structure_rms(freq_hz: &[f64], psd: &[f64], lag_s: f64) -> Result<f6
 
 /// Amplitude (m/s) of the family's gust of `duration_s` for a wind case (module docs).
 pub fn gust_amplitude_m_s(wind: &WindSpec, duration_s: f64) -> Result<f64> {
-    crate::error::require_positive("gust duration_s", duration_s)?;
+    Ok(gust_amplitudes_m_s(wind, &[duration_s])?[0])
+}
+
+/// [`gust_amplitude_m_s`] for several durations, the velocity PSD computed once.
+fn gust_amplitudes_m_s(wind: &WindSpec, durations_s: &[f64]) -> Result<Vec<f64>> {
+    for d in durations_s {
+        crate::error::require_positive("gust duration_s", *d)?;
+    }
     let grid = FreqGrid::log(1e-5, 1e5, 20_000)?;
     let psd = wind.velocity_psd(&grid)?;
-    Ok(GUST_PEAK_FACTOR * half_structure_rms(grid.hz(), psd.values(), 0.5 * duration_s)?)
+    durations_s
+        .iter()
+        .map(|d| Ok(GUST_PEAK_FACTOR * half_structure_rms(grid.hz(), psd.values(), 0.5 * d)?))
+        .collect()
 }
 
 /// Durations, sample rate and record length of a model's gust family.
@@ -164,8 +174,7 @@ pub fn gust_family_with(
     }
     let wind = &model.wind_at_load(wind)?;
     let u = wind.effective_speed_m_s()?;
-    let amplitudes =
-        plan.durations_s.iter().map(|t| gust_amplitude_m_s(wind, *t)).collect::<Result<Vec<_>>>()?;
+    let amplitudes = gust_amplitudes_m_s(wind, &plan.durations_s)?;
     let gusts: Vec<Gust> = plan
         .durations_s
         .iter()

@@ -5,6 +5,8 @@
 //! - [`catalogue`]: isolator specs and how pads enter a model; [`ground`]: ground spectra from
 //!   recordings, PSD files or reference curves; [`gust`]: the gust family (worst peak, ring-down);
 //! - [`quiet_survey`]: a quiet-hours survey of one long recording, read in chunks;
+//! - [`spring_sets`]: alternatives that only replace springs, evaluated by the spring-variant
+//!   engine without a model each (the sweep's fast path);
 //! - [`ranking`]: the sweep's ranked summary and verdicts against no pad, per wind case;
 //! - [`report`]: the one-model report (modes, image motion, gust, checks);
 //! - [`study`]: design studies over model numbers, alternative model files and the isolator
@@ -18,6 +20,7 @@ pub mod ranking;
 pub mod report;
 pub mod study;
 pub mod study_file;
+pub mod spring_sets;
 pub mod sweep;
 pub mod sweep_row;
 
@@ -42,8 +45,9 @@ pub use study::{
     study_rows_of, summarize_study, variants,
 };
 pub use study_file::{Combine, Study, StudySettings, Variable, VariableKind};
+pub use spring_sets::{ImageStats, SpringSets, spring_changes};
 pub use sweep::{
-    PadMechanism, SweepConfig, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
+    PadMechanism, SweepConfig, SweepEngine, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
     ground_labels, pad_alternatives, run_sweep, sweep_csv_text, sweep_rows, sweep_rows_labelled,
 };
 pub use sweep_row::{ColumnKind, SWEEP_COLUMNS, SWEEP_ROW, SweepRow, SweepValue, read_sweep_csv};

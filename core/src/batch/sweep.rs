@@ -25,10 +25,11 @@
 //! — exact for a symmetric rig, an estimate otherwise; `overloaded` compares it with the
 //! isolator's `rated_load_n`.
 
-use super::catalogue::{self, Catalogue, DEFAULT_PAD_PREFIX, Isolator, PadDirection, PadSite};
+use super::catalogue::{self, Catalogue, DEFAULT_PAD_PREFIX, Isolator, PadDirection, PadModel, PadSite};
 use super::ground::{GroundSource, GroundSpectrum};
 use super::gust::gust_family;
 use super::ranking::{SweepSummary, Visibility, summarize};
+use super::spring_sets::{SpringSets, spring_changes};
 use super::sweep_row::{SWEEP_COLUMNS, SweepRow, read_sweep_csv};
 use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
@@ -39,9 +40,10 @@ use crate::io::series::SeriesOptions;
 use crate::model::Model;
 use crate::response::Disturbances;
 use crate::schema::ModelFile;
+use crate::stiffness::StiffnessModel;
 use crate::wind::{Turbulence, WindSpec, WindSpectrum};
 use rayon::prelude::*;
-use std::collections::{BTreeMap, HashSet};
+use std::collections::{BTreeMap, HashMap, HashSet};
 use std::path::{Path, PathBuf};
 
 /// Standard gravity (m/s²), for pad loads.
@@ -124,6 +126,21 @@ pub struct SweepConfig {
     /// ([`Isolator::at_temperature`]); the default [`catalogue::NOMINAL_TEMPERATURE_C`] is the
     /// catalogue as written.
     pub temperature_c: f64,
+    /// How the image columns are computed; the rows are the same either way (to rounding).
+    pub engine: SweepEngine,
+}
+
+/// How a sweep computes its rows' image columns (RMS, px, P(outside ½ px)).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum SweepEngine {
+    /// The spring-variant engine ([`super::spring_sets`]) for every isolator whose model differs
+    /// from the others' only in the stiffness of named springs, one FRF per isolator shared by
+    /// all grounds and winds; a model built and solved per row for the rest (e.g. the rig
+    /// layer's "none", whose feet stand on the ground with no spring).
+    #[default]
+    Auto,
+    /// A model built and solved per row for every isolator (the reference path).
+    Rebuild,
 }
 
 impl SweepConfig {
@@ -138,7 +155,13 @@ impl SweepConfig {
             threads: None,
             visibility: Visibility::default(),
             temperature_c: catalogue::NOMINAL_TEMPERATURE_C,
+            engine: SweepEngine::Auto,
         })
+    }
+    /// Replace the engine of the image columns.
+    pub fn with_engine(mut self, engine: SweepEngine) -> Self {
+        self.engine = engine;
+        self
     }
     /// Replace the temperature (°C).
     pub fn with_temperature_c(mut self, t_c: f64) -> Self {
@@ -295,6 +318,8 @@ pub fn pad_alternatives(
 
 /// A built spec: its model (or why it failed), first mode and pad load.
 struct BuiltSpec {
+    /// The generic spec the model was built from (None when it could not be made).
+    spec: Option<ModelSpec>,
     model: std::result::Result<Model, String>,
     first_mode: (f64, f64),
     pad_load_n: f64,
@@ -302,11 +327,16 @@ struct BuiltSpec {
 
 fn build_spec(mech: &PadMechanism, iso: &Isolator) -> BuiltSpec {
     let fail = |e: Error| BuiltSpec {
+        spec: None,
         model: Err(format!("isolator '{}': {e}", iso.name)),
         first_mode: (f64::NAN, f64::NAN),
         pad_load_n: f64::NAN,
     };
-    let model = match mech.spec_with(iso).and_then(|s| Model::from_spec(&s)) {
+    let spec = match mech.spec_with(iso) {
+        Ok(s) => s,
+        Err(e) => return fail(e),
+    };
+    let model = match Model::from_spec(&spec) {
         Ok(m) => m,
         Err(e) => return fail(e),
     };
@@ -333,7 +363,116 @@ fn build_spec(mech: &PadMechanism, iso: &Isolator) -> BuiltSpec {
         }
         _ => f64::NAN,
     };
-    BuiltSpec { model: Ok(model), first_mode: first, pad_load_n: load }
+    BuiltSpec { spec: Some(spec), model: Ok(model), first_mode: first, pad_load_n: load }
+}
+
+/// Two reference pads (invented values, not catalogue entries) that fix the engine's base
+/// model and its replaced springs: the springs that differ between them are the pad springs.
+fn reference_pads() -> [Isolator; 2] {
+    let pad = |name: &str, model: PadModel, damping: Option<f64>| Isolator {
+        name: name.into(),
+        model,
+        compression_n_per_m: Some(1.0e6),
+        shear_n_per_m: Some(3.0e5),
+        loss_factor: Some(0.1),
+        compression_damping_ns_per_m: damping,
+        shear_damping_ns_per_m: damping,
+        dynamic_ratio: None,
+        tau_s: None,
+        rated_load_n: None,
+        description: None,
+        temperature: None,
+    };
+    [pad("reference a", PadModel::Hysteretic, None), pad("reference b", PadModel::KelvinVoigt, Some(500.0))]
+}
+
+/// The image columns of every (isolator, ground, wind) whose isolator only replaces the pad
+/// springs, by the spring-variant engine ([`SpringSets`]): one plan, one FRF per isolator shared
+/// by every ground and wind. The base model and the replaced springs come from the mechanism
+/// alone ([`reference_pads`]), never from the catalogue, so a row does not depend on which
+/// other isolators share the sweep (a sweep split into parts gives the whole's rows, bit for
+/// bit). The isolators left out (a model of their own, as the rig layer's "none"; or none could
+/// be built) are evaluated per row; an engine failure as a whole leaves every row to that path.
+fn spring_set_rows(
+    mech: &PadMechanism,
+    catalogue: &Catalogue,
+    built: &[BuiltSpec],
+    spectra: &[std::result::Result<GroundSpectrum, String>],
+    winds: &[WindCase],
+    grid: &FreqGrid,
+) -> HashMap<(usize, usize, usize), Evaluated> {
+    let mut out = HashMap::new();
+    let [ra, rb] = reference_pads();
+    let (Ok(base_spec), Ok(other)) = (mech.spec_with(&ra), mech.spec_with(&rb)) else {
+        return out;
+    };
+    let Some(pads) = spring_changes(&base_spec, &other) else {
+        return out;
+    };
+    let names: Vec<String> = pads.into_iter().map(|(n, _)| n).collect();
+    if names.is_empty() {
+        return out;
+    }
+    let Ok(base_model) = Model::from_spec(&base_spec) else {
+        return out;
+    };
+    let mut members: Vec<(usize, Vec<(String, StiffnessModel)>)> = Vec::new();
+    for (si, b) in built.iter().enumerate() {
+        if let (Some(spec), Ok(_)) = (&b.spec, &b.model)
+            && let Some(ch) = spring_changes(&base_spec, spec)
+            && ch.iter().all(|(n, _)| names.contains(n))
+        {
+            members.push((si, ch));
+        }
+    }
+    if members.is_empty() {
+        return out;
+    }
+    let name_refs: Vec<&str> = names.iter().map(String::as_str).collect();
+    let Ok(plan) = SpringSets::new(&base_model, &name_refs) else {
+        return out;
+    };
+    let base_models = plan.base_models();
+    let sets: Vec<Vec<StiffnessModel>> = members
+        .iter()
+        .map(|(_, ch)| {
+            let mut set = base_models.clone();
+            for (nm, m) in ch {
+                if let Some(p) = names.iter().position(|x| x == nm) {
+                    set[p] = m.clone();
+                }
+            }
+            set
+        })
+        .collect();
+    let mut cases = Vec::new();
+    let mut dist = Vec::new();
+    for (gi, s) in spectra.iter().enumerate() {
+        let Ok(g) = s else { continue };
+        for (wi, w) in winds.iter().enumerate() {
+            cases.push((gi, wi));
+            dist.push(Disturbances {
+                ground: g.axes.clone(),
+                wind: w.wind.clone(),
+                loads: Vec::new(),
+                ground_waves: None,
+            });
+        }
+    }
+    let radius_px = ImageOptions::default().radius_px.unwrap_or(0.5);
+    let Ok(stats) = plan.image_stats(grid, &sets, &dist, radius_px) else {
+        return out;
+    };
+    for ((si, _), per_case) in members.iter().zip(stats) {
+        let name = &catalogue.isolators[*si].name;
+        for (&(gi, wi), r) in cases.iter().zip(per_case) {
+            let v = r
+                .map(|s| (s.rms_arcsec, s.rms_px, s.p_outside))
+                .map_err(|e| format!("isolator '{name}': {e}"));
+            out.insert((*si, gi, wi), v);
+        }
+    }
+    out
 }
 
 /// One (spectrum, wind, isolator) combination.
@@ -462,6 +601,8 @@ struct PreparedSweep<'a> {
     base_idx: usize,
     baselines: BTreeMap<(usize, usize), Evaluated>,
     gusts: BTreeMap<(usize, usize), (f64, f64)>,
+    /// Image columns by the spring-variant engine, per (isolator, ground, wind).
+    fast: HashMap<(usize, usize, usize), Evaluated>,
 }
 
 impl<'a> PreparedSweep<'a> {
@@ -484,6 +625,10 @@ impl<'a> PreparedSweep<'a> {
                     .map_err(|e| e.to_string())
             })
             .collect();
+        let fast = match cfg.engine {
+            SweepEngine::Auto => spring_set_rows(&mech, &catalogue, &built, &spectra, &winds, &cfg.grid),
+            SweepEngine::Rebuild => HashMap::new(),
+        };
         let mut jobs = Vec::new();
         for (gi, label) in labels.iter().enumerate() {
             for (wi, w) in winds.iter().enumerate() {
@@ -504,7 +649,11 @@ impl<'a> PreparedSweep<'a> {
             .into_par_iter()
             .map(|(gi, wi, s)| {
                 let iso = &catalogue.isolators[base_idx];
-                ((gi, wi), evaluate(&built[base_idx], iso, s, &winds[wi], &cfg.grid))
+                let r = match fast.get(&(base_idx, gi, wi)) {
+                    Some(r) => r.clone(),
+                    None => evaluate(&built[base_idx], iso, s, &winds[wi], &cfg.grid),
+                };
+                ((gi, wi), r)
             })
             .collect();
         // Design gusts per (isolator, wind case): they do not depend on the ground.
@@ -531,6 +680,7 @@ impl<'a> PreparedSweep<'a> {
             base_idx,
             baselines,
             gusts,
+            fast,
         })
     }
 
@@ -552,6 +702,8 @@ impl<'a> PreparedSweep<'a> {
         let key = (j.ground, j.wind);
         let res = if j.spec == self.base_idx {
             self.baselines.get(&key).cloned().unwrap_or_else(|| Err("baseline missing".into()))
+        } else if let Some(r) = self.fast.get(&(j.spec, j.ground, j.wind)) {
+            r.clone()
         } else {
             evaluate(b, iso, ground, &self.winds[j.wind], self.grid)
         };
@@ -695,6 +847,7 @@ pub fn run_sweep(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::batch::{SWEEP_ROW, SweepValue};
     use crate::schema::ModelFile;
     use crate::spectrum::{Psd, Quantity};
 
@@ -937,6 +1090,71 @@ mod tests {
         let mut zero = cfg.clone();
         zero.threads = Some(0);
         assert!(check_sweep(&inputs, &zero).unwrap_err().to_string().contains("threads"));
+    }
+
+    /// Every column of two row lists: text, flags and messages equal, numbers equal to 1e-9
+    /// relative (NaN and infinities equal).
+    fn assert_rows_match(a: &[SweepRow], b: &[SweepRow]) {
+        assert_eq!(a.len(), b.len());
+        let mut numbers = 0;
+        for (x, y) in a.iter().zip(b) {
+            for (k, (u, v)) in x.values().into_iter().zip(y.values()).enumerate() {
+                match (u, v) {
+                    (SweepValue::Number(p), SweepValue::Number(q)) => {
+                        numbers += 1;
+                        let same = p == q || (p.is_nan() && q.is_nan());
+                        let rel = (p - q).abs() / q.abs().max(1e-300);
+                        // P(outside ½ px) is 1 − P(inside): its rounding is about 1e-16 absolute
+                        // on either path, so below 1e-7 it is compared to 1e-15 absolute.
+                        let tiny = SWEEP_ROW[k].0 == "p_outside_half_px" && (p - q).abs() <= 1e-15;
+                        assert!(
+                            same || rel <= 1e-9 || tiny,
+                            "{} column {}: {p} vs {q}",
+                            x.key,
+                            SWEEP_ROW[k].0
+                        );
+                    }
+                    (u, v) => assert_eq!(u, v, "{} column {}", x.key, SWEEP_ROW[k].0),
+                }
+            }
+        }
+        assert!(numbers > 0);
+    }
+
+    #[test]
+    fn the_spring_variant_engine_gives_the_rebuilt_rows() {
+        // The demo: the rig file on a paver, its catalogue and the cold catalogue (at its
+        // nominal temperature and at -15 °C), three recordings, calm and 4 m/s. Oracle: the
+        // same sweep with a model built and solved per row.
+        let rig =
+            ModelFile::parse(include_str!("../../../docs/examples/tripod-paver.toml"), "tripod-paver.toml")
+                .unwrap();
+        let rec = Path::new(env!("CARGO_MANIFEST_DIR")).join("../docs/examples/recordings");
+        let grounds: Vec<GroundSource> = ["quiet-night", "road-nearby", "footsteps"]
+            .iter()
+            .map(|n| GroundSource::Recording(rec.join(format!("{n}.csv"))))
+            .collect();
+        let winds = [WindCase::calm(), WindCase::parse("4").unwrap()];
+        let warm = Catalogue::parse(CATALOGUE, "isolators.toml").unwrap();
+        let cold = Catalogue::parse(COLD_CATALOGUE, "isolators-cold.toml").unwrap();
+        for (model, cat, t) in
+            [(&rig, &warm, 20.0), (&rig, &cold, 20.0), (&rig, &cold, -15.0), (&file(), &warm, 20.0)]
+        {
+            let inputs = SweepInputs { model, catalogue: cat, grounds: &grounds, winds: &winds };
+            let cfg = SweepConfig::new().unwrap().with_temperature_c(t);
+            let fast = sweep_rows(&inputs, &cfg).unwrap();
+            let slow = sweep_rows(&inputs, &cfg.clone().with_engine(SweepEngine::Rebuild)).unwrap();
+            assert!(fast.iter().all(|r| !r.is_error()), "{:?}", fast.iter().find(|r| r.is_error()));
+            assert_rows_match(&fast, &slow);
+            // The engine did take the pads: every isolator but the rig layer's "none" (feet on
+            // rigid ground, no spring) for every ground and wind; all of them for the generic
+            // layer, whose "none" keeps the paver contact spring.
+            let labels = ground_labels(&grounds).unwrap();
+            let plan = PreparedSweep::new(&inputs, &labels, &cfg).unwrap();
+            let n = cat.isolators.len();
+            let engine_isolators = if model.rig.tripod.is_some() { n - 1 } else { n };
+            assert_eq!(plan.fast.len(), engine_isolators * grounds.len() * winds.len());
+        }
     }
 
     #[test]
