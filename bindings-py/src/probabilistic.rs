@@ -86,7 +86,43 @@ pub fn probabilistic_psd<'py>(
     if single { Ok(out.get_item(0)?) } else { Ok(out.into_any()) }
 }
 
+/// A quiet-hours survey of one recording file (`stillsky.quiet_hours`): the core's
+/// `batch::survey_recording`, read in chunks with the interpreter released.
+#[pyfunction]
+#[pyo3(signature = (path, model = None, *, block_s = 3600.0, overlap = 0.5, bands_hz = vec![(1.0, 10.0)],
+    fs_hz = None, sensitivity = None))]
+#[allow(clippy::too_many_arguments)]
+pub fn quiet_hours<'py>(
+    py: Python<'py>,
+    path: std::path::PathBuf,
+    model: Option<PyRef<'py, crate::model::PyModel>>,
+    block_s: f64,
+    overlap: f64,
+    bands_hz: Vec<(f64, f64)>,
+    fs_hz: Option<f64>,
+    sensitivity: Option<(f64, String)>,
+) -> PyResult<Bound<'py, PyDict>> {
+    use stillsky::batch::{ReportOptions, SurveyOptions, survey_recording};
+    use stillsky::io::series::{Sensitivity, SeriesOptions, Unit};
+    let mut ppsd = PpsdConfig::default().with_block_s(block_s);
+    (ppsd.overlap, ppsd.bands_hz) = (overlap, bands_hz);
+    let mut series = SeriesOptions::default();
+    if let Some(f) = fs_hz {
+        series = series.with_fs_hz(f);
+    }
+    if let Some((c, u)) = sensitivity {
+        series = series.with_sensitivity(Sensitivity::new(c, Unit::parse(&u).py_err()?));
+    }
+    let o = SurveyOptions { ppsd, series, grid: ReportOptions::new().py_err()?.grid };
+    let m = model.as_ref().map(|m| &m.inner);
+    let s = py.detach(|| survey_recording(&path, m, &o)).py_err()?;
+    let d = crate::convert::to_dict(py, &s)?;
+    d.set_item("quiet_hours", s.quiet_hours())?;
+    Ok(d)
+}
+
 pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(probabilistic_psd, m)?)?;
+    m.add_function(wrap_pyfunction!(quiet_hours, m)?)?;
     Ok(())
 }

@@ -106,3 +106,41 @@ def test_bad_input_is_named():
     x[5] = np.nan
     with pytest.raises(stillsky.InvalidInputError, match="index 5"):
         stillsky.probabilistic_psd(x, 100.0, block_s=600.0)
+
+
+def test_quiet_hours_from_a_miniseed_file_matches_obspy_and_the_command_line(kw1, tmp_path):
+    # The same recording written by ObsPy as a miniSEED file (int32 counts, Steim-2) and read
+    # by stillsky in chunks: percentiles against ObsPy's PPSD within one 1 dB bin (same settings
+    # as above, 600 s blocks), then the demo tripod judging every block; the command line's JSON
+    # carries the same numbers.
+    import json
+    import os
+    import subprocess
+
+    from obspy import Stream
+
+    data, tr = kw1
+    path = tmp_path / "kw1.mseed"
+    tr2 = tr.copy()
+    tr2.data = data.astype(np.int32)
+    Stream([tr2]).write(str(path), format="MSEED", encoding="STEIM2")
+    pp = PPSD(tr.stats, metadata={"poles": [], "zeros": [], "gain": 1.0, "sensitivity": SENS}, ppsd_length=600.0)
+    pp.add(tr)
+    model = stillsky.Model.from_toml(pathlib.Path(__file__).parents[2] / "docs/examples/tripod-paver.toml")
+    r = stillsky.quiet_hours(path, model, block_s=600.0, sensitivity=(SENS, "m_s"))
+    assert r["n_blocks"] == len(pp.times_processed) == 30
+    for q, ours in r["axes"][0]["percentiles_db"]:
+        np.testing.assert_allclose(np.array(ours, dtype=float), pp.get_percentile(q)[1], atol=1.0)
+    # Starts at 00:00:00.18 UTC: blocks fall in hours 0, 1, 2 and all are judged.
+    assert sum(r["hour_blocks"]) == 30 and sum(r["hour_judged"]) == 30
+    assert r["quiet_hours"] == [h for h in range(24) if r["hour_judged"][h] and r["hour_held"][h] == r["hour_judged"][h]]
+    assert all(b["rms_radial_px"] > 0 for b in r["blocks"])
+    binary = os.environ.get("STILLSKY_BIN")
+    if binary:
+        out = tmp_path / "qh.json"
+        example = pathlib.Path(__file__).parents[2] / "docs/examples/tripod-paver.toml"
+        subprocess.run([binary, "quiet-hours", str(path), "--sensitivity", f"{SENS}:m_s", "--block-s", "600",
+                        "--model", str(example), "--json", str(out)], check=True, capture_output=True)
+        cli = json.loads(out.read_text())
+        assert cli["axes"][0]["percentiles_db"] == r["axes"][0]["percentiles_db"]
+        assert [b["rms_radial_px"] for b in cli["blocks"]] == [b["rms_radial_px"] for b in r["blocks"]]

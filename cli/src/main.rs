@@ -83,6 +83,40 @@ enum Cmd {
     /// Transfer function from one recorded channel to another (H1, H2) with their coherence,
     /// e.g. ground to pier top, or a hammer's force to the tube's response.
     Transfer(TransferArgs),
+    /// Quiet hours of a site from a long ground recording: the probabilistic PSD per axis
+    /// (percentile curves, share of blocks below/above Peterson's noise models), the band RMS
+    /// over the hours of the day and, with --model, the hours when the rig holds ½ px.
+    QuietHours(QuietHoursArgs),
+}
+
+#[derive(Args)]
+struct QuietHoursArgs {
+    /// Ground recording (CSV/text with `# start_time=`, WAV or miniSEED), read in chunks.
+    recording: PathBuf,
+    /// Model file (with [optics]): judge every block through the rig.
+    #[arg(long)]
+    model: Option<PathBuf>,
+    /// Block length (s); 3600 as the usual probabilistic PSD.
+    #[arg(long, default_value_t = 3600.0)]
+    block_s: f64,
+    /// Overlap of consecutive blocks (fraction).
+    #[arg(long, default_value_t = 0.5)]
+    overlap: f64,
+    /// Band of the hour map as LO:HI in Hz (repeatable); default 1:10.
+    #[arg(long = "band")]
+    bands: Vec<String>,
+    /// Sample rate (Hz) for text files without a time column or `# fs_hz=` line.
+    #[arg(long)]
+    fs: Option<f64>,
+    /// miniSEED: counts per unit, as COUNTS:UNIT (e.g. 6.0e8:m_s).
+    #[arg(long, value_parser = parse_sensitivity)]
+    sensitivity: Option<Sensitivity>,
+    /// Write SVG plots (percentile curves, hour map) into this folder.
+    #[arg(long)]
+    plots: Option<PathBuf>,
+    /// Write the full result as JSON.
+    #[arg(long)]
+    json: Option<PathBuf>,
 }
 
 #[derive(Args)]
@@ -581,6 +615,7 @@ fn main() -> ExitCode {
         Cmd::DeckLoad(a) => deck_load(&a),
         Cmd::Tap(a) => tap(&a),
         Cmd::Transfer(a) => transfer(&a),
+        Cmd::QuietHours(a) => quiet_hours(&a),
         Cmd::Check { model, design_wind_m_s, gust_factor, top_load_n, foot_surface } => {
             let options = stillsky::checks::StaticOptions { top_load_n, foot_surface };
             check(&model, design_wind_m_s, gust_factor, &options)
@@ -1174,6 +1209,49 @@ fn tap(a: &TapArgs) -> CliResult {
         println!("json: {}", p.display());
     }
     Ok(())
+}
+
+fn quiet_hours(a: &QuietHoursArgs) -> CliResult {
+    use stillsky::batch::{SurveyOptions, survey_recording};
+    let model = match &a.model {
+        Some(m) => Some(stillsky::model::Model::from_spec(&ModelFile::read(m)?.expanded()?)?),
+        None => None,
+    };
+    let mut ppsd = stillsky::spectrum::PpsdConfig::default().with_block_s(a.block_s);
+    ppsd.overlap = a.overlap;
+    ppsd.bands_hz = if a.bands.is_empty() {
+        vec![(1.0, 10.0)]
+    } else {
+        a.bands.iter().map(|b| parse_band(b)).collect::<Result<_, _>>()?
+    };
+    let o =
+        SurveyOptions { ppsd, series: series_options(a.fs, a.sensitivity), grid: ReportOptions::new()?.grid };
+    let s = survey_recording(&a.recording, model.as_ref(), &o)?;
+    print!("{}", print::quiet_survey_text(&s));
+    if let Some(dir) = &a.plots {
+        std::fs::create_dir_all(dir).map_err(|e| Failure::io(&dir.display().to_string(), e))?;
+        for p in plots::quiet_survey_svgs(&s).map_err(|e| Failure::io("plots", e))? {
+            let path = dir.join(p.file_name);
+            stillsky::io::atomic::write_atomic(&path, p.svg.as_bytes())?;
+            println!("plot: {}", path.display());
+        }
+    }
+    if let Some(p) = &a.json {
+        let text = serde_json::to_string_pretty(&s).map_err(|e| Failure::io("json", e))?;
+        stillsky::io::atomic::write_atomic(p, text.as_bytes())?;
+        println!("json: {}", p.display());
+    }
+    Ok(())
+}
+
+fn parse_band(s: &str) -> Result<(f64, f64), Failure> {
+    let bad = || Failure { code: 2, message: format!("--band: expected LO:HI in Hz (e.g. 1:10), got '{s}'") };
+    let (lo, hi) = s.split_once(':').ok_or_else(bad)?;
+    let (lo, hi): (f64, f64) = (lo.trim().parse().map_err(|_| bad())?, hi.trim().parse().map_err(|_| bad())?);
+    if !(lo > 0.0 && hi > lo && hi.is_finite()) {
+        return Err(bad());
+    }
+    Ok((lo, hi))
 }
 
 fn transfer(a: &TransferArgs) -> CliResult {

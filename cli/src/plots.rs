@@ -1136,3 +1136,103 @@ mod tests {
         }
     }
 }
+
+/// The quiet-hours survey's plots: the percentile curves of each axis against frequency with
+/// Peterson's NLNM and NHNM, and the band RMS over the hours of the day (with the share of
+/// blocks that held ½ px when the rig judged them).
+pub fn quiet_survey_svgs(s: &stillsky::batch::QuietSurvey) -> PlotResult<Vec<Plot>> {
+    use stillsky::spectrum::ReferenceGround;
+    let mut out = Vec::new();
+    // Increasing frequency: the period bins reversed.
+    let order: Vec<usize> = (0..s.period_s.len()).rev().collect();
+    let freq: Vec<f64> = order.iter().map(|&k| 1.0 / s.period_s[k]).collect();
+    let model_db = |m: ReferenceGround| -> Vec<f64> {
+        order.iter().map(|&k| m.accel_db_at_period(s.period_s[k]).unwrap_or(f64::NAN)).collect()
+    };
+    let mut lines = Vec::new();
+    for a in &s.axes {
+        for (q, v) in &a.percentiles_db {
+            if [10.0, 50.0, 90.0].contains(q) {
+                lines.push(data_line(
+                    &format!("{} {q:.0} %", a.ground_axis),
+                    &freq,
+                    order.iter().map(|&k| v[k]).collect(),
+                ));
+            }
+        }
+    }
+    for (m, name) in [(ReferenceGround::Nlnm, "NLNM"), (ReferenceGround::Nhnm, "NHNM")] {
+        let mut l = data_line(&format!("Peterson {name}"), &freq, model_db(m));
+        l.reference = true;
+        lines.push(l);
+    }
+    let title = format!("Probabilistic PSD: {} blocks of {} s", s.n_blocks, s.block_s);
+    let svg = chart(
+        &title,
+        "frequency (Hz)",
+        "acceleration PSD (dB re 1 (m/s²)²/Hz)",
+        &lines,
+        true,
+        false,
+        SeriesLabelPosition::LowerRight,
+    )?;
+    out.push(Plot { file_name: "quiet-percentiles.svg", title, svg });
+    if s.hour_blocks.iter().any(|&n| n > 0) {
+        let hours: Vec<f64> = (0..24).map(f64::from).collect();
+        let scale = match s.band_quantity {
+            stillsky::spectrum::Quantity::Velocity => 1e6,
+            _ => 1.0,
+        };
+        let unit = if scale == 1e6 { "µm/s" } else { "SI" };
+        let mut lines: Vec<Line> = s
+            .bands_hz
+            .iter()
+            .enumerate()
+            .map(|(b, (lo, hi))| {
+                data_line(
+                    &format!("RMS {lo}-{hi} Hz"),
+                    &hours,
+                    (0..24).map(|h| s.hour_band_rms[h][b] * scale).collect(),
+                )
+            })
+            .collect();
+        lines.retain(|l| l.y.iter().any(|v| v.is_finite() && *v > 0.0));
+        if !lines.is_empty() {
+            let title = "Ground motion over the hours of the day".to_string();
+            let svg = chart(
+                &title,
+                "hour of the day (UTC)",
+                &format!("band RMS ({unit})"),
+                &lines,
+                false,
+                true,
+                SeriesLabelPosition::UpperRight,
+            )?;
+            out.push(Plot { file_name: "quiet-hour-map.svg", title, svg });
+        }
+        if s.hour_judged.iter().any(|&n| n > 0) {
+            let share: Vec<f64> = (0..24)
+                .map(|h| {
+                    if s.hour_judged[h] > 0 {
+                        s.hour_held[h] as f64 / s.hour_judged[h] as f64
+                    } else {
+                        f64::NAN
+                    }
+                })
+                .collect();
+            let lines = vec![data_line("share of blocks holding ½ px", &hours, share)];
+            let title = "Hours when the rig holds ½ px".to_string();
+            let svg = chart(
+                &title,
+                "hour of the day (UTC)",
+                "share of blocks",
+                &lines,
+                false,
+                false,
+                SeriesLabelPosition::LowerRight,
+            )?;
+            out.push(Plot { file_name: "quiet-hours-held.svg", title, svg });
+        }
+    }
+    Ok(out)
+}

@@ -840,3 +840,99 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
     let _ = writeln!(s, "\n{}", stillsky::checks::CAUTIONS.join("\n"));
     s
 }
+
+/// The quiet-hours survey as text: the recording, percentile levels per axis at a few
+/// frequencies, the hour map and the hours that hold ½ px.
+pub fn quiet_survey_text(s: &stillsky::batch::QuietSurvey) -> String {
+    let mut t = String::new();
+    let _ = writeln!(
+        t,
+        "quiet hours: {} ({} Hz{}), {} blocks of {} s",
+        s.source,
+        s.fs_hz,
+        s.start_time.as_deref().map(|x| format!(", start {x}")).unwrap_or_default(),
+        s.n_blocks,
+        s.block_s
+    );
+    let freqs: Vec<f64> = [0.1, 0.3, 1.0, 3.0, 10.0, 30.0]
+        .into_iter()
+        .filter(|&f| s.period_s.iter().any(|&p| (1.0 / p - f).abs() / f < 0.1))
+        .collect();
+    for a in &s.axes {
+        let _ = writeln!(
+            t,
+            "\naxis {} ('{}'): acceleration PSD, dB re 1 (m/s²)²/Hz (probabilistic PSD, McNamara & Buland 2004)",
+            a.ground_axis, a.name
+        );
+        let mut head = String::from("  freq (Hz)");
+        for (q, _) in &a.percentiles_db {
+            let _ = write!(head, "{:>8}", format!("{q:.0} %"));
+        }
+        let _ = writeln!(t, "{head}  below NLNM  above NHNM");
+        for f in &freqs {
+            let Some(k) = nearest(&s.period_s, 1.0 / f) else { continue };
+            let mut row = format!("  {:>9.2}", 1.0 / s.period_s[k]);
+            for (_, v) in &a.percentiles_db {
+                let _ = write!(row, "{:>8.0}", v[k]);
+            }
+            let share = |x: f64| {
+                if x.is_finite() { format!("{:>10.0} %", 100.0 * x) } else { format!("{:>12}", "-") }
+            };
+            let _ = writeln!(t, "{row}{}{}", share(a.share_below_nlnm[k]), share(a.share_above_nhnm[k]));
+        }
+    }
+    let (unit, factor) = match s.band_quantity {
+        stillsky::spectrum::Quantity::Velocity => ("µm/s", 1e6),
+        stillsky::spectrum::Quantity::Acceleration => ("mm/s²", 1e3),
+        stillsky::spectrum::Quantity::Displacement => ("µm", 1e6),
+        _ => ("SI", 1.0),
+    };
+    if s.hour_blocks.iter().any(|&n| n > 0) {
+        let mut head = String::from("\nhour (UTC)  blocks");
+        for (lo, hi) in &s.bands_hz {
+            let _ = write!(head, "  {:>16}", format!("RMS {lo}-{hi} Hz"));
+        }
+        let judged = s.hour_judged.iter().any(|&n| n > 0);
+        if judged {
+            head.push_str("  held ½ px");
+        }
+        let _ =
+            writeln!(t, "{head}   (RMS in {unit}, axis {})", s.axes.first().map_or("", |a| &a.ground_axis));
+        for h in 0..24 {
+            if s.hour_blocks[h] == 0 {
+                continue;
+            }
+            let mut row = format!("  {h:02}:00   {:>7}", s.hour_blocks[h]);
+            for v in &s.hour_band_rms[h] {
+                let _ = write!(row, "  {:>16.4}", v * factor);
+            }
+            if judged {
+                let _ = write!(row, "  {:>4}/{}", s.hour_held[h], s.hour_judged[h]);
+            }
+            let _ = writeln!(t, "{row}");
+        }
+        if judged {
+            let q = s.quiet_hours();
+            let _ = writeln!(
+                t,
+                "hours in which every block holds ½ px: {}",
+                if q.is_empty() {
+                    "none".to_string()
+                } else {
+                    q.iter().map(|h| format!("{h:02}")).collect::<Vec<_>>().join(", ")
+                }
+            );
+        }
+    } else if s.blocks.iter().any(|b| b.holds.is_some()) {
+        let held = s.blocks.iter().filter(|b| b.holds == Some(true)).count();
+        let _ = writeln!(t, "\nblocks in which the rig holds ½ px: {held} of {}", s.blocks.len());
+    }
+    for n in &s.notes {
+        let _ = writeln!(t, "note: {n}");
+    }
+    t
+}
+
+fn nearest(v: &[f64], x: f64) -> Option<usize> {
+    v.iter().enumerate().min_by(|a, b| (a.1 - x).abs().total_cmp(&(b.1 - x).abs())).map(|(i, _)| i)
+}

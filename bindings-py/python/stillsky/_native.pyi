@@ -636,6 +636,26 @@ def probabilistic_psd(
     ``block_db`` (blocks × periods), ``hour_blocks`` (24,), ``hour_band_rms`` (24 × bands).
     """
 
+def quiet_hours(
+    path: str | PathLike[str],
+    model: Model | None = ...,
+    *,
+    block_s: float = ...,
+    overlap: float = ...,
+    bands_hz: Sequence[tuple[float, float]] = ...,
+    fs_hz: float | None = ...,
+    sensitivity: tuple[float, str] | None = ...,
+) -> dict[str, Any]:
+    """Quiet hours of a site from one ground recording file (text with ``# start_time=``, WAV or
+    miniSEED; ``sensitivity`` = (counts per unit, unit) for counts), read in chunks: a
+    probabilistic PSD per ground axis (``axes``: ``percentiles_db`` as [q, dB per period],
+    ``mean_db``, ``share_below_nlnm``, ``share_above_nhnm``), ``period_s``, the band RMS over the
+    hours of the day (``hour_blocks``, ``hour_band_rms`` [hour][band], SI), and with a ``model``
+    (needs ``[optics]``) every block judged through the rig (``blocks``: ``rms_radial_px``,
+    ``p_outside``, ``holds``; ``hour_judged``, ``hour_held``) and ``quiet_hours``, the hours in
+    which every block holds ½ px. Same numbers as ``stillsky quiet-hours --json``; NaN arrives
+    as None."""
+
 def transfer_estimate(
     x: _F64In,
     y: _F64In,

@@ -66,8 +66,9 @@ pub struct QuietSurvey {
     /// Period bin centres (s), increasing; frequencies are their inverses.
     pub period_s: Vec<f64>,
     pub axes: Vec<SurveyAxis>,
-    /// Bands (Hz) of the hour map and the quantity of their RMS.
+    /// Bands (Hz) of the hour map and the quantity of their RMS (SI).
     pub bands_hz: Vec<(f64, f64)>,
+    #[serde(serialize_with = "quantity_name")]
     pub band_quantity: Quantity,
     /// Per hour of the day (24): blocks, band RMS `[hour][band]` (NaN without blocks), blocks
     /// judged through the rig and blocks that held ½ px.
@@ -136,7 +137,9 @@ pub fn survey_recording(path: &Path, model: Option<&Model>, o: &SurveyOptions) -
     }
     let mut engine = match model {
         Some(m) => Engine::Rig(QuietHours::new(m, o.grid.clone(), h.fs_hz, &cfg, &map)?),
-        None => Engine::Spectra(map.iter().map(|_| ProbabilisticPsd::new(h.fs_hz, &cfg)).collect::<Result<_>>()?),
+        None => {
+            Engine::Spectra(map.iter().map(|_| ProbabilisticPsd::new(h.fs_hz, &cfg)).collect::<Result<_>>()?)
+        }
     };
     let mut chunk = SeriesChunk::new();
     let mut blocks = Vec::new();
@@ -220,6 +223,10 @@ pub fn survey_recording(path: &Path, model: Option<&Model>, o: &SurveyOptions) -
         blocks,
         notes,
     })
+}
+
+fn quantity_name<S: serde::Serializer>(q: &Quantity, s: S) -> std::result::Result<S::Ok, S::Error> {
+    s.serialize_str(q.name())
 }
 
 fn plain_block(b: &PpsdBlock) -> SurveyBlock {
