@@ -229,6 +229,10 @@ struct GroundArgs {
     /// m_s, mm_s, um_s, m, mm, um. Without it miniSEED samples are counts and refused as ground.
     #[arg(long, value_parser = parse_sensitivity)]
     sensitivity: Option<Sensitivity>,
+    /// The sensor of the recording (phone-mems, low-noise-mems, geophone-4.5hz): notes where its
+    /// spectrum sits at the sensor's noise floor.
+    #[arg(long)]
+    sensor: Option<String>,
 }
 
 /// The cells of a sky map; without any of these the rig's default grid is used.
@@ -412,6 +416,10 @@ struct SweepArgs {
     /// (linear between rows, refused outside); default 20, the catalogue as written.
     #[arg(long, allow_negative_numbers = true, default_value_t = batch::NOMINAL_TEMPERATURE_C)]
     temperature_c: f64,
+    /// The sensor of the recordings (phone-mems, low-noise-mems, geophone-4.5hz): warns where a
+    /// recording's spectrum sits at the sensor's noise floor before the ranking uses it.
+    #[arg(long)]
+    sensor: Option<String>,
 }
 
 #[derive(Args)]
@@ -676,6 +684,7 @@ fn ground_options(a: &GroundArgs, o: &mut ReportOptions) {
         o.ground_scale = s;
     }
     o.series = series_options(a.fs, a.sensitivity);
+    o.sensor = a.sensor.clone();
 }
 
 /// The sky grid the options ask for: None for the rig's default.
@@ -995,10 +1004,19 @@ fn sweep(a: &SweepArgs) -> CliResult {
     cfg.series = series_options(a.fs, a.sensitivity);
     cfg = cfg.with_temperature_c(a.temperature_c);
     let winds = a.wind.iter().map(|w| WindCase::parse(w)).collect::<Result<Vec<_>, _>>()?;
+    let grounds = ground_sources(&a.ground)?;
+    if let Some(name) = &a.sensor {
+        let curve = stillsky::sensor_response::NoiseCurve::preset(name)?;
+        for g in &grounds {
+            for w in g.load(&cfg.grid, cfg.ground_scale, &cfg.series)?.noise_floor_notes(&curve)? {
+                eprintln!("warning: {w}");
+            }
+        }
+    }
     let run = SweepRun {
         model: &a.model,
         catalogue: &a.catalogue,
-        grounds: ground_sources(&a.ground)?,
+        grounds,
         winds,
         out: &a.out,
         resume: a.resume,

@@ -14,6 +14,7 @@
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::io::series::{SeriesOptions, SeriesQuantity, read_series};
+use crate::sensor_response::{NoiseCurve, noise_floor_check};
 use crate::spectrum::{Psd, Quantity, ReferenceGround, WelchConfig, welch};
 use std::path::{Path, PathBuf};
 
@@ -116,6 +117,32 @@ pub struct GroundSpectrum {
     /// x, y, z (None: that axis is not excited).
     pub axes: [Option<Psd>; 3],
     pub note: Option<String>,
+}
+
+impl GroundSpectrum {
+    /// Warnings for the axes of a measured spectrum (recordings and PSD files; reference curves
+    /// are not checked) that sit within the default factor of a sensor's noise floor
+    /// ([`crate::sensor_response::noise_floor_check`]): there the spectrum shows the sensor's
+    /// own noise, not the ground's motion.
+    pub fn noise_floor_notes(&self, sensor: &NoiseCurve) -> Result<Vec<String>> {
+        if matches!(self.source, GroundSource::Reference(_)) {
+            return Ok(Vec::new());
+        }
+        let mut out = Vec::new();
+        for (k, p) in self.axes.iter().enumerate() {
+            let Some(p) = p else { continue };
+            if let Some(w) = noise_floor_check(p, sensor, None)?.warning {
+                out.push(format!(
+                    "ground {} axis {}: {w} ({}: {})",
+                    self.source.label(),
+                    ["x", "y", "z"][k],
+                    sensor.name,
+                    sensor.source
+                ));
+            }
+        }
+        Ok(out)
+    }
 }
 
 fn axis_index(name: &str) -> Option<usize> {
@@ -237,6 +264,31 @@ fn recording_psds(path: &Path, scale: [f64; 3], opts: &SeriesOptions) -> Result<
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_quiet_recording_under_a_phone_accelerometer_is_flagged() {
+        // The demo's quiet night is ~1e-5 m/s² RMS over 100 Hz (~1e-6 m/s²/√Hz): below a
+        // phone-class MEMS floor of 150 µg/√Hz (1.5e-3 m/s²/√Hz) everywhere, so every axis is
+        // flagged; a reference curve is never checked.
+        let root = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("..");
+        let rec = GroundSource::Recording(root.join("docs/examples/recordings/quiet-night.csv"));
+        let grid = FreqGrid::log(0.5, 90.0, 200).unwrap();
+        let g = rec.load(&grid, [1.0; 3], &SeriesOptions::default()).unwrap();
+        let phone = NoiseCurve::preset("phone-mems").unwrap();
+        let notes = g.noise_floor_notes(&phone).unwrap();
+        assert_eq!(notes.len(), 3, "{notes:?}");
+        assert!(notes[2].contains("axis z") && notes[2].contains("noise floor"), "{}", notes[2]);
+        let nhnm =
+            GroundSource::Reference(ReferenceGround::Nhnm).load(&grid, [1.0; 3], &SeriesOptions::default());
+        assert!(nhnm.unwrap().noise_floor_notes(&phone).unwrap().is_empty());
+        // Scaled up, less of it sits at the floor (what remains is below 0.1 Hz, where the
+        // recording has no content).
+        let loud = rec.load(&grid, [1e8; 3], &SeriesOptions::default()).unwrap();
+        let share = |g: &GroundSpectrum| {
+            noise_floor_check(g.axes[2].as_ref().unwrap(), &phone, None).unwrap().fraction_at_floor
+        };
+        assert!(share(&loud) < share(&g), "{} {}", share(&loud), share(&g));
+    }
 
     #[test]
     fn nperseg_is_power_of_two_near_ten_seconds() {

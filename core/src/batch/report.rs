@@ -65,6 +65,10 @@ pub struct ReportOptions {
     /// were measured at to the rig's ([`crate::distance_attenuation`]); without a wave speed it
     /// takes the site's phase velocity from the model.
     pub ground_path: Option<GroundPathSpec>,
+    /// The sensor that made the ground recording, by noise-curve name
+    /// ([`crate::sensor_response::NOISE_CURVES`]): the report notes where the recorded spectrum
+    /// sits at its noise floor.
+    pub sensor: Option<String>,
 }
 
 /// Settings of the report's people section ([`crate::people`]).
@@ -152,6 +156,7 @@ impl ReportOptions {
             people: PeopleOptions::new()?,
             tones: Vec::new(),
             ground_path: None,
+            sensor: None,
         })
     }
 }
@@ -477,7 +482,11 @@ fn build_report_with(spec: &ModelSpec, o: &ReportOptions, deck: Option<&str>) ->
                 GroundSource::Reference(ReferenceGround::Nhnm)
             }
         };
-        Some(carried(src.load(grid, o.ground_scale, &o.series)?, path.as_ref())?)
+        let g = src.load(grid, o.ground_scale, &o.series)?;
+        if let Some(name) = &o.sensor {
+            notes.extend(g.noise_floor_notes(&crate::sensor_response::NoiseCurve::preset(name)?)?);
+        }
+        Some(carried(g, path.as_ref())?)
     };
     if let Some(n) = ground.as_ref().and_then(|g| g.note.clone()) {
         notes.push(n);
