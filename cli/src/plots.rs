@@ -1107,36 +1107,6 @@ fn levels_chart(
     Ok(svg)
 }
 
-#[cfg(test)]
-mod tests {
-    use super::tick_label;
-
-    #[test]
-    fn ticks_are_plain_decimals_or_powers_of_ten_with_superscripts() {
-        let cases = [
-            (1.0, "1"),
-            (10.0, "10"),
-            (0.001, "0.001"),
-            (0.25, "0.25"),
-            (2.5, "2.5"),
-            (1000.0, "1000"),
-            (1e-4, "10⁻⁴"),
-            (1e-12, "10⁻¹²"),
-            (1e5, "10⁵"),
-            (3e-7, "3×10⁻⁷"),
-            (2.5e-5, "2.5×10⁻⁵"),
-            (9.9999999e-5, "10⁻⁴"),
-            (-0.5, "−0.5"),
-            (-1e-6, "−10⁻⁶"),
-            (0.0, "0"),
-            (0.30000000000000004, "0.3"),
-        ];
-        for (v, want) in cases {
-            assert_eq!(tick_label(v), want, "tick for {v:e}");
-        }
-    }
-}
-
 /// The quiet-hours survey's plots: the percentile curves of each axis against frequency with
 /// Peterson's NLNM and NHNM, and the band RMS over the hours of the day (with the share of
 /// blocks that held ½ px when the rig judged them).
@@ -1235,4 +1205,34 @@ pub fn quiet_survey_svgs(s: &stillsky::batch::QuietSurvey) -> PlotResult<Vec<Plo
         }
     }
     Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::tick_label;
+
+    #[test]
+    fn ticks_are_plain_decimals_or_powers_of_ten_with_superscripts() {
+        let cases = [
+            (1.0, "1"),
+            (10.0, "10"),
+            (0.001, "0.001"),
+            (0.25, "0.25"),
+            (2.5, "2.5"),
+            (1000.0, "1000"),
+            (1e-4, "10⁻⁴"),
+            (1e-12, "10⁻¹²"),
+            (1e5, "10⁵"),
+            (3e-7, "3×10⁻⁷"),
+            (2.5e-5, "2.5×10⁻⁵"),
+            (9.9999999e-5, "10⁻⁴"),
+            (-0.5, "−0.5"),
+            (-1e-6, "−10⁻⁶"),
+            (0.0, "0"),
+            (0.30000000000000004, "0.3"),
+        ];
+        for (v, want) in cases {
+            assert_eq!(tick_label(v), want, "tick for {v:e}");
+        }
+    }
 }
