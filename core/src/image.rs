@@ -46,9 +46,12 @@ pub fn p_outside_isotropic(radius: f64, sigma: f64) -> f64 {
 }
 
 /// P(r > R) for zero-mean 2-D Gaussian motion with variances `var_x`, `var_y` and covariance
-/// `cov_xy`. With principal variances a², b² the probability inside is
-/// (1/2πab) ∫₀^{2π} (1 − e^{−R²q(θ)/2})/q(θ) dθ, q = cos²θ/a² + sin²θ/b², integrated by the
-/// trapezoid rule on 512 angles (spectrally accurate for a smooth periodic integrand).
+/// `cov_xy`. With principal variances a², b² the probability outside is
+/// (1/2πab) ∫₀^{2π} e^{−R²q(θ)/2}/q(θ) dθ, q = cos²θ/a² + sin²θ/b² (the integrand of the
+/// probability inside, (1 − e^{−R²q/2})/q, less its R = 0 value, whose integral is exactly 2πab),
+/// integrated by the trapezoid rule on 512 angles (spectrally accurate for a smooth periodic
+/// integrand). Summing the outside directly keeps small probabilities free of the rounding
+/// noise of 1 − P(inside).
 pub fn p_outside(radius: f64, var_x: f64, var_y: f64, cov_xy: f64) -> f64 {
     let tr = var_x + var_y;
     let det = (var_x * var_y - cov_xy * cov_xy).max(0.0);
@@ -67,10 +70,9 @@ pub fn p_outside(radius: f64, var_x: f64, var_y: f64, cov_xy: f64) -> f64 {
     for k in 0..m {
         let th = 2.0 * PI * k as f64 / m as f64;
         let q = th.cos().powi(2) / a2 + th.sin().powi(2) / b2;
-        acc += (1.0 - (-radius * radius * q / 2.0).exp()) / q;
+        acc += (-radius * radius * q / 2.0).exp() / q;
     }
-    let inside = acc * (2.0 * PI / m as f64) / (2.0 * PI * a * b);
-    (1.0 - inside).clamp(0.0, 1.0)
+    (acc * (2.0 * PI / m as f64) / (2.0 * PI * a * b)).clamp(0.0, 1.0)
 }
 
 /// Complementary error function (Numerical Recipes' erfcc rational approximation, relative
@@ -510,6 +512,11 @@ mod tests {
         let vy = a2 * s * s + b2 * c * c;
         let cxy = (a2 - b2) * c * s;
         assert_relative_eq!(p_outside(1.3, vx, vy, cxy), p_outside(1.3, a2, b2, 0.0), max_relative = 1e-9);
+        // Far tails keep their relative accuracy (no 1 − P(inside) rounding floor near 1e-16):
+        // a star of σ = 0.05 px leaves ½ px with P = e^{−50} (Rayleigh), not ~1e-16.
+        assert_relative_eq!(p_outside(0.5, 0.0025, 0.0025, 0.0), (-50.0f64).exp(), max_relative = 1e-12);
+        assert_eq!(p_outside(0.5, 1e-6, 1e-6, 0.0), 0.0);
+        assert_relative_eq!(p_outside(0.0, 2.0, 0.5, 0.3), 1.0, max_relative = 1e-12);
     }
 
     #[test]
