@@ -191,7 +191,9 @@ pub(crate) fn ground_axis_map(names: &[String], file: &str) -> Result<Vec<usize>
     } else {
         return Err(Error::invalid(
             format!("recording {file}"),
-            format!("cannot tell which model axis each of the columns {names:?} is; name them x/y/z (or e/n/u)"),
+            format!(
+                "cannot tell which model axis each of the columns {names:?} is; name them x/y/z (or e/n/u)"
+            ),
         ));
     };
     let mut seen = [false; 3];

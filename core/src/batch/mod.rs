@@ -18,9 +18,9 @@ pub mod gust;
 pub mod quiet_survey;
 pub mod ranking;
 pub mod report;
+pub mod spring_sets;
 pub mod study;
 pub mod study_file;
-pub mod spring_sets;
 pub mod sweep;
 pub mod sweep_row;
 
@@ -33,19 +33,21 @@ pub use gust::{
     GUST_START_S, GustCase, GustFamily, GustPlan, gust_amplitude_m_s, gust_durations, gust_family,
     gust_family_responses, gust_family_with,
 };
-pub use quiet_survey::{QuietSurvey, SURVEY_PERCENTILES, SurveyAxis, SurveyBlock, SurveyOptions, survey_recording};
+pub use quiet_survey::{
+    QuietSurvey, SURVEY_PERCENTILES, SurveyAxis, SurveyBlock, SurveyOptions, survey_recording,
+};
 pub use ranking::{RankEntry, RankTable, SweepSummary, Verdict, Visibility, summarize};
 pub use report::{
     CriterionVerdict, Curve, GUST_RIG_LABEL, GustOutcome, GustReport, GustTrace, ModeRow, PeopleOptions,
     PeopleReport, Report, ReportOptions, build_file_report, build_report, file_people_report, report_sky_map,
 };
+pub use spring_sets::{ImageStats, SpringSets, spring_changes};
 pub use study::{
     BASE, OUTCOMES, Sensitivity, StudyOutcome, StudyRankEntry, StudyRanking, StudyRow, StudySummary, Variant,
     evaluate_variant, read_study_csv, run_study, sensitivity, study_columns, study_csv_text, study_rows,
     study_rows_of, summarize_study, variants,
 };
-pub use study_file::{Combine, Study, StudySettings, Variable, VariableKind};
-pub use spring_sets::{ImageStats, SpringSets, spring_changes};
+pub use study_file::{Combine, Study, StudySetting, StudySettings, Variable, VariableKind};
 pub use sweep::{
     PadMechanism, SweepConfig, SweepEngine, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
     ground_labels, pad_alternatives, run_sweep, sweep_csv_text, sweep_rows, sweep_rows_labelled,

@@ -136,7 +136,9 @@ pub fn survey_recording(path: &Path, model: Option<&Model>, o: &SurveyOptions) -
     }
     let mut engine = match model {
         Some(m) => Engine::Rig(QuietHours::new(m, o.grid.clone(), h.fs_hz, &cfg, &map)?),
-        None => Engine::Spectra(map.iter().map(|_| ProbabilisticPsd::new(h.fs_hz, &cfg)).collect::<Result<_>>()?),
+        None => {
+            Engine::Spectra(map.iter().map(|_| ProbabilisticPsd::new(h.fs_hz, &cfg)).collect::<Result<_>>()?)
+        }
     };
     let mut chunk = SeriesChunk::new();
     let mut blocks = Vec::new();
