@@ -1461,4 +1461,25 @@ mod tests {
         }
         assert!(n > 0);
     }
+
+    #[test]
+    fn the_deck_and_road_example_runs_and_reads_as_a_practitioner_expects() {
+        let s = Study::read(&examples().join("study-deck-and-road.toml")).unwrap();
+        let rows = study_rows(&s, None).unwrap();
+        assert_eq!(rows.len(), 20);
+        assert!(rows.iter().all(|r| r.error.is_none()));
+        // 80 kg 1 m from the stand on a deck rocking at 5e6 N m/rad: W d / k = 784.5 / 5e6 rad
+        // = 32.4 arcsec (the rigid-deck statics above); the stand turns with the deck.
+        let b = row(&rows, BASE);
+        let hand = 80.0 * crate::people::STANDARD_GRAVITY_M_S2 / 5.0e6 * crate::units::ARCSEC_PER_RAD;
+        assert!(close(b.standing_tilt_arcsec, hand, 0.02), "{} vs {hand}", b.standing_tilt_arcsec);
+        // Moving away from the road lowers the image RMS at every standing distance.
+        for d in ["0.25", "3"] {
+            let at: Vec<f64> = ["5", "10", "20", "40"]
+                .iter()
+                .map(|g| rows.iter().find(|r| r.values == [d, *g]).unwrap().rms_px)
+                .collect();
+            assert!(at.windows(2).all(|p| p[1] < p[0]), "{d}: {at:?}");
+        }
+    }
 }
