@@ -742,6 +742,8 @@ pub struct StudyRankEntry {
     pub first_mode_hz: f64,
     pub gust_peak_px: f64,
     pub min_static_fos: f64,
+    /// Static image angle under the study's standing person (px; NaN without one or a deck).
+    pub standing_tilt_px: f64,
 }
 
 /// The variants ranked under one disturbance (smallest image RMS first).
@@ -789,6 +791,7 @@ pub fn summarize_study(rows: &[StudyRow], vis: &Visibility) -> StudySummary {
                     first_mode_hz: r.first_mode_hz,
                     gust_peak_px: r.gust_peak_px,
                     min_static_fos: r.min_static_fos,
+                    standing_tilt_px: r.standing_tilt_px,
                 })
                 .collect();
             entries.sort_by(|a, b| a.rms_px.total_cmp(&b.rms_px).then_with(|| a.variant.cmp(&b.variant)));
