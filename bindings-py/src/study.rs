@@ -32,6 +32,8 @@ fn row_dict<'py>(py: Python<'py>, cols: &[String], r: &StudyRow) -> PyResult<Bou
             "gust_peak_px" => d.set_item(c, r.gust_peak_px)?,
             "gust_ringdown_s" => d.set_item(c, r.gust_ringdown_s)?,
             "min_static_fos" => d.set_item(c, r.min_static_fos)?,
+            "standing_tilt_arcsec" => d.set_item(c, r.standing_tilt_arcsec)?,
+            "standing_tilt_px" => d.set_item(c, r.standing_tilt_px)?,
             "error" if i == cols.len() - 1 => d.set_item(c, r.error.clone())?,
             _ => d.set_item(c, &f[i])?,
         }
@@ -67,6 +69,8 @@ fn dict_row(d: &Bound<'_, PyAny>, cols: &[String], n_vars: usize, i: usize) -> P
         gust_peak_px: num("gust_peak_px")?,
         gust_ringdown_s: num("gust_ringdown_s")?,
         min_static_fos: num("min_static_fos")?,
+        standing_tilt_arcsec: num("standing_tilt_arcsec")?,
+        standing_tilt_px: num("standing_tilt_px")?,
     })
 }
 

@@ -81,3 +81,44 @@ def test_distributed_study_gives_the_same_rows_bit_for_bit(tmp_path):
         cluster.close()
     assert [bits(r) for r in remote] == [bits(r) for r in local]
     assert remote.to_csv() == local.to_csv()
+
+
+def test_study_standing_tilt_and_ground_distance_match_the_module_functions(tmp_path):
+    """The study's standing-tilt outcome is stillsky.standing_tilt on the same model; its ground
+    distance variable scales the image RMS by stillsky.ground_distance_ratio (with no soil loss
+    the Bornitz ratio (r1/r2)^0.5 is the same at every frequency, so a linear rig's image RMS
+    scales by exactly it)."""
+    text = f"""
+model = "{EX / 'tripod-deck.toml'}"
+[[vary]]
+setting = "person_distance_m"
+values = [0.5, 2.0]
+[[vary]]
+setting = "ground_distance_m"
+values = [5, 20]
+[disturbances]
+grounds = ["nhnm"]
+[settings]
+f_min_hz = 0.5
+f_max_hz = 60
+n_freq = 120
+person_kg = 80
+ground_measured_at_m = 5
+soil_loss_factor = 0
+"""
+    p = tmp_path / "people-road.toml"
+    p.write_text(text, encoding="utf-8")
+    t = stillsky.study(p)
+    assert "standing_tilt_arcsec" in t.columns and "standing_tilt_px" in t.columns
+    rows = {(r["person_distance_m"], r["ground_distance_m"]): r for r in t if r["status"] == "ok"}
+    m = stillsky.Model.from_toml(EX / "tripod-deck.toml")
+    ref = stillsky.standing_tilt(m, [0.5, 2.0], "floor", mass_kg=80.0)
+    for d, want in zip(["0.5", "2"], ref["image_arcsec"]):
+        assert rows[(d, "5")]["standing_tilt_arcsec"] == pytest.approx(want, rel=1e-12)
+    # A rigid deck on springs tilts by W d / k_rock: farther from the stand, more tilt.
+    assert rows[("2", "5")]["standing_tilt_arcsec"] > rows[("0.5", "5")]["standing_tilt_arcsec"]
+    ratio = stillsky.ground_distance_ratio([1.0, 30.0], 5.0, 20.0, loss_factor=0.0)
+    assert ratio[0] == pytest.approx(0.5, rel=1e-15) and ratio[1] == pytest.approx(0.5, rel=1e-15)
+    for d in ["0.5", "2"]:
+        got = rows[(d, "20")]["rms_arcsec"] / rows[(d, "5")]["rms_arcsec"]
+        assert got == pytest.approx(ratio[0], rel=1e-12)

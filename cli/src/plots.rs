@@ -886,16 +886,20 @@ fn file_stem(s: &str) -> String {
 }
 
 /// The outcomes a study plots, with their axis words.
-const STUDY_PLOTTED: [(&str, &str); 4] = [
+const STUDY_PLOTTED: [(&str, &str); 5] = [
     ("rms_px", "image RMS (px)"),
     ("gust_peak_px", "worst gust peak (px)"),
     ("first_mode_hz", "first natural frequency (Hz)"),
     ("min_static_fos", "lowest static factor of safety"),
+    ("standing_tilt_px", "standing-person tilt (px)"),
 ];
+
+/// The outcomes plotted against each variable's values (skipped where they have no numbers).
+const STUDY_AGAINST_VALUES: [(&str, &str); 3] = [STUDY_PLOTTED[0], STUDY_PLOTTED[1], STUDY_PLOTTED[4]];
 
 /// The plots of a study: a sensitivity chart per outcome (the range of each variable's main
 /// effect, one bar per disturbance) and, per variable, image RMS against its values (one line
-/// per disturbance). Outcomes without numbers (e.g. gusts in a calm-only study) are skipped.
+/// per disturbance; the standing tilt too when the study has a person on a deck). Outcomes without numbers (e.g. gusts in a calm-only study) are skipped.
 pub fn study_svgs(
     study: &stillsky::batch::Study,
     s: &[stillsky::batch::Sensitivity],
@@ -924,7 +928,7 @@ pub fn study_svgs(
         });
     }
     for var in &study.variables {
-        for (outcome, words) in STUDY_PLOTTED.iter().take(2) {
+        for (outcome, words) in STUDY_AGAINST_VALUES.iter() {
             let series: Vec<(String, Vec<f64>)> = disturbances
                 .iter()
                 .filter_map(|(g, w)| {

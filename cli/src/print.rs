@@ -769,6 +769,7 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
     );
     for t in &o.summary.per_disturbance {
         let windy = t.entries.iter().any(|e| e.gust_peak_px.is_finite());
+        let person = t.entries.iter().any(|e| e.standing_tilt_px.is_finite());
         let _ = writeln!(s, "\nranking, ground {}, wind {} (image RMS, lower is better):", t.ground, t.wind);
         let _ = write!(
             s,
@@ -777,6 +778,9 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
         );
         if windy {
             let _ = write!(s, " {:>8}", "gust px");
+        }
+        if person {
+            let _ = write!(s, " {:>9}", "stand px");
         }
         let _ = writeln!(s, " {:>6}  vs base", "FoS");
         for (k, e) in t.entries.iter().enumerate() {
@@ -792,6 +796,9 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
             );
             if windy {
                 let _ = write!(s, " {:>8.3}", e.gust_peak_px);
+            }
+            if person {
+                let _ = write!(s, " {:>9.3}", e.standing_tilt_px);
             }
             let _ = writeln!(s, " {:>6.2}  {}", e.min_static_fos, e.vs_base);
         }

@@ -47,7 +47,7 @@ pub use study::{
     evaluate_variant, read_study_csv, run_study, sensitivity, study_columns, study_csv_text, study_rows,
     study_rows_of, summarize_study, variants,
 };
-pub use study_file::{Combine, Study, StudySettings, Variable, VariableKind};
+pub use study_file::{Combine, Study, StudySetting, StudySettings, Variable, VariableKind};
 pub use sweep::{
     PadMechanism, SweepConfig, SweepEngine, SweepInputs, SweepOutcome, SweepProgress, WindCase, check_sweep,
     ground_labels, pad_alternatives, run_sweep, sweep_csv_text, sweep_rows, sweep_rows_labelled,

@@ -68,7 +68,6 @@ pub struct QuietSurvey {
     pub axes: Vec<SurveyAxis>,
     /// Bands (Hz) of the hour map and the quantity of their RMS (SI).
     pub bands_hz: Vec<(f64, f64)>,
-    #[serde(serialize_with = "quantity_name")]
     pub band_quantity: Quantity,
     /// Per hour of the day (24): blocks, band RMS `[hour][band]` (NaN without blocks), blocks
     /// judged through the rig and blocks that held ½ px.
@@ -223,10 +222,6 @@ pub fn survey_recording(path: &Path, model: Option<&Model>, o: &SurveyOptions) -
         blocks,
         notes,
     })
-}
-
-fn quantity_name<S: serde::Serializer>(q: &Quantity, s: S) -> std::result::Result<S::Ok, S::Error> {
-    s.serialize_str(q.name())
 }
 
 fn plain_block(b: &PpsdBlock) -> SurveyBlock {

@@ -33,7 +33,7 @@ use super::catalogue::Catalogue;
 use super::ground::GroundSpectrum;
 use super::gust::gust_family;
 use super::ranking::{Verdict, Visibility};
-use super::study_file::{Combine, Study, VariableKind};
+use super::study_file::{Combine, Study, StudySetting, VariableKind};
 use super::sweep::{PadMechanism, SweepProgress, WindCase, ground_labels, in_pool};
 use super::sweep_row::sig6;
 use crate::error::{Error, Result};
@@ -53,7 +53,7 @@ pub const BASE: &str = "base";
 /// The columns before the variables' columns.
 const LEAD_COLUMNS: [&str; 2] = ["key", "variant"];
 /// The columns after the variables' columns.
-const TAIL_COLUMNS: [&str; 14] = [
+const TAIL_COLUMNS: [&str; 16] = [
     "ground",
     "wind",
     "status",
@@ -67,11 +67,13 @@ const TAIL_COLUMNS: [&str; 14] = [
     "gust_peak_px",
     "gust_ringdown_s",
     "min_static_fos",
+    "standing_tilt_arcsec",
+    "standing_tilt_px",
     "error",
 ];
 
 /// Every fixed column name (a variable may not take one).
-pub const FIXED_COLUMNS: [&str; 16] = [
+pub const FIXED_COLUMNS: [&str; 18] = [
     "key",
     "variant",
     "ground",
@@ -87,17 +89,20 @@ pub const FIXED_COLUMNS: [&str; 16] = [
     "gust_peak_px",
     "gust_ringdown_s",
     "min_static_fos",
+    "standing_tilt_arcsec",
+    "standing_tilt_px",
     "error",
 ];
 
 /// The outcomes of a row that the summary and sensitivity use, with their units.
-pub const OUTCOMES: [(&str, &str); 6] = [
+pub const OUTCOMES: [(&str, &str); 7] = [
     ("rms_px", "px"),
     ("p_outside_half_px", ""),
     ("first_mode_hz", "Hz"),
     ("gust_peak_px", "px"),
     ("gust_ringdown_s", "s"),
     ("min_static_fos", ""),
+    ("standing_tilt_px", "px"),
 ];
 
 /// The columns of a study's CSV: key, variant, one per variable, then the outcomes.
@@ -185,6 +190,11 @@ pub struct StudyRow {
     pub gust_peak_px: f64,
     pub gust_ringdown_s: f64,
     pub min_static_fos: f64,
+    /// Static image angle (arcsec, px) when the study's person stands on the deck at the
+    /// variant's distance, the worst azimuth ([`crate::people::standing_tilt`]); NaN when the
+    /// study has no person or the rig no `[floor]`.
+    pub standing_tilt_arcsec: f64,
+    pub standing_tilt_px: f64,
 }
 
 impl StudyRow {
@@ -211,6 +221,8 @@ impl StudyRow {
             gust_peak_px: f64::NAN,
             gust_ringdown_s: f64::NAN,
             min_static_fos: f64::NAN,
+            standing_tilt_arcsec: f64::NAN,
+            standing_tilt_px: f64::NAN,
         }
     }
 
@@ -231,6 +243,8 @@ impl StudyRow {
             "gust_peak_px" => self.gust_peak_px,
             "gust_ringdown_s" => self.gust_ringdown_s,
             "min_static_fos" => self.min_static_fos,
+            "standing_tilt_arcsec" => self.standing_tilt_arcsec,
+            "standing_tilt_px" => self.standing_tilt_px,
             _ => return None,
         })
     }
@@ -251,6 +265,8 @@ impl StudyRow {
                 self.gust_peak_px,
                 self.gust_ringdown_s,
                 self.min_static_fos,
+                self.standing_tilt_arcsec,
+                self.standing_tilt_px,
             ]
             .map(sig6),
         );
@@ -278,7 +294,7 @@ impl StudyRow {
         };
         let error = match t[2] {
             "ok" => None,
-            "error" => Some(t[13].to_string()),
+            "error" => Some(t[15].to_string()),
             s => return Err(perr(format!("status '{s}' is not ok/error"))),
         };
         Ok(StudyRow {
@@ -298,6 +314,8 @@ impl StudyRow {
             gust_peak_px: num(t[10], "gust_peak_px")?,
             gust_ringdown_s: num(t[11], "gust_ringdown_s")?,
             min_static_fos: num(t[12], "min_static_fos")?,
+            standing_tilt_arcsec: num(t[13], "standing_tilt_arcsec")?,
+            standing_tilt_px: num(t[14], "standing_tilt_px")?,
         })
     }
 }
@@ -307,6 +325,12 @@ pub struct BuiltVariant {
     pub model: std::result::Result<Model, String>,
     pub first_mode: (f64, f64),
     pub min_static_fos: f64,
+    /// Static image angle (arcsec, px) under the study's standing person (NaN: none, or no deck).
+    pub standing_tilt: (f64, f64),
+    /// The grounds carried from their measured distance to the variant's
+    /// ([`crate::distance_attenuation`]; the wave speed the model's site phase velocity when the
+    /// study gives none); None when the study gives no measured distance.
+    pub ground_path: Option<crate::distance_attenuation::GroundPath>,
 }
 
 /// Everything the rows of a study are made from, computed once.
@@ -452,6 +476,8 @@ impl<'a> PreparedStudy<'a> {
             model: Err(format!("variant '{}': {e}", self.variants[v].label)),
             first_mode: (f64::NAN, f64::NAN),
             min_static_fos: f64::NAN,
+            standing_tilt: (f64::NAN, f64::NAN),
+            ground_path: None,
         };
         let s = &self.study.settings;
         let (file, pad) = match self.variant_file(v) {
@@ -462,9 +488,37 @@ impl<'a> PreparedStudy<'a> {
             Some(iso) => PadMechanism::for_file(&file, &s.pad_prefix).and_then(|m| m.spec_with(iso)),
             None => file.expanded(),
         };
-        let model = match spec.and_then(|sp| Model::from_spec(&sp)) {
+        let spec = match spec {
+            Ok(sp) => sp,
+            Err(e) => return fail(e),
+        };
+        let model = match Model::from_spec(&spec) {
             Ok(m) => m,
             Err(e) => return fail(e),
+        };
+        let site = spec.ground_waves.as_ref().map(|w| w.phase_velocity_m_s);
+        let to_m = self.setting_value(v, StudySetting::GroundDistance);
+        let ground_path = match s.ground_path(to_m).map(|p| p.resolve(site)).transpose() {
+            Ok(p) => p,
+            Err(e) => return fail(e),
+        };
+        let standing_tilt = match (s.person_kg, file.rig.floor.as_ref()) {
+            (Some(_), Some(floor)) => {
+                let kg = self.setting_value(v, StudySetting::PersonMass);
+                let d = self.setting_value(v, StudySetting::PersonDistance);
+                match crate::people::standing_tilt(
+                    &model,
+                    floor.body(),
+                    kg * crate::people::STANDARD_GRAVITY_M_S2,
+                    &[d],
+                    None,
+                    crate::people::DEFAULT_LIMIT_PX,
+                ) {
+                    Ok(t) => t.rows.first().map_or((f64::NAN, f64::NAN), |r| (r.image_arcsec, r.image_px)),
+                    Err(e) => return fail(e),
+                }
+            }
+            _ => (f64::NAN, f64::NAN),
         };
         let modes = match model.modes() {
             Ok(m) => m,
@@ -480,7 +534,21 @@ impl<'a> PreparedStudy<'a> {
             .ok()
             .filter(|m| m.is_finite())
             .unwrap_or(f64::NAN);
-        BuiltVariant { model: Ok(model), first_mode: first, min_static_fos: fos }
+        BuiltVariant { model: Ok(model), first_mode: first, min_static_fos: fos, standing_tilt, ground_path }
+    }
+
+    /// The value of a study setting in variant `v`: the value of the variable that varies it, or
+    /// the study's `[settings]` value.
+    pub fn setting_value(&self, v: usize, which: StudySetting) -> f64 {
+        let lv = &self.variants[v].levels;
+        for (i, var) in self.study.variables.iter().enumerate() {
+            if let (VariableKind::Setting { setting, values, .. }, Some(k)) = (&var.kind, lv[i])
+                && *setting == which
+            {
+                return values.get(k).copied().unwrap_or(f64::NAN);
+            }
+        }
+        self.study.settings.base_of(which)
     }
 }
 
@@ -492,12 +560,13 @@ fn image_of(
     study: &Study,
 ) -> std::result::Result<(f64, f64, f64), String> {
     let model = built.model.as_ref().map_err(Clone::clone)?;
-    let d = Disturbances {
-        ground: ground.axes.clone(),
-        wind: wind.wind.clone(),
-        loads: Vec::new(),
-        ground_waves: None,
-    };
+    let mut axes = ground.axes.clone();
+    if let Some(p) = &built.ground_path {
+        for a in axes.iter_mut().flatten() {
+            *a = p.apply_psd(a).map_err(|e| e.to_string())?;
+        }
+    }
+    let d = Disturbances { ground: axes, wind: wind.wind.clone(), loads: Vec::new(), ground_waves: None };
     let opts = ImageOptions { skip_mode_shares: true, ..ImageOptions::default() };
     let im = model.image_motion(&study.settings.grid, &d, &opts).map_err(|e| e.to_string())?;
     Ok((im.rms_arcsec, im.rms_px, im.p_outside))
@@ -577,6 +646,8 @@ pub fn evaluate_variant(
                         gust_peak_px: gust.map_or(f64::NAN, |x| x.0),
                         gust_ringdown_s: gust.map_or(f64::NAN, |x| x.1),
                         min_static_fos: built.min_static_fos,
+                        standing_tilt_arcsec: built.standing_tilt.0,
+                        standing_tilt_px: built.standing_tilt.1,
                     }
                 }
             }
@@ -671,6 +742,8 @@ pub struct StudyRankEntry {
     pub first_mode_hz: f64,
     pub gust_peak_px: f64,
     pub min_static_fos: f64,
+    /// Static image angle under the study's standing person (px; NaN without one or a deck).
+    pub standing_tilt_px: f64,
 }
 
 /// The variants ranked under one disturbance (smallest image RMS first).
@@ -718,6 +791,7 @@ pub fn summarize_study(rows: &[StudyRow], vis: &Visibility) -> StudySummary {
                     first_mode_hz: r.first_mode_hz,
                     gust_peak_px: r.gust_peak_px,
                     min_static_fos: r.min_static_fos,
+                    standing_tilt_px: r.standing_tilt_px,
                 })
                 .collect();
             entries.sort_by(|a, b| a.rms_px.total_cmp(&b.rms_px).then_with(|| a.variant.cmp(&b.variant)));
@@ -1176,5 +1250,239 @@ mod tests {
         assert!(e.to_string().contains("crossed or paired"), "{e}");
         let e = load("model = \"tripod-paver.toml\"\n[disturbances]\ngrounds = []\n");
         assert!(e.to_string().contains("at least one ground"), "{e}");
+    }
+
+    /// A study of an example `model` on NHNM (calm) on the small grid, `settings` added to
+    /// `[settings]`.
+    fn study_with(model: &str, vary: &str, settings: &str) -> Result<Study> {
+        let text = format!(
+            "model = \"{model}\"\n{vary}\n[disturbances]\ngrounds = [\"nhnm\"]\n\
+             [settings]\nf_min_hz = 0.5\nf_max_hz = 60\nn_freq = 160\n{settings}\n"
+        );
+        Study::load(&text, "test-study.toml", &examples())
+    }
+
+    #[test]
+    fn standing_tilt_rows_are_the_people_module_and_grow_with_the_distance() {
+        let s = study_with(
+            "tripod-deck.toml",
+            "[[vary]]\nsetting = \"person_distance_m\"\nvalues = [0.5, 1, 1.5, 2, 3]\n",
+            "person_kg = 80",
+        )
+        .unwrap();
+        let rows = study_rows(&s, None).unwrap();
+        // 1 m is the default distance: that variant is the base.
+        assert_eq!(rows.len(), 5);
+        assert_eq!(row(&rows, BASE).values, ["1"]);
+        let file = ModelFile::read(&examples().join("tripod-deck.toml")).unwrap();
+        let model = Model::from_spec(&file.expanded().unwrap()).unwrap();
+        let deck = file.rig.floor.as_ref().unwrap().body().to_string();
+        let w = 80.0 * crate::people::STANDARD_GRAVITY_M_S2;
+        let ds = [0.5, 1.0, 1.5, 2.0, 3.0];
+        let table = crate::people::standing_tilt(&model, &deck, w, &ds, None, 0.5).unwrap();
+        for (r, t) in rows.iter().zip(&table.rows) {
+            assert_eq!(r.values[0], format!("{}", t.distance_m));
+            assert!(
+                close(r.standing_tilt_arcsec, t.image_arcsec, 1e-12),
+                "{} vs {}",
+                r.standing_tilt_arcsec,
+                t.image_arcsec
+            );
+            assert!(close(r.standing_tilt_px, t.image_px, 1e-12));
+            // The person does not change the dynamics: the image RMS is the base's.
+            assert!(close(r.rms_arcsec, rows[0].rms_arcsec, 1e-15));
+        }
+        // A rigid deck rocking on springs tilts by W d / k_rock (statics of a rigid body on a
+        // rotational spring, e.g. any strength-of-materials text): the tilt grows with the
+        // distance from the stand, it does not fall. The demo deck: k_rock = 5e6 N m/rad.
+        for p in rows.windows(2) {
+            assert!(p[1].standing_tilt_arcsec > p[0].standing_tilt_arcsec);
+        }
+        for t in &table.rows {
+            let hand = w * t.distance_m / 5.0e6 * crate::units::ARCSEC_PER_RAD;
+            assert!(close(t.deck_tilt_arcsec, hand, 0.02), "deck {} vs hand {hand}", t.deck_tilt_arcsec);
+        }
+        // Practitioner's reading: 80 kg 1 m away tilts the deck by some 30 arcsec.
+        assert!(row(&rows, BASE).standing_tilt_arcsec > 1.0 && row(&rows, BASE).standing_tilt_arcsec < 300.0);
+        // The CSV round trip keeps the columns.
+        let text = study_csv_text(&s, &rows).unwrap();
+        assert!(text.lines().next().unwrap().contains("standing_tilt_arcsec,standing_tilt_px,error"));
+    }
+
+    #[test]
+    fn standing_tilt_is_empty_without_a_deck_and_a_person() {
+        let s = study_with("tripod-paver.toml", "", "person_kg = 80\nperson_distance_m = 2").unwrap();
+        let rows = study_rows(&s, None).unwrap();
+        assert!(rows[0].error.is_none());
+        assert!(rows[0].standing_tilt_arcsec.is_nan() && rows[0].standing_tilt_px.is_nan());
+        let fields = rows[0].fields();
+        let cols = study_columns(&s);
+        let i = cols.iter().position(|c| c == "standing_tilt_px").unwrap();
+        assert_eq!(fields[i], "");
+        let s = study_with("tripod-deck.toml", "", "").unwrap();
+        assert_eq!(s.settings.person_kg, None);
+        assert!(study_rows(&s, None).unwrap()[0].standing_tilt_arcsec.is_nan());
+    }
+
+    #[test]
+    fn ground_distance_rows_are_the_carried_report_and_fall_with_the_distance() {
+        let s = study_with(
+            "tripod-paver.toml",
+            "[[vary]]\nsetting = \"ground_distance_m\"\nvalues = [5, 10, 20, 40]\n",
+            "ground_measured_at_m = 5",
+        )
+        .unwrap();
+        let rows = study_rows(&s, None).unwrap();
+        assert_eq!(rows.len(), 4);
+        assert_eq!(rows[0].variant, BASE);
+        let file = ModelFile::read(&examples().join("tripod-paver.toml")).unwrap();
+        for (r, d) in rows.iter().zip([5.0, 10.0, 20.0, 40.0]) {
+            let mut o = ReportOptions::new().unwrap();
+            o.grid = s.settings.grid.clone();
+            o.ground = Some(GroundSource::Reference(ReferenceGround::Nhnm));
+            o.ground_path = Some(crate::distance_attenuation::GroundPathSpec {
+                from_m: 5.0,
+                to_m: d,
+                spreading: crate::distance_attenuation::SURFACE_WAVE_SPREADING,
+                loss_factor: crate::distance_attenuation::DEFAULT_SOIL_LOSS_FACTOR,
+                wave_speed_m_s: None,
+            });
+            let rep = build_file_report(&file, &o).unwrap();
+            assert!(
+                close(r.rms_arcsec, rep.image.rms_arcsec, 1e-12),
+                "{d} m: {} vs {}",
+                r.rms_arcsec,
+                rep.image.rms_arcsec
+            );
+            // The report took the site's phase velocity (150 m/s in the demo file).
+            assert!(rep.notes.iter().any(|n| n.contains("c 150 m/s")), "{:?}", rep.notes);
+        }
+        // Spreading and damping only take away: every farther row is smaller.
+        for p in rows.windows(2) {
+            assert!(p[1].rms_arcsec < p[0].rms_arcsec, "{} !< {}", p[1].rms_arcsec, p[0].rms_arcsec);
+        }
+        // At the measured distance nothing is carried: the plain report.
+        let mut o = ReportOptions::new().unwrap();
+        o.grid = s.settings.grid.clone();
+        o.ground = Some(GroundSource::Reference(ReferenceGround::Nhnm));
+        assert!(close(rows[0].rms_arcsec, build_file_report(&file, &o).unwrap().image.rms_arcsec, 1e-12));
+        // Spreading alone bounds the fall: (5/40)^0.5 = 0.354 in amplitude, damping lowers it more.
+        assert!(rows[3].ratio_to_base < (5.0f64 / 40.0).sqrt());
+    }
+
+    #[test]
+    fn a_fixed_ground_distance_and_given_soil_carry_every_row() {
+        let s = study_with(
+            "tripod-paver.toml",
+            "",
+            "ground_measured_at_m = 5\nground_distance_m = 25\nground_waves = \"body\"\nsoil_loss_factor = 0.06\nsoil_wave_speed_m_s = 300",
+        )
+        .unwrap();
+        let rows = study_rows(&s, None).unwrap();
+        let file = ModelFile::read(&examples().join("tripod-paver.toml")).unwrap();
+        let mut o = ReportOptions::new().unwrap();
+        o.grid = s.settings.grid.clone();
+        o.ground = Some(GroundSource::Reference(ReferenceGround::Nhnm));
+        o.ground_path = Some(crate::distance_attenuation::GroundPathSpec {
+            from_m: 5.0,
+            to_m: 25.0,
+            spreading: crate::distance_attenuation::BODY_WAVE_SPREADING,
+            loss_factor: 0.06,
+            wave_speed_m_s: Some(300.0),
+        });
+        let rep = build_file_report(&file, &o).unwrap();
+        assert!(close(rows[0].rms_arcsec, rep.image.rms_arcsec, 1e-12));
+    }
+
+    #[test]
+    fn people_and_ground_settings_are_checked() {
+        let err = |vary: &str, set: &str| study_with("tripod-deck.toml", vary, set).unwrap_err().to_string();
+        let e = err("[[vary]]\nsetting = \"ground_distance_m\"\nvalues = [5, 10]\n", "");
+        assert!(e.contains("ground_measured_at_m"), "{e}");
+        let e = err("", "ground_distance_m = 10");
+        assert!(e.contains("ground_measured_at_m"), "{e}");
+        let e = err("[[vary]]\nsetting = \"wind_speed\"\nvalues = [5, 10]\n", "");
+        assert!(e.contains("person_distance_m"), "{e}");
+        let e = err(
+            "[[vary]]\nsetting = \"person_distance_m\"\nvalues = [1]\n[[vary]]\nsetting = \"person_distance_m\"\nname = \"d2\"\nvalues = [2]\n",
+            "",
+        );
+        assert!(e.contains("varied twice"), "{e}");
+        let e = err("[[vary]]\nsetting = \"person_distance_m\"\nvalues = [-1, 1]\n", "");
+        assert!(e.contains("person_distance_m"), "{e}");
+        let e =
+            err("[[vary]]\nsetting = \"ground_distance_m\"\nvalues = [0, 1]\n", "ground_measured_at_m = 5");
+        assert!(e.contains("ground_distance_m"), "{e}");
+        let e = err("", "person_kg = 0");
+        assert!(e.contains("person_kg"), "{e}");
+        let e = err("", "ground_measured_at_m = 5\nground_waves = \"sideways\"");
+        assert!(e.contains("surface"), "{e}");
+        // A person variable alone brings the default 75 kg person.
+        let s = study_with(
+            "tripod-deck.toml",
+            "[[vary]]\nsetting = \"person_distance_m\"\nvalues = [1, 2]\n",
+            "",
+        )
+        .unwrap();
+        assert_eq!(s.settings.person_kg, Some(crate::people::DEFAULT_BODY_MASS_KG));
+    }
+
+    #[test]
+    fn a_cold_night_study_is_the_cold_sweep() {
+        let s = study_with(
+            "tripod-paver.toml",
+            "[[vary]]\npads = \"isolators-cold.toml\"\n",
+            "temperature_c = -15",
+        )
+        .unwrap();
+        let rows = study_rows(&s, None).unwrap();
+        let cat = Catalogue::read(&examples().join("isolators-cold.toml")).unwrap();
+        let file = ModelFile::read(&examples().join("tripod-paver.toml")).unwrap();
+        let grounds = [GroundSource::Reference(ReferenceGround::Nhnm)];
+        let inputs = SweepInputs { model: &file, catalogue: &cat, grounds: &grounds, winds: &[] };
+        let cfg = SweepConfig::new().unwrap().with_grid(s.settings.grid.clone());
+        let cold = crate::batch::sweep_rows(&inputs, &cfg.clone().with_temperature_c(-15.0)).unwrap();
+        let warm = crate::batch::sweep_rows(&inputs, &cfg).unwrap();
+        let mut n = 0;
+        for iso in cat.isolators.iter().filter(|i| !i.is_none()) {
+            let a = row(&rows, &format!("pads={}", iso.name));
+            // Away from 20 °C the sweep's row names the temperature.
+            let b = cold.iter().find(|r| r.spec == format!("{} at -15 °C", iso.name)).unwrap();
+            let c = warm.iter().find(|r| r.spec == iso.name).unwrap();
+            assert!(
+                close(a.rms_arcsec, b.rms_arcsec, 1e-12),
+                "{}: {} vs {}",
+                iso.name,
+                a.rms_arcsec,
+                b.rms_arcsec
+            );
+            assert!(close(a.first_mode_hz, b.first_mode_hz, 1e-12));
+            // The table's factor 2.85 at -15 °C (between 3.5 at -20 and 2.2 at -10) stiffens the
+            // pad: the cold first mode is above the 20 °C one.
+            assert!(a.first_mode_hz > c.first_mode_hz, "{} vs {}", a.first_mode_hz, c.first_mode_hz);
+            n += 1;
+        }
+        assert!(n > 0);
+    }
+
+    #[test]
+    fn the_deck_and_road_example_runs_and_reads_as_a_practitioner_expects() {
+        let s = Study::read(&examples().join("study-deck-and-road.toml")).unwrap();
+        let rows = study_rows(&s, None).unwrap();
+        assert_eq!(rows.len(), 20);
+        assert!(rows.iter().all(|r| r.error.is_none()));
+        // 80 kg 1 m from the stand on a deck rocking at 5e6 N m/rad: W d / k = 784.5 / 5e6 rad
+        // = 32.4 arcsec (the rigid-deck statics above); the stand turns with the deck.
+        let b = row(&rows, BASE);
+        let hand = 80.0 * crate::people::STANDARD_GRAVITY_M_S2 / 5.0e6 * crate::units::ARCSEC_PER_RAD;
+        assert!(close(b.standing_tilt_arcsec, hand, 0.02), "{} vs {hand}", b.standing_tilt_arcsec);
+        // Moving away from the road lowers the image RMS at every standing distance.
+        for d in ["0.25", "3"] {
+            let at: Vec<f64> = ["5", "10", "20", "40"]
+                .iter()
+                .map(|g| rows.iter().find(|r| r.values == [d, *g]).unwrap().rms_px)
+                .collect();
+            assert!(at.windows(2).all(|p| p[1] < p[0]), "{d}: {at:?}");
+        }
     }
 }

@@ -77,6 +77,8 @@ struct VaryDoc {
     rigs: Option<Vec<RigDoc>>,
     #[serde(default)]
     pads: Option<String>,
+    #[serde(default)]
+    setting: Option<String>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -124,6 +126,13 @@ struct SettingsDoc {
     pad_prefix: Option<String>,
     design_wind_m_s: Option<f64>,
     ground_scale: Option<[f64; 3]>,
+    person_kg: Option<f64>,
+    person_distance_m: Option<f64>,
+    ground_measured_at_m: Option<f64>,
+    ground_distance_m: Option<f64>,
+    ground_waves: Option<String>,
+    soil_loss_factor: Option<f64>,
+    soil_wave_speed_m_s: Option<f64>,
 }
 
 /// How the variables' values are combined into variants.
@@ -133,6 +142,42 @@ pub enum Combine {
     Crossed,
     /// The k-th value of every variable together (all variables need as many values).
     Paired,
+}
+
+/// A study setting that a variable may take values of (`[[vary]] setting = "NAME"`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum StudySetting {
+    /// `person_distance_m`: where the standing person is (m from the stand's axis).
+    PersonDistance,
+    /// `person_kg`: the standing person's body mass (kg).
+    PersonMass,
+    /// `ground_distance_m`: the rig's distance from the ground's source (m).
+    GroundDistance,
+}
+
+impl StudySetting {
+    /// The setting by its key name.
+    pub fn parse(name: &str) -> Result<StudySetting> {
+        match name {
+            "person_distance_m" => Ok(StudySetting::PersonDistance),
+            "person_kg" => Ok(StudySetting::PersonMass),
+            "ground_distance_m" => Ok(StudySetting::GroundDistance),
+            other => Err(Error::UnknownName {
+                kind: "study setting to vary".into(),
+                name: other.into(),
+                known: "person_distance_m, person_kg, ground_distance_m".into(),
+            }),
+        }
+    }
+
+    /// The key name.
+    pub fn name(&self) -> &'static str {
+        match self {
+            StudySetting::PersonDistance => "person_distance_m",
+            StudySetting::PersonMass => "person_kg",
+            StudySetting::GroundDistance => "ground_distance_m",
+        }
+    }
 }
 
 /// What a variable changes.
@@ -146,6 +191,8 @@ pub enum VariableKind {
     Rig { rigs: Vec<(String, String, String)> },
     /// The isolator catalogue ("none" first).
     Pads { catalogue: Catalogue },
+    /// A study setting (not the model file); `base` is the setting's value in `[settings]`.
+    Setting { setting: StudySetting, values: Vec<f64>, base: f64 },
 }
 
 /// One variable of a study: its column name and what it changes.
@@ -159,7 +206,7 @@ impl Variable {
     /// Number of values.
     pub fn len(&self) -> usize {
         match &self.kind {
-            VariableKind::Path { values, .. } => values.len(),
+            VariableKind::Path { values, .. } | VariableKind::Setting { values, .. } => values.len(),
             VariableKind::Rig { rigs } => rigs.len(),
             VariableKind::Pads { catalogue } => catalogue.isolators.len(),
         }
@@ -173,7 +220,9 @@ impl Variable {
     /// The text of value `i` in rows (numbers in shortest round-trip form).
     pub fn label(&self, i: usize) -> String {
         match &self.kind {
-            VariableKind::Path { values, .. } => values.get(i).map(|v| format!("{v}")).unwrap_or_default(),
+            VariableKind::Path { values, .. } | VariableKind::Setting { values, .. } => {
+                values.get(i).map(|v| format!("{v}")).unwrap_or_default()
+            }
             VariableKind::Rig { rigs } => rigs.get(i).map(|r| r.0.clone()).unwrap_or_default(),
             VariableKind::Pads { catalogue } => {
                 catalogue.isolators.get(i).map(|p| p.name.clone()).unwrap_or_default()
@@ -184,7 +233,7 @@ impl Variable {
     /// The text of the base model's value.
     pub fn base_label(&self) -> String {
         match &self.kind {
-            VariableKind::Path { base, .. } => format!("{base}"),
+            VariableKind::Path { base, .. } | VariableKind::Setting { base, .. } => format!("{base}"),
             VariableKind::Rig { rigs } => rigs.first().map(|r| r.0.clone()).unwrap_or_default(),
             VariableKind::Pads { .. } => super::NO_PAD.to_string(),
         }
@@ -193,7 +242,9 @@ impl Variable {
     /// Whether value `i` is the base model's value.
     pub fn is_base(&self, i: usize) -> bool {
         match &self.kind {
-            VariableKind::Path { values, base, .. } => values.get(i) == Some(base),
+            VariableKind::Path { values, base, .. } | VariableKind::Setting { values, base, .. } => {
+                values.get(i) == Some(base)
+            }
             VariableKind::Rig { .. } => i == 0,
             VariableKind::Pads { catalogue } => catalogue.isolators.get(i).is_some_and(Isolator::is_none),
         }
@@ -202,7 +253,7 @@ impl Variable {
     /// Numeric values (path variables), for plots against the value.
     pub fn numbers(&self) -> Option<&[f64]> {
         match &self.kind {
-            VariableKind::Path { values, .. } => Some(values),
+            VariableKind::Path { values, .. } | VariableKind::Setting { values, .. } => Some(values),
             _ => None,
         }
     }
@@ -222,6 +273,23 @@ pub struct StudySettings {
     pub design_wind_m_s: f64,
     /// Per-axis factor on PSD files and reference spectra.
     pub ground_scale: [f64; 3],
+    /// The standing person's body mass (kg) when the study asks for the standing tilt
+    /// (`person_kg`, `person_distance_m` or a variable of either given), else None.
+    pub person_kg: Option<f64>,
+    /// Where the person stands (m from the stand's axis, the worst azimuth).
+    pub person_distance_m: f64,
+    /// The distance (m) from their source at which the grounds were measured; None: the grounds
+    /// are taken as they are.
+    pub ground_measured_at_m: Option<f64>,
+    /// The rig's distance (m) from the source (the measured distance when not given).
+    pub ground_distance_m: Option<f64>,
+    /// Geometric spreading exponent of the ground path (0.5, surface waves, by default).
+    pub ground_spreading: f64,
+    /// Soil loss factor of the ground path.
+    pub soil_loss_factor: f64,
+    /// Wave speed (m/s) of the ground path; None: the model's site phase velocity, else the
+    /// default soil's.
+    pub soil_wave_speed_m_s: Option<f64>,
 }
 
 impl StudySettings {
@@ -235,6 +303,37 @@ impl StudySettings {
             pad_prefix: DEFAULT_PAD_PREFIX.into(),
             design_wind_m_s: 10.0,
             ground_scale: [1.0; 3],
+            person_kg: None,
+            person_distance_m: crate::people::DEFAULT_WALK_DISTANCE_M,
+            ground_measured_at_m: None,
+            ground_distance_m: None,
+            ground_spreading: crate::distance_attenuation::SURFACE_WAVE_SPREADING,
+            soil_loss_factor: crate::distance_attenuation::DEFAULT_SOIL_LOSS_FACTOR,
+            soil_wave_speed_m_s: None,
+        })
+    }
+
+    /// The base value of a setting a variable may vary (NaN for the ground distance when the
+    /// grounds have no measured distance).
+    pub fn base_of(&self, s: StudySetting) -> f64 {
+        match s {
+            StudySetting::PersonDistance => self.person_distance_m,
+            StudySetting::PersonMass => self.person_kg.unwrap_or(crate::people::DEFAULT_BODY_MASS_KG),
+            StudySetting::GroundDistance => {
+                self.ground_distance_m.or(self.ground_measured_at_m).unwrap_or(f64::NAN)
+            }
+        }
+    }
+
+    /// The ground path from the measured distance to `to_m` (None when the grounds have no
+    /// measured distance).
+    pub fn ground_path(&self, to_m: f64) -> Option<crate::distance_attenuation::GroundPathSpec> {
+        self.ground_measured_at_m.map(|from_m| crate::distance_attenuation::GroundPathSpec {
+            from_m,
+            to_m,
+            spreading: self.ground_spreading,
+            loss_factor: self.soil_loss_factor,
+            wave_speed_m_s: self.soil_wave_speed_m_s,
         })
     }
 }
@@ -348,6 +447,71 @@ fn path_values(who: &str, v: &VaryDoc) -> Result<Vec<f64>> {
     Ok(out)
 }
 
+/// The standing person and the ground path of `[settings]`, and the base values of the
+/// variables that vary them.
+fn people_and_ground_settings(
+    s: &SettingsDoc,
+    settings: &mut StudySettings,
+    variables: &mut [Variable],
+    file: &str,
+) -> Result<()> {
+    use crate::error::{require_non_negative, require_positive};
+    let varies = |which: StudySetting| {
+        variables.iter().any(|v| matches!(v.kind, VariableKind::Setting { setting, .. } if setting == which))
+    };
+    let person = s.person_kg.is_some()
+        || s.person_distance_m.is_some()
+        || varies(StudySetting::PersonDistance)
+        || varies(StudySetting::PersonMass);
+    if person {
+        let kg = s.person_kg.unwrap_or(crate::people::DEFAULT_BODY_MASS_KG);
+        settings.person_kg = Some(require_positive("settings.person_kg", kg)?);
+    }
+    if let Some(d) = s.person_distance_m {
+        settings.person_distance_m = require_non_negative("settings.person_distance_m", d)?;
+    }
+    if let Some(r) = s.ground_measured_at_m {
+        settings.ground_measured_at_m = Some(require_positive("settings.ground_measured_at_m", r)?);
+    }
+    if let Some(r) = s.ground_distance_m {
+        settings.ground_distance_m = Some(require_positive("settings.ground_distance_m", r)?);
+    }
+    if let Some(w) = &s.ground_waves {
+        settings.ground_spreading = crate::distance_attenuation::GroundPath::spreading_of(w)?;
+    }
+    if let Some(e) = s.soil_loss_factor {
+        settings.soil_loss_factor = require_non_negative("settings.soil_loss_factor", e)?;
+    }
+    if let Some(c) = s.soil_wave_speed_m_s {
+        settings.soil_wave_speed_m_s = Some(require_positive("settings.soil_wave_speed_m_s", c)?);
+    }
+    let ground_keys = s.ground_distance_m.is_some()
+        || s.ground_waves.is_some()
+        || s.soil_loss_factor.is_some()
+        || s.soil_wave_speed_m_s.is_some()
+        || varies(StudySetting::GroundDistance);
+    if ground_keys && settings.ground_measured_at_m.is_none() {
+        return Err(Error::invalid(
+            format!("{file}: settings.ground_measured_at_m"),
+            "a ground distance or soil needs the distance from the source at which the grounds were measured",
+        ));
+    }
+    let mut seen = Vec::new();
+    for v in variables.iter_mut() {
+        if let VariableKind::Setting { setting, base, .. } = &mut v.kind {
+            if seen.contains(setting) {
+                return Err(Error::invalid(
+                    format!("{file}: setting '{}'", setting.name()),
+                    "is varied twice",
+                ));
+            }
+            seen.push(*setting);
+            *base = settings.base_of(*setting);
+        }
+    }
+    Ok(())
+}
+
 impl Study {
     /// Read a study file; the files it names are read relative to its folder.
     pub fn read(path: &Path) -> Result<Study> {
@@ -378,11 +542,31 @@ impl Study {
         let mut variables = Vec::new();
         for (i, v) in doc.vary.iter().enumerate() {
             let who = format!("{file}: vary[{i}]");
-            let kinds = [v.path.is_some(), v.rigs.is_some(), v.pads.is_some()].iter().filter(|x| **x).count();
+            let kinds = [v.path.is_some(), v.rigs.is_some(), v.pads.is_some(), v.setting.is_some()]
+                .iter()
+                .filter(|x| **x)
+                .count();
             if kinds != 1 {
-                return Err(Error::invalid(who, "give exactly one of path, rigs or pads"));
+                return Err(Error::invalid(who, "give exactly one of path, setting, rigs or pads"));
             }
-            let var = if let Some(path) = &v.path {
+            let var = if let Some(name) = &v.setting {
+                let setting = StudySetting::parse(name)?;
+                let values = path_values(&who, v)?;
+                for x in &values {
+                    match setting {
+                        StudySetting::PersonDistance => {
+                            crate::error::require_non_negative(|| format!("{who}: {name}"), *x)?;
+                        }
+                        _ => {
+                            crate::error::require_positive(|| format!("{who}: {name}"), *x)?;
+                        }
+                    }
+                }
+                Variable {
+                    name: v.name.clone().unwrap_or_else(|| name.clone()),
+                    kind: VariableKind::Setting { setting, values, base: f64::NAN },
+                }
+            } else if let Some(path) = &v.path {
                 let values = path_values(&who, v)?;
                 let base = get_parameter(&model_text, path)?;
                 Variable {
@@ -391,7 +575,7 @@ impl Study {
                 }
             } else {
                 if v.values.is_some() || v.range.is_some() || v.grid.is_some() {
-                    return Err(Error::invalid(who, "values, range and grid go with a path"));
+                    return Err(Error::invalid(who, "values, range and grid go with a path or a setting"));
                 }
                 if let Some(rigs) = &v.rigs {
                     if rigs.is_empty() {
@@ -459,6 +643,7 @@ impl Study {
         if let Some(g) = s.ground_scale {
             settings.ground_scale = g;
         }
+        people_and_ground_settings(s, &mut settings, &mut variables, file)?;
         let study = Study {
             title: doc.title,
             source: file.to_string(),

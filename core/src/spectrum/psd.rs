@@ -22,6 +22,13 @@ pub enum Quantity {
     Angle,
 }
 
+/// Serialized by its lower-case [`Quantity::name`] (a JSON report's field).
+impl serde::Serialize for Quantity {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> std::result::Result<S::Ok, S::Error> {
+        s.serialize_str(self.name())
+    }
+}
+
 impl Quantity {
     /// All quantities, in declaration order.
     pub const ALL: [Quantity; 6] = [
