@@ -72,27 +72,10 @@ const TAIL_COLUMNS: [&str; 16] = [
     "error",
 ];
 
-/// Every fixed column name (a variable may not take one).
-pub const FIXED_COLUMNS: [&str; 18] = [
-    "key",
-    "variant",
-    "ground",
-    "wind",
-    "status",
-    "rms_arcsec",
-    "rms_px",
-    "p_outside_half_px",
-    "ratio_to_base",
-    "vs_base",
-    "first_mode_hz",
-    "first_mode_zeta",
-    "gust_peak_px",
-    "gust_ringdown_s",
-    "min_static_fos",
-    "standing_tilt_arcsec",
-    "standing_tilt_px",
-    "error",
-];
+/// Whether `name` is one of the fixed columns (a variable may not take one).
+pub(crate) fn is_fixed_column(name: &str) -> bool {
+    LEAD_COLUMNS.contains(&name) || TAIL_COLUMNS.contains(&name)
+}
 
 /// The outcomes of a row that the summary and sensitivity use, with their units.
 pub const OUTCOMES: [(&str, &str); 7] = [
@@ -702,33 +685,11 @@ pub fn study_csv_text(study: &Study, rows: &[StudyRow]) -> Result<String> {
 /// Read the rows of a study CSV written for `study` (header checked).
 pub fn read_study_csv(study: &Study, path: &Path) -> Result<Vec<StudyRow>> {
     let file = path.display().to_string();
-    let bytes = std::fs::read(path).map_err(|e| Error::Io { path: file.clone(), reason: e.to_string() })?;
-    let mut rdr = csv::ReaderBuilder::new().has_headers(true).from_reader(bytes.as_slice());
-    let header: Vec<String> = rdr
-        .headers()
-        .map_err(|e| Error::Parse { file: file.clone(), location: "line 1".into(), reason: e.to_string() })?
-        .iter()
-        .map(str::to_string)
-        .collect();
-    if header != study_columns(study) {
-        return Err(Error::Parse {
-            file,
-            location: "line 1".into(),
-            reason: format!("not this study's table: header {header:?}"),
-        });
-    }
     let n = study.variables.len();
-    let mut rows = Vec::new();
-    for (i, rec) in rdr.records().enumerate() {
-        let rec = rec.map_err(|e| Error::Parse {
-            file: file.clone(),
-            location: format!("line {}", i + 2),
-            reason: e.to_string(),
-        })?;
-        let f: Vec<&str> = rec.iter().collect();
-        rows.push(StudyRow::from_fields(&f, n, &file, i + 2)?);
-    }
-    Ok(rows)
+    crate::io::atomic::read_table(path, &study_columns(study), "not this study's table")?
+        .iter()
+        .map(|(line, rec)| StudyRow::from_fields(&rec.iter().collect::<Vec<_>>(), n, &file, *line))
+        .collect()
 }
 
 /// One variant's standing under one disturbance.

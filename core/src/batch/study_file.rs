@@ -667,7 +667,6 @@ impl Study {
     /// Check the study's shape before anything is evaluated: unique variable names that are no
     /// fixed column, no `|` in labels, paired variables of equal length, not too many variants.
     pub fn check(&self) -> Result<()> {
-        let fixed = super::study::FIXED_COLUMNS;
         let mut names = std::collections::HashSet::new();
         for v in &self.variables {
             if v.name.trim().is_empty() || v.name.contains(['|', '\n', '\r']) {
@@ -676,7 +675,7 @@ impl Study {
                     "must be non-empty, without '|' or line breaks",
                 ));
             }
-            if fixed.contains(&v.name.as_str()) {
+            if super::study::is_fixed_column(&v.name) {
                 return Err(Error::invalid(
                     format!("{}: variable name '{}'", self.source, v.name),
                     "is the name of a fixed column; give the variable a name",

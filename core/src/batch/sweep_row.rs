@@ -261,32 +261,10 @@ impl SweepRow {
 /// Read the rows of a sweep CSV (complete lines only; header checked).
 pub fn read_sweep_csv(path: &Path) -> Result<Vec<SweepRow>> {
     let file = path.display().to_string();
-    let bytes = std::fs::read(path).map_err(|e| Error::Io { path: file.clone(), reason: e.to_string() })?;
-    let mut rdr = csv::ReaderBuilder::new().has_headers(true).from_reader(bytes.as_slice());
-    let header: Vec<String> = rdr
-        .headers()
-        .map_err(|e| Error::Parse { file: file.clone(), location: "line 1".into(), reason: e.to_string() })?
+    crate::io::atomic::read_table(path, &SWEEP_COLUMNS, "not a sweep file")?
         .iter()
-        .map(str::to_string)
-        .collect();
-    if header != SWEEP_COLUMNS {
-        return Err(Error::Parse {
-            file,
-            location: "line 1".into(),
-            reason: format!("not a sweep file: header {header:?}"),
-        });
-    }
-    let mut rows = Vec::new();
-    for (i, rec) in rdr.records().enumerate() {
-        let rec = rec.map_err(|e| Error::Parse {
-            file: file.clone(),
-            location: format!("line {}", i + 2),
-            reason: e.to_string(),
-        })?;
-        let f: Vec<&str> = rec.iter().collect();
-        rows.push(SweepRow::from_fields(&f, &file, i + 2)?);
-    }
-    Ok(rows)
+        .map(|(line, rec)| SweepRow::from_fields(&rec.iter().collect::<Vec<_>>(), &file, *line))
+        .collect()
 }
 
 #[cfg(test)]

@@ -115,6 +115,42 @@ fn parse_rows(bytes: &[u8], file: &Path) -> Result<(Vec<String>, Vec<csv::String
     Ok((header, rows))
 }
 
+/// The rows of a finished CSV table, each with its line number (from 2), after checking that
+/// its header is `columns`; a different header is a parse error on line 1 whose reason is
+/// `not_this` followed by the header found.
+pub fn read_table(
+    path: &Path,
+    columns: &[impl AsRef<str>],
+    not_this: &str,
+) -> Result<Vec<(usize, csv::StringRecord)>> {
+    let file = path.display().to_string();
+    let bytes = fs::read(path).map_err(|e| io_err(path, e))?;
+    let mut rdr = csv::ReaderBuilder::new().has_headers(true).from_reader(bytes.as_slice());
+    let header: Vec<String> = rdr
+        .headers()
+        .map_err(|e| Error::Parse { file: file.clone(), location: "line 1".into(), reason: e.to_string() })?
+        .iter()
+        .map(str::to_string)
+        .collect();
+    if header.len() != columns.len() || header.iter().zip(columns).any(|(h, c)| h != c.as_ref()) {
+        return Err(Error::Parse {
+            file,
+            location: "line 1".into(),
+            reason: format!("{not_this}: header {header:?}"),
+        });
+    }
+    rdr.records()
+        .enumerate()
+        .map(|(i, rec)| {
+            rec.map(|r| (i + 2, r)).map_err(|e| Error::Parse {
+                file: file.clone(),
+                location: format!("line {}", i + 2),
+                reason: e.to_string(),
+            })
+        })
+        .collect()
+}
+
 /// A CSV writer that only ever leaves whole rows on disk (see the module docs).
 ///
 /// ```
