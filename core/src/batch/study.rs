@@ -34,7 +34,7 @@ use super::ground::GroundSpectrum;
 use super::gust::gust_family;
 use super::ranking::{Verdict, Visibility};
 use super::study_file::{Combine, Study, StudySetting, VariableKind};
-use super::sweep::{PadMechanism, SweepProgress, WindCase, ground_labels, in_pool};
+use super::sweep::{PadEngine, PadMechanism, SweepEngine, SweepProgress, WindCase, ground_labels, in_pool};
 use super::sweep_row::sig6;
 use crate::error::{Error, Result};
 use crate::image::ImageOptions;
@@ -44,7 +44,7 @@ use crate::response::Disturbances;
 use crate::schema::ModelFile;
 use rayon::prelude::*;
 use serde::Serialize;
-use std::collections::{BTreeMap, HashSet};
+use std::collections::{BTreeMap, HashMap, HashSet};
 use std::path::{Path, PathBuf};
 
 /// The label of the base variant.
@@ -328,7 +328,13 @@ pub struct PreparedStudy<'a> {
     /// The base variant's (rms_px, p_outside, rms_arcsec) per (ground, wind), when it could be
     /// evaluated.
     base: BTreeMap<(usize, usize), (f64, f64, f64)>,
+    /// Image columns by the spring-variant engine, per (variant, ground, wind)
+    /// ([`PreparedStudy::use_spring_sets`]).
+    fast: HashMap<(usize, usize, usize), ImageOf>,
 }
+
+/// RMS arcsec, RMS px and P(outside ½ px), or why they could not be computed.
+type ImageOf = std::result::Result<(f64, f64, f64), String>;
 
 impl<'a> PreparedStudy<'a> {
     /// Check the study, read the grounds and evaluate the base variant.
@@ -361,8 +367,16 @@ impl<'a> PreparedStudy<'a> {
             })
             .collect();
         let variants = variants(study);
-        let mut p =
-            PreparedStudy { study, variants, labels, winds, spectra, catalogues, base: BTreeMap::new() };
+        let mut p = PreparedStudy {
+            study,
+            variants,
+            labels,
+            winds,
+            spectra,
+            catalogues,
+            base: BTreeMap::new(),
+            fast: HashMap::new(),
+        };
         if p.winds.iter().any(|w| w.wind.is_some()) {
             let file = ModelFile::parse(&study.model_text, &study.model_name)?;
             if file.expanded()?.wind.is_none() {
@@ -426,8 +440,12 @@ impl<'a> PreparedStudy<'a> {
 
     /// The model file of variant `v` (the rig's file with each path set), and the pad to put in.
     fn variant_file(&self, v: usize) -> Result<(ModelFile, Option<&super::Isolator>)> {
+        self.file_of(&self.variants[v].levels)
+    }
+
+    /// The model file and pad of the variables' levels `lv` (see [`Self::variant_file`]).
+    fn file_of(&self, lv: &[Option<usize>]) -> Result<(ModelFile, Option<&super::Isolator>)> {
         let vars = &self.study.variables;
-        let lv = &self.variants[v].levels;
         let (mut name, mut text) = (self.study.model_name.clone(), self.study.model_text.clone());
         for (i, var) in vars.iter().enumerate() {
             if let (VariableKind::Rig { rigs }, Some(k)) = (&var.kind, lv[i])
@@ -444,13 +462,111 @@ impl<'a> PreparedStudy<'a> {
             }
         }
         let file = ModelFile::parse(&text, &name)?;
+        Ok((file, self.pad_of(lv)))
+    }
+
+    /// The catalogue pad of the levels `lv` (the last pads variable given wins), if any.
+    fn pad_of(&self, lv: &[Option<usize>]) -> Option<&super::Isolator> {
         let mut pad = None;
         for (i, c) in self.catalogues.iter().enumerate() {
             if let (Some(c), Some(k)) = (c, lv[i]) {
                 pad = c.isolators.get(k);
             }
         }
-        Ok((file, pad))
+        pad
+    }
+
+    /// Compute the image columns of the variants `vs` by the spring-variant engine where a
+    /// variant differs from its group's reference only in the pad springs (the study's
+    /// `engine = "auto"`, the default): variants are grouped by their levels of every variable
+    /// but the pads; a group's reference is its model with the sweep's first reference pad
+    /// ([`PadEngine`], never a catalogue entry, so a row does not depend on which variants are
+    /// computed together); each member's FRF is evaluated once and shared by every ground and
+    /// wind. The others, and every disturbance the engine cannot take, are rebuilt per row by
+    /// [`evaluate_variant`]. The rows are the same either way to rounding (about 1e-12).
+    pub fn use_spring_sets(&mut self, vs: &[usize]) {
+        if self.study.settings.engine != SweepEngine::Auto {
+            return;
+        }
+        let pads: Vec<usize> = (0..self.catalogues.len()).filter(|&i| self.catalogues[i].is_some()).collect();
+        if pads.is_empty() {
+            return;
+        }
+        let mut groups: BTreeMap<Vec<Option<usize>>, Vec<usize>> = BTreeMap::new();
+        for &v in vs {
+            let Some(var) = self.variants.get(v) else { continue };
+            let mut key = var.levels.clone();
+            for &i in &pads {
+                key[i] = None;
+            }
+            groups.entry(key).or_default().push(v);
+        }
+        let this = &*self;
+        let found: Vec<HashMap<(usize, usize, usize), ImageOf>> =
+            groups.into_par_iter().map(|(key, members)| this.group_images(&key, &members)).collect();
+        self.fast = found.into_iter().flatten().collect();
+    }
+
+    /// Number of (variant, ground, wind) image columns the engine computed.
+    pub fn engine_rows(&self) -> usize {
+        self.fast.len()
+    }
+
+    /// The engine's image columns of one group (see [`Self::use_spring_sets`]).
+    fn group_images(
+        &self,
+        key: &[Option<usize>],
+        members: &[usize],
+    ) -> HashMap<(usize, usize, usize), ImageOf> {
+        let mut out = HashMap::new();
+        let s = &self.study.settings;
+        let Ok((file, _)) = self.file_of(key) else { return out };
+        let Ok(mech) = PadMechanism::for_file(&file, &s.pad_prefix) else { return out };
+        let Some(engine) = PadEngine::new(&mech) else { return out };
+        let (mut who, mut sets) = (Vec::new(), Vec::new());
+        for &v in members {
+            let Some(iso) = self.pad_of(&self.variants[v].levels) else { continue };
+            if let Ok(spec) = mech.spec_with(iso)
+                && let Some(set) = engine.set_of(&spec)
+            {
+                who.push(v);
+                sets.push(set);
+            }
+        }
+        let Some(&first) = who.first() else { return out };
+        // The ground path depends on the distance setting (one of the group's levels) and the
+        // site, which pads do not change.
+        let to_m = self.setting_value(first, StudySetting::GroundDistance);
+        let Ok(path) = s.ground_path(to_m).map(|p| p.resolve(engine.site_phase_velocity())).transpose()
+        else {
+            return out;
+        };
+        let (mut cases, mut dist) = (Vec::new(), Vec::new());
+        for (g, sp) in self.spectra.iter().enumerate() {
+            let Ok(sp) = sp else { continue };
+            let mut axes = sp.axes.clone();
+            if let Some(p) = &path
+                && axes.iter_mut().flatten().try_for_each(|a| p.apply_psd(a).map(|x| *a = x)).is_err()
+            {
+                continue;
+            }
+            for (w, wc) in self.winds.iter().enumerate() {
+                cases.push((g, w));
+                dist.push(Disturbances {
+                    ground: axes.clone(),
+                    wind: wc.wind.clone(),
+                    loads: Vec::new(),
+                    ground_waves: None,
+                });
+            }
+        }
+        let Some(stats) = engine.images(&s.grid, &sets, &dist) else { return out };
+        for (&v, per_case) in who.iter().zip(stats) {
+            for (&(g, w), r) in cases.iter().zip(per_case) {
+                out.insert((v, g, w), r);
+            }
+        }
+        out
     }
 
     /// Build variant `v`: its model from the edited model file, first mode and static checks.
@@ -599,7 +715,11 @@ pub fn evaluate_variant(
                 Ok(s) => s,
                 Err(e) => return StudyRow::failed(var, values.clone(), gl, wl, e),
             };
-            match image_of(&built, ground, &p.winds[w], p.study) {
+            let image = match (&built.model, p.fast.get(&(v, g, w))) {
+                (Ok(_), Some(r)) => r.clone(),
+                _ => image_of(&built, ground, &p.winds[w], p.study),
+            };
+            match image {
                 Err(e) => StudyRow::failed(var, values.clone(), gl, wl, &e),
                 Ok((rms_arcsec, rms_px, pr)) => {
                     let base = p.base.get(&(g, w));
@@ -656,7 +776,7 @@ pub fn study_rows_of(
         return Err(Error::invalid("threads", "must be at least 1"));
     }
     in_pool(threads, || {
-        let p = PreparedStudy::new(study)?;
+        let mut p = PreparedStudy::new(study)?;
         let all: Vec<usize> = (0..p.variants.len()).collect();
         let which = which.unwrap_or(&all);
         if let Some(bad) = which.iter().find(|&&v| v >= p.variants.len()) {
@@ -667,6 +787,8 @@ pub fn study_rows_of(
                 max: p.variants.len().saturating_sub(1) as f64,
             });
         }
+        p.use_spring_sets(which);
+        let p = p;
         let per: Vec<Vec<StudyRow>> = which.par_iter().map(|&v| evaluate_variant(&p, v, &|_| true)).collect();
         Ok(per.into_iter().flatten().collect())
     })
@@ -864,7 +986,7 @@ pub fn run_study(
     study.check()?;
     let done_keys = if resume { completed_keys(out, "key")? } else { HashSet::new() };
     in_pool(threads, || {
-        let p = PreparedStudy::new(study)?;
+        let mut p = PreparedStudy::new(study)?;
         let total = p.len();
         let header = study_columns(study);
         let mut writer = if resume {
@@ -877,6 +999,8 @@ pub fn run_study(
         let todo: Vec<usize> = (0..p.variants.len())
             .filter(|&v| (0..per_variant).any(|j| !done_keys.contains(&p.key(v * per_variant + j))))
             .collect();
+        p.use_spring_sets(&todo);
+        let p = p;
         let mut done = (0..total).filter(|&i| done_keys.contains(&p.key(i))).count();
         progress(SweepProgress { done, total });
         let (tx, rx) = std::sync::mpsc::channel::<(usize, Vec<StudyRow>)>();
@@ -1090,6 +1214,65 @@ mod tests {
             assert!(close(a.first_mode_hz, b.first_mode_hz, 1e-12));
             assert!(close(a.ratio_to_base, b.ratio_to_none, 1e-12));
         }
+    }
+
+    #[test]
+    fn the_spring_variant_engine_gives_the_rebuilt_study_rows() {
+        // Pads crossed with the joints (a non-spring change of the tripod is a group of its
+        // own) and a distance setting, on two recordings, calm and 4 m/s: every row from the
+        // engine equals the row of a model built per variant.
+        let text = |engine: &str| {
+            format!(
+                "model = \"tripod-paver.toml\"\n\
+                 [[vary]]\npads = \"isolators.toml\"\n\
+                 [[vary]]\npath = \"tripod.leg_length_m\"\nvalues = [1.1, 1.3]\n\
+                 [[vary]]\nsetting = \"ground_distance_m\"\nvalues = [10]\n\
+                 [disturbances]\ngrounds = [\"recordings/road-nearby.csv\", \"recordings/footsteps.csv\"]\n\
+                 winds = [\"calm\", \"4\"]\n\
+                 [settings]\nf_min_hz = 0.5\nf_max_hz = 60\nn_freq = 160\nground_measured_at_m = 5\n\
+                 engine = \"{engine}\"\n"
+            )
+        };
+        let fast = Study::load(&text("auto"), "s.toml", &examples()).unwrap();
+        let slow = Study::load(&text("rebuild"), "s.toml", &examples()).unwrap();
+        let mut p = PreparedStudy::new(&fast).unwrap();
+        let all: Vec<usize> = (0..p.variants.len()).collect();
+        p.use_spring_sets(&all);
+        let n_iso = Catalogue::read(&examples().join("isolators.toml")).unwrap().isolators.len();
+        // Every pad but "none" (feet on the ground, no spring) goes through the engine, for
+        // both leg lengths, both grounds and both winds.
+        assert_eq!(p.engine_rows(), (n_iso - 1) * 2 * 2 * 2, "engine rows");
+        let (a, b) = (study_rows(&fast, None).unwrap(), study_rows(&slow, None).unwrap());
+        assert_eq!(a.len(), b.len());
+        let mut compared = 0;
+        for (x, y) in a.iter().zip(&b) {
+            assert_eq!((&x.key, &x.vs_base, &x.error), (&y.key, &y.vs_base, &y.error));
+            for (u, v) in [
+                (x.rms_arcsec, y.rms_arcsec),
+                (x.rms_px, y.rms_px),
+                (x.p_outside_half_px, y.p_outside_half_px),
+                (x.ratio_to_base, y.ratio_to_base),
+                (x.first_mode_hz, y.first_mode_hz),
+                (x.gust_peak_px, y.gust_peak_px),
+            ] {
+                assert!(u == v || (u.is_nan() && v.is_nan()) || close(u, v, 1e-9), "{}: {u} vs {v}", x.key);
+                compared += 1;
+            }
+        }
+        assert!(compared > 100);
+        // A part of the study gives the whole's rows, bit for bit.
+        let part = study_rows_of(&fast, Some(&[3, 5]), None).unwrap();
+        let per = a.len() / p.variants.len();
+        for (i, r) in part.iter().enumerate() {
+            let whole = &a[[3, 5][i / per] * per + i % per];
+            assert_eq!(
+                (r.key.as_str(), r.rms_arcsec.to_bits()),
+                (whole.key.as_str(), whole.rms_arcsec.to_bits())
+            );
+        }
+        // Unknown engines are refused by name.
+        let e = Study::load(&text("fast"), "s.toml", &examples()).unwrap_err().to_string();
+        assert!(e.contains("settings.engine"), "{e}");
     }
 
     #[test]

@@ -30,7 +30,7 @@
 use super::catalogue::{Catalogue, DEFAULT_PAD_PREFIX, Isolator, NOMINAL_TEMPERATURE_C};
 use super::ground::GroundSource;
 use super::ranking::Visibility;
-use super::sweep::WindCase;
+use super::sweep::{SweepEngine, WindCase};
 use crate::error::{Error, Result};
 use crate::grid::FreqGrid;
 use crate::identify::get_parameter;
@@ -133,6 +133,7 @@ struct SettingsDoc {
     ground_waves: Option<String>,
     soil_loss_factor: Option<f64>,
     soil_wave_speed_m_s: Option<f64>,
+    engine: Option<String>,
 }
 
 /// How the variables' values are combined into variants.
@@ -290,6 +291,10 @@ pub struct StudySettings {
     /// Wave speed (m/s) of the ground path; None: the model's site phase velocity, else the
     /// default soil's.
     pub soil_wave_speed_m_s: Option<f64>,
+    /// How the image columns of pad variants are computed (`engine = "auto"` or `"rebuild"`):
+    /// the spring-variant engine where it applies, or a model built per row; the rows are the
+    /// same either way to rounding.
+    pub engine: SweepEngine,
 }
 
 impl StudySettings {
@@ -310,6 +315,7 @@ impl StudySettings {
             ground_spreading: crate::distance_attenuation::SURFACE_WAVE_SPREADING,
             soil_loss_factor: crate::distance_attenuation::DEFAULT_SOIL_LOSS_FACTOR,
             soil_wave_speed_m_s: None,
+            engine: SweepEngine::Auto,
         })
     }
 
@@ -642,6 +648,18 @@ impl Study {
         }
         if let Some(g) = s.ground_scale {
             settings.ground_scale = g;
+        }
+        if let Some(e) = &s.engine {
+            settings.engine = match e.as_str() {
+                "auto" => SweepEngine::Auto,
+                "rebuild" => SweepEngine::Rebuild,
+                other => {
+                    return Err(Error::invalid(
+                        "settings.engine",
+                        format!("must be \"auto\" or \"rebuild\", got \"{other}\" in {file}"),
+                    ));
+                }
+            };
         }
         people_and_ground_settings(s, &mut settings, &mut variables, file)?;
         let study = Study {

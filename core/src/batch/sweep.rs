@@ -386,13 +386,80 @@ fn reference_pads() -> [Isolator; 2] {
     [pad("reference a", PadModel::Hysteretic, None), pad("reference b", PadModel::KelvinVoigt, Some(500.0))]
 }
 
+/// The spring-variant engine's base for a pad mechanism: the model with the first reference pad
+/// and the names of the pad springs. It comes from the mechanism alone ([`reference_pads`]),
+/// never from a catalogue, so a row does not depend on which other isolators share the run (a
+/// sweep or study split into parts gives the whole's rows, bit for bit).
+pub(crate) struct PadEngine {
+    spec: ModelSpec,
+    pub(crate) model: Model,
+    pub(crate) names: Vec<String>,
+    base_models: Vec<StiffnessModel>,
+}
+
+impl PadEngine {
+    /// None when the mechanism has no pad springs the engine can replace.
+    pub(crate) fn new(mech: &PadMechanism) -> Option<PadEngine> {
+        let [ra, rb] = reference_pads();
+        let (Ok(spec), Ok(other)) = (mech.spec_with(&ra), mech.spec_with(&rb)) else {
+            return None;
+        };
+        let names: Vec<String> = spring_changes(&spec, &other)?.into_iter().map(|(n, _)| n).collect();
+        if names.is_empty() {
+            return None;
+        }
+        let model = Model::from_spec(&spec).ok()?;
+        let refs: Vec<&str> = names.iter().map(String::as_str).collect();
+        let base_models = SpringSets::new(&model, &refs).ok()?.base_models();
+        Some(PadEngine { spec, model, names, base_models })
+    }
+
+    /// The replacement set (one stiffness model per pad spring, in `names` order) of a spec
+    /// that differs from the base only in pad springs; None when it needs a model of its own.
+    pub(crate) fn set_of(&self, spec: &ModelSpec) -> Option<Vec<StiffnessModel>> {
+        let changes = spring_changes(&self.spec, spec)?;
+        let mut set = self.base_models.clone();
+        for (nm, m) in changes {
+            set[self.names.iter().position(|x| *x == nm)?] = m;
+        }
+        Some(set)
+    }
+
+    /// The site's phase velocity of the base model's ground waves, if any.
+    pub(crate) fn site_phase_velocity(&self) -> Option<f64> {
+        self.spec.ground_waves.as_ref().map(|w| w.phase_velocity_m_s)
+    }
+
+    /// Image (RMS arcsec, RMS px, P(outside ½ px)) of every set under every disturbance,
+    /// indexed `[set][disturbance]`; None when the engine fails as a whole.
+    pub(crate) fn images(
+        &self,
+        grid: &FreqGrid,
+        sets: &[Vec<StiffnessModel>],
+        dist: &[Disturbances],
+    ) -> Option<Vec<Vec<std::result::Result<(f64, f64, f64), String>>>> {
+        let refs: Vec<&str> = self.names.iter().map(String::as_str).collect();
+        let plan = SpringSets::new(&self.model, &refs).ok()?;
+        let radius_px = ImageOptions::default().radius_px.unwrap_or(0.5);
+        let stats = plan.image_stats(grid, sets, dist, radius_px).ok()?;
+        Some(
+            stats
+                .into_iter()
+                .map(|per| {
+                    per.into_iter()
+                        .map(|r| r.map(|s| (s.rms_arcsec, s.rms_px, s.p_outside)).map_err(|e| e.to_string()))
+                        .collect()
+                })
+                .collect(),
+        )
+    }
+}
+
 /// The image columns of every (isolator, ground, wind) whose isolator only replaces the pad
-/// springs, by the spring-variant engine ([`SpringSets`]): one plan, one FRF per isolator shared
-/// by every ground and wind. The base model and the replaced springs come from the mechanism
-/// alone ([`reference_pads`]), never from the catalogue, so a row does not depend on which
-/// other isolators share the sweep (a sweep split into parts gives the whole's rows, bit for
-/// bit). The isolators left out (a model of their own, as the rig layer's "none"; or none could
-/// be built) are evaluated per row; an engine failure as a whole leaves every row to that path.
+/// springs, by the spring-variant engine ([`PadEngine`]): one FRF per isolator shared by every
+/// ground and wind. The isolators left out (a model of their own, as the rig layer's "none"; or
+/// none could be built) are evaluated per row; an engine failure as a whole leaves every row to
+/// that path.
 fn spring_set_rows(
     mech: &PadMechanism,
     catalogue: &Catalogue,
@@ -402,49 +469,22 @@ fn spring_set_rows(
     grid: &FreqGrid,
 ) -> HashMap<(usize, usize, usize), Evaluated> {
     let mut out = HashMap::new();
-    let [ra, rb] = reference_pads();
-    let (Ok(base_spec), Ok(other)) = (mech.spec_with(&ra), mech.spec_with(&rb)) else {
+    let Some(engine) = PadEngine::new(mech) else {
         return out;
     };
-    let Some(pads) = spring_changes(&base_spec, &other) else {
-        return out;
-    };
-    let names: Vec<String> = pads.into_iter().map(|(n, _)| n).collect();
-    if names.is_empty() {
-        return out;
-    }
-    let Ok(base_model) = Model::from_spec(&base_spec) else {
-        return out;
-    };
-    let mut members: Vec<(usize, Vec<(String, StiffnessModel)>)> = Vec::new();
+    let mut members = Vec::new();
+    let mut sets = Vec::new();
     for (si, b) in built.iter().enumerate() {
         if let (Some(spec), Ok(_)) = (&b.spec, &b.model)
-            && let Some(ch) = spring_changes(&base_spec, spec)
-            && ch.iter().all(|(n, _)| names.contains(n))
+            && let Some(set) = engine.set_of(spec)
         {
-            members.push((si, ch));
+            members.push(si);
+            sets.push(set);
         }
     }
     if members.is_empty() {
         return out;
     }
-    let name_refs: Vec<&str> = names.iter().map(String::as_str).collect();
-    let Ok(plan) = SpringSets::new(&base_model, &name_refs) else {
-        return out;
-    };
-    let base_models = plan.base_models();
-    let sets: Vec<Vec<StiffnessModel>> = members
-        .iter()
-        .map(|(_, ch)| {
-            let mut set = base_models.clone();
-            for (nm, m) in ch {
-                if let Some(p) = names.iter().position(|x| x == nm) {
-                    set[p] = m.clone();
-                }
-            }
-            set
-        })
-        .collect();
     let mut cases = Vec::new();
     let mut dist = Vec::new();
     for (gi, s) in spectra.iter().enumerate() {
@@ -459,17 +499,13 @@ fn spring_set_rows(
             });
         }
     }
-    let radius_px = ImageOptions::default().radius_px.unwrap_or(0.5);
-    let Ok(stats) = plan.image_stats(grid, &sets, &dist, radius_px) else {
+    let Some(stats) = engine.images(grid, &sets, &dist) else {
         return out;
     };
-    for ((si, _), per_case) in members.iter().zip(stats) {
+    for (si, per_case) in members.iter().zip(stats) {
         let name = &catalogue.isolators[*si].name;
         for (&(gi, wi), r) in cases.iter().zip(per_case) {
-            let v = r
-                .map(|s| (s.rms_arcsec, s.rms_px, s.p_outside))
-                .map_err(|e| format!("isolator '{name}': {e}"));
-            out.insert((*si, gi, wi), v);
+            out.insert((*si, gi, wi), r.map_err(|e| format!("isolator '{name}': {e}")));
         }
     }
     out
