@@ -1003,40 +1003,13 @@ pub fn run_study(
         let p = p;
         let mut done = (0..total).filter(|&i| done_keys.contains(&p.key(i))).count();
         progress(SweepProgress { done, total });
-        let (tx, rx) = std::sync::mpsc::channel::<(usize, Vec<StudyRow>)>();
-        let mut write_err: Option<Error> = None;
         let mut computed = 0usize;
         let want = |k: &str| !done_keys.contains(k);
-        std::thread::scope(|scope| {
-            let (todo, p, want) = (&todo, &p, &want);
-            scope.spawn(move || {
-                todo.par_iter().for_each_with(tx, |tx, &v| {
-                    let _ = tx.send((v, evaluate_variant(p, v, want)));
-                });
-            });
-            let mut pending: BTreeMap<usize, Vec<StudyRow>> = BTreeMap::new();
-            let mut next = 0usize;
-            for (v, rows) in rx {
-                pending.insert(v, rows);
-                while next < todo.len() {
-                    let Some(rows) = pending.remove(&todo[next]) else { break };
-                    for row in rows {
-                        if write_err.is_none()
-                            && let Err(e) = writer.write_row(&row.fields())
-                        {
-                            write_err = Some(e);
-                        }
-                        computed += 1;
-                        done += 1;
-                    }
-                    next += 1;
-                    progress(SweepProgress { done, total });
-                }
-            }
-        });
-        if let Some(e) = write_err {
-            return Err(e);
-        }
+        writer.write_in_order(&todo, &|v| evaluate_variant(&p, v, &want), StudyRow::fields, |n| {
+            computed += n;
+            done += n;
+            progress(SweepProgress { done, total });
+        })?;
         let path = writer.finish()?;
         let mut rows = read_study_csv(study, &path)?;
         // Resumed files hold the kept rows first: put every row in study order.

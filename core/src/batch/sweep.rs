@@ -843,36 +843,10 @@ pub fn run_sweep(
         let todo: Vec<usize> = (0..total).filter(|&i| !done_keys.contains(&plan.jobs[i].key)).collect();
         let mut done = total - todo.len();
         progress(SweepProgress { done, total });
-        let (tx, rx) = std::sync::mpsc::channel::<(usize, SweepRow)>();
-        let mut write_err: Option<Error> = None;
-        std::thread::scope(|scope| {
-            let todo = &todo;
-            let plan = &plan;
-            scope.spawn(move || {
-                todo.par_iter().for_each_with(tx, |tx, &i| {
-                    let _ = tx.send((i, plan.row(i)));
-                });
-            });
-            let mut pending: BTreeMap<usize, SweepRow> = BTreeMap::new();
-            let mut next = 0usize; // position in `todo`
-            for (i, row) in rx {
-                pending.insert(i, row);
-                while next < todo.len() {
-                    let Some(row) = pending.remove(&todo[next]) else { break };
-                    if write_err.is_none()
-                        && let Err(e) = writer.write_row(&row.fields())
-                    {
-                        write_err = Some(e);
-                    }
-                    next += 1;
-                    done += 1;
-                    progress(SweepProgress { done, total });
-                }
-            }
-        });
-        if let Some(e) = write_err {
-            return Err(e);
-        }
+        writer.write_in_order(&todo, &|i| vec![plan.row(i)], SweepRow::fields, |n| {
+            done += n;
+            progress(SweepProgress { done, total });
+        })?;
         let path = writer.finish()?;
         let rows = read_sweep_csv(&path)?;
         let summary = summarize(&rows, &cfg.visibility);

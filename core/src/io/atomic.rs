@@ -237,6 +237,46 @@ impl AtomicCsvWriter {
         Ok(())
     }
 
+    /// Compute the rows of each of `items` in parallel (rayon) and write them in the order of
+    /// `items`, each item's rows as soon as every earlier item's are written, so an interrupted
+    /// run leaves a complete prefix. `done` is called in order with each item's row count.
+    /// Every item is computed even after a write fails; the first write error is returned.
+    pub fn write_in_order<R: Send>(
+        &mut self,
+        items: &[usize],
+        rows_of: &(dyn Fn(usize) -> Vec<R> + Sync),
+        fields: impl Fn(&R) -> Vec<String>,
+        mut done: impl FnMut(usize),
+    ) -> Result<()> {
+        use rayon::prelude::*;
+        let (tx, rx) = std::sync::mpsc::channel::<(usize, Vec<R>)>();
+        let mut err: Option<Error> = None;
+        std::thread::scope(|scope| {
+            scope.spawn(move || {
+                items.par_iter().enumerate().for_each_with(tx, |tx, (pos, &i)| {
+                    let _ = tx.send((pos, rows_of(i)));
+                });
+            });
+            let mut pending: std::collections::BTreeMap<usize, Vec<R>> = std::collections::BTreeMap::new();
+            let mut next = 0usize;
+            for (pos, rows) in rx {
+                pending.insert(pos, rows);
+                while let Some(rows) = pending.remove(&next) {
+                    for row in &rows {
+                        if err.is_none()
+                            && let Err(e) = self.write_row(&fields(row))
+                        {
+                            err = Some(e);
+                        }
+                    }
+                    done(rows.len());
+                    next += 1;
+                }
+            }
+        });
+        err.map_or(Ok(()), Err)
+    }
+
     /// Rows written (including those kept by [`resume`](Self::resume)), header excluded.
     pub fn rows(&self) -> usize {
         self.rows
