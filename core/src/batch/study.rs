@@ -20,7 +20,9 @@
 //!   ([`evaluate_variant`]): the rig's file, each path set with
 //!   [`crate::identify::set_parameter`], pads put in with [`PadMechanism::spec_with`]. A variant
 //!   that cannot be built (a value that makes the model invalid, a path missing from an
-//!   alternative file) gives error rows naming why, and the rest finish.
+//!   alternative file) gives error rows naming why, and the rest finish. Catalogue pads that
+//!   only change the pad springs take their image columns from the spring-variant engine
+//!   ([`PreparedStudy::use_spring_sets`]); `engine = "rebuild"` turns that off.
 //! - **Output.** [`run_study`] writes the CSV with an [`AtomicCsvWriter`] in row order as soon
 //!   as each variant is done; `resume` keeps the complete rows of an interrupted run (error rows
 //!   count as complete). [`study_rows`] returns the same rows in memory at full precision.
