@@ -65,8 +65,8 @@ pub use calibrate::{
     get_parameter, numeric_paths, set_parameter,
 };
 pub use card::{
-    CardComparison, CardOptions, DEFAULT_THRESHOLD_PX, DampedSineFit, Estimate, RingdownCard, compare_cards,
-    ringdown_card,
+    CardComparison, CardOptions, DEFAULT_THRESHOLD_PX, DampedSineFit, Estimate, RingdownCard, TrackUnit,
+    compare_cards, image_track_card, ringdown_card,
 };
 pub use compare::{CompareOptions, RingdownComparison, RingdownMetrics, SettleThreshold, compare_ringdowns};
 pub use frf_fit::{FrfMode, FrfModeOptions, fit_frf_band, frf_modes};
