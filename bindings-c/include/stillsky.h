@@ -410,6 +410,61 @@ typedef struct stillsky_tone_line_image {
 } stillsky_tone_line_image;
 
 /**
+ * The ring-down card (`stillsky_ringdown_card`). Values in arcsec whatever the track's unit;
+ * px values are NaN when no plate scale was given.
+ */
+typedef struct stillsky_ringdown_card_summary {
+  /**
+   * Natural frequency f_n (Hz) of the damped-sine fit, and its uncertainty u (f ± u, Hz):
+   * u = √((k σ_fit)² + r²), σ_fit the fit's standard error, k the coverage factor (2), r the
+   * largest distance to another method's estimate.
+   */
+  double frequency_hz;
+  double frequency_uncertainty_hz;
+  /**
+   * Damping ratio ζ and its uncertainty (same rule).
+   */
+  double damping_ratio;
+  double damping_uncertainty;
+  /**
+   * First excursion: the largest |x − rest level| (arcsec, px) and when (s from the first
+   * sample).
+   */
+  double first_excursion_arcsec;
+  double first_excursion_px;
+  double first_excursion_time_s;
+  /**
+   * Rest level: mean of the last 10 % of the track (arcsec).
+   */
+  double rest_level_arcsec;
+  /**
+   * Settle threshold used (arcsec, px).
+   */
+  double threshold_arcsec;
+  double threshold_px;
+  /**
+   * True when the track falls inside the threshold before its last 10 %; then
+   * `settle_time_s` is the time from the first excursion to the last sample outside it (s),
+   * else NaN.
+   */
+  bool settled;
+  double settle_time_s;
+  /**
+   * From the first excursion until the fitted envelope falls below the threshold (s).
+   */
+  double settle_time_fit_s;
+  /**
+   * RMS of the fit's residual (arcsec).
+   */
+  double residual_rms_arcsec;
+  /**
+   * Number of warnings, and the bytes their text needs (lines joined by '\n', with the NUL).
+   */
+  size_t n_warnings;
+  size_t warnings_len;
+} stillsky_ringdown_card_summary;
+
+/**
  * Every status, in numeric order.
  */
 #define stillsky_status_ALL { stillsky_status_Ok, stillsky_status_InvalidArgument, stillsky_status_NullPointer, stillsky_status_Parse, stillsky_status_UnsupportedModel, stillsky_status_Io, stillsky_status_Singular, stillsky_status_BufferTooSmall, stillsky_status_UnknownName, stillsky_status_TooLarge, stillsky_status_NoConvergence, stillsky_status_Internal, stillsky_status_ShapeMismatch, stillsky_status_InvalidGrid, stillsky_status_OutOfRange, stillsky_status_NotPositiveDefinite, }
@@ -804,6 +859,67 @@ int32_t stillsky_ground_distance_ratio(const double *freq_hz,
                                        double loss_factor,
                                        double wave_speed_m_s,
                                        double *out);
+
+/**
+ * The ring-down card of a tap recorded as an image track: `x[0..n]` sampled at `fs_hz`, in
+ * `unit` `"arcsec"` or `"px"`. A track in px needs `plate_scale_arcsec_per_px` (arcsec per px;
+ * NaN for none, then only an arcsec track is accepted). `threshold` is in the track's unit;
+ * NaN gives the default (½ px with a plate scale, else 10 % of the first excursion). The
+ * warnings' text goes to `warnings` (capacity `warnings_cap` bytes, NUL-terminated,
+ * truncated; NULL to skip). The physics is the core's `ringdown_card`.
+ *
+ * # Safety
+ * `x` points to `n` doubles; `unit` NUL-terminated; `out` NULL or writable; `warnings` NULL or
+ * `warnings_cap` writable bytes.
+ */
+int32_t stillsky_ringdown_card(const double *x,
+                               size_t n,
+                               const char *unit,
+                               double fs_hz,
+                               double plate_scale_arcsec_per_px,
+                               double threshold,
+                               struct stillsky_ringdown_card_summary *out,
+                               char *warnings,
+                               size_t warnings_cap);
+
+/**
+ * The response H(f) = G s²/(s² + 2ζω₀s + ω₀²), s = 2πi f (V per m/s of ground velocity), of a
+ * geophone of natural frequency `natural_hz`, damping ratio `damping` (0 < ζ < 1) and
+ * generator constant `generator_v_per_m_s`, at each of `freq_hz[0..n]` (finite) into
+ * `out[0..n]`. `valid_low_hz` (NULL to skip) receives where the valid band starts: |H| = 0.1 G.
+ *
+ * # Safety
+ * `freq_hz` points to `n` doubles; `out` to `n` writable `stillsky_complex`; `valid_low_hz`
+ * NULL or writable.
+ */
+int32_t stillsky_geophone_response(double natural_hz,
+                                   double damping,
+                                   double generator_v_per_m_s,
+                                   const double *freq_hz,
+                                   size_t n,
+                                   struct stillsky_complex *out,
+                                   double *valid_low_hz);
+
+/**
+ * Remove a geophone's response (as in `stillsky_geophone_response`) from a PSD of its output
+ * `psd[0..n]` (V²/Hz) at `freq_hz[0..n]` (Hz, strictly increasing, > 0): `out[k]` =
+ * psd[k]/|H(f_k)|², the ground velocity PSD ((m/s)²/Hz), inside the band `band_low_hz` ..
+ * `band_high_hz` (Hz; the high end may be INFINITY; both NaN for the whole valid band) and 0
+ * outside it. A band reaching below where the response is valid gives
+ * `STILLSKY_STATUS_OUT_OF_RANGE` with the limits.
+ *
+ * # Safety
+ * `freq_hz` and `psd` point to `n` doubles; `out` to `n` writable doubles.
+ */
+int32_t stillsky_geophone_remove_psd(double natural_hz,
+                                     double damping,
+                                     double generator_v_per_m_s,
+                                     const double *freq_hz,
+                                     const double *psd,
+                                     size_t n,
+                                     double band_low_hz,
+                                     double band_high_hz,
+                                     double *out);
 
 #ifdef __cplusplus
 }  // extern "C"

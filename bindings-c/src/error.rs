@@ -160,24 +160,32 @@ pub(crate) unsafe fn cstr<'a>(p: *const c_char, arg: &str) -> Res<&'a str> {
 #[unsafe(no_mangle)]
 pub unsafe extern "C" fn stillsky_last_error_message(buf: *mut c_char, len: usize) -> usize {
     guard_value("stillsky_last_error_message", 0, || {
-        LAST_ERROR.with(|e| {
-            let msg = e.borrow();
-            let needed = msg.len() + 1;
-            if buf.is_null() || len == 0 {
-                return needed;
-            }
-            let mut n = msg.len().min(len - 1);
-            while !msg.is_char_boundary(n) {
-                n -= 1;
-            }
-            // SAFETY: `buf` has `len` > n bytes per the caller's contract.
-            unsafe {
-                std::ptr::copy_nonoverlapping(msg.as_ptr().cast::<c_char>(), buf, n);
-                *buf.add(n) = 0;
-            }
-            needed
-        })
+        // SAFETY: the caller's contract is `copy_text`'s.
+        LAST_ERROR.with(|e| unsafe { copy_text(&e.borrow(), buf, len) })
     })
+}
+
+/// Copy `msg` into `buf` (capacity `len` bytes) NUL-terminated, truncated at a UTF-8 character
+/// boundary if it does not fit; nothing is written when `buf` is NULL or `len` is 0. Returns
+/// the length needed for the whole text including the NUL.
+///
+/// # Safety
+/// `buf` is NULL or points to `len` writable bytes.
+pub(crate) unsafe fn copy_text(msg: &str, buf: *mut c_char, len: usize) -> usize {
+    let needed = msg.len() + 1;
+    if buf.is_null() || len == 0 {
+        return needed;
+    }
+    let mut n = msg.len().min(len - 1);
+    while !msg.is_char_boundary(n) {
+        n -= 1;
+    }
+    // SAFETY: `buf` has `len` > n bytes per the caller's contract.
+    unsafe {
+        std::ptr::copy_nonoverlapping(msg.as_ptr().cast::<c_char>(), buf, n);
+        *buf.add(n) = 0;
+    }
+    needed
 }
 
 /// A static, NUL-terminated name for a status code ("STILLSKY_STATUS_OK", ...), or

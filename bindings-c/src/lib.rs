@@ -10,6 +10,8 @@ mod image;
 mod model;
 mod monitor;
 mod people;
+mod ringdown;
+mod sensor;
 mod status;
 
 pub use error::{stillsky_last_error_message, stillsky_status_str, stillsky_version};
@@ -31,6 +33,8 @@ pub use people::{
     stillsky_ground_distance_ratio, stillsky_standing_row, stillsky_standing_tilt, stillsky_tone_image,
     stillsky_tone_line_image, stillsky_walking_pass, stillsky_walking_pass_summary,
 };
+pub use ringdown::{stillsky_ringdown_card, stillsky_ringdown_card_summary};
+pub use sensor::{stillsky_geophone_remove_psd, stillsky_geophone_response};
 pub use status::{status_of, stillsky_status};
 
 #[doc(hidden)]

@@ -87,6 +87,7 @@ fn c_programs_pass_and_match_core() {
     let monitor = compile("monitor");
     let matrix = compile("errors_matrix");
     let people = compile("people");
+    let ringdown_sensor = compile("ringdown_sensor");
 
     // Happy path: the C program checks the closed form itself; here the numbers it wrote are
     // compared with the core crate called directly.
@@ -132,6 +133,8 @@ fn c_programs_pass_and_match_core() {
     seen.extend(reached(&mon));
     // People and machines near the rig: hand formulas checked in the C program itself.
     seen.extend(reached(&run(&mut Command::new(&people), "people")));
+    // The ring-down card and a geophone's response: closed forms checked in the C program.
+    seen.extend(reached(&run(&mut Command::new(&ringdown_sensor), "ringdown_sensor")));
     for l in mon.lines().filter(|l| l.starts_with("rel_err")) {
         let v: f64 = l.split_whitespace().nth(2).expect("value").parse().expect("number");
         assert!(v.is_finite(), "{l}");
@@ -160,6 +163,7 @@ fn c_programs_pass_and_match_core() {
                 (&monitor, Some(quick)),
                 (&matrix, None),
                 (&people, None),
+                (&ringdown_sensor, None),
             ] {
                 let mut c = Command::new("valgrind");
                 c.args([

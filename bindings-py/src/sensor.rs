@@ -100,6 +100,21 @@ impl PySensorResponse {
         let out = py.detach(|| self.inner.remove(&x, fs, band)).py_err()?;
         Ok(out.into_pyarray(py))
     }
+    /// Remove the response from a PSD of the sensor's output at `freq_hz` within `band` (Hz;
+    /// default the valid band): S/|H|² inside, zero outside.
+    #[pyo3(signature = (freq_hz, psd, band = None))]
+    fn remove_psd<'py>(
+        &self,
+        py: Python<'py>,
+        freq_hz: &Bound<'py, PyAny>,
+        psd: &Bound<'py, PyAny>,
+        band: Option<(f64, f64)>,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let (f, p) = (f64_1d(freq_hz, "freq_hz")?, f64_1d(psd, "psd")?);
+        let (f, p) = (slice_or_copy(&f), slice_or_copy(&p));
+        let out = py.detach(|| self.inner.remove_psd(&f, &p, band)).py_err()?;
+        Ok(out.into_pyarray(py))
+    }
     fn __repr__(&self) -> String {
         format!(
             "SensorResponse(poles={}, zeros={}, gain={}, input={:?}, valid_band_hz={:?})",

@@ -159,6 +159,22 @@ def test_optics_bad_value():
         stillsky.Model.from_toml_str(OPTICS.format(px=0) + sdof())
 
 
+def test_track_px_no_plate_scale(tmp_path):
+    p = tmp_path / "track.csv"
+    p.write_text("# fs_hz=100\ncentroid_px\n0.5\n-0.25\n0.125\n")
+    with pytest.raises(stillsky.InvalidInputError, match="plate_scale_arcsec_per_px") as e:
+        stillsky.read_series(p)
+    assert "track.csv" in str(e.value)
+
+
+def test_removal_band_outside():
+    s = stillsky.SensorResponse.geophone(4.5, 0.7, 28.8)
+    with pytest.raises(stillsky.InvalidInputError, match="band low end"):
+        s.remove(np.zeros(256), 200.0, (0.5, 50.0))
+    with pytest.raises(stillsky.InvalidInputError, match="band high end.*Nyquist"):
+        s.remove(np.zeros(256), 200.0, (2.0, 150.0))
+
+
 def test_length_mismatch():
     with pytest.raises(stillsky.InvalidInputError, match="expected 3, got 2"):
         stillsky.Psd(np.array([1.0, 2.0, 3.0]), np.ones(2))

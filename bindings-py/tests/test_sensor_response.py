@@ -103,3 +103,25 @@ def test_flat_mems_and_noise_curves():
     assert stillsky.noise_floor_check(f, loud, "acceleration", "phone-mems")["warning"] is None
     with pytest.raises(stillsky.InvalidInputError, match="noise curve"):
         stillsky.noise_curve("no-such-sensor")
+
+
+def test_psd_removal_matches_scipy_freqs_zpk_inside_the_band_only():
+    s = stillsky.SensorResponse.geophone(4.5, 0.7, 28.8)
+    z, p, k = geophone_paz()
+    f = np.geomspace(0.1, 200, 300)
+    # A ground velocity PSD (invented) through |H|² from scipy.signal.freqs_zpk, and back.
+    ground = 1e-14 * (1 + f / 10)
+    _, h = scipy.signal.freqs_zpk(z, p, k, worN=2 * np.pi * f)
+    volts2 = ground * np.abs(h) ** 2
+    band = (2.0, 80.0)
+    got = s.remove_psd(f, volts2, band)
+    inside = (f >= band[0]) & (f <= band[1])
+    assert np.max(np.abs(got[inside] - ground[inside]) / ground[inside]) < 1e-9
+    assert np.all(got[~inside] == 0.0)
+    # Default band: the valid band (no Nyquist for a PSD), open at the top.
+    lo = s.valid_band_hz[0]
+    assert np.array_equal(s.remove_psd(f, volts2) == 0.0, f < lo)
+    with pytest.raises(stillsky.InvalidInputError, match="band low end"):
+        s.remove_psd(f, volts2, (0.5, 80.0))
+    with pytest.raises(stillsky.InvalidInputError, match="freq_hz"):
+        s.remove_psd(f[::-1], volts2)

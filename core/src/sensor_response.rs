@@ -17,9 +17,9 @@
 //! Each sensor carries the band where removing its response is valid. A geophone's output falls
 //! as (f/f₀)² below f₀; dividing by it there amplifies the sensor's own noise, so the valid band
 //! starts where |H| has fallen to [`MIN_RELATIVE_GAIN`] of its passband gain (a rule of ours:
-//! common practice, no source). [`SensorResponse::remove`] refuses a band outside it
-//! ([`Error::InvalidArgument`] naming `band`, with the limits) and returns the record with
-//! nothing outside the band.
+//! common practice, no source). [`SensorResponse::remove`] (a record) and
+//! [`SensorResponse::remove_psd`] (a PSD) refuse a band outside it ([`Error::OutOfRange`]
+//! naming `band`'s end, with the limits) and leave nothing outside the band.
 //!
 //! Self-noise: [`NoiseCurve`] presets for a phone-class MEMS accelerometer, a low-noise MEMS
 //! accelerometer and a 4.5 Hz geophone, and [`noise_floor_check`], which says how much of a
@@ -142,13 +142,88 @@ impl SensorResponse {
         num / den
     }
 
+    /// The band to remove the response in: `band` (default the valid band, capped at
+    /// `nyquist_hz` when given) checked against the valid band.
+    fn removal_band(&self, band: Option<(f64, f64)>, nyquist_hz: Option<f64>) -> Result<(f64, f64)> {
+        let (vlo, vhi) =
+            (self.valid_band_hz.0, nyquist_hz.map_or(self.valid_band_hz.1, |n| self.valid_band_hz.1.min(n)));
+        let (lo, hi) = band.unwrap_or((vlo, vhi));
+        // The high end may be +∞ (all of the valid band above `lo`), never NaN.
+        if !(lo.is_finite() && lo >= 0.0 && hi > lo) {
+            return Err(Error::invalid("band", format!("({lo}, {hi}) Hz must be 0 <= low < high")));
+        }
+        let limits = if nyquist_hz.is_some() {
+            "the sensor's valid band up to Nyquist"
+        } else {
+            "the sensor's valid band"
+        };
+        let out = |end: &str, value: f64| Error::OutOfRange {
+            what: format!("band {end} end (Hz) for removing the response ({limits})"),
+            value,
+            min: vlo,
+            max: vhi,
+        };
+        if lo < vlo {
+            return Err(out("low", lo));
+        }
+        if hi > vhi {
+            return Err(out("high", hi));
+        }
+        Ok((lo, hi))
+    }
+
+    /// Remove the response from a PSD of the sensor's output (e.g. V²/Hz) at `freq_hz`
+    /// (strictly increasing, > 0): S(f)/|H(f)|² on the frequencies inside `band` (Hz; default
+    /// the valid band), written to `out` ((m/s)²/Hz for a geophone: the input quantity's PSD);
+    /// 0 outside the band, as [`SensorResponse::remove`] leaves nothing outside it.
+    ///
+    /// Errors: a band reaching outside the valid band ([`Error::OutOfRange`] naming `band`'s
+    /// end and the limits), a malformed band, an invalid grid ([`Error::InvalidGrid`]), a
+    /// negative or non-finite PSD value, `psd` or `out` not as long as `freq_hz`
+    /// ([`Error::ShapeMismatch`]).
+    pub fn remove_psd_into(
+        &self,
+        freq_hz: &[f64],
+        psd: &[f64],
+        band: Option<(f64, f64)>,
+        out: &mut [f64],
+    ) -> Result<()> {
+        crate::grid::validate_freqs("freq_hz", freq_hz)?;
+        if psd.len() != freq_hz.len() {
+            return Err(Error::shape("psd vs freq_hz", freq_hz.len(), psd.len()));
+        }
+        if out.len() != freq_hz.len() {
+            return Err(Error::shape("out vs freq_hz", freq_hz.len(), out.len()));
+        }
+        if let Some(i) = psd.iter().position(|v| !(v.is_finite() && *v >= 0.0)) {
+            return Err(Error::invalid(
+                "psd",
+                format!("value {} at index {i} must be finite and >= 0", psd[i]),
+            ));
+        }
+        let (lo, hi) = self.removal_band(band, None)?;
+        for ((o, &f), &p) in out.iter_mut().zip(freq_hz).zip(psd) {
+            let h2 = self.response(f).norm_sqr();
+            *o = if f >= lo && f <= hi && h2 > 0.0 { p / h2 } else { 0.0 };
+        }
+        Ok(())
+    }
+
+    /// [`SensorResponse::remove_psd_into`] into a new vector.
+    pub fn remove_psd(&self, freq_hz: &[f64], psd: &[f64], band: Option<(f64, f64)>) -> Result<Vec<f64>> {
+        let mut out = vec![0.0; freq_hz.len()];
+        self.remove_psd_into(freq_hz, psd, band, &mut out)?;
+        Ok(out)
+    }
+
     /// Remove the response from a record `x` of the sensor's output sampled at `fs_hz`, within
     /// `band` (Hz; default the valid band up to Nyquist): X(f)/H(f) on the FFT bins inside the
     /// band, zero outside, back to time. The result is the input quantity (m/s or m/s²).
     /// The FFT treats the record as periodic: taper or detrend it first if its ends differ.
     ///
-    /// Errors: a band outside the valid band or above Nyquist ([`Error::InvalidArgument`] naming
-    /// `band` and the limits), fewer than 8 samples, a non-finite sample (its index).
+    /// Errors: a band reaching outside the valid band or above Nyquist ([`Error::OutOfRange`]
+    /// naming `band`'s end and the limits), a malformed band ([`Error::InvalidArgument`]),
+    /// fewer than 8 samples, a non-finite sample (its index).
     pub fn remove(&self, x: &[f64], fs_hz: f64, band: Option<(f64, f64)>) -> Result<Vec<f64>> {
         let fs = require_positive("fs_hz", fs_hz)?;
         let n = x.len();
@@ -158,21 +233,7 @@ impl SensorResponse {
         if let Some(i) = x.iter().position(|v| !v.is_finite()) {
             return Err(Error::invalid("x", format!("sample {i} is {} (not finite)", x[i])));
         }
-        let nyq = 0.5 * fs;
-        let (vlo, vhi) = (self.valid_band_hz.0, self.valid_band_hz.1.min(nyq));
-        let (lo, hi) = band.unwrap_or((vlo, vhi));
-        if !(lo.is_finite() && hi.is_finite() && hi > lo && lo >= 0.0) {
-            return Err(Error::invalid("band", format!("({lo}, {hi}) Hz must be 0 <= low < high")));
-        }
-        if lo < vlo || hi > vhi {
-            return Err(Error::invalid(
-                "band",
-                format!(
-                    "{lo}..{hi} Hz reaches outside where the response may be removed, \
-                     {vlo:.4}..{vhi:.4} Hz (the sensor's valid band up to Nyquist)"
-                ),
-            ));
-        }
+        let (lo, hi) = self.removal_band(band, Some(0.5 * fs))?;
         let mut planner = RealFftPlanner::<f64>::new();
         let fwd = planner.plan_fft_forward(n);
         let inv = planner.plan_fft_inverse(n);
@@ -395,9 +456,47 @@ mod tests {
         let err = v.iter().zip(&back).map(|(a, b)| (a - b).abs()).fold(0.0, f64::max);
         assert!(err < 1e-9 * 2e-6, "{err}");
         let e = g.remove(&out, fs, Some((0.5, 90.0))).unwrap_err();
-        assert!(e.to_string().contains("band") && e.to_string().contains("valid band"), "{e}");
+        assert!(matches!(e, Error::OutOfRange { value: 0.5, .. }), "{e:?}");
+        assert!(e.to_string().contains("band low end") && e.to_string().contains("valid band"), "{e}");
         let e = g.remove(&out, fs, Some((2.0, 150.0))).unwrap_err();
+        assert!(matches!(e, Error::OutOfRange { value: 150.0, max: 100.0, .. }), "{e:?}");
         assert!(e.to_string().contains("Nyquist"), "{e}");
+        let e = g.remove(&out, fs, Some((5.0, 2.0))).unwrap_err();
+        assert!(matches!(e, Error::InvalidArgument { .. }), "{e:?}");
+    }
+
+    #[test]
+    fn psd_removal_divides_by_the_closed_form_response_inside_the_band_only() {
+        // |H|² of a moving-coil geophone, G² ω⁴ / ((ω₀² − ω²)² + (2ζω₀ω)²) (the standard
+        // second-order electrodynamic sensor, docs/references.md#sensor-response).
+        let (f0, z, gc) = (4.5, 0.7, 28.8);
+        let g = SensorResponse::geophone(f0, z, gc).unwrap();
+        let f: Vec<f64> = (1..=400).map(|k| 0.25 * k as f64).collect();
+        let v2: Vec<f64> = f.iter().map(|&fk| 1e-12 * (1.0 + fk)).collect();
+        let band = (3.0, 60.0);
+        let out = g.remove_psd(&f, &v2, Some(band)).unwrap();
+        let w0 = 2.0 * PI * f0;
+        for ((&fk, &p), &o) in f.iter().zip(&v2).zip(&out) {
+            let w = 2.0 * PI * fk;
+            let h2 = gc * gc * w.powi(4) / ((w0 * w0 - w * w).powi(2) + (2.0 * z * w0 * w).powi(2));
+            if (band.0..=band.1).contains(&fk) {
+                assert!((o - p / h2).abs() <= 1e-12 * (p / h2), "{fk}: {o} vs {}", p / h2);
+            } else {
+                assert_eq!(o, 0.0, "{fk}");
+            }
+        }
+        // Default band: the valid band (no Nyquist for a PSD); below it, nothing.
+        let all = g.remove_psd(&f, &v2, None).unwrap();
+        let lo = g.valid_band_hz.0;
+        assert!(f.iter().zip(&all).all(|(&fk, &o)| (fk < lo) == (o == 0.0)));
+        let e = g.remove_psd(&f, &v2, Some((0.5, 60.0))).unwrap_err();
+        assert!(matches!(e, Error::OutOfRange { value: 0.5, .. }), "{e:?}");
+        assert!(e.to_string().contains("band low end"), "{e}");
+        let e = g.remove_psd(&f, &v2[..3], None).unwrap_err();
+        assert!(matches!(e, Error::ShapeMismatch { expected: 400, got: 3, .. }), "{e:?}");
+        let mut bad = v2.clone();
+        bad[7] = -1.0;
+        assert!(g.remove_psd(&f, &bad, None).unwrap_err().to_string().contains("index 7"));
     }
 
     #[test]

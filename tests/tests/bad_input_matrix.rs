@@ -7,9 +7,11 @@
 use std::path::{Path, PathBuf};
 use stillsky::assembly::MAX_DOFS;
 use stillsky::grid::MAX_GRID_LEN;
+use stillsky::identify::{CardOptions, TrackUnit, image_track_card};
 use stillsky::io::series::{SeriesOptions, read_series, read_series_text};
 use stillsky::model::Model;
 use stillsky::monitor::image_motion_from_ground_acceleration;
+use stillsky::sensor_response::SensorResponse;
 use stillsky::spectrum::welch::{WelchConfig, WelchStream};
 use stillsky::spectrum::{Extrapolate, Psd, Quantity};
 use stillsky::{Complex64, Error, FreqGrid};
@@ -250,6 +252,41 @@ fn buffer_too_small() {
     let grid = stillsky::FreqGrid::new(vec![1.0, 2.0, 3.0]).unwrap();
     let e = plan.evaluate_into(&grid, Some(&mut out), None).unwrap_err();
     assert!(matches!(e, Error::ShapeMismatch { expected: 3, got: 2, .. }), "{e:?}");
+}
+
+#[test]
+fn track_px_no_plate_scale() {
+    // A centroid track in px read without a plate scale (what `tap` refuses) ...
+    let text = "# fs_hz=100\ncentroid_px\n0.5\n-0.25\n0.125\n";
+    let e = read_series_text(text, "track.csv", &SeriesOptions::default()).unwrap_err();
+    assert!(
+        matches!(&e, Error::InvalidArgument { name, .. } if name == "plate_scale_arcsec_per_px"),
+        "{e:?}"
+    );
+    msg_has(&e, &["track.csv", "px", "plate scale"]);
+    // ... and samples in px handed to the card without one.
+    let x: Vec<f64> = (0..512).map(|i| (-(i as f64) / 100.0).exp() * (0.3 * i as f64).sin()).collect();
+    let e = image_track_card(&x, TrackUnit::Px, 100.0, &CardOptions::default()).unwrap_err();
+    assert!(
+        matches!(&e, Error::InvalidArgument { name, .. } if name == "plate_scale_arcsec_per_px"),
+        "{e:?}"
+    );
+    msg_has(&e, &["px", "plate scale"]);
+}
+
+#[test]
+fn removal_band_outside() {
+    // A 4.5 Hz geophone (ζ 0.7, 28.8 V/(m/s)) is valid from about 1.2 Hz up.
+    let g = SensorResponse::geophone(4.5, 0.7, 28.8).unwrap();
+    let lo = g.valid_band_hz.0;
+    let e = g.remove(&[0.0; 256], 200.0, Some((0.5, 50.0))).unwrap_err();
+    assert!(matches!(e, Error::OutOfRange { value: 0.5, min, .. } if min == lo), "{e:?}");
+    msg_has(&e, &["band low end", "valid band"]);
+    let e = g.remove(&[0.0; 256], 200.0, Some((2.0, 150.0))).unwrap_err();
+    assert!(matches!(e, Error::OutOfRange { value: 150.0, max: 100.0, .. }), "{e:?}");
+    msg_has(&e, &["band high end", "Nyquist"]);
+    let e = g.remove_psd(&[0.5, 1.0, 2.0], &[1.0; 3], Some((0.5, 2.0))).unwrap_err();
+    assert!(matches!(e, Error::OutOfRange { value: 0.5, .. }), "{e:?}");
 }
 
 /// Row ids of docs/errors.md (the first column of the matrix table).

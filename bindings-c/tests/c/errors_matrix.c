@@ -135,6 +135,22 @@ int main(void) {
     ROW("optics_bad_value", stillsky_model_from_toml(OPTICS("0") SDOF_HEAD SPRING("mass", GOOD_K), &m2),
         STILLSKY_STATUS_INVALID_ARGUMENT, "optics.pixel_um");
 
+    /* an image track in px without a plate scale (NaN: none) */
+    {
+        double track[512];
+        stillsky_ringdown_card_summary card;
+        for (int i = 0; i < 512; i++) track[i] = exp(-i / 100.0) * sin(0.3 * i);
+        ROW("track_px_no_plate_scale", stillsky_ringdown_card(track, 512, "px", 100.0, NAN, NAN, &card, NULL, 0),
+            STILLSKY_STATUS_INVALID_ARGUMENT, "plate_scale_arcsec_per_px");
+    }
+    /* a sensor-response removal band reaching below the band where the response is valid
+     * (a 4.5 Hz geophone, zeta 0.7, 28.8 V/(m/s): valid from about 1.2 Hz) */
+    {
+        double gf[3] = {0.5, 1.0, 2.0}, gp[3] = {1.0, 1.0, 1.0}, go[3];
+        ROW("removal_band_outside", stillsky_geophone_remove_psd(4.5, 0.7, 28.8, gf, gp, 3, 0.5, 2.0, go),
+            STILLSKY_STATUS_OUT_OF_RANGE, "band low end");
+    }
+
     /* pointers and buffers */
     ROW("null_pointer", stillsky_frf_evaluate(model, NULL, 3, "ground_z", "mass:z", re, im, 3), STILLSKY_STATUS_NULL_POINTER, "freq_hz");
     ROW("null_pointer", stillsky_model_from_toml(NULL, &m2), STILLSKY_STATUS_NULL_POINTER, "text");

@@ -887,6 +887,11 @@ class SensorResponse:
         """Remove the response from a record of the sensor's output within ``band`` (Hz;
         default the valid band up to Nyquist): X/H on the FFT bins inside, zero outside.
         A band outside the valid band raises InvalidInputError naming the limits."""
+    def remove_psd(self, freq_hz: _F64In, psd: _F64In, band: tuple[float, float] | None = ...) -> _F64:
+        """Remove the response from a PSD of the sensor's output (e.g. V²/Hz) at ``freq_hz``
+        (strictly increasing, > 0) within ``band`` (Hz; default the valid band; the high end
+        may be ``inf``): S/|H|² inside (the input quantity's PSD), zero outside. A band
+        outside the valid band raises InvalidInputError naming the limits."""
 
 def noise_curve(name: str) -> dict[str, Any]:
     """A bundled self-noise curve ("phone-mems", "low-noise-mems", "geophone-4.5hz"):

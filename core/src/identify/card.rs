@@ -467,6 +467,59 @@ pub fn ringdown_card(x: &[f64], fs_hz: f64, opts: &CardOptions) -> Result<Ringdo
     })
 }
 
+/// The unit of an image track (a star's centroid position) given to [`image_track_card`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub enum TrackUnit {
+    /// Arcseconds on the sky.
+    Arcsec,
+    /// Pixels on the sensor: converted to arcsec with the plate scale, which is then required.
+    Px,
+}
+
+impl TrackUnit {
+    /// The names [`TrackUnit::parse`] accepts.
+    pub const NAMES: [&'static str; 2] = ["arcsec", "px"];
+
+    /// `"arcsec"` or `"px"` ([`Error::UnknownName`] otherwise).
+    pub fn parse(name: &str) -> Result<TrackUnit> {
+        match name {
+            "arcsec" => Ok(TrackUnit::Arcsec),
+            "px" => Ok(TrackUnit::Px),
+            other => Err(Error::UnknownName {
+                kind: "track unit".into(),
+                name: other.into(),
+                known: TrackUnit::NAMES.join(", "),
+            }),
+        }
+    }
+}
+
+/// The ring-down card of an image track `x` in `unit`. A track in px is converted to arcsec
+/// with `opts.plate_scale_arcsec_per_px` (required: [`Error::InvalidArgument`] naming
+/// `plate_scale_arcsec_per_px` without it, as when a recording in px is read without one), and
+/// `opts.threshold` is then read in px too. The card's values are in arcsec (and px with a
+/// plate scale) either way.
+pub fn image_track_card(x: &[f64], unit: TrackUnit, fs_hz: f64, opts: &CardOptions) -> Result<RingdownCard> {
+    match unit {
+        TrackUnit::Arcsec => ringdown_card(x, fs_hz, opts),
+        TrackUnit::Px => {
+            let Some(p) = opts.plate_scale_arcsec_per_px else {
+                return Err(Error::invalid(
+                    "plate_scale_arcsec_per_px",
+                    "the track is in px: give the plate scale (arcsec per px) to convert it to arcsec",
+                ));
+            };
+            let p = require_positive("plate_scale_arcsec_per_px", p)?;
+            if let Some(t) = opts.threshold {
+                require_positive("threshold", t)?;
+            }
+            let arcsec: Vec<f64> = x.iter().map(|v| v * p).collect();
+            let o = CardOptions { threshold: opts.threshold.map(|t| t * p), ..opts.clone() };
+            ringdown_card(&arcsec, fs_hz, &o)
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -563,6 +616,35 @@ mod tests {
         assert!((c.damping_ratio_ratio - 5.0).abs() < 0.5, "{}", c.damping_ratio_ratio);
         assert!(c.settle_time_fit_ratio.unwrap() < 0.3);
         assert!((c.frequency_ratio - 1.0).abs() < 0.01);
+    }
+
+    #[test]
+    fn a_track_in_px_needs_the_plate_scale_and_matches_the_same_track_in_arcsec() {
+        let (fs, ps) = (200.0, 0.8);
+        let px = tap(6.0, 0.02, fs, 2048, 0.01, 6);
+        let arcsec: Vec<f64> = px.iter().map(|v| v * ps).collect();
+        let e = image_track_card(&px, TrackUnit::Px, fs, &CardOptions::default()).unwrap_err();
+        assert!(
+            matches!(&e, Error::InvalidArgument { name, .. } if name == "plate_scale_arcsec_per_px"),
+            "{e:?}"
+        );
+        let o = CardOptions {
+            plate_scale_arcsec_per_px: Some(ps),
+            threshold: Some(0.25),
+            ..CardOptions::default()
+        };
+        let a = image_track_card(&px, TrackUnit::Px, fs, &o).unwrap();
+        let o_arcsec = CardOptions { threshold: Some(0.25 * ps), ..o.clone() };
+        let b = image_track_card(&arcsec, TrackUnit::Arcsec, fs, &o_arcsec).unwrap();
+        // Same samples after the conversion: the same card.
+        assert_eq!(
+            (a.frequency_hz.value, a.damping_ratio.value),
+            (b.frequency_hz.value, b.damping_ratio.value)
+        );
+        assert_eq!((a.first_excursion, a.settle_time_s), (b.first_excursion, b.settle_time_s));
+        assert_eq!(a.threshold_px, Some(0.25));
+        assert_eq!(TrackUnit::parse("px").unwrap(), TrackUnit::Px);
+        assert!(matches!(TrackUnit::parse("mm"), Err(Error::UnknownName { .. })));
     }
 
     #[test]

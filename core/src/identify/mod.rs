@@ -65,8 +65,8 @@ pub use calibrate::{
     get_parameter, numeric_paths, set_parameter,
 };
 pub use card::{
-    CardComparison, CardOptions, DEFAULT_THRESHOLD_PX, DampedSineFit, Estimate, RingdownCard, compare_cards,
-    ringdown_card,
+    CardComparison, CardOptions, DEFAULT_THRESHOLD_PX, DampedSineFit, Estimate, RingdownCard, TrackUnit,
+    compare_cards, image_track_card, ringdown_card,
 };
 pub use compare::{CompareOptions, RingdownComparison, RingdownMetrics, SettleThreshold, compare_ringdowns};
 pub use frf_fit::{FrfMode, FrfModeOptions, fit_frf_band, frf_modes};
@@ -397,8 +397,11 @@ fn log_decrement(
 struct EnvelopeFit {
     /// Decay rate σ (1/s).
     sigma: f64,
-    /// ln of the envelope extrapolated to t = 0.
-    ln_amplitude: f64,
+    /// The envelope extrapolated to t = 0. Taken as e^a here, on the fit's success path only:
+    /// with `ln_amplitude.exp()` at the caller (`map_or` on the Option) the optimiser evaluated
+    /// exp on the payload of a `None` and discarded the result, which valgrind reports as a
+    /// branch on uninitialised memory inside exp (seen in bindings-c's C tests).
+    amplitude: f64,
     /// Damped angular frequency from the phase slope (rad/s).
     omega_d: f64,
 }
@@ -455,7 +458,7 @@ fn envelope_fit(
     let omega_d = (sw * stp - st * sp) / den;
     (slope < 0.0 && slope.is_finite() && omega_d > 0.0).then_some(EnvelopeFit {
         sigma: -slope,
-        ln_amplitude: a,
+        amplitude: a.exp(),
         omega_d,
     })
 }
@@ -780,7 +783,7 @@ pub fn identify_ringdown(x: &[f64], fs_hz: f64, opts: &RingdownOptions) -> Resul
         if let Some(d) = dom_pencil {
             cands.push(pencil_modes[d].frequency_hz);
         }
-        (median(&cands), zeta, env_fit.map_or(env_max, |e| e.ln_amplitude.exp()))
+        (median(&cands), zeta, env_fit.map_or(env_max, |e| e.amplitude))
     });
     let (dominant, dominant_source) = match (dom_pencil, single_mode, close_modes) {
         (Some(d), _, true) | (Some(d), None, _) => (d, EstimateSource::MatrixPencil),
