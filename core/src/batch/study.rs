@@ -36,7 +36,9 @@ use super::ground::GroundSpectrum;
 use super::gust::gust_family;
 use super::ranking::{Verdict, Visibility};
 use super::study_file::{Combine, Study, StudySetting, VariableKind};
-use super::sweep::{PadEngine, PadMechanism, SweepEngine, SweepProgress, WindCase, ground_labels, in_pool};
+use super::sweep::{
+    Evaluated, PadEngine, PadMechanism, SweepEngine, SweepProgress, WindCase, ground_labels, in_pool,
+};
 use super::sweep_row::sig6;
 use crate::error::{Error, Result};
 use crate::image::ImageOptions;
@@ -332,11 +334,8 @@ pub struct PreparedStudy<'a> {
     base: BTreeMap<(usize, usize), (f64, f64, f64)>,
     /// Image columns by the spring-variant engine, per (variant, ground, wind)
     /// ([`PreparedStudy::use_spring_sets`]).
-    fast: HashMap<(usize, usize, usize), ImageOf>,
+    fast: HashMap<(usize, usize, usize), Evaluated>,
 }
-
-/// RMS arcsec, RMS px and P(outside ½ px), or why they could not be computed.
-type ImageOf = std::result::Result<(f64, f64, f64), String>;
 
 impl<'a> PreparedStudy<'a> {
     /// Check the study, read the grounds and evaluate the base variant.
@@ -504,7 +503,7 @@ impl<'a> PreparedStudy<'a> {
             groups.entry(key).or_default().push(v);
         }
         let this = &*self;
-        let found: Vec<HashMap<(usize, usize, usize), ImageOf>> =
+        let found: Vec<HashMap<(usize, usize, usize), Evaluated>> =
             groups.into_par_iter().map(|(key, members)| this.group_images(&key, &members)).collect();
         self.fast = found.into_iter().flatten().collect();
     }
@@ -519,7 +518,7 @@ impl<'a> PreparedStudy<'a> {
         &self,
         key: &[Option<usize>],
         members: &[usize],
-    ) -> HashMap<(usize, usize, usize), ImageOf> {
+    ) -> HashMap<(usize, usize, usize), Evaluated> {
         let mut out = HashMap::new();
         let s = &self.study.settings;
         let Ok((file, _)) = self.file_of(key) else { return out };

@@ -437,7 +437,7 @@ impl PadEngine {
         grid: &FreqGrid,
         sets: &[Vec<StiffnessModel>],
         dist: &[Disturbances],
-    ) -> Option<Vec<Vec<std::result::Result<(f64, f64, f64), String>>>> {
+    ) -> Option<Vec<Vec<Evaluated>>> {
         let refs: Vec<&str> = self.names.iter().map(String::as_str).collect();
         let plan = SpringSets::new(&self.model, &refs).ok()?;
         let radius_px = ImageOptions::default().radius_px.unwrap_or(0.5);
@@ -520,7 +520,7 @@ struct Job {
 }
 
 /// RMS arcsec, RMS px and P(outside ½ px) of one combination, or why it failed.
-type Evaluated = std::result::Result<(f64, f64, f64), String>;
+pub(crate) type Evaluated = std::result::Result<(f64, f64, f64), String>;
 
 fn evaluate(
     built: &BuiltSpec,
