@@ -13,9 +13,9 @@
 #include <string.h>
 
 #include "stillsky.h"
+#include "checks.h"
 
 static const double PI = 3.14159265358979323846;
-static int failures = 0;
 static int quick = 0;
 
 /* A 20 kg tube on horizontal springs at two heights: ground x and y rock it about y and x
@@ -33,14 +33,6 @@ static const char MODEL[] =
     "stiffness_n_per_m = 4e4\nloss_factor = 0.1\n"
     "[optics]\nbody = \"tube\"\nfocal_length_mm = 1000\npixel_um = 3.76\naltitude_deg = 45\nazimuth_deg = 30\n";
 
-static void check(int ok, const char *what) {
-    if (!ok) {
-        char msg[512];
-        stillsky_last_error_message(msg, sizeof msg);
-        fprintf(stderr, "FAIL %s (last error: %s)\n", what, msg);
-        failures++;
-    }
-}
 
 static uint64_t rng = 0x2545F4914F6CDD1DULL; /* xorshift64, fixed seed */
 static double uniform(void) {

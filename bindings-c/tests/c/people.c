@@ -16,11 +16,11 @@
 #include <string.h>
 
 #include "stillsky.h"
+#include "checks.h"
 
 static const double PI = 3.14159265358979323846;
 static const double ARCSEC = 206264.80624709636;
 static const double G = 9.80665;
-static int failures = 0;
 
 /* A rigid 200 kg deck on four vertical springs k = 1e6 N/m at (+-1, +-1) m (k_rock = 4k about
  * both horizontal axes) with a stiff stand carrying the optics at zenith (invented test rig;
@@ -52,30 +52,6 @@ static const char MODEL[] =
     "[[torsion_spring]]\nname = \"tsz\"\nfrom = \"deck\"\nto = \"scope\"\naxis = [0, 0, 1]\n"
     "stiffness_nm_per_rad = 2e6\ndamping_nms_per_rad = 200\n";
 
-static void check(int ok, const char *what) {
-    if (!ok) {
-        char msg[512];
-        stillsky_last_error_message(msg, sizeof msg);
-        fprintf(stderr, "FAIL %s (last error: %s)\n", what, msg);
-        failures++;
-    }
-}
-
-static void close_to(const char *what, double got, double want, double rel) {
-    double e = fabs(got - want) / fmax(fabs(want), 1e-300);
-    printf("%s: %.10g (expected %.10g, rel %.2e)\n", what, got, want, e);
-    check(e <= rel, what);
-}
-
-/* A call that must fail with `want`, and whose message must name `word`. */
-static void expect(int32_t st, int32_t want, const char *word, const char *what) {
-    char msg[512];
-    stillsky_last_error_message(msg, sizeof msg);
-    int ok = st == want && strstr(msg, word) != NULL;
-    if (ok) printf("reached %s [%s]\n", stillsky_status_str(st), what);
-    else fprintf(stderr, "FAIL %s: got %s, message '%s'\n", what, stillsky_status_str(st), msg);
-    failures += !ok;
-}
 
 int main(void) {
     stillsky_model *model = NULL;

@@ -18,34 +18,10 @@
 #include <string.h>
 
 #include "stillsky.h"
+#include "checks.h"
 
 static const double PI = 3.14159265358979323846;
-static int failures = 0;
 
-static void check(int ok, const char *what) {
-    if (!ok) {
-        char msg[512];
-        stillsky_last_error_message(msg, sizeof msg);
-        fprintf(stderr, "FAIL %s (last error: %s)\n", what, msg);
-        failures++;
-    }
-}
-
-static void close_to(const char *what, double got, double want, double rel) {
-    double e = fabs(got - want) / fmax(fabs(want), 1e-300);
-    printf("%s: %.10g (expected %.10g, rel %.2e)\n", what, got, want, e);
-    check(e <= rel, what);
-}
-
-/* A call that must fail with `want`, and whose message must name `word`. */
-static void expect(int32_t st, int32_t want, const char *word, const char *what) {
-    char msg[512];
-    stillsky_last_error_message(msg, sizeof msg);
-    int ok = st == want && strstr(msg, word) != NULL;
-    if (ok) printf("reached %s [%s] %s\n", stillsky_status_str(st), what, msg);
-    else fprintf(stderr, "FAIL %s: got %s, message '%s'\n", what, stillsky_status_str(st), msg);
-    failures += !ok;
-}
 
 /* A noise-free tap in px: rest before t_imp, then amp e^(-zeta wn t) sin(wd t). */
 static void tap(double *x, size_t n, double fs, double f, double zeta, double amp, double t_imp) {
