@@ -17,6 +17,7 @@ use realfft::{RealFftPlanner, RealToComplex};
 use super::psd::{Psd, Quantity};
 use super::window::Window;
 use crate::error::{Error, Result, require_positive};
+use crate::linalg::lanes::{lane_moments, with_best_simd};
 
 /// Largest accepted `nperseg` (2²³ samples); refused up front.
 pub const MAX_NPERSEG: usize = 1 << 23;
@@ -156,12 +157,12 @@ pub struct Coherence {
     pub n_segments: usize,
 }
 
-/// The per-segment work: detrend, window, real FFT. Owns its plan and all buffers, so
-/// transforming a segment allocates nothing.
+/// The per-segment work: detrend, window, real FFT. Owns its buffers, so transforming a
+/// segment allocates nothing; the plan and the window are shared by its forks (one per thread).
 pub(crate) struct SegmentEngine {
     nperseg: usize,
     step: usize,
-    window: Vec<f64>,
+    window: Arc<[f64]>,
     win_sq_sum: f64,
     detrend: Detrend,
     fft: Arc<dyn RealToComplex<f64>>,
@@ -174,6 +175,42 @@ impl std::fmt::Debug for SegmentEngine {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("SegmentEngine").field("nperseg", &self.nperseg).field("step", &self.step).finish()
     }
+}
+
+/// `input = w · (scale·seg − trend)`, the trend as `detrend` asks (module docs): the trend's
+/// sums in one pass over the samples ([`lane_moments`]), the removal and the window in a
+/// second pass.
+#[inline(always)]
+fn window_detrended(detrend: Detrend, seg: &[f64], scale: f64, w: &[f64], input: &mut [f64]) {
+    let n = seg.len();
+    match detrend {
+        Detrend::None => {
+            input.iter_mut().zip(seg).zip(w).for_each(|((o, v), w)| *o = v * scale * w);
+        }
+        Detrend::Constant => {
+            let m = lane_moments(seg, scale, 0.0, false).0 / n as f64;
+            input.iter_mut().zip(seg).zip(w).for_each(|((o, v), w)| *o = (v * scale - m) * w);
+        }
+        Detrend::Linear => {
+            let nf = n as f64;
+            let mid = (nf - 1.0) / 2.0;
+            let (s0, s1) = lane_moments(seg, scale, mid, true);
+            let m = s0 / nf;
+            let stt = nf * (nf * nf - 1.0) / 12.0;
+            let slope = if stt > 0.0 { s1 / stt } else { 0.0 };
+            for (i, ((o, v), w)) in input.iter_mut().zip(seg).zip(w).enumerate() {
+                *o = (v * scale - (m + slope * (i as i32 as f64 - mid))) * w;
+            }
+        }
+    }
+}
+
+/// `sums[k] += |spec[k]|²` (compiled for the widest SIMD set; the same operations per bin).
+pub(crate) fn add_power(sums: &mut [f64], spec: &[Complex64]) {
+    with_best_simd(
+        #[inline(always)]
+        || sums.iter_mut().zip(spec).for_each(|(s, c)| *s += c.re * c.re + c.im * c.im),
+    );
 }
 
 impl SegmentEngine {
@@ -189,7 +226,7 @@ impl SegmentEngine {
         if noverlap >= n {
             return Err(Error::invalid("noverlap", format!("must be < nperseg = {n}, got {noverlap}")));
         }
-        let window = cfg.window.weights(n)?;
+        let window: Arc<[f64]> = cfg.window.weights(n)?.into();
         let win_sq_sum = window.iter().map(|w| w * w).sum();
         let fft = RealFftPlanner::<f64>::new().plan_fft_forward(n);
         let input = fft.make_input_vec();
@@ -208,6 +245,21 @@ impl SegmentEngine {
         })
     }
 
+    /// An engine with the same plan and window and buffers of its own (for another thread).
+    pub(crate) fn fork(&self) -> Self {
+        Self {
+            nperseg: self.nperseg,
+            step: self.step,
+            window: Arc::clone(&self.window),
+            win_sq_sum: self.win_sq_sum,
+            detrend: self.detrend,
+            fft: Arc::clone(&self.fft),
+            input: self.fft.make_input_vec(),
+            scratch: self.fft.make_scratch_vec(),
+            out: self.fft.make_output_vec(),
+        }
+    }
+
     pub(crate) fn nperseg(&self) -> usize {
         self.nperseg
     }
@@ -222,31 +274,25 @@ impl SegmentEngine {
 
     /// Transform one segment (length `nperseg`) into the internal spectrum buffer.
     pub(crate) fn transform(&mut self, seg: &[f64]) -> Result<&[Complex64]> {
+        self.transform_scaled(seg, 1.0)
+    }
+
+    /// Transform the segment `scale · seg` (each sample multiplied by `scale` first, as if the
+    /// scaled samples had been stored): the detrend sums are taken in one pass over the samples,
+    /// and the trend removal and the window in a second pass that fills the FFT input.
+    pub(crate) fn transform_scaled(&mut self, seg: &[f64], scale: f64) -> Result<&[Complex64]> {
         let n = self.nperseg;
         if seg.len() != n {
             return Err(Error::shape("Welch segment", n, seg.len()));
         }
-        self.input.copy_from_slice(seg);
-        match self.detrend {
-            Detrend::None => {}
-            Detrend::Constant => {
-                let m = self.input.iter().sum::<f64>() / n as f64;
-                self.input.iter_mut().for_each(|x| *x -= m);
-            }
-            Detrend::Linear => {
-                let nf = n as f64;
-                let mid = (nf - 1.0) / 2.0;
-                let m = self.input.iter().sum::<f64>() / nf;
-                let stt = nf * (nf * nf - 1.0) / 12.0;
-                let slope = if stt > 0.0 {
-                    self.input.iter().enumerate().map(|(i, x)| (i as f64 - mid) * x).sum::<f64>() / stt
-                } else {
-                    0.0
-                };
-                self.input.iter_mut().enumerate().for_each(|(i, x)| *x -= m + slope * (i as f64 - mid));
-            }
-        }
-        self.input.iter_mut().zip(&self.window).for_each(|(x, w)| *x *= w);
+        debug_assert!(n <= MAX_NPERSEG && MAX_NPERSEG < i32::MAX as usize);
+        let (w, input, detrend) = (&self.window[..], &mut self.input[..], self.detrend);
+        // Compiled for the widest SIMD set of the CPU (chosen at run time); no fused
+        // multiply-adds are formed, so the rounding is that of the plain expressions.
+        with_best_simd(
+            #[inline(always)]
+            || window_detrended(detrend, seg, scale, w, input),
+        );
         self.fft
             .process_with_scratch(&mut self.input, &mut self.out, &mut self.scratch)
             .map_err(|e| Error::invalid("FFT buffers", e.to_string()))?;
@@ -309,11 +355,10 @@ pub fn welch(x: &[f64], fs: f64, cfg: &WelchConfig) -> Result<WelchPsd> {
         let parts = (0..n_seg.div_ceil(per))
             .into_par_iter()
             .map(|r| -> Result<Vec<f64>> {
-                let mut e = SegmentEngine::new(cfg)?;
+                let mut e = eng.fork();
                 let mut sums = vec![0.0; e.n_bins()];
                 for s in r * per..((r + 1) * per).min(n_seg) {
-                    let spec = e.transform(&x[s * step..s * step + n])?;
-                    sums.iter_mut().zip(spec).for_each(|(a, c)| *a += c.norm_sqr());
+                    add_power(&mut sums, e.transform(&x[s * step..s * step + n])?);
                 }
                 Ok(sums)
             })
@@ -326,8 +371,7 @@ pub fn welch(x: &[f64], fs: f64, cfg: &WelchConfig) -> Result<WelchPsd> {
     } else {
         let mut sums = vec![0.0; eng.n_bins()];
         for s in 0..n_seg {
-            let spec = eng.transform(&x[s * step..s * step + n])?;
-            sums.iter_mut().zip(spec).for_each(|(a, c)| *a += c.norm_sqr());
+            add_power(&mut sums, eng.transform(&x[s * step..s * step + n])?);
         }
         sums
     };
@@ -449,8 +493,7 @@ impl WelchStream {
     }
 
     fn complete_segment(&mut self, axis: usize) -> Result<()> {
-        let spec = self.engine.transform(&self.bufs[axis])?;
-        self.sums[axis].iter_mut().zip(spec).for_each(|(s, c)| *s += c.norm_sqr());
+        add_power(&mut self.sums[axis], self.engine.transform(&self.bufs[axis])?);
         self.n_seg[axis] += 1;
         let step = self.engine.step();
         let n = self.engine.nperseg();
@@ -655,6 +698,52 @@ mod tests {
             let expected = c * acc / starts.len() as f64 / (fs * s2);
             assert_relative_eq!(p.values[k], expected, max_relative = 1e-12, epsilon = 1e-300);
             assert_relative_eq!(p.freq_hz[k], k as f64 * fs / n as f64);
+        }
+    }
+
+    #[test]
+    fn linear_detrend_matches_the_least_squares_line() {
+        // Linear detrending as scipy.signal.detrend(type='linear'): the least-squares line is
+        // removed, so (i) a pure line leaves zeros and (ii) the periodogram matches the direct
+        // DFT of w·(x − a − b·t), a and b from the normal equations. Lengths not a multiple of
+        // the eight partial sums exercise the tail.
+        for n in [13usize, 64, 1001] {
+            let x = noise(3 * n, 1.0, n as u64);
+            let cfg = WelchConfig::new(n).with_noverlap(n / 3).with_detrend(Detrend::Linear);
+            let mut eng = SegmentEngine::new(&cfg).unwrap();
+            let line: Vec<f64> = (0..n).map(|i| 1e5 - 3.25 * i as f64).collect();
+            let spec = eng.transform(&line).unwrap();
+            // Left: rounding of the 1e5-sized samples, against a spectrum of ~1e5·n without it.
+            assert!(spec.iter().all(|c| c.norm() < 1e-12 * 1e5 * n as f64), "n = {n}");
+            let p = welch(&x, 1.0, &cfg).unwrap();
+            let w = Window::Hann.weights(n).unwrap();
+            let s2: f64 = w.iter().map(|v| v * v).sum();
+            let step = n - n / 3;
+            let starts: Vec<usize> = (0..).map(|s| s * step).take_while(|s| s + n <= x.len()).collect();
+            for k in [0, 1, n / 4, n / 2] {
+                let mut acc = 0.0;
+                for &s in &starts {
+                    let seg = &x[s..s + n];
+                    let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+                    let (st, sx) = (t.iter().sum::<f64>(), seg.iter().sum::<f64>());
+                    let stt: f64 = t.iter().map(|v| v * v).sum();
+                    let stx: f64 = t.iter().zip(seg).map(|(a, b)| a * b).sum();
+                    let nf = n as f64;
+                    let b = (nf * stx - st * sx) / (nf * stt - st * st);
+                    let a = (sx - b * st) / nf;
+                    let (mut re, mut im) = (0.0, 0.0);
+                    for (j, v) in seg.iter().enumerate() {
+                        let ph = -2.0 * PI * (k * j) as f64 / n as f64;
+                        let y = w[j] * (v - a - b * j as f64);
+                        re += y * ph.cos();
+                        im += y * ph.sin();
+                    }
+                    acc += re * re + im * im;
+                }
+                let c = if k == 0 || (n % 2 == 0 && k == n / 2) { 1.0 } else { 2.0 };
+                let expected = c * acc / starts.len() as f64 / s2;
+                assert_relative_eq!(p.values[k], expected, max_relative = 1e-10, epsilon = 1e-18);
+            }
         }
     }
 
