@@ -465,6 +465,12 @@ pub fn with_best_simd<R, F: FnOnce() -> R>(f: F) -> R {
     pulp::Arch::new().dispatch(Op(f))
 }
 
+/// A complex buffer seen as its interleaved real and imaginary parts (re₀, im₀, re₁, …), to
+/// fill the input of a real FFT taken through a half-length complex one.
+pub fn complex_as_reals(v: &mut [Complex64]) -> &mut [f64] {
+    pulp::bytemuck::cast_slice_mut(v)
+}
+
 /// (Σ xᵢ, Σ (i − mid)·xᵢ) with xᵢ = scale·v[i] (the second sum only when `moment`), for the
 /// trend of a Welch segment. Element i goes to partial sum i mod [`LANES`] (the partial sums
 /// stay apart, so the adds do not wait on each other and the rounding error grows with

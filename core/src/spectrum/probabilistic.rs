@@ -22,7 +22,7 @@
 
 use super::psd::{Psd, Quantity};
 use super::reference::{CriterionCurve, ReferenceGround};
-use super::welch::{Detrend, SegmentEngine, WelchConfig, add_power};
+use super::welch::{Detrend, SegmentEngine, WelchConfig};
 use super::window::Window;
 use crate::error::{Error, Result, require_finite, require_positive};
 
@@ -396,7 +396,7 @@ fn block_spectrum(
     let mut n_seg = 0usize;
     let mut start = 0;
     while start + nfft <= samples.len() {
-        add_power(&mut w.sums, w.engine.transform_scaled(&samples[start..start + nfft], scale)?);
+        w.engine.add_segment_power(&samples[start..start + nfft], scale, &mut w.sums)?;
         n_seg += 1;
         start += step;
     }
