@@ -182,6 +182,10 @@ struct Layout {
     /// Per period bin: range of indices into `freq_hz` (the frequencies whose period lies in
     /// [left, right]).
     bin_ranges: Vec<(usize, usize)>,
+    /// The ends of all bin ranges, sorted, without repeats, from 0.
+    cuts: Vec<usize>,
+    /// Per period bin: positions of its range's ends in `cuts`.
+    bin_cuts: Vec<(usize, usize)>,
     centres_s: Vec<f64>,
     db_edges: Vec<f64>,
 }
@@ -278,7 +282,26 @@ impl Layout {
             .with_noverlap(nlap)
             .with_window(Window::Custom(taper))
             .with_detrend(Detrend::Linear);
-        Ok((Self { fs, block_len, step_len, freq_hz, to_accel, bin_ranges, centres_s, db_edges }, wcfg))
+        let mut cuts: Vec<usize> = bin_ranges.iter().flat_map(|&(a, b)| [a, b]).chain([0]).collect();
+        cuts.sort_unstable();
+        cuts.dedup();
+        let at = |v: usize| cuts.partition_point(|&c| c < v);
+        let bin_cuts = bin_ranges.iter().map(|&(a, b)| (at(a), at(b))).collect();
+        Ok((
+            Self {
+                fs,
+                block_len,
+                step_len,
+                freq_hz,
+                to_accel,
+                bin_ranges,
+                cuts,
+                bin_cuts,
+                centres_s,
+                db_edges,
+            },
+            wcfg,
+        ))
     }
 }
 
@@ -327,23 +350,17 @@ pub struct ProbabilisticPsd {
 }
 
 /// The buffers of one block's spectral work (one per thread): the segment engine, the sum of
-/// the segments' |X|², the spectrum in dB and its running sum.
+/// the segments' |X|² and the running sum of the spectrum in dB at the cuts.
 #[derive(Debug)]
 struct BlockWork {
     engine: SegmentEngine,
     sums: Vec<f64>,
-    spec_db: Vec<f64>,
     prefix: Vec<(f64, f64)>,
 }
 
 impl BlockWork {
-    fn new(engine: SegmentEngine, n_freq: usize) -> Self {
-        Self {
-            sums: vec![0.0; engine.n_bins()],
-            spec_db: vec![0.0; n_freq],
-            prefix: Vec::with_capacity(n_freq + 1),
-            engine,
-        }
+    fn new(engine: SegmentEngine, n_cuts: usize) -> Self {
+        Self { sums: vec![0.0; engine.n_bins()], prefix: Vec::with_capacity(n_cuts), engine }
     }
 }
 
@@ -355,29 +372,18 @@ struct BlockSpectrum {
     criterion_ratio: Option<f64>,
 }
 
-/// Period-bin means of `spec_db` over the index ranges `ranges`, from one running sum: the
-/// sum over [lo, hi) is prefix[hi] − prefix[lo], O(n + bins) instead of O(n · bins/octave).
-/// The running sum carries its rounding error along (Knuth's two-sum; Higham, Accuracy and
-/// Stability of Numerical Algorithms, 2nd ed., 2002, §4.3), so each range sum is within about
-/// one rounding of the exact sum, whatever the length of the prefix before it (a plain prefix
-/// sum would lose the digits of short ranges far along the spectrum).
-fn range_means(spec_db: &[f64], ranges: &[(usize, usize)], prefix: &mut Vec<(f64, f64)>, out: &mut Vec<f64>) {
-    prefix.clear();
-    prefix.push((0.0, 0.0));
-    let (mut hi, mut lo) = (0.0f64, 0.0f64);
-    for &v in spec_db {
-        let s = hi + v;
-        let bv = s - hi;
-        let err = (hi - (s - bv)) + (v - bv);
-        hi = s;
-        lo += err;
-        prefix.push((hi, lo));
-    }
-    out.clear();
-    out.extend(ranges.iter().map(|&(a, b)| {
-        let ((ha, la), (hb, lb)) = (prefix[a], prefix[b]);
-        ((hb - ha) + (lb - la)) / (b - a) as f64
-    }));
+/// One step of a running sum that carries its rounding error along (Knuth's two-sum; Higham,
+/// Accuracy and Stability of Numerical Algorithms, 2nd ed., 2002, §4.3): (hi, lo) + v. The
+/// period-bin means are differences of this running sum at the ends of each bin's range
+/// (O(n + bins) instead of O(n · bins per octave)); with the carried error each range sum is
+/// within about one rounding of the exact sum, however long the prefix before it (a plain
+/// prefix sum would lose the digits of short ranges far along the spectrum).
+#[inline(always)]
+fn two_sum_step(hi: f64, lo: f64, v: f64) -> (f64, f64) {
+    let s = hi + v;
+    let bv = s - hi;
+    let err = (hi - (s - bv)) + (v - bv);
+    (s, lo + err)
 }
 
 /// The spectral part of one block (`samples` of one block length, each multiplied by `scale`
@@ -401,16 +407,40 @@ fn block_spectrum(
         start += step;
     }
     let fs = layout.fs;
-    let mut acc = Vec::with_capacity(layout.freq_hz.len());
-    for (i, &to_a) in layout.to_accel.iter().enumerate() {
-        let k = i + 1;
-        let a = w.sums[k] / n_seg as f64 * w.engine.bin_scale(k, fs) * to_a;
-        acc.push(a);
-        // ObsPy floors at the smallest normal double before the log.
-        w.spec_db[i] = 10.0 * a.max(f64::MIN_POSITIVE).log10();
+    let nf = layout.freq_hz.len();
+    // Bins 1..nf; the last is the Nyquist bin (nfft is even).
+    let (mid_scale, last_scale, n_seg) =
+        (w.engine.bin_scale(1, fs), w.engine.bin_scale(nf, fs), n_seg as f64);
+    let acc: Vec<f64> = w.sums[1..=nf]
+        .iter()
+        .zip(&layout.to_accel)
+        .enumerate()
+        .map(|(i, (s, to_a))| {
+            let c = if i + 1 == nf { last_scale } else { mid_scale };
+            s / n_seg * c * to_a
+        })
+        .collect();
+    // dB (ObsPy floors at the smallest normal double before the log) and its running sum,
+    // kept at the cuts (see `range_sums`).
+    w.prefix.clear();
+    w.prefix.push((0.0, 0.0));
+    let (mut hi, mut lo) = (0.0f64, 0.0f64);
+    for c in layout.cuts.windows(2) {
+        for a in &acc[c[0]..c[1]] {
+            let v = 10.0 * a.max(f64::MIN_POSITIVE).log10();
+            (hi, lo) = two_sum_step(hi, lo, v);
+        }
+        w.prefix.push((hi, lo));
     }
-    let mut binned_db = Vec::with_capacity(layout.bin_ranges.len());
-    range_means(&w.spec_db, &layout.bin_ranges, &mut w.prefix, &mut binned_db);
+    let mut binned_db: Vec<f64> = layout
+        .bin_cuts
+        .iter()
+        .zip(&layout.bin_ranges)
+        .map(|(&(ca, cb), &(a, b))| {
+            let ((ha, la), (hb, lb)) = (w.prefix[ca], w.prefix[cb]);
+            ((hb - ha) + (lb - la)) / (b - a) as f64
+        })
+        .collect();
     // Rounded to f32 as ObsPy stores it, so values on a bin edge fall the same way.
     binned_db.iter_mut().for_each(|m| *m = *m as f32 as f64);
     let psd = Psd::new(layout.freq_hz.clone(), acc, Quantity::Acceleration)?;
@@ -454,7 +484,7 @@ impl ProbabilisticPsd {
 
     /// An empty estimate on checked settings.
     fn with_parts(cfg: &PpsdConfig, layout: Layout, engine: SegmentEngine) -> Self {
-        let work = BlockWork::new(engine, layout.freq_hz.len());
+        let work = BlockWork::new(engine, layout.cuts.len());
         let nb = layout.centres_s.len();
         let n_db = layout.db_edges.len() - 1;
         let model =
@@ -714,7 +744,7 @@ pub fn probabilistic_psd_axes(
     let spectra: Vec<Result<BlockSpectrum>> = jobs
         .par_iter()
         .map_init(
-            || BlockWork::new(first.work.engine.fork(), first.layout.freq_hz.len()),
+            || BlockWork::new(first.work.engine.fork(), first.layout.cuts.len()),
             |w, &(a, s)| block_spectrum(&first.layout, &first.cfg, w, &axes[a][s..s + n], cfg.scale),
         )
         .collect();
@@ -847,15 +877,21 @@ mod tests {
     }
 
     #[test]
-    fn range_means_match_the_direct_sums() {
-        // The running-sum means against sums taken range by range (the direct definition), on
-        // values like a spectrum in dB, with ranges short and long, near the start and the end.
+    fn running_sum_differences_match_the_direct_sums() {
+        // Range sums as differences of the carried running sum against sums taken range by
+        // range (the direct definition), on values like a spectrum in dB, with ranges short
+        // and long, near the start and the end.
         let v: Vec<f64> =
             noise(30_000, 3.0, 5).iter().enumerate().map(|(i, e)| -140.0 - 1e-3 * i as f64 + e).collect();
-        let ranges = [(0, 1), (0, 30_000), (29_999, 30_000), (17, 4_000), (20_000, 20_003), (1_000, 29_000)];
-        let (mut prefix, mut out) = (Vec::new(), Vec::new());
-        range_means(&v, &ranges, &mut prefix, &mut out);
-        for (&(a, b), m) in ranges.iter().zip(&out) {
+        let mut prefix = vec![(0.0, 0.0)];
+        for &x in &v {
+            let (h, l) = *prefix.last().unwrap();
+            prefix.push(two_sum_step(h, l, x));
+        }
+        for (a, b) in [(0, 1), (0, 30_000), (29_999, 30_000), (17, 4_000), (20_000, 20_003), (1_000, 29_000)]
+        {
+            let ((ha, la), (hb, lb)) = (prefix[a], prefix[b]);
+            let m = ((hb - ha) + (lb - la)) / (b - a) as f64;
             let direct = v[a..b].iter().sum::<f64>() / (b - a) as f64;
             assert!((m - direct).abs() <= 1e-14 * direct.abs(), "{a}..{b}: {m} vs {direct}");
         }

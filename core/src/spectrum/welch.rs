@@ -163,6 +163,8 @@ pub(crate) struct SegmentEngine {
     nperseg: usize,
     step: usize,
     window: Arc<[f64]>,
+    /// The longest run of window weights equal to 1.
+    flat: (usize, usize),
     win_sq_sum: f64,
     detrend: Detrend,
     plan: Plan,
@@ -268,30 +270,70 @@ fn split_power(z: &[Complex64], twiddles: &[Complex64], sums: &mut [f64]) {
 
 /// `input = w · (scale·seg − trend)`, the trend as `detrend` asks (module docs): the trend's
 /// sums in one pass over the samples ([`lane_moments`]), the removal and the window in a
-/// second pass.
+/// second pass. Over `flat`, where every weight is exactly 1, the product with w is left out
+/// (y · 1 = y exactly, so the values are the same; the weights there need not be read).
 #[inline(always)]
-fn window_detrended(detrend: Detrend, seg: &[f64], scale: f64, w: &[f64], input: &mut [f64]) {
+fn window_detrended(
+    detrend: Detrend,
+    seg: &[f64],
+    scale: f64,
+    w: &[f64],
+    flat: (usize, usize),
+    input: &mut [f64],
+) {
     let n = seg.len();
-    match detrend {
-        Detrend::None => {
-            input.iter_mut().zip(seg).zip(w).for_each(|((o, v), w)| *o = v * scale * w);
-        }
-        Detrend::Constant => {
-            let m = lane_moments(seg, scale, 0.0, false).0 / n as f64;
-            input.iter_mut().zip(seg).zip(w).for_each(|((o, v), w)| *o = (v * scale - m) * w);
-        }
+    let (trend0, slope, mid) = match detrend {
+        Detrend::None => (0.0, 0.0, 0.0),
+        Detrend::Constant => (lane_moments(seg, scale, 0.0, false).0 / n as f64, 0.0, 0.0),
         Detrend::Linear => {
             let nf = n as f64;
             let mid = (nf - 1.0) / 2.0;
             let (s0, s1) = lane_moments(seg, scale, mid, true);
-            let m = s0 / nf;
             let stt = nf * (nf * nf - 1.0) / 12.0;
-            let slope = if stt > 0.0 { s1 / stt } else { 0.0 };
-            for (i, ((o, v), w)) in input.iter_mut().zip(seg).zip(w).enumerate() {
-                *o = (v * scale - (m + slope * (i as i32 as f64 - mid))) * w;
+            (s0 / nf, if stt > 0.0 { s1 / stt } else { 0.0 }, mid)
+        }
+    };
+    let (f0, f1) = flat;
+    for (lo, hi, weighted) in [(0, f0, true), (f0, f1, false), (f1, n, true)] {
+        let (o, v, w) = (&mut input[lo..hi], &seg[lo..hi], &w[lo..hi]);
+        // The expressions of each detrend kept as they were, so the rounding is unchanged.
+        match (detrend, weighted) {
+            (Detrend::None, true) => o.iter_mut().zip(v).zip(w).for_each(|((o, v), w)| *o = v * scale * w),
+            (Detrend::None, false) => o.iter_mut().zip(v).for_each(|(o, v)| *o = v * scale),
+            (Detrend::Constant, true) => {
+                o.iter_mut().zip(v).zip(w).for_each(|((o, v), w)| *o = (v * scale - trend0) * w)
+            }
+            (Detrend::Constant, false) => o.iter_mut().zip(v).for_each(|(o, v)| *o = v * scale - trend0),
+            (Detrend::Linear, true) => {
+                for (i, ((o, v), w)) in o.iter_mut().zip(v).zip(w).enumerate() {
+                    *o = (v * scale - (trend0 + slope * ((lo + i) as i32 as f64 - mid))) * w;
+                }
+            }
+            (Detrend::Linear, false) => {
+                for (i, (o, v)) in o.iter_mut().zip(v).enumerate() {
+                    *o = v * scale - (trend0 + slope * ((lo + i) as i32 as f64 - mid));
+                }
             }
         }
     }
+}
+
+/// The longest run of weights exactly 1 (empty `(0, 0)` when none).
+fn flat_run(w: &[f64]) -> (usize, usize) {
+    let (mut best, mut start) = ((0, 0), None);
+    for (i, &v) in w.iter().chain([0.0].iter()).enumerate() {
+        match (v == 1.0, start) {
+            (true, None) => start = Some(i),
+            (false, Some(s)) => {
+                if i - s > best.1 - best.0 {
+                    best = (s, i);
+                }
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    best
 }
 
 /// `sums[k] += |spec[k]|²` (compiled for the widest SIMD set; the same operations per bin).
@@ -349,6 +391,7 @@ impl SegmentEngine {
         Self {
             nperseg: n,
             step,
+            flat: flat_run(&window),
             window,
             win_sq_sum,
             detrend,
@@ -402,12 +445,12 @@ impl SegmentEngine {
             Plan::Even { .. } => complex_as_reals(&mut self.pairs),
             Plan::Odd(_) => &mut self.real_input[..],
         };
-        let (w, detrend) = (&self.window[..], self.detrend);
+        let (w, detrend, flat) = (&self.window[..], self.detrend, self.flat);
         // Compiled for the widest SIMD set of the CPU (chosen at run time); no fused
         // multiply-adds are formed, so the rounding is that of the plain expressions.
         with_best_simd(
             #[inline(always)]
-            || window_detrended(detrend, seg, scale, w, input),
+            || window_detrended(detrend, seg, scale, w, flat, input),
         );
         match &self.plan {
             Plan::Even { fft, .. } => {
@@ -857,15 +900,27 @@ mod tests {
         // The even-length path (complex FFT of the pairs, then the split) against realfft's
         // transform of the same windowed samples, and the fused power pass against the squares
         // of that spectrum: equal to the last bit, for n ≡ 0 and 2 (mod 4) and odd n.
-        for n in [2usize, 6, 8, 10, 1000, 1002, 4096, 7, 1001] {
+        // The probabilistic PSD's taper (flat over 80 %) also checks that skipping the weights
+        // equal to 1 changes nothing.
+        let tapered = [(1000usize, true), (4096, true), (1001, true)];
+        let plain = [2usize, 6, 8, 10, 1000, 1002, 4096, 7, 1001].map(|n| (n, false));
+        for (n, taper) in plain.into_iter().chain(tapered) {
             let x = noise(n, 1.0, n as u64 + 40);
-            let cfg = WelchConfig::new(n).with_detrend(Detrend::Linear);
+            let w = if taper {
+                super::super::probabilistic::cosine_taper_20(n)
+            } else {
+                Window::Hann.weights(n).unwrap()
+            };
+            let cfg =
+                WelchConfig::new(n).with_detrend(Detrend::Linear).with_window(Window::Custom(w.clone()));
             let mut eng = SegmentEngine::new(&cfg).unwrap();
+            if taper {
+                assert_eq!(eng.flat.1 - eng.flat.0, w.iter().filter(|&&v| v == 1.0).count());
+            }
             let got = eng.transform_scaled(&x, 0.5).unwrap().to_vec();
-            // The same windowed input through realfft.
-            let w = Window::Hann.weights(n).unwrap();
+            // The same windowed input (every weight applied) through realfft.
             let mut input = vec![0.0; n];
-            window_detrended(Detrend::Linear, &x, 0.5, &w, &mut input);
+            window_detrended(Detrend::Linear, &x, 0.5, &w, (0, 0), &mut input);
             let fft = RealFftPlanner::<f64>::new().plan_fft_forward(n);
             let mut want = fft.make_output_vec();
             fft.process(&mut input, &mut want).unwrap();
