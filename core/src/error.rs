@@ -114,7 +114,10 @@ pub fn require_finite(name: impl ParamName, v: f64) -> Result<f64> {
 
 /// Check that every value of a slice is finite; the error names the first bad index.
 pub fn require_all_finite(name: &str, v: &[f64]) -> Result<()> {
-    match v.iter().position(|x| !x.is_finite()) {
+    // Whole chunks first (a branch-free test the compiler vectorizes), then the first bad one.
+    let bad_chunk = v.chunks(4096).position(|c| c.iter().fold(false, |bad, x| bad | !x.is_finite()));
+    let Some(c) = bad_chunk else { return Ok(()) };
+    match v.iter().skip(c * 4096).position(|x| !x.is_finite()).map(|i| i + c * 4096) {
         Some(i) => Err(Error::invalid(name, format!("value {} at index {i} is not finite", v[i]))),
         None => Ok(()),
     }

@@ -176,9 +176,16 @@ struct Layout {
     step_len: usize,
     /// Frequencies k·fs/nfft for k = 1..=nfft/2.
     freq_hz: Vec<f64>,
+    /// (2πf)^(2·(2 − order)) at those frequencies: the input density to acceleration (order 0
+    /// displacement, 1 velocity, 2 acceleration).
+    to_accel: Vec<f64>,
     /// Per period bin: range of indices into `freq_hz` (the frequencies whose period lies in
     /// [left, right]).
     bin_ranges: Vec<(usize, usize)>,
+    /// The ends of all bin ranges, sorted, without repeats, from 0.
+    cuts: Vec<usize>,
+    /// Per period bin: positions of its range's ends in `cuts`.
+    bin_cuts: Vec<(usize, usize)>,
     centres_s: Vec<f64>,
     db_edges: Vec<f64>,
 }
@@ -227,6 +234,8 @@ impl Layout {
         }
         let nlap = (0.75 * nfft as f64) as usize;
         let freq_hz: Vec<f64> = (1..=nfft / 2).map(|k| k as f64 * fs / nfft as f64).collect();
+        let power = 2 * (2 - cfg.input.motion_order().unwrap_or(0));
+        let to_accel = freq_hz.iter().map(|&f| (2.0 * std::f64::consts::PI * f).powi(power)).collect();
         // Period bins as ObsPy's _setup_period_binning, with limits the shortest and longest
         // period of the PSD.
         let (p_min, p_max) = (1.0 / freq_hz[freq_hz.len() - 1], 1.0 / freq_hz[0]);
@@ -243,6 +252,7 @@ impl Layout {
             }
             left *= step;
         }
+        let periods: Vec<f64> = freq_hz.iter().map(|f| 1.0 / f).collect();
         let mut bin_ranges = Vec::new();
         let mut centres_s = Vec::new();
         for (l, c, r) in bins {
@@ -251,8 +261,7 @@ impl Layout {
             }
             // Periods 1/f in [l, r]  ⇔  frequencies with l <= 1/f <= r (tested on the period,
             // as ObsPy does, so the rounding of 1/f decides the same way).
-            let idx: Vec<usize> =
-                (0..freq_hz.len()).filter(|&k| (l..=r).contains(&(1.0 / freq_hz[k]))).collect();
+            let idx: Vec<usize> = (0..freq_hz.len()).filter(|&k| (l..=r).contains(&periods[k])).collect();
             let (Some(&a), Some(&b)) = (idx.first(), idx.last()) else {
                 return Err(Error::invalid(
                     "smoothing_octaves",
@@ -273,7 +282,26 @@ impl Layout {
             .with_noverlap(nlap)
             .with_window(Window::Custom(taper))
             .with_detrend(Detrend::Linear);
-        Ok((Self { fs, block_len, step_len, freq_hz, bin_ranges, centres_s, db_edges }, wcfg))
+        let mut cuts: Vec<usize> = bin_ranges.iter().flat_map(|&(a, b)| [a, b]).chain([0]).collect();
+        cuts.sort_unstable();
+        cuts.dedup();
+        let at = |v: usize| cuts.partition_point(|&c| c < v);
+        let bin_cuts = bin_ranges.iter().map(|&(a, b)| (at(a), at(b))).collect();
+        Ok((
+            Self {
+                fs,
+                block_len,
+                step_len,
+                freq_hz,
+                to_accel,
+                bin_ranges,
+                cuts,
+                bin_cuts,
+                centres_s,
+                db_edges,
+            },
+            wcfg,
+        ))
     }
 }
 
@@ -308,7 +336,7 @@ pub fn cosine_taper_20(n: usize) -> Vec<f64> {
 pub struct ProbabilisticPsd {
     cfg: PpsdConfig,
     layout: Layout,
-    engine: SegmentEngine,
+    work: BlockWork,
     buf: Vec<f64>,
     fill: usize,
     n_blocks: usize,
@@ -319,8 +347,114 @@ pub struct ProbabilisticPsd {
     nhnm_db: Vec<Option<f64>>,
     above_criterion: u64,
     hours: HourMap,
+}
+
+/// The buffers of one block's spectral work (one per thread): the segment engine, the sum of
+/// the segments' |X|² and the running sum of the spectrum in dB at the cuts.
+#[derive(Debug)]
+struct BlockWork {
+    engine: SegmentEngine,
     sums: Vec<f64>,
-    spec_db: Vec<f64>,
+    prefix: Vec<(f64, f64)>,
+}
+
+impl BlockWork {
+    fn new(engine: SegmentEngine, n_cuts: usize) -> Self {
+        Self { sums: vec![0.0; engine.n_bins()], prefix: Vec::with_capacity(n_cuts), engine }
+    }
+}
+
+/// What a block gives before it is counted: everything that depends on its samples only.
+struct BlockSpectrum {
+    binned_db: Vec<f64>,
+    psd: Psd,
+    band_rms: Vec<f64>,
+    criterion_ratio: Option<f64>,
+}
+
+/// One step of a running sum that carries its rounding error along (Knuth's two-sum; Higham,
+/// Accuracy and Stability of Numerical Algorithms, 2nd ed., 2002, §4.3): (hi, lo) + v. The
+/// period-bin means are differences of this running sum at the ends of each bin's range
+/// (O(n + bins) instead of O(n · bins per octave)); with the carried error each range sum is
+/// within about one rounding of the exact sum, however long the prefix before it (a plain
+/// prefix sum would lose the digits of short ranges far along the spectrum).
+#[inline(always)]
+fn two_sum_step(hi: f64, lo: f64, v: f64) -> (f64, f64) {
+    let s = hi + v;
+    let bv = s - hi;
+    let err = (hi - (s - bv)) + (v - bv);
+    (s, lo + err)
+}
+
+/// The spectral part of one block (`samples` of one block length, each multiplied by `scale`
+/// before use): Welch average of its segments, acceleration density, dB, period-bin means
+/// rounded to f32, band RMS and criterion ratio. Pure in the samples, so blocks can run on
+/// any thread in any order.
+fn block_spectrum(
+    layout: &Layout,
+    cfg: &PpsdConfig,
+    w: &mut BlockWork,
+    samples: &[f64],
+    scale: f64,
+) -> Result<BlockSpectrum> {
+    let (nfft, step) = (w.engine.nperseg(), w.engine.step());
+    w.sums.iter_mut().for_each(|s| *s = 0.0);
+    let mut n_seg = 0usize;
+    let mut start = 0;
+    while start + nfft <= samples.len() {
+        w.engine.add_segment_power(&samples[start..start + nfft], scale, &mut w.sums)?;
+        n_seg += 1;
+        start += step;
+    }
+    let fs = layout.fs;
+    let nf = layout.freq_hz.len();
+    // Bins 1..nf; the last is the Nyquist bin (nfft is even).
+    let (mid_scale, last_scale, n_seg) =
+        (w.engine.bin_scale(1, fs), w.engine.bin_scale(nf, fs), n_seg as f64);
+    let acc: Vec<f64> = w.sums[1..=nf]
+        .iter()
+        .zip(&layout.to_accel)
+        .enumerate()
+        .map(|(i, (s, to_a))| {
+            let c = if i + 1 == nf { last_scale } else { mid_scale };
+            s / n_seg * c * to_a
+        })
+        .collect();
+    // dB (ObsPy floors at the smallest normal double before the log) and its running sum,
+    // kept at the cuts (see `range_sums`).
+    w.prefix.clear();
+    w.prefix.push((0.0, 0.0));
+    let (mut hi, mut lo) = (0.0f64, 0.0f64);
+    for c in layout.cuts.windows(2) {
+        for a in &acc[c[0]..c[1]] {
+            let v = 10.0 * a.max(f64::MIN_POSITIVE).log10();
+            (hi, lo) = two_sum_step(hi, lo, v);
+        }
+        w.prefix.push((hi, lo));
+    }
+    let mut binned_db: Vec<f64> = layout
+        .bin_cuts
+        .iter()
+        .zip(&layout.bin_ranges)
+        .map(|(&(ca, cb), &(a, b))| {
+            let ((ha, la), (hb, lb)) = (w.prefix[ca], w.prefix[cb]);
+            ((hb - ha) + (lb - la)) / (b - a) as f64
+        })
+        .collect();
+    // Rounded to f32 as ObsPy stores it, so values on a bin edge fall the same way.
+    binned_db.iter_mut().for_each(|m| *m = *m as f32 as f64);
+    let psd = Psd::new(layout.freq_hz.clone(), acc, Quantity::Acceleration)?;
+    let criterion_ratio = match cfg.criterion {
+        Some(c) => Some(c.evaluate(&psd)?.worst_ratio),
+        None => None,
+    };
+    let band_rms = if cfg.bands_hz.is_empty() {
+        Vec::new()
+    } else {
+        let q = psd.to(cfg.band_quantity)?;
+        cfg.bands_hz.iter().map(|&(a, b)| q.band_rms(a, b)).collect::<Result<Vec<_>>>()?
+    };
+    Ok(BlockSpectrum { binned_db, psd, band_rms, criterion_ratio })
 }
 
 impl ProbabilisticPsd {
@@ -345,11 +479,17 @@ impl ProbabilisticPsd {
             ));
         }
         let engine = SegmentEngine::new(&wcfg)?;
+        Ok(Self::with_parts(cfg, layout, engine))
+    }
+
+    /// An empty estimate on checked settings.
+    fn with_parts(cfg: &PpsdConfig, layout: Layout, engine: SegmentEngine) -> Self {
+        let work = BlockWork::new(engine, layout.cuts.len());
         let nb = layout.centres_s.len();
         let n_db = layout.db_edges.len() - 1;
         let model =
             |m: ReferenceGround| layout.centres_s.iter().map(|&t| m.accel_db_at_period(t).ok()).collect();
-        Ok(Self {
+        Self {
             cfg: cfg.clone(),
             buf: vec![0.0; layout.block_len],
             fill: 0,
@@ -361,11 +501,14 @@ impl ProbabilisticPsd {
             nhnm_db: model(ReferenceGround::Nhnm),
             above_criterion: 0,
             hours: HourMap::new(cfg.bands_hz.len()),
-            sums: vec![0.0; engine.n_bins()],
-            spec_db: vec![0.0; layout.freq_hz.len()],
-            engine,
+            work,
             layout,
-        })
+        }
+    }
+
+    /// An empty estimate with the same settings (sharing the FFT plan).
+    fn sibling(&self) -> Self {
+        Self::with_parts(&self.cfg, self.layout.clone(), self.work.engine.fork())
     }
 
     /// Samples per block.
@@ -378,7 +521,7 @@ impl ProbabilisticPsd {
     }
     /// Welch segment length (samples).
     pub fn nfft(&self) -> usize {
-        self.engine.nperseg()
+        self.work.engine.nperseg()
     }
     /// Centre periods of the period bins (s), increasing.
     pub fn period_centres_s(&self) -> &[f64] {
@@ -432,38 +575,17 @@ impl ProbabilisticPsd {
     }
 
     fn process_block(&mut self) -> Result<PpsdBlock> {
-        let (nfft, step) = (self.engine.nperseg(), self.engine.step());
-        self.sums.iter_mut().for_each(|s| *s = 0.0);
-        let mut n_seg = 0usize;
-        let mut start = 0;
-        while start + nfft <= self.buf.len() {
-            let spec = self.engine.transform(&self.buf[start..start + nfft])?;
-            self.sums.iter_mut().zip(spec).for_each(|(s, c)| *s += c.norm_sqr());
-            n_seg += 1;
-            start += step;
-        }
-        let fs = self.layout.fs;
-        let order = self.cfg.input.motion_order().unwrap_or(0);
-        // Acceleration density: (2πf)^(2·(2 − order)) × input density (order 0 displacement,
-        // 1 velocity, 2 acceleration).
-        let power = 2 * (2 - order);
-        let mut acc = Vec::with_capacity(self.layout.freq_hz.len());
-        for (i, &f) in self.layout.freq_hz.iter().enumerate() {
-            let k = i + 1;
-            let p = self.sums[k] / n_seg as f64 * self.engine.bin_scale(k, fs);
-            let w = 2.0 * std::f64::consts::PI * f;
-            let a = p * w.powi(power);
-            acc.push(a);
-            // ObsPy floors at the smallest normal double before the log.
-            self.spec_db[i] = 10.0 * a.max(f64::MIN_POSITIVE).log10();
-        }
+        // The buffer holds the scaled samples already.
+        let spec = block_spectrum(&self.layout, &self.cfg, &mut self.work, &self.buf, 1.0)?;
+        Ok(self.count_block(spec))
+    }
+
+    /// Count a block's spectrum into the histogram, the model and criterion shares and the
+    /// hour map, as the next block of the recording.
+    fn count_block(&mut self, spec: BlockSpectrum) -> PpsdBlock {
+        let BlockSpectrum { binned_db, psd, band_rms, criterion_ratio } = spec;
         let n_db = self.layout.db_edges.len() - 1;
-        let mut binned = Vec::with_capacity(self.layout.bin_ranges.len());
-        for (b, &(lo, hi)) in self.layout.bin_ranges.iter().enumerate() {
-            let m = self.spec_db[lo..hi].iter().sum::<f64>() / (hi - lo) as f64;
-            // Rounded to f32 as ObsPy stores it, so values on a bin edge fall the same way.
-            let v = m as f32 as f64;
-            binned.push(v);
+        for (b, &v) in binned_db.iter().enumerate() {
             // Bin i with edges[i] < v <= edges[i+1]; below the first edge -> 0, above -> last.
             let i = self.layout.db_edges.partition_point(|&e| e < v);
             let i = i.saturating_sub(1).min(n_db - 1);
@@ -475,23 +597,10 @@ impl ProbabilisticPsd {
                 self.above_nhnm[b] += 1;
             }
         }
-        let psd = Psd::new(self.layout.freq_hz.clone(), acc, Quantity::Acceleration)?;
-        let criterion_ratio = match self.cfg.criterion {
-            Some(c) => {
-                let r = c.evaluate(&psd)?.worst_ratio;
-                if r > 1.0 {
-                    self.above_criterion += 1;
-                }
-                Some(r)
-            }
-            None => None,
-        };
-        let band_rms = if self.cfg.bands_hz.is_empty() {
-            Vec::new()
-        } else {
-            let q = psd.to(self.cfg.band_quantity)?;
-            self.cfg.bands_hz.iter().map(|&(a, b)| q.band_rms(a, b)).collect::<Result<Vec<_>>>()?
-        };
+        if criterion_ratio.is_some_and(|r| r > 1.0) {
+            self.above_criterion += 1;
+        }
+        let fs = self.layout.fs;
         let start_s = (self.n_blocks * self.layout.step_len) as f64 / fs;
         let hour_of_day = self.cfg.start_of_day_s.map(|t0| {
             let centre = t0 + start_s + self.layout.block_len as f64 / fs / 2.0;
@@ -510,13 +619,13 @@ impl ProbabilisticPsd {
             index: self.n_blocks,
             start_s,
             hour_of_day,
-            binned_db: binned,
+            binned_db,
             psd,
             band_rms,
             criterion_ratio,
         };
         self.n_blocks += 1;
-        Ok(block)
+        block
     }
 
     /// Record whether the rig held its image-motion limit during a block (judged elsewhere, e.g.
@@ -604,8 +713,11 @@ impl ProbabilisticPsd {
     }
 }
 
-/// One probabilistic PSD per axis over whole in-memory recordings, the axes in parallel
-/// (rayon). Returns each axis's estimate with its blocks.
+/// One probabilistic PSD per axis over whole in-memory recordings. The blocks of all axes are
+/// worked in parallel (rayon), each thread with its own FFT buffers; their spectra are then
+/// counted axis by axis in block order, so every count, sum and block equals what pushing each
+/// axis through [`ProbabilisticPsd::push`] gives, whatever the number of threads. Returns each
+/// axis's estimate (left as after that push) with its blocks.
 pub fn probabilistic_psd_axes(
     axes: &[&[f64]],
     fs: f64,
@@ -615,20 +727,44 @@ pub fn probabilistic_psd_axes(
     if axes.is_empty() {
         return Err(Error::invalid("x", "no axis given"));
     }
-    axes.par_iter()
-        .enumerate()
-        .map(|(a, x)| {
-            let mut p = ProbabilisticPsd::new(fs, cfg)?;
-            let blocks = p.push(x).map_err(|e| Error::invalid(format!("x[{a}]"), e.to_string()))?;
-            if blocks.is_empty() {
-                return Err(Error::invalid(
-                    format!("x[{a}]"),
-                    format!("{} samples are fewer than one block of {}", x.len(), p.block_samples()),
-                ));
-            }
-            Ok((p, blocks))
-        })
-        .collect()
+    let in_axis = |a: usize, e: Error| Error::invalid(format!("x[{a}]"), e.to_string());
+    let first = ProbabilisticPsd::new(fs, cfg)?;
+    let (n, adv) = (first.layout.block_len, first.layout.step_len.min(first.layout.block_len));
+    let mut jobs = Vec::new();
+    for (a, x) in axes.iter().enumerate() {
+        crate::error::require_all_finite("samples", x).map_err(|e| in_axis(a, e))?;
+        if x.len() < n {
+            return Err(Error::invalid(
+                format!("x[{a}]"),
+                format!("{} samples are fewer than one block of {n}", x.len()),
+            ));
+        }
+        jobs.extend((0..=(x.len() - n) / adv).map(|k| (a, k * adv)));
+    }
+    let spectra: Vec<Result<BlockSpectrum>> = jobs
+        .par_iter()
+        .map_init(
+            || BlockWork::new(first.work.engine.fork(), first.layout.cuts.len()),
+            |w, &(a, s)| block_spectrum(&first.layout, &first.cfg, w, &axes[a][s..s + n], cfg.scale),
+        )
+        .collect();
+    let mut est: Vec<ProbabilisticPsd> = (1..axes.len()).map(|_| first.sibling()).collect();
+    est.insert(0, first);
+    let mut spectra = spectra.into_iter();
+    let mut out = Vec::with_capacity(axes.len());
+    for (a, (x, mut p)) in axes.iter().zip(est).enumerate() {
+        let count = (x.len() - n) / adv + 1;
+        let mut blocks = Vec::with_capacity(count);
+        for spec in spectra.by_ref().take(count) {
+            blocks.push(p.count_block(spec.map_err(|e| in_axis(a, e))?));
+        }
+        // Leave the stream as the push would: the samples after the last block's step.
+        let tail = &x[count * adv..];
+        p.buf[..tail.len()].iter_mut().zip(tail).for_each(|(b, v)| *b = v * cfg.scale);
+        p.fill = tail.len();
+        out.push((p, blocks));
+    }
+    Ok(out)
 }
 
 #[cfg(test)]
@@ -651,7 +787,7 @@ mod tests {
         assert_eq!(p.block_samples(), 360_000);
         assert_eq!(p.step_samples(), 180_000);
         assert_eq!(p.nfft(), 65_536);
-        assert_eq!(p.engine.step(), 65_536 - 49_152);
+        assert_eq!(p.work.engine.step(), 65_536 - 49_152);
         // Bins step by 1/8 octave.
         let c = p.period_centres_s();
         for w in c.windows(2) {
@@ -689,6 +825,76 @@ mod tests {
         assert_eq!(chunked.histogram(), one.histogram());
         // Far above the low-noise model at short periods: none below it.
         assert!(one.share_below_nlnm().iter().filter(|v| v.is_finite()).all(|&v| v == 0.0));
+    }
+
+    #[test]
+    fn in_memory_axes_equal_the_stream_whatever_the_threads() {
+        // Blocks worked in parallel and counted in order must give what one push per axis
+        // gives, bit for bit, on 1 and 2 threads; with hours, bands and a criterion on, and a
+        // step that does not divide the data (so a tail is left in the buffer).
+        let fs = 40.0;
+        let mut cfg = PpsdConfig::default()
+            .with_block_s(100.0)
+            .with_input(Quantity::Velocity, 1e-3)
+            .with_hours(3000.0, vec![(0.5, 4.0), (4.0, 12.0)])
+            .with_criterion(CriterionCurve::VcA);
+        cfg.overlap = 0.3;
+        let axes: Vec<Vec<f64>> =
+            (0..3).map(|k| noise(40 * 1000 + 777 * k, 1.0 + k as f64, 20 + k as u64)).collect();
+        let refs: Vec<&[f64]> = axes.iter().map(|v| v.as_slice()).collect();
+        let serial: Vec<(ProbabilisticPsd, Vec<PpsdBlock>)> = axes
+            .iter()
+            .map(|x| {
+                let mut p = ProbabilisticPsd::new(fs, &cfg).unwrap();
+                let b = p.push(x).unwrap();
+                (p, b)
+            })
+            .collect();
+        for threads in [1, 2] {
+            let pool = rayon::ThreadPoolBuilder::new().num_threads(threads).build().unwrap();
+            let got = pool.install(|| probabilistic_psd_axes(&refs, fs, &cfg)).unwrap();
+            assert_eq!(got.len(), 3);
+            for ((g, gb), (s, sb)) in got.iter().zip(&serial) {
+                assert_eq!(gb, sb);
+                assert_eq!(g.histogram(), s.histogram());
+                assert_eq!(g.hours(), s.hours());
+                assert_eq!(g.blocks_above_criterion(), s.blocks_above_criterion());
+                let bits = |v: Vec<f64>| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+                assert_eq!(bits(g.share_below_nlnm()), bits(s.share_below_nlnm()));
+                assert_eq!(bits(g.mean_db()), bits(s.mean_db()));
+                assert_eq!((g.n_blocks(), g.fill), (s.n_blocks(), s.fill));
+                assert_eq!(g.buf[..g.fill], s.buf[..s.fill]);
+            }
+        }
+        // The first bad sample is named in its axis, and a short axis is refused.
+        let mut bad = axes[1].clone();
+        bad[30_000] = f64::INFINITY;
+        bad[39_000] = f64::NAN;
+        let e = probabilistic_psd_axes(&[&axes[0], &bad], fs, &cfg).unwrap_err();
+        assert!(e.to_string().contains("x[1]") && e.to_string().contains("index 30000"), "{e}");
+        let e = probabilistic_psd_axes(&[&axes[0], &axes[1][..3000]], fs, &cfg).unwrap_err();
+        assert!(e.to_string().contains("fewer than one block of 4000"), "{e}");
+    }
+
+    #[test]
+    fn running_sum_differences_match_the_direct_sums() {
+        // Range sums as differences of the carried running sum against sums taken range by
+        // range (the direct definition), on values like a spectrum in dB, with ranges short
+        // and long, near the start and the end.
+        let v: Vec<f64> =
+            noise(30_000, 3.0, 5).iter().enumerate().map(|(i, e)| -140.0 - 1e-3 * i as f64 + e).collect();
+        let mut prefix = vec![(0.0, 0.0)];
+        for &x in &v {
+            let (h, l) = *prefix.last().unwrap();
+            prefix.push(two_sum_step(h, l, x));
+        }
+        for (a, b) in [(0, 1), (0, 30_000), (29_999, 30_000), (17, 4_000), (20_000, 20_003), (1_000, 29_000)]
+        {
+            let ((ha, la), (hb, lb)) = (prefix[a], prefix[b]);
+            let m = ((hb - ha) + (lb - la)) / (b - a) as f64;
+            let direct = v[a..b].iter().sum::<f64>() / (b - a) as f64;
+            assert!((m - direct).abs() <= 1e-14 * direct.abs(), "{a}..{b}: {m} vs {direct}");
+        }
     }
 
     #[test]

@@ -17,6 +17,7 @@ use realfft::{RealFftPlanner, RealToComplex};
 use super::psd::{Psd, Quantity};
 use super::window::Window;
 use crate::error::{Error, Result, require_positive};
+use crate::linalg::lanes::{complex_as_reals, lane_moments, with_best_simd};
 
 /// Largest accepted `nperseg` (2²³ samples); refused up front.
 pub const MAX_NPERSEG: usize = 1 << 23;
@@ -156,24 +157,191 @@ pub struct Coherence {
     pub n_segments: usize,
 }
 
-/// The per-segment work: detrend, window, real FFT. Owns its plan and all buffers, so
-/// transforming a segment allocates nothing.
+/// The per-segment work: detrend, window, real FFT. Owns its buffers, so transforming a
+/// segment allocates nothing; the plan and the window are shared by its forks (one per thread).
 pub(crate) struct SegmentEngine {
     nperseg: usize,
     step: usize,
-    window: Vec<f64>,
+    window: Arc<[f64]>,
+    /// The longest run of window weights equal to 1.
+    flat: (usize, usize),
     win_sq_sum: f64,
     detrend: Detrend,
-    fft: Arc<dyn RealToComplex<f64>>,
-    input: Vec<f64>,
+    plan: Plan,
+    /// Even length: the windowed samples in pairs (sample 2j real, 2j + 1 imaginary).
+    pairs: Vec<Complex64>,
+    /// Odd length: the windowed samples.
+    real_input: Vec<f64>,
     scratch: Vec<Complex64>,
     out: Vec<Complex64>,
+}
+
+/// How a windowed segment is transformed.
+#[derive(Clone)]
+enum Plan {
+    /// Even length n: a complex FFT of the n/2 sample pairs, then the split into the spectrum
+    /// of the real segment (the standard real-input FFT through a half-length complex one,
+    /// e.g. Press et al., Numerical Recipes, 3rd ed., 2007, §12.3). The split repeats the
+    /// operations of `realfft`'s even-length transform one for one (tested bit for bit), and
+    /// is written out here so the power can be taken in the same pass.
+    Even { fft: Arc<dyn rustfft::Fft<f64>>, twiddles: Arc<[Complex64]> },
+    /// Odd length: `realfft`'s transform.
+    Odd(Arc<dyn RealToComplex<f64>>),
 }
 
 impl std::fmt::Debug for SegmentEngine {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("SegmentEngine").field("nperseg", &self.nperseg).field("step", &self.step).finish()
     }
+}
+
+/// Split step of the even-length real FFT, in place: `out[..n/2]` holds the complex FFT of
+/// the sample pairs on entry and `out` the spectrum X_0..X_{n/2} on return.
+fn split_in_place(out: &mut [Complex64], twiddles: &[Complex64]) {
+    let h = out.len() - 1;
+    let z0 = out[0];
+    out[0] = Complex64::new(z0.re + z0.im, 0.0);
+    out[h] = Complex64::new(z0.re - z0.im, 0.0);
+    for (i, tw) in twiddles.iter().enumerate().map(|(j, t)| (j + 1, t)) {
+        let (x, y) = split_pair(out[i], out[h - i], *tw);
+        out[i] = x;
+        out[h - i] = y;
+    }
+    if h.is_multiple_of(2) {
+        out[h / 2].im = -out[h / 2].im;
+    }
+}
+
+/// X_i and X_{n/2−i} from Z_i and Z_{n/2−i} (twiddle already halved), in `realfft`'s order of
+/// operations.
+#[inline(always)]
+fn split_pair(z: Complex64, z_rev: Complex64, tw: Complex64) -> (Complex64, Complex64) {
+    let sum = z + z_rev;
+    let diff = z - z_rev;
+    let half_sum_re = 0.5 * sum.re;
+    let half_diff_im = 0.5 * diff.im;
+    let twiddled_real = sum.im * tw.re + diff.re * tw.im;
+    let twiddled_im = sum.im * tw.im - diff.re * tw.re;
+    (
+        Complex64::new(half_sum_re + twiddled_real, half_diff_im + twiddled_im),
+        Complex64::new(half_sum_re - twiddled_real, twiddled_im - half_diff_im),
+    )
+}
+
+/// The pairs (i, n/2 − i), i = 1..=m, of [`split_power`]: `z_lo[k]` is Z_{k+1} and `z_hi` runs
+/// backwards (`z_hi[m − 1 − k]` is Z_{n/2−k−1}), as do `s_lo` and `s_hi`. Separate slices tell
+/// the compiler the stores cannot overlap, so the loop is vectorized.
+#[inline(always)]
+fn split_power_pairs(
+    z_lo: &[Complex64],
+    z_hi: &[Complex64],
+    tw: &[Complex64],
+    s_lo: &mut [f64],
+    s_hi: &mut [f64],
+) {
+    let m = tw.len();
+    let (z_lo, z_hi, s_lo, s_hi) = (&z_lo[..m], &z_hi[..m], &mut s_lo[..m], &mut s_hi[..m]);
+    for k in 0..m {
+        let r = m - 1 - k;
+        let (x, y) = split_pair(z_lo[k], z_hi[r], tw[k]);
+        s_lo[k] += x.re * x.re + x.im * x.im;
+        s_hi[r] += y.re * y.re + y.im * y.im;
+    }
+}
+
+/// `sums[k] += |X_k|²` straight from the complex FFT `z` of the sample pairs: the split of
+/// [`split_in_place`] without storing X (the same values, so the same sums).
+#[inline(always)]
+fn split_power(z: &[Complex64], twiddles: &[Complex64], sums: &mut [f64]) {
+    let h = z.len();
+    let (a, b) = (z[0].re + z[0].im, z[0].re - z[0].im);
+    // |X|² = re² + im² with im = 0: re² + 0 is re² exactly.
+    sums[0] += a * a;
+    sums[h] += b * b;
+    let m = twiddles.len();
+    let (head, tail) = sums.split_at_mut(h - m);
+    split_power_pairs(&z[1..=m], &z[h - m..h], twiddles, &mut head[1..=m], &mut tail[..m]);
+    if h.is_multiple_of(2) {
+        // X = conj(Z) at the centre: the same squares.
+        let c = z[h / 2];
+        sums[h / 2] += c.re * c.re + c.im * c.im;
+    }
+}
+
+/// `input = w · (scale·seg − trend)`, the trend as `detrend` asks (module docs): the trend's
+/// sums in one pass over the samples ([`lane_moments`]), the removal and the window in a
+/// second pass. Over `flat`, where every weight is exactly 1, the product with w is left out
+/// (y · 1 = y exactly, so the values are the same; the weights there need not be read).
+#[inline(always)]
+fn window_detrended(
+    detrend: Detrend,
+    seg: &[f64],
+    scale: f64,
+    w: &[f64],
+    flat: (usize, usize),
+    input: &mut [f64],
+) {
+    let n = seg.len();
+    let (trend0, slope, mid) = match detrend {
+        Detrend::None => (0.0, 0.0, 0.0),
+        Detrend::Constant => (lane_moments(seg, scale, 0.0, false).0 / n as f64, 0.0, 0.0),
+        Detrend::Linear => {
+            let nf = n as f64;
+            let mid = (nf - 1.0) / 2.0;
+            let (s0, s1) = lane_moments(seg, scale, mid, true);
+            let stt = nf * (nf * nf - 1.0) / 12.0;
+            (s0 / nf, if stt > 0.0 { s1 / stt } else { 0.0 }, mid)
+        }
+    };
+    let (f0, f1) = flat;
+    for (lo, hi, weighted) in [(0, f0, true), (f0, f1, false), (f1, n, true)] {
+        let (o, v, w) = (&mut input[lo..hi], &seg[lo..hi], &w[lo..hi]);
+        // The expressions of each detrend kept as they were, so the rounding is unchanged.
+        match (detrend, weighted) {
+            (Detrend::None, true) => o.iter_mut().zip(v).zip(w).for_each(|((o, v), w)| *o = v * scale * w),
+            (Detrend::None, false) => o.iter_mut().zip(v).for_each(|(o, v)| *o = v * scale),
+            (Detrend::Constant, true) => {
+                o.iter_mut().zip(v).zip(w).for_each(|((o, v), w)| *o = (v * scale - trend0) * w)
+            }
+            (Detrend::Constant, false) => o.iter_mut().zip(v).for_each(|(o, v)| *o = v * scale - trend0),
+            (Detrend::Linear, true) => {
+                for (i, ((o, v), w)) in o.iter_mut().zip(v).zip(w).enumerate() {
+                    *o = (v * scale - (trend0 + slope * ((lo + i) as i32 as f64 - mid))) * w;
+                }
+            }
+            (Detrend::Linear, false) => {
+                for (i, (o, v)) in o.iter_mut().zip(v).enumerate() {
+                    *o = v * scale - (trend0 + slope * ((lo + i) as i32 as f64 - mid));
+                }
+            }
+        }
+    }
+}
+
+/// The longest run of weights exactly 1 (empty `(0, 0)` when none).
+fn flat_run(w: &[f64]) -> (usize, usize) {
+    let (mut best, mut start) = ((0, 0), None);
+    for (i, &v) in w.iter().chain([0.0].iter()).enumerate() {
+        match (v == 1.0, start) {
+            (true, None) => start = Some(i),
+            (false, Some(s)) => {
+                if i - s > best.1 - best.0 {
+                    best = (s, i);
+                }
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    best
+}
+
+/// `sums[k] += |spec[k]|²` (compiled for the widest SIMD set; the same operations per bin).
+fn add_power(sums: &mut [f64], spec: &[Complex64]) {
+    with_best_simd(
+        #[inline(always)]
+        || sums.iter_mut().zip(spec).for_each(|(s, c)| *s += c.re * c.re + c.im * c.im),
+    );
 }
 
 impl SegmentEngine {
@@ -189,23 +357,62 @@ impl SegmentEngine {
         if noverlap >= n {
             return Err(Error::invalid("noverlap", format!("must be < nperseg = {n}, got {noverlap}")));
         }
-        let window = cfg.window.weights(n)?;
+        let window: Arc<[f64]> = cfg.window.weights(n)?.into();
         let win_sq_sum = window.iter().map(|w| w * w).sum();
-        let fft = RealFftPlanner::<f64>::new().plan_fft_forward(n);
-        let input = fft.make_input_vec();
-        let scratch = fft.make_scratch_vec();
-        let out = fft.make_output_vec();
-        Ok(Self {
+        let plan = if n.is_multiple_of(2) {
+            // The twiddles as realfft computes them: e^{−2πik/n}/2, k = 1..⌈n/4⌉ − 1.
+            let count = if n.is_multiple_of(4) { n / 4 } else { n / 4 + 1 };
+            let c = -2.0 * std::f64::consts::PI / n as f64;
+            let twiddles = (1..count)
+                .map(|k| Complex64::new((c * k as f64).cos(), (c * k as f64).sin()) * 0.5)
+                .collect();
+            Plan::Even { fft: rustfft::FftPlanner::<f64>::new().plan_fft_forward(n / 2), twiddles }
+        } else {
+            Plan::Odd(RealFftPlanner::<f64>::new().plan_fft_forward(n))
+        };
+        Ok(Self::with_plan(n, n - noverlap, window, win_sq_sum, cfg.detrend, plan))
+    }
+
+    fn with_plan(
+        n: usize,
+        step: usize,
+        window: Arc<[f64]>,
+        win_sq_sum: f64,
+        detrend: Detrend,
+        plan: Plan,
+    ) -> Self {
+        let zero = Complex64::new(0.0, 0.0);
+        let (pairs, real_input, scratch) = match &plan {
+            Plan::Even { fft, .. } => {
+                (vec![zero; n / 2], Vec::new(), vec![zero; fft.get_outofplace_scratch_len()])
+            }
+            Plan::Odd(fft) => (Vec::new(), fft.make_input_vec(), fft.make_scratch_vec()),
+        };
+        Self {
             nperseg: n,
-            step: n - noverlap,
+            step,
+            flat: flat_run(&window),
             window,
             win_sq_sum,
-            detrend: cfg.detrend,
-            fft,
-            input,
+            detrend,
+            plan,
+            pairs,
+            real_input,
             scratch,
-            out,
-        })
+            out: vec![zero; n / 2 + 1],
+        }
+    }
+
+    /// An engine with the same plan and window and buffers of its own (for another thread).
+    pub(crate) fn fork(&self) -> Self {
+        Self::with_plan(
+            self.nperseg,
+            self.step,
+            Arc::clone(&self.window),
+            self.win_sq_sum,
+            self.detrend,
+            self.plan.clone(),
+        )
     }
 
     pub(crate) fn nperseg(&self) -> usize {
@@ -222,35 +429,68 @@ impl SegmentEngine {
 
     /// Transform one segment (length `nperseg`) into the internal spectrum buffer.
     pub(crate) fn transform(&mut self, seg: &[f64]) -> Result<&[Complex64]> {
+        self.transform_scaled(seg, 1.0)
+    }
+
+    /// Detrend and window `scale · seg` into the FFT input and run the FFT: for an even length
+    /// the complex FFT of the pairs lands in `out[..n/2]` (split still to do), for an odd
+    /// length `out` holds the spectrum.
+    fn window_and_fft(&mut self, seg: &[f64], scale: f64) -> Result<()> {
         let n = self.nperseg;
         if seg.len() != n {
             return Err(Error::shape("Welch segment", n, seg.len()));
         }
-        self.input.copy_from_slice(seg);
-        match self.detrend {
-            Detrend::None => {}
-            Detrend::Constant => {
-                let m = self.input.iter().sum::<f64>() / n as f64;
-                self.input.iter_mut().for_each(|x| *x -= m);
+        debug_assert!(n <= MAX_NPERSEG && MAX_NPERSEG < i32::MAX as usize);
+        let input = match self.plan {
+            Plan::Even { .. } => complex_as_reals(&mut self.pairs),
+            Plan::Odd(_) => &mut self.real_input[..],
+        };
+        let (w, detrend, flat) = (&self.window[..], self.detrend, self.flat);
+        // Compiled for the widest SIMD set of the CPU (chosen at run time); no fused
+        // multiply-adds are formed, so the rounding is that of the plain expressions.
+        with_best_simd(
+            #[inline(always)]
+            || window_detrended(detrend, seg, scale, w, flat, input),
+        );
+        match &self.plan {
+            Plan::Even { fft, .. } => {
+                let h = n / 2;
+                fft.process_outofplace_with_scratch(&mut self.pairs, &mut self.out[..h], &mut self.scratch);
             }
-            Detrend::Linear => {
-                let nf = n as f64;
-                let mid = (nf - 1.0) / 2.0;
-                let m = self.input.iter().sum::<f64>() / nf;
-                let stt = nf * (nf * nf - 1.0) / 12.0;
-                let slope = if stt > 0.0 {
-                    self.input.iter().enumerate().map(|(i, x)| (i as f64 - mid) * x).sum::<f64>() / stt
-                } else {
-                    0.0
-                };
-                self.input.iter_mut().enumerate().for_each(|(i, x)| *x -= m + slope * (i as f64 - mid));
-            }
+            Plan::Odd(fft) => fft
+                .process_with_scratch(&mut self.real_input, &mut self.out, &mut self.scratch)
+                .map_err(|e| Error::invalid("FFT buffers", e.to_string()))?,
         }
-        self.input.iter_mut().zip(&self.window).for_each(|(x, w)| *x *= w);
-        self.fft
-            .process_with_scratch(&mut self.input, &mut self.out, &mut self.scratch)
-            .map_err(|e| Error::invalid("FFT buffers", e.to_string()))?;
+        Ok(())
+    }
+
+    /// Transform the segment `scale · seg` (each sample multiplied by `scale` first, as if the
+    /// scaled samples had been stored): the detrend sums are taken in one pass over the samples,
+    /// and the trend removal and the window in a second pass that fills the FFT input.
+    pub(crate) fn transform_scaled(&mut self, seg: &[f64], scale: f64) -> Result<&[Complex64]> {
+        self.window_and_fft(seg, scale)?;
+        if let Plan::Even { twiddles, .. } = &self.plan {
+            split_in_place(&mut self.out, twiddles);
+        }
         Ok(&self.out)
+    }
+
+    /// `sums[k] += |X_k|²` for the segment `scale · seg` (as [`SegmentEngine::transform_scaled`]
+    /// then [`add_power`], with the same values; for an even length the split and the squares
+    /// are one pass).
+    pub(crate) fn add_segment_power(&mut self, seg: &[f64], scale: f64, sums: &mut [f64]) -> Result<()> {
+        self.window_and_fft(seg, scale)?;
+        match &self.plan {
+            Plan::Even { twiddles, .. } => {
+                let z = &self.out[..self.nperseg / 2];
+                with_best_simd(
+                    #[inline(always)]
+                    || split_power(z, twiddles, sums),
+                );
+            }
+            Plan::Odd(_) => add_power(sums, &self.out),
+        }
+        Ok(())
     }
 
     /// Density scale and one-sided factor for bin k: c_k / (fs Σw²).
@@ -309,11 +549,10 @@ pub fn welch(x: &[f64], fs: f64, cfg: &WelchConfig) -> Result<WelchPsd> {
         let parts = (0..n_seg.div_ceil(per))
             .into_par_iter()
             .map(|r| -> Result<Vec<f64>> {
-                let mut e = SegmentEngine::new(cfg)?;
+                let mut e = eng.fork();
                 let mut sums = vec![0.0; e.n_bins()];
                 for s in r * per..((r + 1) * per).min(n_seg) {
-                    let spec = e.transform(&x[s * step..s * step + n])?;
-                    sums.iter_mut().zip(spec).for_each(|(a, c)| *a += c.norm_sqr());
+                    e.add_segment_power(&x[s * step..s * step + n], 1.0, &mut sums)?;
                 }
                 Ok(sums)
             })
@@ -326,8 +565,7 @@ pub fn welch(x: &[f64], fs: f64, cfg: &WelchConfig) -> Result<WelchPsd> {
     } else {
         let mut sums = vec![0.0; eng.n_bins()];
         for s in 0..n_seg {
-            let spec = eng.transform(&x[s * step..s * step + n])?;
-            sums.iter_mut().zip(spec).for_each(|(a, c)| *a += c.norm_sqr());
+            eng.add_segment_power(&x[s * step..s * step + n], 1.0, &mut sums)?;
         }
         sums
     };
@@ -449,8 +687,7 @@ impl WelchStream {
     }
 
     fn complete_segment(&mut self, axis: usize) -> Result<()> {
-        let spec = self.engine.transform(&self.bufs[axis])?;
-        self.sums[axis].iter_mut().zip(spec).for_each(|(s, c)| *s += c.norm_sqr());
+        self.engine.add_segment_power(&self.bufs[axis], 1.0, &mut self.sums[axis])?;
         self.n_seg[axis] += 1;
         let step = self.engine.step();
         let n = self.engine.nperseg();
@@ -655,6 +892,97 @@ mod tests {
             let expected = c * acc / starts.len() as f64 / (fs * s2);
             assert_relative_eq!(p.values[k], expected, max_relative = 1e-12, epsilon = 1e-300);
             assert_relative_eq!(p.freq_hz[k], k as f64 * fs / n as f64);
+        }
+    }
+
+    #[test]
+    fn even_split_is_realfft_bit_for_bit_and_power_pass_equals_it() {
+        // The even-length path (complex FFT of the pairs, then the split) against realfft's
+        // transform of the same windowed samples, and the fused power pass against the squares
+        // of that spectrum: equal to the last bit, for n ≡ 0 and 2 (mod 4) and odd n.
+        // The probabilistic PSD's taper (flat over 80 %) also checks that skipping the weights
+        // equal to 1 changes nothing.
+        let tapered = [(1000usize, true), (4096, true), (1001, true)];
+        let plain = [2usize, 6, 8, 10, 1000, 1002, 4096, 7, 1001].map(|n| (n, false));
+        for (n, taper) in plain.into_iter().chain(tapered) {
+            let x = noise(n, 1.0, n as u64 + 40);
+            let w = if taper {
+                super::super::probabilistic::cosine_taper_20(n)
+            } else {
+                Window::Hann.weights(n).unwrap()
+            };
+            let cfg =
+                WelchConfig::new(n).with_detrend(Detrend::Linear).with_window(Window::Custom(w.clone()));
+            let mut eng = SegmentEngine::new(&cfg).unwrap();
+            if taper {
+                assert_eq!(eng.flat.1 - eng.flat.0, w.iter().filter(|&&v| v == 1.0).count());
+            }
+            let got = eng.transform_scaled(&x, 0.5).unwrap().to_vec();
+            // The same windowed input (every weight applied) through realfft.
+            let mut input = vec![0.0; n];
+            window_detrended(Detrend::Linear, &x, 0.5, &w, (0, 0), &mut input);
+            let fft = RealFftPlanner::<f64>::new().plan_fft_forward(n);
+            let mut want = fft.make_output_vec();
+            fft.process(&mut input, &mut want).unwrap();
+            let bits =
+                |v: &[Complex64]| v.iter().map(|c| (c.re.to_bits(), c.im.to_bits())).collect::<Vec<_>>();
+            assert_eq!(bits(&got), bits(&want), "n = {n}");
+            let mut direct = vec![1.0; n / 2 + 1];
+            add_power(&mut direct, &got);
+            let mut fused = vec![1.0; n / 2 + 1];
+            eng.add_segment_power(&x, 0.5, &mut fused).unwrap();
+            let b = |v: &[f64]| v.iter().map(|c| c.to_bits()).collect::<Vec<_>>();
+            assert_eq!(b(&fused), b(&direct), "n = {n}");
+            // A fork gives the same.
+            let mut again = vec![1.0; n / 2 + 1];
+            eng.fork().add_segment_power(&x, 0.5, &mut again).unwrap();
+            assert_eq!(b(&again), b(&direct), "n = {n}");
+        }
+    }
+
+    #[test]
+    fn linear_detrend_matches_the_least_squares_line() {
+        // Linear detrending as scipy.signal.detrend(type='linear'): the least-squares line is
+        // removed, so (i) a pure line leaves zeros and (ii) the periodogram matches the direct
+        // DFT of w·(x − a − b·t), a and b from the normal equations. Lengths not a multiple of
+        // the eight partial sums exercise the tail.
+        for n in [13usize, 64, 1001] {
+            let x = noise(3 * n, 1.0, n as u64);
+            let cfg = WelchConfig::new(n).with_noverlap(n / 3).with_detrend(Detrend::Linear);
+            let mut eng = SegmentEngine::new(&cfg).unwrap();
+            let line: Vec<f64> = (0..n).map(|i| 1e5 - 3.25 * i as f64).collect();
+            let spec = eng.transform(&line).unwrap();
+            // Left: rounding of the 1e5-sized samples, against a spectrum of ~1e5·n without it.
+            assert!(spec.iter().all(|c| c.norm() < 1e-12 * 1e5 * n as f64), "n = {n}");
+            let p = welch(&x, 1.0, &cfg).unwrap();
+            let w = Window::Hann.weights(n).unwrap();
+            let s2: f64 = w.iter().map(|v| v * v).sum();
+            let step = n - n / 3;
+            let starts: Vec<usize> = (0..).map(|s| s * step).take_while(|s| s + n <= x.len()).collect();
+            for k in [0, 1, n / 4, n / 2] {
+                let mut acc = 0.0;
+                for &s in &starts {
+                    let seg = &x[s..s + n];
+                    let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+                    let (st, sx) = (t.iter().sum::<f64>(), seg.iter().sum::<f64>());
+                    let stt: f64 = t.iter().map(|v| v * v).sum();
+                    let stx: f64 = t.iter().zip(seg).map(|(a, b)| a * b).sum();
+                    let nf = n as f64;
+                    let b = (nf * stx - st * sx) / (nf * stt - st * st);
+                    let a = (sx - b * st) / nf;
+                    let (mut re, mut im) = (0.0, 0.0);
+                    for (j, v) in seg.iter().enumerate() {
+                        let ph = -2.0 * PI * (k * j) as f64 / n as f64;
+                        let y = w[j] * (v - a - b * j as f64);
+                        re += y * ph.cos();
+                        im += y * ph.sin();
+                    }
+                    acc += re * re + im * im;
+                }
+                let c = if k == 0 || (n % 2 == 0 && k == n / 2) { 1.0 } else { 2.0 };
+                let expected = c * acc / starts.len() as f64 / s2;
+                assert_relative_eq!(p.values[k], expected, max_relative = 1e-10, epsilon = 1e-18);
+            }
         }
     }
 
