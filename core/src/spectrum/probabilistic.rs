@@ -402,7 +402,7 @@ fn mantissa_exponent(a: f64) -> (f64, i64) {
 fn db_sum(xs: &[f64]) -> f64 {
     const LANES: usize = 8;
     const PER_LANE: usize = 128; // a product of 128 mantissas in [1, 2) stays below 2^128
-    if xs.iter().any(|a| *a == f64::INFINITY) {
+    if xs.contains(&f64::INFINITY) {
         return f64::INFINITY;
     }
     let (mut m_tot, mut e_tot) = (1.0f64, 0i64);
