@@ -16,6 +16,7 @@ Usage: python benches/peer/monitor_soak.py [--samples N] [--block 200]
 
 import argparse
 import math
+import pathlib
 import resource
 import sys
 import time
@@ -24,52 +25,7 @@ import numpy as np
 
 import stillsky
 
-RIG = """
-[[body]]
-name = "tube"
-mass_kg = 20
-cg_m = [0, 0, 1]
-inertia_kgm2 = [2, 2, 2]
-dofs = ["x", "y", "rx", "ry"]
-[[spring]]
-name = "xl"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 0.6]
-direction = [1, 0, 0]
-stiffness_n_per_m = 1e5
-loss_factor = 0.1
-[[spring]]
-name = "xh"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 1.2]
-direction = [1, 0, 0]
-stiffness_n_per_m = 5e4
-loss_factor = 0.1
-[[spring]]
-name = "yl"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 0.6]
-direction = [0, 1, 0]
-stiffness_n_per_m = 1.2e5
-loss_factor = 0.1
-[[spring]]
-name = "yh"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 1.2]
-direction = [0, 1, 0]
-stiffness_n_per_m = 4e4
-loss_factor = 0.1
-[optics]
-body = "tube"
-focal_length_mm = 1000
-pixel_um = 3.76
-altitude_deg = 45
-azimuth_deg = 30
-"""
+RIG = (pathlib.Path(__file__).resolve().parents[2] / "tests" / "data" / "monitor-rig.toml").read_text()
 
 FS = 200.0
 CYCLE = 200_000  # samples per burst cycle (1000 s)

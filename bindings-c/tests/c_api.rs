@@ -238,3 +238,34 @@ fn docs_example_is_the_smoke_test_and_pc_template_matches_link_flags() {
     assert!(pc.lines().any(|l| l == "Libs.private: -lpthread -ldl -lm"), "{pc}");
     assert!(pc.contains("Version: @VERSION@") && pc.contains("prefix=@PREFIX@"));
 }
+
+/// The monitor tests' rig in C (tests/c/monitor_rig.h) is the text of tests/data/monitor-rig.toml
+/// (without its comment lines), which the Python tests and the Rust bench read.
+#[test]
+fn the_c_monitor_rig_is_the_shared_rig_file() {
+    let crate_dir = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let header = std::fs::read_to_string(crate_dir.join("tests/c/monitor_rig.h")).expect("monitor_rig.h");
+    let body = &header[header.find("MODEL[]").expect("MODEL[] in monitor_rig.h")..];
+    let body = &body[..body.find(';').expect("end of MODEL[]")];
+    // Concatenate the C string literals and undo their escapes (\n and \" only are used).
+    let mut text = String::new();
+    let mut chars = body.chars().peekable();
+    let mut inside = false;
+    while let Some(ch) = chars.next() {
+        match (inside, ch) {
+            (false, '"') => inside = true,
+            (true, '"') => inside = false,
+            (true, '\\') => match chars.next() {
+                Some('n') => text.push('\n'),
+                Some(other) => text.push(other),
+                None => {}
+            },
+            (true, _) => text.push(ch),
+            _ => {}
+        }
+    }
+    let file =
+        std::fs::read_to_string(crate_dir.join("../tests/data/monitor-rig.toml")).expect("monitor-rig.toml");
+    let want: String = file.lines().filter(|l| !l.starts_with('#')).map(|l| format!("{l}\n")).collect();
+    assert_eq!(text, want);
+}

@@ -4,6 +4,7 @@ re-statement of the flag rules), the filter design against scipy's analog Butter
 windowed RMS against the offline PSD estimate, and bad input against the named exceptions."""
 
 import math
+import pathlib
 
 import numpy as np
 import pytest
@@ -13,54 +14,9 @@ import stillsky
 
 ARCSEC_PER_RAD = 180.0 * 3600.0 / math.pi
 
-# A 20 kg tube on horizontal springs at two heights (the rig of bindings-c/tests/c/monitor.c;
-# invented test numbers).
-RIG = """
-[[body]]
-name = "tube"
-mass_kg = 20
-cg_m = [0, 0, 1]
-inertia_kgm2 = [2, 2, 2]
-dofs = ["x", "y", "rx", "ry"]
-[[spring]]
-name = "xl"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 0.6]
-direction = [1, 0, 0]
-stiffness_n_per_m = 1e5
-loss_factor = 0.1
-[[spring]]
-name = "xh"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 1.2]
-direction = [1, 0, 0]
-stiffness_n_per_m = 5e4
-loss_factor = 0.1
-[[spring]]
-name = "yl"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 0.6]
-direction = [0, 1, 0]
-stiffness_n_per_m = 1.2e5
-loss_factor = 0.1
-[[spring]]
-name = "yh"
-from = "ground"
-to = "tube"
-at_m = [0, 0, 1.2]
-direction = [0, 1, 0]
-stiffness_n_per_m = 4e4
-loss_factor = 0.1
-[optics]
-body = "tube"
-focal_length_mm = 1000
-pixel_um = 3.76
-altitude_deg = 45
-azimuth_deg = 30
-"""
+# A 20 kg tube on horizontal springs at two heights (tests/data/monitor-rig.toml, the rig of the
+# C monitor tests too; invented test numbers).
+RIG = (pathlib.Path(__file__).resolve().parents[2] / "tests" / "data" / "monitor-rig.toml").read_text()
 
 
 @pytest.fixture(scope="module")
