@@ -33,6 +33,14 @@ pub struct Modes {
 }
 
 impl Modes {
+    /// The first mode's frequency (Hz) and damping ratio; NaN for a model without modes.
+    pub fn first(&self) -> (f64, f64) {
+        (
+            self.frequency_hz.first().copied().unwrap_or(f64::NAN),
+            self.damping_ratio.first().copied().unwrap_or(f64::NAN),
+        )
+    }
+
     /// For each mode, the DOF label that moves most (by kinetic energy share φ_i² M_ii).
     pub fn dominant_dofs(&self, model: &Model) -> Vec<String> {
         let n = model.dof_count();

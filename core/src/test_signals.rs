@@ -26,6 +26,14 @@ pub(crate) fn synthesise(n: usize, dt: f64, psd: impl Fn(f64) -> f64, seed: u64)
     x
 }
 
+/// `n` samples of seeded Gaussian white noise with standard deviation `sigma`.
+pub(crate) fn white_noise(n: usize, sigma: f64, seed: u64) -> Vec<f64> {
+    use rand_distr::Distribution;
+    let mut rng = rand::rngs::StdRng::seed_from_u64(seed);
+    let d = rand_distr::Normal::new(0.0, sigma).expect("sigma is finite and >= 0");
+    (0..n).map(|_| d.sample(&mut rng)).collect()
+}
+
 #[test]
 fn synthesised_mean_square_is_the_psd_integral() {
     // Parseval: Σ a²/2 = Σ G Δf for a sum of cosines with random phases.

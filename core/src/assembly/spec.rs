@@ -140,6 +140,22 @@ pub struct SpringSpec {
 }
 
 impl SpringSpec {
+    /// The spring without its stiffness: name, ends, points, direction and axis kept, every
+    /// stiffness field at its default.
+    pub fn geometry(&self) -> SpringSpec {
+        SpringSpec {
+            name: self.name.clone(),
+            from: self.from.clone(),
+            to: self.to.clone(),
+            at_m: self.at_m,
+            from_at_m: self.from_at_m,
+            to_at_m: self.to_at_m,
+            direction: self.direction,
+            axis: self.axis,
+            ..SpringSpec::default()
+        }
+    }
+
     /// The stiffness fields as a [`StiffnessSpec`].
     pub fn stiffness(&self) -> StiffnessSpec {
         StiffnessSpec {

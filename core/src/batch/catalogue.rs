@@ -571,18 +571,7 @@ pub fn apply_isolator(spec: &ModelSpec, sites: &[PadSite], iso: &Isolator) -> Re
         }
         chain.extend(support);
         let model = if chain.len() == 1 { chain.remove(0) } else { StiffnessModel::Series(chain) };
-        let base = SpringSpec {
-            name: s.name.clone(),
-            from: s.from.clone(),
-            to: s.to.clone(),
-            at_m: s.at_m,
-            from_at_m: s.from_at_m,
-            to_at_m: s.to_at_m,
-            direction: s.direction,
-            axis: s.axis,
-            ..SpringSpec::default()
-        };
-        out.springs[site.spring] = base.with_model(&model, false);
+        out.springs[site.spring] = s.geometry().with_model(&model, false);
     }
     Ok(out)
 }

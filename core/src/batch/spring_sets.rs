@@ -21,7 +21,7 @@
 //! trapezoid rule). What still needs a model per alternative (its modes, a static load, a
 //! transient) is not computed here.
 
-use crate::assembly::{ModelSpec, SpringSpec};
+use crate::assembly::ModelSpec;
 use crate::error::{Error, Result};
 use crate::frf::variants::VariantPlan;
 use crate::grid::{FreqGrid, trapezoid};
@@ -56,7 +56,7 @@ pub fn spring_changes(base: &ModelSpec, other: &ModelSpec) -> Option<Vec<(String
             if bs == os {
                 continue;
             }
-            if geometry(bs) != geometry(os) {
+            if bs.geometry() != os.geometry() {
                 return None;
             }
             let once = base.springs.iter().chain(&base.torsion_springs).filter(|s| s.name == bs.name).count();
@@ -69,21 +69,6 @@ pub fn spring_changes(base: &ModelSpec, other: &ModelSpec) -> Option<Vec<(String
         }
     }
     (probe == *base).then_some(out)
-}
-
-/// A spring without its stiffness: name, ends, points, direction and axis.
-fn geometry(s: &SpringSpec) -> SpringSpec {
-    SpringSpec {
-        name: s.name.clone(),
-        from: s.from.clone(),
-        to: s.to.clone(),
-        at_m: s.at_m,
-        from_at_m: s.from_at_m,
-        to_at_m: s.to_at_m,
-        direction: s.direction,
-        axis: s.axis,
-        ..SpringSpec::default()
-    }
 }
 
 /// A disturbance's inputs on the grid: (input name, PSD) pairs.
@@ -249,6 +234,7 @@ fn stats_from_frf(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::assembly::SpringSpec;
     use crate::batch::GroundSource;
     use crate::image::ImageOptions;
     use crate::schema::ModelFile;

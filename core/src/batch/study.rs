@@ -624,10 +624,7 @@ impl<'a> PreparedStudy<'a> {
             Ok(m) => m,
             Err(e) => return fail(e),
         };
-        let first = (
-            modes.frequency_hz.first().copied().unwrap_or(f64::NAN),
-            modes.damping_ratio.first().copied().unwrap_or(f64::NAN),
-        );
+        let first = modes.first();
         let wind = crate::checks::StaticWind { speed_m_s: s.design_wind_m_s, ..Default::default() };
         let fos = crate::checks::rig_checks(&file, &wind, &crate::checks::StaticOptions::default())
             .map(|r| r.min_margin())
@@ -1192,7 +1189,7 @@ mod tests {
 
     #[test]
     fn the_spring_variant_engine_gives_the_rebuilt_study_rows() {
-        // Pads crossed with the joints (a non-spring change of the tripod is a group of its
+        // Pads crossed with the leg length (a non-spring change of the tripod is a group of its
         // own) and a distance setting, on two recordings, calm and 4 m/s: every row from the
         // engine equals the row of a model built per variant.
         let text = |engine: &str| {

@@ -344,10 +344,7 @@ fn build_spec(mech: &PadMechanism, iso: &Isolator) -> BuiltSpec {
         Ok(m) => m,
         Err(e) => return fail(e),
     };
-    let first = (
-        modes.frequency_hz.first().copied().unwrap_or(f64::NAN),
-        modes.damping_ratio.first().copied().unwrap_or(f64::NAN),
-    );
+    let first = modes.first();
     let n_comp = mech.compression_pads();
     let load = match model.static_influence() {
         Ok(r) if n_comp > 0 => {

@@ -812,14 +812,7 @@ pub fn probabilistic_psd_axes(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use rand::{SeedableRng, rngs::StdRng};
-    use rand_distr::{Distribution, Normal};
-
-    fn noise(n: usize, sigma: f64, seed: u64) -> Vec<f64> {
-        let mut rng = StdRng::seed_from_u64(seed);
-        let d = Normal::new(0.0, sigma).unwrap();
-        (0..n).map(|_| d.sample(&mut rng)).collect()
-    }
+    use crate::test_signals::white_noise as noise;
 
     #[test]
     fn segment_rule_matches_mcnamara_buland() {

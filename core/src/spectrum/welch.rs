@@ -810,16 +810,9 @@ impl WelchStream {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_signals::white_noise as noise;
     use approx::assert_relative_eq;
-    use rand::{SeedableRng, rngs::StdRng};
-    use rand_distr::{Distribution, Normal};
     use std::f64::consts::PI;
-
-    fn noise(n: usize, sigma: f64, seed: u64) -> Vec<f64> {
-        let mut rng = StdRng::seed_from_u64(seed);
-        let d = Normal::new(0.0, sigma).unwrap();
-        (0..n).map(|_| d.sample(&mut rng)).collect()
-    }
 
     #[test]
     fn parseval_white_noise() {
