@@ -959,17 +959,12 @@ fn run_sweep(s: &SweepRun) -> Result<batch::SweepOutcome, Failure> {
     Ok(outcome)
 }
 
-/// Exit code 1 when rows failed (after everything was written).
-fn sweep_failures(outcome: &batch::SweepOutcome) -> CliResult {
-    let failures = outcome.failures();
-    if !failures.is_empty() {
+/// Exit code 1 when rows failed (after everything was written to `path`).
+fn row_failures(n_failed: usize, path: &std::path::Path) -> CliResult {
+    if n_failed > 0 {
         return Err(Failure {
             code: 1,
-            message: format!(
-                "{} row(s) failed; see the error rows in {}",
-                failures.len(),
-                outcome.path.display()
-            ),
+            message: format!("{n_failed} row(s) failed; see the error rows in {}", path.display()),
         });
     }
     Ok(())
@@ -1031,7 +1026,7 @@ fn sweep(a: &SweepArgs) -> CliResult {
         stillsky::io::atomic::write_atomic(h, page.as_bytes())?;
         println!("html: {}", h.display());
     }
-    sweep_failures(&outcome)
+    row_failures(outcome.failures().len(), &outcome.path)
 }
 
 fn study(a: &StudyArgs) -> CliResult {
@@ -1046,18 +1041,7 @@ fn study(a: &StudyArgs) -> CliResult {
             println!("plot: {} ({})", path.display(), p.title);
         }
     }
-    let failures = outcome.failures();
-    if !failures.is_empty() {
-        return Err(Failure {
-            code: 1,
-            message: format!(
-                "{} row(s) failed; see the error rows in {}",
-                failures.len(),
-                outcome.path.display()
-            ),
-        });
-    }
-    Ok(())
+    row_failures(outcome.failures().len(), &outcome.path)
 }
 
 fn expand(model: &Path) -> CliResult {
@@ -1125,7 +1109,7 @@ fn demo(out: &Path) -> CliResult {
         None,
     )?;
     write_report_html(&out.join("report.html"), &model, &o, &report_run, Some(&outcome))?;
-    sweep_failures(&outcome)
+    row_failures(outcome.failures().len(), &outcome.path)
 }
 
 /// The chosen axis of a recording (default the first).

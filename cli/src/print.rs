@@ -254,13 +254,7 @@ pub fn sweep_text(o: &SweepOutcome) -> String {
         o.kept,
         o.path.display()
     );
-    let v = &o.summary.visibility;
-    let _ = writeln!(
-        s,
-        "\nverdicts against no pad: no visible difference when both stay below {} px RMS and P(>1/2 px) {} %, or differ by less than that",
-        v.rms_px,
-        100.0 * v.p_outside
-    );
+    visibility_line(&mut s, &o.summary.visibility, "no pad");
     for t in &o.summary.per_wind {
         let windy = t.entries.iter().any(|e| e.gust_peak_px.is_finite());
         let _ = writeln!(
@@ -748,6 +742,16 @@ pub fn standing_verdict(t: &stillsky::people::StandingTable) -> String {
     }
 }
 
+/// The line that says when a ranking's verdict against `against` reads "no visible difference".
+fn visibility_line(s: &mut String, v: &stillsky::batch::Visibility, against: &str) {
+    let _ = writeln!(
+        s,
+        "\nverdicts against {against}: no visible difference when both stay below {} px RMS and P(>1/2 px) {} %, or differ by less than that",
+        v.rms_px,
+        100.0 * v.p_outside
+    );
+}
+
 /// A study's ranked summary per disturbance and its sensitivity table, as plain text.
 pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutcome) -> String {
     let mut s = String::new();
@@ -760,13 +764,7 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
         o.kept,
         o.path.display()
     );
-    let v = &o.summary.visibility;
-    let _ = writeln!(
-        s,
-        "\nverdicts against the base: no visible difference when both stay below {} px RMS and P(>1/2 px) {} %, or differ by less than that",
-        v.rms_px,
-        100.0 * v.p_outside
-    );
+    visibility_line(&mut s, &o.summary.visibility, "the base");
     for t in &o.summary.per_disturbance {
         let windy = t.entries.iter().any(|e| e.gust_peak_px.is_finite());
         let person = t.entries.iter().any(|e| e.standing_tilt_px.is_finite());
