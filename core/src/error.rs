@@ -114,11 +114,20 @@ pub fn require_finite(name: impl ParamName, v: f64) -> Result<f64> {
 
 /// Check that every value of a slice is finite; the error names the first bad index.
 pub fn require_all_finite(name: &str, v: &[f64]) -> Result<()> {
-    // Whole chunks first (a branch-free test the compiler vectorizes), then the first bad one.
-    let bad_chunk = v.chunks(4096).position(|c| c.iter().fold(false, |bad, x| bad | !x.is_finite()));
-    let Some(c) = bad_chunk else { return Ok(()) };
-    match v.iter().skip(c * 4096).position(|x| !x.is_finite()).map(|i| i + c * 4096) {
-        Some(i) => Err(Error::invalid(name, format!("value {} at index {i} is not finite", v[i]))),
+    match first_non_finite(v) {
+        Some(i) => Err(non_finite_at(name, v[i], i)),
         None => Ok(()),
     }
+}
+
+/// The index of the first value of `v` that is not finite.
+pub fn first_non_finite(v: &[f64]) -> Option<usize> {
+    // Whole chunks first (a branch-free test the compiler vectorizes), then the first bad one.
+    let c = v.chunks(4096).position(|c| c.iter().fold(false, |bad, x| bad | !x.is_finite()))?;
+    v.iter().skip(c * 4096).position(|x| !x.is_finite()).map(|i| i + c * 4096)
+}
+
+/// The error of [`require_all_finite`] for `value` at `index`.
+pub fn non_finite_at(name: &str, value: f64, index: usize) -> Error {
+    Error::invalid(name, format!("value {value} at index {index} is not finite"))
 }

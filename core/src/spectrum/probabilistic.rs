@@ -24,7 +24,9 @@ use super::psd::{Psd, Quantity};
 use super::reference::{CriterionCurve, ReferenceGround};
 use super::welch::{Detrend, SegmentEngine, WelchConfig};
 use super::window::Window;
-use crate::error::{Error, Result, require_finite, require_positive};
+use crate::error::{Error, Result, first_non_finite, non_finite_at, require_finite, require_positive};
+use crate::linalg::lanes::lane_moments;
+use std::sync::Arc;
 
 /// Settings of a probabilistic PSD. Defaults are ObsPy's `PPSD` defaults (module docs).
 #[derive(Debug, Clone, PartialEq)]
@@ -175,7 +177,7 @@ struct Layout {
     block_len: usize,
     step_len: usize,
     /// Frequencies k·fs/nfft for k = 1..=nfft/2.
-    freq_hz: Vec<f64>,
+    freq_hz: Arc<[f64]>,
     /// (2πf)^(2·(2 − order)) at those frequencies: the input density to acceleration (order 0
     /// displacement, 1 velocity, 2 acceleration).
     to_accel: Vec<f64>,
@@ -233,7 +235,8 @@ impl Layout {
             ));
         }
         let nlap = (0.75 * nfft as f64) as usize;
-        let freq_hz: Vec<f64> = (1..=nfft / 2).map(|k| k as f64 * fs / nfft as f64).collect();
+        let freq_hz: Arc<[f64]> = (1..=nfft / 2).map(|k| k as f64 * fs / nfft as f64).collect();
+        crate::grid::validate_freqs("freq_hz", &freq_hz)?;
         let power = 2 * (2 - cfg.input.motion_order().unwrap_or(0));
         let to_accel = freq_hz.iter().map(|&f| (2.0 * std::f64::consts::PI * f).powi(power)).collect();
         // Period bins as ObsPy's _setup_period_binning, with limits the shortest and longest
@@ -261,8 +264,9 @@ impl Layout {
             }
             // Periods 1/f in [l, r]  ⇔  frequencies with l <= 1/f <= r (tested on the period,
             // as ObsPy does, so the rounding of 1/f decides the same way).
-            let idx: Vec<usize> = (0..freq_hz.len()).filter(|&k| (l..=r).contains(&periods[k])).collect();
-            let (Some(&a), Some(&b)) = (idx.first(), idx.last()) else {
+            // The periods fall as k rises, so those in [l, r] are one run, found by bisection.
+            let (a, end) = (periods.partition_point(|&p| p > r), periods.partition_point(|&p| p >= l));
+            if a >= end {
                 return Err(Error::invalid(
                     "smoothing_octaves",
                     format!(
@@ -270,8 +274,8 @@ impl Layout {
                         cfg.smoothing_octaves
                     ),
                 ));
-            };
-            bin_ranges.push((a, b + 1));
+            }
+            bin_ranges.push((a, end));
             centres_s.push(c);
         }
         let db_edges = (0..=n_db)
@@ -355,12 +359,19 @@ pub struct ProbabilisticPsd {
 struct BlockWork {
     engine: SegmentEngine,
     sums: Vec<f64>,
+    /// The trend sums of each piece of one step (see `block_spectrum`).
+    pieces: Vec<(f64, f64)>,
     prefix: Vec<(f64, f64)>,
 }
 
 impl BlockWork {
     fn new(engine: SegmentEngine, n_cuts: usize) -> Self {
-        Self { sums: vec![0.0; engine.n_bins()], prefix: Vec::with_capacity(n_cuts), engine }
+        Self {
+            sums: vec![0.0; engine.n_bins()],
+            pieces: Vec::new(),
+            prefix: Vec::with_capacity(n_cuts),
+            engine,
+        }
     }
 }
 
@@ -441,15 +452,48 @@ fn block_spectrum(
     w: &mut BlockWork,
     samples: &[f64],
     scale: f64,
+    offset: usize,
 ) -> Result<BlockSpectrum> {
     let (nfft, step) = (w.engine.nperseg(), w.engine.step());
     w.sums.iter_mut().for_each(|s| *s = 0.0);
-    let mut n_seg = 0usize;
-    let mut start = 0;
-    while start + nfft <= samples.len() {
-        w.engine.add_segment_power(&samples[start..start + nfft], scale, &mut w.sums)?;
-        n_seg += 1;
-        start += step;
+    let n_seg = if samples.len() >= nfft { (samples.len() - nfft) / step + 1 } else { 0 };
+    let bad = |at: usize, v: &[f64]| {
+        first_non_finite(v).map_or(Ok(()), |i| Err(non_finite_at("samples", v[i], offset + at + i)))
+    };
+    let per = nfft / step;
+    if per * step == nfft && n_seg > 0 {
+        // The segments overlap by 3/4, so each is `per` pieces of one step shared with its
+        // neighbours: the trend sums are taken once per piece and combined per segment, with
+        // Σ (i − mid)·xᵢ = Σₖ [Σ (m − mid_p)·x + (k − (per − 1)/2)·step·Σ x] over the pieces k
+        // (m the index in the piece, mid_p its centre). A sample that is not finite makes its
+        // piece's sums not finite; only then is the piece searched for it.
+        let n_pieces = n_seg + per - 1;
+        let mid_p = (step as f64 - 1.0) / 2.0;
+        w.pieces.clear();
+        for (j, piece) in samples[..n_pieces * step].chunks_exact(step).enumerate() {
+            let (a, b) = lane_moments(piece, scale, mid_p, true);
+            if !(a.is_finite() && b.is_finite()) {
+                bad(j * step, piece)?;
+            }
+            w.pieces.push((a, b));
+        }
+        bad(n_pieces * step, &samples[n_pieces * step..])?;
+        let centre = (per as f64 - 1.0) / 2.0;
+        for s in 0..n_seg {
+            let p = &w.pieces[s..s + per];
+            let s0 = p.iter().fold(0.0, |t, &(a, _)| t + a);
+            let s1 = p
+                .iter()
+                .enumerate()
+                .fold(0.0, |t, (k, &(a, b))| t + b + (k as f64 - centre) * step as f64 * a);
+            let seg = &samples[s * step..s * step + nfft];
+            w.engine.add_segment_power_with(seg, scale, Some((s0, s1)), &mut w.sums)?;
+        }
+    } else {
+        bad(0, samples)?;
+        for s in 0..n_seg {
+            w.engine.add_segment_power(&samples[s * step..s * step + nfft], scale, &mut w.sums)?;
+        }
     }
     let fs = layout.fs;
     let nf = layout.freq_hz.len();
@@ -485,7 +529,7 @@ fn block_spectrum(
         .collect();
     // Rounded to f32 as ObsPy stores it, so values on a bin edge fall the same way.
     binned_db.iter_mut().for_each(|m| *m = *m as f32 as f64);
-    let psd = Psd::new(layout.freq_hz.clone(), acc, Quantity::Acceleration)?;
+    let psd = Psd::on_checked_freqs(Arc::clone(&layout.freq_hz), acc, Quantity::Acceleration)?;
     let criterion_ratio = match cfg.criterion {
         Some(c) => Some(c.evaluate(&psd)?.worst_ratio),
         None => None,
@@ -618,7 +662,7 @@ impl ProbabilisticPsd {
 
     fn process_block(&mut self) -> Result<PpsdBlock> {
         // The buffer holds the scaled samples already.
-        let spec = block_spectrum(&self.layout, &self.cfg, &mut self.work, &self.buf, 1.0)?;
+        let spec = block_spectrum(&self.layout, &self.cfg, &mut self.work, &self.buf, 1.0, 0)?;
         Ok(self.count_block(spec))
     }
 
@@ -773,21 +817,28 @@ pub fn probabilistic_psd_axes(
     let first = ProbabilisticPsd::new(fs, cfg)?;
     let (n, adv) = (first.layout.block_len, first.layout.step_len.min(first.layout.block_len));
     let mut jobs = Vec::new();
+    // The samples are checked for finiteness as the blocks read them (see `block_spectrum`);
+    // the tail after the last block here.
     for (a, x) in axes.iter().enumerate() {
-        crate::error::require_all_finite("samples", x).map_err(|e| in_axis(a, e))?;
         if x.len() < n {
+            crate::error::require_all_finite("samples", x).map_err(|e| in_axis(a, e))?;
             return Err(Error::invalid(
                 format!("x[{a}]"),
                 format!("{} samples are fewer than one block of {n}", x.len()),
             ));
         }
-        jobs.extend((0..=(x.len() - n) / adv).map(|k| (a, k * adv)));
+        let count = (x.len() - n) / adv + 1;
+        let end = (count - 1) * adv + n;
+        if let Some(i) = first_non_finite(&x[end..]) {
+            return Err(in_axis(a, non_finite_at("samples", x[end + i], end + i)));
+        }
+        jobs.extend((0..count).map(|k| (a, k * adv)));
     }
     let spectra: Vec<Result<BlockSpectrum>> = jobs
         .par_iter()
         .map_init(
             || BlockWork::new(first.work.engine.fork(), first.layout.cuts.len()),
-            |w, &(a, s)| block_spectrum(&first.layout, &first.cfg, w, &axes[a][s..s + n], cfg.scale),
+            |w, &(a, s)| block_spectrum(&first.layout, &first.cfg, w, &axes[a][s..s + n], cfg.scale, s),
         )
         .collect();
     let mut est: Vec<ProbabilisticPsd> = (1..axes.len()).map(|_| first.sibling()).collect();
@@ -860,6 +911,35 @@ mod tests {
         assert_eq!(chunked.histogram(), one.histogram());
         // Far above the low-noise model at short periods: none below it.
         assert!(one.share_below_nlnm().iter().filter(|v| v.is_finite()).all(|&v| v == 0.0));
+    }
+
+    #[test]
+    fn the_first_sample_that_is_not_finite_is_named_wherever_it_lies() {
+        // 40 Hz, 100 s blocks (4000 samples, step 2000), segments of 512 in pieces of 128: a
+        // block's pieces cover its first 3968 samples, the last 32 are its remainder, and
+        // after the 19th block 777 samples are left over. A bad sample in a piece, in a
+        // remainder, in the tail, and the first of two, each named by axis and index.
+        let fs = 40.0;
+        let cfg = PpsdConfig::default().with_block_s(100.0);
+        let clean = noise(40 * 1000 + 777, 1.0, 5);
+        for (bad, value, want) in [
+            (vec![5000], f64::NAN, 5000),
+            (vec![3980], f64::INFINITY, 3980),
+            (vec![40_500], f64::NEG_INFINITY, 40_500),
+            (vec![40_776], f64::NAN, 40_776),
+            (vec![30_000, 7], f64::NAN, 7),
+        ] {
+            let mut x = clean.clone();
+            bad.iter().for_each(|&i| x[i] = value);
+            let e = probabilistic_psd_axes(&[&clean, &x], fs, &cfg).unwrap_err().to_string();
+            assert!(
+                e.contains("x[1]") && e.contains(&format!("value {value} at index {want} is not finite")),
+                "{e}"
+            );
+            // The stream says the same of the chunk.
+            let e = ProbabilisticPsd::new(fs, &cfg).unwrap().push(&x).unwrap_err().to_string();
+            assert!(e.contains(&format!("at index {want} is not finite")), "{e}");
+        }
     }
 
     #[test]

@@ -1,6 +1,7 @@
 //! One-sided power spectral densities per Hz, with their physical quantity.
 
 use std::f64::consts::PI;
+use std::sync::Arc;
 
 use crate::error::{Error, Result};
 use crate::grid::{FreqGrid, validate_freqs};
@@ -187,7 +188,8 @@ pub struct BandLevels {
 /// `values` the same length, finite and >= 0.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Psd {
-    freq_hz: Vec<f64>,
+    /// Shared by the PSDs derived from this one (same grid, new values).
+    freq_hz: Arc<[f64]>,
     values: Vec<f64>,
     quantity: Quantity,
 }
@@ -196,18 +198,35 @@ impl Psd {
     /// Build a PSD from frequencies (Hz) and values (unit of `quantity`, see [`Quantity::unit`]).
     pub fn new(freq_hz: Vec<f64>, values: Vec<f64>, quantity: Quantity) -> Result<Self> {
         validate_freqs("freq_hz", &freq_hz)?;
+        Self::on_checked_freqs(freq_hz.into(), values, quantity)
+    }
+
+    /// A PSD on frequencies that already passed `validate_freqs` (another PSD's, or a grid
+    /// built once for many spectra): only the values are checked, and the frequencies are
+    /// shared, not copied.
+    pub(crate) fn on_checked_freqs(
+        freq_hz: Arc<[f64]>,
+        values: Vec<f64>,
+        quantity: Quantity,
+    ) -> Result<Self> {
         if values.len() != freq_hz.len() {
             return Err(Error::shape("PSD values vs freq_hz", freq_hz.len(), values.len()));
         }
-        for (i, &v) in values.iter().enumerate() {
-            if !v.is_finite() {
-                return Err(Error::invalid("PSD values", format!("value {v} at index {i} is not finite")));
-            }
-            if v < 0.0 {
-                return Err(Error::invalid(
-                    "PSD values",
-                    format!("value {v} at index {i} (f = {} Hz) is negative", freq_hz[i]),
-                ));
+        // A branch-free pass first (vectorized); the first bad value only when there is one.
+        if !values.chunks(4096).all(|c| c.iter().fold(true, |ok, v| ok & v.is_finite() & (*v >= 0.0))) {
+            for (i, &v) in values.iter().enumerate() {
+                if !v.is_finite() {
+                    return Err(Error::invalid(
+                        "PSD values",
+                        format!("value {v} at index {i} is not finite"),
+                    ));
+                }
+                if v < 0.0 {
+                    return Err(Error::invalid(
+                        "PSD values",
+                        format!("value {v} at index {i} (f = {} Hz) is negative", freq_hz[i]),
+                    ));
+                }
             }
         }
         Ok(Self { freq_hz, values, quantity })
@@ -215,7 +234,7 @@ impl Psd {
 
     /// Build a PSD on a validated grid.
     pub fn on_grid(grid: &FreqGrid, values: Vec<f64>, quantity: Quantity) -> Result<Self> {
-        Self::new(grid.hz().to_vec(), values, quantity)
+        Self::on_checked_freqs(grid.hz().into(), values, quantity)
     }
 
     /// Frequencies (Hz).
@@ -275,7 +294,7 @@ impl Psd {
                 s * w2.powi(n)
             })
             .collect();
-        Psd::new(self.freq_hz.clone(), values, quantity)
+        Psd::on_checked_freqs(Arc::clone(&self.freq_hz), values, quantity)
     }
 
     /// Value at `f_hz` by log–log linear interpolation between grid points (linear in f when
@@ -390,7 +409,11 @@ impl Psd {
     /// Multiply every value by `alpha` (finite, >= 0). For an amplitude gain g use alpha = g².
     pub fn scale(&self, alpha: f64) -> Result<Psd> {
         crate::error::require_non_negative("alpha", alpha)?;
-        Psd::new(self.freq_hz.clone(), self.values.iter().map(|v| v * alpha).collect(), self.quantity)
+        Psd::on_checked_freqs(
+            Arc::clone(&self.freq_hz),
+            self.values.iter().map(|v| v * alpha).collect(),
+            self.quantity,
+        )
     }
 
     /// Sum of two PSDs of the same quantity on the identical grid (uncorrelated sources add).
@@ -414,7 +437,7 @@ impl Psd {
             ));
         }
         let values = self.values.iter().zip(&other.values).map(|(a, b)| a + b).collect();
-        Psd::new(self.freq_hz.clone(), values, self.quantity)
+        Psd::on_checked_freqs(Arc::clone(&self.freq_hz), values, self.quantity)
     }
 
     /// RMS in base-10 octave or one-third-octave bands (IEC 61260-1 / ANSI S1.11 mid-band

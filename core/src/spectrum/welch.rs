@@ -268,31 +268,37 @@ fn split_power(z: &[Complex64], twiddles: &[Complex64], sums: &mut [f64]) {
     }
 }
 
-/// `input = w · (scale·seg − trend)`, the trend as `detrend` asks (module docs): the trend's
-/// sums in one pass over the samples ([`lane_moments`]), the removal and the window in a
-/// second pass. Over `flat`, where every weight is exactly 1, the product with w is left out
-/// (y · 1 = y exactly, so the values are the same; the weights there need not be read).
+/// The sums a segment's trend is fitted from, with xᵢ = scale·seg[i] and mid = (n − 1)/2:
+/// (Σ xᵢ, Σ (i − mid)·xᵢ) for a linear trend, (Σ xᵢ, 0) for a constant, (0, 0) for none. Taken
+/// in one pass over the samples ([`lane_moments`]).
+pub(crate) fn trend_sums(detrend: Detrend, seg: &[f64], scale: f64) -> (f64, f64) {
+    match detrend {
+        Detrend::None => (0.0, 0.0),
+        Detrend::Constant => (lane_moments(seg, scale, 0.0, false).0, 0.0),
+        Detrend::Linear => lane_moments(seg, scale, (seg.len() as f64 - 1.0) / 2.0, true),
+    }
+}
+
+/// `input = w · (scale·seg − trend)`, the trend as `detrend` asks (module docs) from the
+/// segment's [`trend_sums`], in one pass that fills the FFT input. Over `flat`, where every
+/// weight is exactly 1, the product with w is left out (y · 1 = y exactly, so the values are
+/// the same; the weights there need not be read).
 #[inline(always)]
 fn window_detrended(
     detrend: Detrend,
     seg: &[f64],
     scale: f64,
+    (s0, s1): (f64, f64),
     w: &[f64],
     flat: (usize, usize),
     input: &mut [f64],
 ) {
     let n = seg.len();
-    let (trend0, slope, mid) = match detrend {
-        Detrend::None => (0.0, 0.0, 0.0),
-        Detrend::Constant => (lane_moments(seg, scale, 0.0, false).0 / n as f64, 0.0, 0.0),
-        Detrend::Linear => {
-            let nf = n as f64;
-            let mid = (nf - 1.0) / 2.0;
-            let (s0, s1) = lane_moments(seg, scale, mid, true);
-            let stt = nf * (nf * nf - 1.0) / 12.0;
-            (s0 / nf, if stt > 0.0 { s1 / stt } else { 0.0 }, mid)
-        }
-    };
+    let nf = n as f64;
+    let mid = (nf - 1.0) / 2.0;
+    let trend0 = s0 / nf;
+    let stt = nf * (nf * nf - 1.0) / 12.0;
+    let slope = if stt > 0.0 { s1 / stt } else { 0.0 };
     let (f0, f1) = flat;
     for (lo, hi, weighted) in [(0, f0, true), (f0, f1, false), (f1, n, true)] {
         let (o, v, w) = (&mut input[lo..hi], &seg[lo..hi], &w[lo..hi]);
@@ -435,7 +441,7 @@ impl SegmentEngine {
     /// Detrend and window `scale · seg` into the FFT input and run the FFT: for an even length
     /// the complex FFT of the pairs lands in `out[..n/2]` (split still to do), for an odd
     /// length `out` holds the spectrum.
-    fn window_and_fft(&mut self, seg: &[f64], scale: f64) -> Result<()> {
+    fn window_and_fft(&mut self, seg: &[f64], scale: f64, sums: Option<(f64, f64)>) -> Result<()> {
         let n = self.nperseg;
         if seg.len() != n {
             return Err(Error::shape("Welch segment", n, seg.len()));
@@ -448,9 +454,10 @@ impl SegmentEngine {
         let (w, detrend, flat) = (&self.window[..], self.detrend, self.flat);
         // Compiled for the widest SIMD set of the CPU (chosen at run time); no fused
         // multiply-adds are formed, so the rounding is that of the plain expressions.
+        let sums = sums.unwrap_or_else(|| trend_sums(detrend, seg, scale));
         with_best_simd(
             #[inline(always)]
-            || window_detrended(detrend, seg, scale, w, flat, input),
+            || window_detrended(detrend, seg, scale, sums, w, flat, input),
         );
         match &self.plan {
             Plan::Even { fft, .. } => {
@@ -468,7 +475,7 @@ impl SegmentEngine {
     /// scaled samples had been stored): the detrend sums are taken in one pass over the samples,
     /// and the trend removal and the window in a second pass that fills the FFT input.
     pub(crate) fn transform_scaled(&mut self, seg: &[f64], scale: f64) -> Result<&[Complex64]> {
-        self.window_and_fft(seg, scale)?;
+        self.window_and_fft(seg, scale, None)?;
         if let Plan::Even { twiddles, .. } = &self.plan {
             split_in_place(&mut self.out, twiddles);
         }
@@ -479,7 +486,19 @@ impl SegmentEngine {
     /// then [`add_power`], with the same values; for an even length the split and the squares
     /// are one pass).
     pub(crate) fn add_segment_power(&mut self, seg: &[f64], scale: f64, sums: &mut [f64]) -> Result<()> {
-        self.window_and_fft(seg, scale)?;
+        self.add_segment_power_with(seg, scale, None, sums)
+    }
+
+    /// [`SegmentEngine::add_segment_power`] with the segment's [`trend_sums`] given (`None`:
+    /// taken here), for callers that assemble them from the sums of shared pieces.
+    pub(crate) fn add_segment_power_with(
+        &mut self,
+        seg: &[f64],
+        scale: f64,
+        trend: Option<(f64, f64)>,
+        sums: &mut [f64],
+    ) -> Result<()> {
+        self.window_and_fft(seg, scale, trend)?;
         match &self.plan {
             Plan::Even { twiddles, .. } => {
                 let z = &self.out[..self.nperseg / 2];
@@ -913,7 +932,8 @@ mod tests {
             let got = eng.transform_scaled(&x, 0.5).unwrap().to_vec();
             // The same windowed input (every weight applied) through realfft.
             let mut input = vec![0.0; n];
-            window_detrended(Detrend::Linear, &x, 0.5, &w, (0, 0), &mut input);
+            let t = trend_sums(Detrend::Linear, &x, 0.5);
+            window_detrended(Detrend::Linear, &x, 0.5, t, &w, (0, 0), &mut input);
             let fft = RealFftPlanner::<f64>::new().plan_fft_forward(n);
             let mut want = fft.make_output_vec();
             fft.process(&mut input, &mut want).unwrap();
