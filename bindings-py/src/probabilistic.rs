@@ -90,7 +90,7 @@ pub fn probabilistic_psd<'py>(
 /// `batch::survey_recording`, read in chunks with the interpreter released.
 #[pyfunction]
 #[pyo3(signature = (path, model = None, *, block_s = 3600.0, overlap = 0.5, bands_hz = vec![(1.0, 10.0)],
-    fs_hz = None, sensitivity = None))]
+    fs_hz = None, sensitivity = None, channel = None))]
 #[allow(clippy::too_many_arguments)]
 pub fn quiet_hours<'py>(
     py: Python<'py>,
@@ -101,6 +101,7 @@ pub fn quiet_hours<'py>(
     bands_hz: Vec<(f64, f64)>,
     fs_hz: Option<f64>,
     sensitivity: Option<(f64, String)>,
+    channel: Option<String>,
 ) -> PyResult<Bound<'py, PyDict>> {
     use stillsky::batch::{ReportOptions, SurveyOptions, survey_recording};
     use stillsky::io::series::{Sensitivity, SeriesOptions, Unit};
@@ -113,6 +114,7 @@ pub fn quiet_hours<'py>(
     if let Some((c, u)) = sensitivity {
         series = series.with_sensitivity(Sensitivity::new(c, Unit::parse(&u).py_err()?));
     }
+    series.channel = channel;
     let o = SurveyOptions { ppsd, series, grid: ReportOptions::new().py_err()?.grid };
     let m = model.as_ref().map(|m| &m.inner);
     let s = py.detach(|| survey_recording(&path, m, &o)).py_err()?;

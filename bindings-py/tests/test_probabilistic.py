@@ -144,3 +144,45 @@ def test_quiet_hours_from_a_miniseed_file_matches_obspy_and_the_command_line(kw1
         cli = json.loads(out.read_text())
         assert cli["axes"][0]["percentiles_db"] == r["axes"][0]["percentiles_db"]
         assert [b["rms_radial_px"] for b in cli["blocks"]] == [b["rms_radial_px"] for b in r["blocks"]]
+
+
+def test_a_three_channel_miniseed_file_gives_three_axes(kw1, tmp_path):
+    # A station's E, N and Z in one file (ObsPy writes them; distinct data per channel): read
+    # side by side, each axis mapped by its orientation code and each matching ObsPy's PPSD of
+    # that trace within one 1 dB bin; choosing one channel gives that axis alone, from Python and
+    # from the command line.
+    import json
+    import os
+    import subprocess
+
+    from obspy import Stream
+
+    data, tr = kw1
+    traces = []
+    for code, values in (("E", data[::-1]), ("N", 3 * data), ("Z", data)):
+        t = tr.copy()
+        t.stats.channel = t.stats.channel[:2] + code
+        t.data = np.ascontiguousarray(values).astype(np.int32)
+        traces.append(t)
+    path = tmp_path / "three.mseed"
+    Stream(traces).write(str(path), format="MSEED", encoding="STEIM2")
+    r = stillsky.quiet_hours(path, block_s=600.0, sensitivity=(SENS, "m_s"))
+    assert [a["ground_axis"] for a in r["axes"]] == ["x", "y", "z"]
+    for a, t in zip(r["axes"], traces):
+        pp = PPSD(t.stats, metadata={"poles": [], "zeros": [], "gain": 1.0, "sensitivity": SENS}, ppsd_length=600.0)
+        pp.add(t)
+        for q, ours in a["percentiles_db"]:
+            np.testing.assert_allclose(np.array(ours, dtype=float), pp.get_percentile(q)[1], atol=1.0)
+    one = stillsky.quiet_hours(path, block_s=600.0, sensitivity=(SENS, "m_s"), channel=traces[1].stats.channel)
+    assert [a["ground_axis"] for a in one["axes"]] == ["y"]
+    assert one["axes"][0]["percentiles_db"] == r["axes"][1]["percentiles_db"]
+    with pytest.raises(stillsky.InvalidInputError, match="HH1"):
+        stillsky.quiet_hours(path, block_s=600.0, channel="HH1")
+    binary = os.environ.get("STILLSKY_BIN")
+    if binary:
+        out = tmp_path / "qh3.json"
+        subprocess.run([binary, "quiet-hours", str(path), "--sensitivity", f"{SENS}:m_s", "--block-s", "600",
+                        "--channel", traces[2].stats.channel, "--json", str(out)], check=True, capture_output=True)
+        cli = json.loads(out.read_text())
+        assert [a["ground_axis"] for a in cli["axes"]] == ["z"]
+        assert cli["axes"][0]["percentiles_db"] == r["axes"][2]["percentiles_db"]

@@ -111,6 +111,10 @@ struct QuietHoursArgs {
     /// miniSEED: counts per unit, as COUNTS:UNIT (e.g. 6.0e8:m_s).
     #[arg(long, value_parser = parse_sensitivity)]
     sensitivity: Option<Sensitivity>,
+    /// miniSEED: read only this channel (NET.STA.LOC.CHA or CHA); default every channel of a file
+    /// of one to three on one clock, one axis each.
+    #[arg(long)]
+    channel: Option<String>,
     /// Write SVG plots (percentile curves, hour map) into this folder.
     #[arg(long)]
     plots: Option<PathBuf>,
@@ -1226,8 +1230,9 @@ fn quiet_hours(a: &QuietHoursArgs) -> CliResult {
     } else {
         a.bands.iter().map(|b| parse_band(b)).collect::<Result<_, _>>()?
     };
-    let o =
-        SurveyOptions { ppsd, series: series_options(a.fs, a.sensitivity), grid: ReportOptions::new()?.grid };
+    let mut series = series_options(a.fs, a.sensitivity);
+    series.channel = a.channel.clone();
+    let o = SurveyOptions { ppsd, series, grid: ReportOptions::new()?.grid };
     let s = survey_recording(&a.recording, model.as_ref(), &o)?;
     print!("{}", print::quiet_survey_text(&s));
     if let Some(dir) = &a.plots {

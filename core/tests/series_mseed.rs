@@ -134,14 +134,8 @@ fn gap_between_records_is_reported_like_obspy_and_refused() {
 }
 
 #[test]
-fn channels_are_chosen_by_name() {
+fn channels_on_one_clock_are_read_side_by_side_or_chosen_by_name() {
     let p = data("two_channels.mseed");
-    match read_series(&p, &SeriesOptions::default()) {
-        Err(Error::InvalidArgument { reason, .. }) => {
-            assert!(reason.contains("BW.UH3..EHE") && reason.contains("BW.UH3..EHZ"), "{reason}")
-        }
-        other => panic!("{other:?}"),
-    }
     let z = read_series(&p, &SeriesOptions::default().with_channel("EHZ")).unwrap();
     let e = read_series(&p, &SeriesOptions::default().with_channel("BW.UH3..EHE")).unwrap();
     assert_eq!((z.axis_names[0].as_str(), e.axis_names[0].as_str()), ("BW.UH3..EHZ", "BW.UH3..EHE"));
@@ -153,6 +147,34 @@ fn channels_are_chosen_by_name() {
         read_series(&p, &SeriesOptions::default().with_channel("HHN")),
         Err(Error::UnknownName { .. })
     ));
+    // Without a choice both channels (same rate, same start) are read, one axis each, in the
+    // file's order, each equal to the channel read alone; streamed in odd chunks the same.
+    let both = read_series(&p, &SeriesOptions::default()).unwrap();
+    assert_eq!(both.axis_names, ["BW.UH3..EHE", "BW.UH3..EHZ"]);
+    assert_eq!((both.n_axes, both.n_frames()), (2, 386));
+    assert_eq!(both.axis(0).unwrap(), e.axis(0).unwrap());
+    assert_eq!(both.axis(1).unwrap(), z.axis(0).unwrap());
+    let mut r = SeriesReader::open(&p, &SeriesOptions::default()).unwrap();
+    let (mut chunk, mut got) = (SeriesChunk::new(), [Vec::new(), Vec::new()]);
+    while r.next_chunk(37, &mut chunk).unwrap() > 0 {
+        (0..2).for_each(|k| got[k].extend_from_slice(chunk.axis(k).unwrap()));
+    }
+    assert_eq!((got[0].as_slice(), got[1].as_slice()), (e.axis(0).unwrap(), z.axis(0).unwrap()));
+    // The second channel's record one second later: not on one clock, so a choice is asked for.
+    let mut raw = std::fs::read(&p).unwrap();
+    raw[512 + 26] = 1; // BTIME seconds of the EHZ record (SEED 2.4, fixed header field 8)
+    let shifted = tmp("two_channels_shifted.mseed");
+    std::fs::write(&shifted, &raw).unwrap();
+    match read_series(&shifted, &SeriesOptions::default()) {
+        Err(Error::InvalidArgument { reason, .. }) => {
+            assert!(reason.contains("start 1 s apart") && reason.contains("choose one"), "{reason}")
+        }
+        other => panic!("{other:?}"),
+    }
+    assert_eq!(
+        read_series(&shifted, &SeriesOptions::default().with_channel("EHZ")).unwrap().samples,
+        z.samples
+    );
 }
 
 #[test]
@@ -202,6 +224,8 @@ fn a_single_channel_drives_the_axis_of_its_orientation_code() {
     };
     assert_eq!(axes("BW.BGLD..EHE.steim1.10rec.mseed"), [true, false, false]);
     assert_eq!(axes("NL.HGN.00.BHZ.steim2.mseed"), [false, false, true]);
+    // Both channels of a file read side by side, each to its own axis.
+    assert_eq!(axes("two_channels.mseed"), [true, false, true]);
     // An orientation off the site's axes (here "1") is refused by name, not taken as vertical.
     let raw = std::fs::read(data("BW.BGLD..EHE.steim1.10rec.mseed")).unwrap();
     let mut renamed = Vec::with_capacity(raw.len());

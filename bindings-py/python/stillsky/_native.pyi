@@ -645,9 +645,11 @@ def quiet_hours(
     bands_hz: Sequence[tuple[float, float]] = ...,
     fs_hz: float | None = ...,
     sensitivity: tuple[float, str] | None = ...,
+    channel: str | None = ...,
 ) -> dict[str, Any]:
     """Quiet hours of a site from one ground recording file (text with ``# start_time=``, WAV or
-    miniSEED; ``sensitivity`` = (counts per unit, unit) for counts), read in chunks: a
+    miniSEED; ``sensitivity`` = (counts per unit, unit) for counts; a miniSEED file of one to
+    three channels on one clock gives one axis each, ``channel`` reads one), read in chunks: a
     probabilistic PSD per ground axis (``axes``: ``percentiles_db`` as [q, dB per period],
     ``mean_db``, ``share_below_nlnm``, ``share_above_nhnm``), ``period_s``, the band RMS over the
     hours of the day (``hour_blocks``, ``hour_band_rms`` [hour][band], SI), and with a ``model``

@@ -45,7 +45,8 @@
 //!
 //! # miniSEED
 //! See [`mseed`]: SEED 2.4 data records with blockette 1000; Steim-1, Steim-2, int16, int32,
-//! float32, float64. One channel per file (or choose one with [`SeriesOptions::channel`]).
+//! float32, float64. One to three channels on one clock are read as axes (named by channel id);
+//! otherwise choose one with [`SeriesOptions::channel`].
 //!
 //! # Errors
 //! Missing file → [`Error::Io`]; empty file, bad header, non-numeric / NaN cell, wrong column
@@ -150,8 +151,8 @@ pub struct SeriesOptions {
     /// Image tracks: arcsec per px, to convert `px` columns (and a WAV full scale in px) to
     /// arcsec. Required when a column is in px.
     pub plate_scale_arcsec_per_px: Option<f64>,
-    /// miniSEED: the channel to read, as `NET.STA.LOC.CHA` or just `CHA` (needed when a file
-    /// holds several).
+    /// miniSEED: the channel to read, as `NET.STA.LOC.CHA` or just `CHA` (without it, every
+    /// channel of a file of one to three on one clock is read, one axis each).
     pub channel: Option<String>,
     /// Timestamped text: largest allowed |interval − median| / median (default 0.10).
     pub max_jitter_fraction: f64,

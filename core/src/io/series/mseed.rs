@@ -9,7 +9,10 @@
 //! skipped. Blockette 100 (actual rate) overrides the rate factor/multiplier; blockette 1001
 //! adds its microseconds; a time correction not yet applied (activity flag bit 1) is added.
 //!
-//! One channel per [`Series`](super::Series): a file holding several needs
+//! A file of one channel gives one axis. A file of two or three channels (e.g. a station's E, N
+//! and Z) gives one axis per channel, named by its id, when they share the sample rate and their
+//! first samples lie within half a sample period of each other; the series then ends with the
+//! shortest channel. Otherwise, or with more channels, choose one with
 //! [`SeriesOptions::channel`]. Records are ordered by start time; a gap or overlap between
 //! records (more than half a sample period) refuses the file with the list of gaps
 //! ([`super::inspect_timing`] reports them without refusing). Samples are counts unless
@@ -334,7 +337,7 @@ fn decode_record(
     Ok(())
 }
 
-/// Index of the records of the chosen channel, in time order, and the timing report.
+/// Index of the records of one channel, in time order, and the timing report.
 struct Index {
     records: Vec<RecordInfo>,
     id: String,
@@ -342,7 +345,8 @@ struct Index {
     report: TimingReport,
 }
 
-fn scan(path: &Path, opts: &SeriesOptions) -> Result<Index> {
+/// The channels to read (module docs): one, or two or three on one clock.
+fn scan(path: &Path, opts: &SeriesOptions) -> Result<Vec<Index>> {
     let file = path.display().to_string();
     let mut f = BufReader::new(File::open(path).map_err(|e| io_err(&file, e))?);
     let size = f.get_ref().metadata().map_err(|e| io_err(&file, e))?.len();
@@ -375,31 +379,59 @@ fn scan(path: &Path, opts: &SeriesOptions) -> Result<Index> {
             ids.push(r.id.clone());
         }
     }
-    let id = match &opts.channel {
-        Some(c) => ids
-            .iter()
-            .find(|i| {
-                i.eq_ignore_ascii_case(c)
-                    || i.rsplit('.').next().is_some_and(|cha| cha.eq_ignore_ascii_case(c))
-            })
-            .cloned()
-            .ok_or_else(|| Error::UnknownName {
-                kind: format!("miniSEED channel in {file}"),
-                name: c.clone(),
-                known: ids.join(", "),
-            })?,
-        None => match ids.len() {
-            0 => return Err(perr(&file, "whole file".into(), "no data record with samples")),
-            1 => ids[0].clone(),
-            _ => {
-                return Err(Error::invalid(
-                    "channel",
-                    format!("{file} holds channels {}; choose one", ids.join(", ")),
-                ));
-            }
-        },
+    let chosen: Vec<String> = match &opts.channel {
+        Some(c) => vec![
+            ids.iter()
+                .find(|i| {
+                    i.eq_ignore_ascii_case(c)
+                        || i.rsplit('.').next().is_some_and(|cha| cha.eq_ignore_ascii_case(c))
+                })
+                .cloned()
+                .ok_or_else(|| Error::UnknownName {
+                    kind: format!("miniSEED channel in {file}"),
+                    name: c.clone(),
+                    known: ids.join(", "),
+                })?,
+        ],
+        None if ids.is_empty() => {
+            return Err(perr(&file, "whole file".into(), "no data record with samples"));
+        }
+        None if ids.len() <= 3 => ids.clone(),
+        None => {
+            return Err(Error::invalid(
+                "channel",
+                format!("{file} holds {} channels ({}); choose one", ids.len(), ids.join(", ")),
+            ));
+        }
     };
-    let mut records: Vec<RecordInfo> = all.into_iter().filter(|r| r.id == id).collect();
+    let channels = chosen.iter().map(|id| channel_index(&all, id, &file)).collect::<Result<Vec<Index>>>()?;
+    // Several channels are read side by side only on one clock: the same rate and first samples
+    // within half a sample period.
+    let first = &channels[0];
+    for c in &channels[1..] {
+        let apart_s = (c.records[0].start_us - first.records[0].start_us) as f64 * 1e-6;
+        if (c.fs_hz - first.fs_hz).abs() > 1e-9 * first.fs_hz || apart_s.abs() > 0.5 / first.fs_hz {
+            return Err(Error::invalid(
+                "channel",
+                format!(
+                    "{file} holds channels {}; {} ({} Hz) and {} ({} Hz) start {apart_s} s apart or differ in rate, so they cannot be read side by side: choose one",
+                    ids.join(", "),
+                    first.id,
+                    first.fs_hz,
+                    c.id,
+                    c.fs_hz
+                ),
+            ));
+        }
+    }
+    Ok(channels)
+}
+
+/// The records of channel `id`, in time order, and their timing report.
+fn channel_index(all: &[RecordInfo], id: &str, file: &str) -> Result<Index> {
+    let file = file.to_string();
+    let id = id.to_string();
+    let mut records: Vec<RecordInfo> = all.iter().filter(|r| r.id == id).cloned().collect();
     records.sort_by_key(|r| r.start_us);
     let fs_hz = records[0].fs_hz;
     if let Some(r) = records.iter().find(|r| (r.fs_hz - fs_hz).abs() > 1e-9 * fs_hz) {
@@ -430,35 +462,46 @@ fn scan(path: &Path, opts: &SeriesOptions) -> Result<Index> {
     Ok(Index { records, id, fs_hz, report })
 }
 
-/// Timing report of a miniSEED file (gaps and overlaps between records), without refusing.
+/// Timing report of a miniSEED file (gaps and overlaps between records), without refusing; of
+/// several channels, the one with the most gaps.
 pub(crate) fn inspect(path: &Path, opts: &SeriesOptions) -> Result<TimingReport> {
-    Ok(scan(path, opts)?.report)
+    let mut channels = scan(path, opts)?;
+    let worst = (0..channels.len())
+        .fold(0, |w, i| if channels[i].report.n_gaps > channels[w].report.n_gaps { i } else { w });
+    Ok(channels.swap_remove(worst).report)
 }
 
-/// Streaming decoder over the records of one channel.
-pub(crate) struct MseedBackend {
-    file: String,
-    rdr: BufReader<File>,
+/// The decoding state of one channel: its records and the samples of the current one.
+struct ChannelStream {
     records: Vec<RecordInfo>,
     next_record: usize,
     pending: Vec<f64>,
     pos: usize,
+}
+
+/// Streaming decoder over the records of one to three channels, read side by side.
+pub(crate) struct MseedBackend {
+    file: String,
+    rdr: BufReader<File>,
+    channels: Vec<ChannelStream>,
     ints: Vec<i32>,
     bytes: Vec<u8>,
     sensitivity: Option<Sensitivity>,
 }
 
 pub(crate) fn open(path: &Path, opts: &SeriesOptions) -> Result<(SeriesHeader, MseedBackend)> {
-    let idx = scan(path, opts)?;
+    let channels = scan(path, opts)?;
     let file = path.display().to_string();
-    if idx.report.n_gaps > 0 {
-        return Err(Error::invalid(
-            format!("record times of {file} ({})", idx.id),
-            format!(
-                "records are not contiguous (gaps or overlaps > half a sample): {}",
-                idx.report.describe()
-            ),
-        ));
+    for idx in &channels {
+        if idx.report.n_gaps > 0 {
+            return Err(Error::invalid(
+                format!("record times of {file} ({})", idx.id),
+                format!(
+                    "records are not contiguous (gaps or overlaps > half a sample): {}",
+                    idx.report.describe()
+                ),
+            ));
+        }
     }
     if let Some(s) = opts.sensitivity.filter(|s| s.unit.quantity() == SeriesQuantity::ImageAngle) {
         return Err(Error::invalid(
@@ -472,26 +515,34 @@ pub(crate) fn open(path: &Path, opts: &SeriesOptions) -> Result<(SeriesHeader, M
         }
         None => (SeriesQuantity::Counts, "counts".to_string()),
     };
+    // The series ends with the shortest channel.
+    let shortest = (0..channels.len()).fold(0, |m, i| {
+        if channels[i].report.n_input_frames < channels[m].report.n_input_frames { i } else { m }
+    });
+    let first = &channels[0];
+    let mut report = channels[shortest].report.clone();
+    report.first_time_s = first.report.first_time_s;
+    report.last_time_s = first.report.first_time_s + (report.n_input_frames as f64 - 1.0) / first.fs_hz;
     let header = SeriesHeader {
         path: file.clone(),
         format: SeriesFormat::MiniSeed,
-        n_axes: 1,
-        axis_names: vec![idx.id.clone()],
-        units_in_file: vec![unit_text],
-        fs_hz: idx.fs_hz,
+        n_axes: channels.len(),
+        axis_names: channels.iter().map(|c| c.id.clone()).collect(),
+        units_in_file: vec![unit_text; channels.len()],
+        fs_hz: first.fs_hz,
         quantity,
-        start_time: Some(iso_time(idx.records[0].start_us)),
-        n_frames: Some(idx.report.n_input_frames),
-        report: idx.report,
+        start_time: Some(iso_time(first.records[0].start_us)),
+        n_frames: Some(report.n_input_frames),
+        report,
     };
     let rdr = BufReader::new(File::open(path).map_err(|e| io_err(&file, e))?);
     let backend = MseedBackend {
         file,
         rdr,
-        records: idx.records,
-        next_record: 0,
-        pending: Vec::new(),
-        pos: 0,
+        channels: channels
+            .into_iter()
+            .map(|c| ChannelStream { records: c.records, next_record: 0, pending: Vec::new(), pos: 0 })
+            .collect(),
         ints: Vec::new(),
         bytes: Vec::new(),
         sensitivity: opts.sensitivity,
@@ -500,32 +551,40 @@ pub(crate) fn open(path: &Path, opts: &SeriesOptions) -> Result<(SeriesHeader, M
 }
 
 impl MseedBackend {
-    fn load_next(&mut self) -> Result<bool> {
-        let Some(r) = self.records.get(self.next_record) else { return Ok(false) };
-        self.next_record += 1;
+    /// Decode channel `k`'s next record into its pending samples; false at its end.
+    fn load_next(&mut self, k: usize) -> Result<bool> {
+        let c = &mut self.channels[k];
+        let Some(r) = c.records.get(c.next_record) else { return Ok(false) };
+        c.next_record += 1;
         self.bytes.resize(r.len, 0);
         self.rdr.seek(SeekFrom::Start(r.offset)).map_err(|e| io_err(&self.file, e))?;
         self.rdr.read_exact(&mut self.bytes).map_err(|e| io_err(&self.file, e))?;
-        decode_record(&self.bytes, r, &mut self.ints, &mut self.pending)
+        decode_record(&self.bytes, r, &mut self.ints, &mut c.pending)
             .map_err(|reason| perr(&self.file, format!("record at byte {}", r.offset), reason))?;
         if let Some(s) = self.sensitivity {
-            for v in &mut self.pending {
+            for v in &mut c.pending {
                 *v = s.to_si(*v);
             }
         }
-        self.pos = 0;
+        c.pos = 0;
         Ok(true)
     }
 
     pub(crate) fn read(&mut self, max_frames: usize, out: &mut SeriesChunk) -> Result<usize> {
         let mut got = 0;
-        while got < max_frames {
-            if self.pos == self.pending.len() && !self.load_next()? {
-                break;
+        'frames: while got < max_frames {
+            for k in 0..self.channels.len() {
+                let c = &self.channels[k];
+                if c.pos == c.pending.len() && !self.load_next(k)? {
+                    break 'frames;
+                }
             }
-            let take = (max_frames - got).min(self.pending.len() - self.pos);
-            out.axes[0].extend_from_slice(&self.pending[self.pos..self.pos + take]);
-            self.pos += take;
+            let avail = self.channels.iter().map(|c| c.pending.len() - c.pos).min().unwrap_or(0);
+            let take = (max_frames - got).min(avail);
+            for (c, axis) in self.channels.iter_mut().zip(out.axes.iter_mut()) {
+                axis.extend_from_slice(&c.pending[c.pos..c.pos + take]);
+                c.pos += take;
+            }
             got += take;
         }
         Ok(got)
