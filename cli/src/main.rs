@@ -1123,17 +1123,26 @@ fn recording_axis(
     axis: Option<&str>,
 ) -> Result<(String, Vec<f64>, f64), Failure> {
     let s = read_series(file, &series_options(fs, None))?;
-    let (name, x) = match axis {
-        Some(a) => (
+    let (name, x) = pick_axis(&s, file, axis)?;
+    Ok((name, x.to_vec(), s.fs_hz))
+}
+
+/// The axis named `axis` (a column name, or a miniSEED channel id or code) or the first.
+fn pick_axis<'a>(
+    s: &'a stillsky::io::series::Series,
+    file: &Path,
+    axis: Option<&str>,
+) -> Result<(String, &'a [f64]), Failure> {
+    match axis {
+        Some(a) => Ok((
             a.to_string(),
             s.axis_by_name(a).ok_or_else(|| Failure {
                 code: 2,
                 message: format!("{}: no axis '{a}'; the file has {:?}", file.display(), s.axis_names),
             })?,
-        ),
-        None => (s.axis_names.first().cloned().unwrap_or_default(), s.axis(0).unwrap_or_default()),
-    };
-    Ok((name, x.to_vec(), s.fs_hz))
+        )),
+        None => Ok((s.axis_names.first().cloned().unwrap_or_default(), s.axis(0).unwrap_or_default())),
+    }
 }
 
 fn parse_full_scale(s: &str) -> Result<stillsky::io::series::PhysicalValue, String> {
@@ -1153,16 +1162,7 @@ fn tap_recording(
     o.wav_full_scale = a.full_scale;
     o.plate_scale_arcsec_per_px = plate;
     let s = read_series(file, &o)?;
-    let (name, x) = match a.axis.as_deref() {
-        Some(ax) => (
-            ax.to_string(),
-            s.axis_by_name(ax).ok_or_else(|| Failure {
-                code: 2,
-                message: format!("{}: no axis '{ax}'; the file has {:?}", file.display(), s.axis_names),
-            })?,
-        ),
-        None => (s.axis_names.first().cloned().unwrap_or_default(), s.axis(0).unwrap_or_default()),
-    };
+    let (name, x) = pick_axis(&s, file, a.axis.as_deref())?;
     let image = s.quantity == stillsky::io::series::SeriesQuantity::ImageAngle;
     let unit = if image { "arcsec".to_string() } else { s.quantity.si_unit().to_string() };
     Ok((name, x.to_vec(), s.fs_hz, unit))

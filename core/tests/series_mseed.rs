@@ -154,6 +154,9 @@ fn channels_on_one_clock_are_read_side_by_side_or_chosen_by_name() {
     assert_eq!((both.n_axes, both.n_frames()), (2, 386));
     assert_eq!(both.axis(0).unwrap(), e.axis(0).unwrap());
     assert_eq!(both.axis(1).unwrap(), z.axis(0).unwrap());
+    assert_eq!(both.axis_by_name("ehz"), both.axis_by_name("BW.UH3..EHZ"));
+    assert_eq!(both.axis_by_name("EHE"), e.axis(0));
+    assert_eq!(both.axis_by_name("EHN"), None);
     let mut r = SeriesReader::open(&p, &SeriesOptions::default()).unwrap();
     let (mut chunk, mut got) = (SeriesChunk::new(), [Vec::new(), Vec::new()]);
     while r.next_chunk(37, &mut chunk).unwrap() > 0 {

@@ -457,9 +457,18 @@ impl Series {
         let n = self.n_frames();
         (i < self.n_axes).then(|| &self.samples[i * n..(i + 1) * n])
     }
-    /// Samples of the axis named `name`.
+    /// Samples of the axis named `name`; a miniSEED axis also answers to its channel code alone
+    /// (`HHZ` for `XX.STA..HHZ`, any case).
     pub fn axis_by_name(&self, name: &str) -> Option<&[f64]> {
-        self.axis_names.iter().position(|a| a == name).and_then(|i| self.axis(i))
+        let seed_code = |a: &String| {
+            a.contains('.') && a.rsplit('.').next().is_some_and(|c| c.eq_ignore_ascii_case(name))
+        };
+        let i = self
+            .axis_names
+            .iter()
+            .position(|a| a == name)
+            .or_else(|| self.axis_names.iter().position(seed_code));
+        i.and_then(|i| self.axis(i))
     }
 }
 
