@@ -445,7 +445,8 @@ fn db_sum(xs: &[f64]) -> f64 {
 /// The spectral part of one block (`samples` of one block length, each multiplied by `scale`
 /// before use): Welch average of its segments, acceleration density, dB, period-bin means
 /// rounded to f32, band RMS and criterion ratio. Pure in the samples, so blocks can run on
-/// any thread in any order.
+/// any thread in any order. A sample that is not finite is an error naming its index in the
+/// recording (`offset` is that of `samples[0]`).
 fn block_spectrum(
     layout: &Layout,
     cfg: &PpsdConfig,

@@ -460,16 +460,16 @@ impl Series {
     /// Samples of the axis named `name`; a miniSEED axis also answers to its channel code alone
     /// (`HHZ` for `XX.STA..HHZ`, any case).
     pub fn axis_by_name(&self, name: &str) -> Option<&[f64]> {
-        let seed_code = |a: &String| {
-            a.contains('.') && a.rsplit('.').next().is_some_and(|c| c.eq_ignore_ascii_case(name))
-        };
-        let i = self
-            .axis_names
-            .iter()
-            .position(|a| a == name)
-            .or_else(|| self.axis_names.iter().position(seed_code));
+        let i = self.axis_names.iter().position(|a| a == name);
+        let i = i.or_else(|| self.axis_names.iter().position(|a| a.contains('.') && names_channel(a, name)));
         i.and_then(|i| self.axis(i))
     }
+}
+
+/// Whether `name` names the miniSEED channel `id` (`NET.STA.LOC.CHA`): the whole id or its
+/// channel code, in any case.
+pub(crate) fn names_channel(id: &str, name: &str) -> bool {
+    id.eq_ignore_ascii_case(name) || id.rsplit('.').next().is_some_and(|cha| cha.eq_ignore_ascii_case(name))
 }
 
 /// Read a whole recording (built on [`SeriesReader`]); refuses more than

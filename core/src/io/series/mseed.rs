@@ -29,7 +29,7 @@ use std::path::Path;
 
 use super::timing::{Gap, MAX_LISTED_GAPS, TimingReport, TimingSource};
 use super::units::{Sensitivity, SeriesQuantity};
-use super::{SeriesChunk, SeriesFormat, SeriesHeader, SeriesOptions, io_err};
+use super::{SeriesChunk, SeriesFormat, SeriesHeader, SeriesOptions, io_err, names_channel};
 use crate::error::{Error, Result};
 
 /// Data encodings this reader decodes (SEED 2.4 blockette 1000 codes).
@@ -380,19 +380,13 @@ fn scan(path: &Path, opts: &SeriesOptions) -> Result<Vec<Index>> {
         }
     }
     let chosen: Vec<String> = match &opts.channel {
-        Some(c) => vec![
-            ids.iter()
-                .find(|i| {
-                    i.eq_ignore_ascii_case(c)
-                        || i.rsplit('.').next().is_some_and(|cha| cha.eq_ignore_ascii_case(c))
-                })
-                .cloned()
-                .ok_or_else(|| Error::UnknownName {
-                    kind: format!("miniSEED channel in {file}"),
-                    name: c.clone(),
-                    known: ids.join(", "),
-                })?,
-        ],
+        Some(c) => {
+            vec![ids.iter().find(|i| names_channel(i, c)).cloned().ok_or_else(|| Error::UnknownName {
+                kind: format!("miniSEED channel in {file}"),
+                name: c.clone(),
+                known: ids.join(", "),
+            })?]
+        }
         None if ids.is_empty() => {
             return Err(perr(&file, "whole file".into(), "no data record with samples"));
         }
