@@ -1122,9 +1122,23 @@ fn recording_axis(
     fs: Option<f64>,
     axis: Option<&str>,
 ) -> Result<(String, Vec<f64>, f64), Failure> {
-    let s = read_series(file, &series_options(fs, None))?;
+    let s = read_whole(file, &series_options(fs, None))?;
     let (name, x) = pick_axis(&s, file, axis)?;
     Ok((name, x.to_vec(), s.fs_hz))
+}
+
+/// A recording read whole; one too long for that gets the remedy a command-line user has.
+fn read_whole(file: &Path, o: &SeriesOptions) -> Result<stillsky::io::series::Series, Failure> {
+    read_series(file, o).map_err(|e| match e {
+        stillsky::Error::TooLarge { value, limit, .. } => Failure {
+            code: 2,
+            message: format!(
+                "{}: {value} samples (all axes) are more than the {limit} this command reads at once; cut the recording to the stretch of interest first",
+                file.display()
+            ),
+        },
+        e => e.into(),
+    })
 }
 
 /// The axis named `axis` (a column name, or a miniSEED channel id or code) or the first.
@@ -1161,7 +1175,7 @@ fn tap_recording(
     let mut o = series_options(a.fs, a.sensitivity);
     o.wav_full_scale = a.full_scale;
     o.plate_scale_arcsec_per_px = plate;
-    let s = read_series(file, &o)?;
+    let s = read_whole(file, &o)?;
     let (name, x) = pick_axis(&s, file, a.axis.as_deref())?;
     let image = s.quantity == stillsky::io::series::SeriesQuantity::ImageAngle;
     let unit = if image { "arcsec".to_string() } else { s.quantity.si_unit().to_string() };
