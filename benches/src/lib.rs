@@ -84,15 +84,20 @@ pub fn pad_specs(count: usize) -> Vec<Vec<stillsky::stiffness::StiffnessModel>> 
         .collect()
 }
 
-/// Seeded Gaussian-like noise (sum of 4 uniforms, xorshift64; unit-free).
-pub fn noise(n: usize, seed: u64) -> Vec<f64> {
+/// A seeded uniform generator on [0, 1) (xorshift64; for invented bench inputs).
+pub fn uniform(seed: u64) -> impl FnMut() -> f64 {
     let mut s = seed.wrapping_mul(0x9E37_79B9_7F4A_7C15) | 1;
-    let mut u = move || {
+    move || {
         s ^= s << 13;
         s ^= s >> 7;
         s ^= s << 17;
         (s >> 11) as f64 / (1u64 << 53) as f64
-    };
+    }
+}
+
+/// Seeded Gaussian-like noise (sum of 4 uniforms, [`uniform`]; unit-free).
+pub fn noise(n: usize, seed: u64) -> Vec<f64> {
+    let mut u = uniform(seed);
     (0..n).map(|_| (u() + u() + u() + u() - 2.0) * 1.732).collect()
 }
 

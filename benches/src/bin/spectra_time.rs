@@ -11,9 +11,19 @@ use std::time::Instant;
 
 use stillsky::spectrum::{PpsdConfig, WelchConfig, probabilistic_psd_axes, welch};
 
-fn median(mut v: Vec<f64>) -> f64 {
-    v.sort_by(f64::total_cmp);
-    v[v.len() / 2]
+/// The median wall time of `repeat` runs of `f` and the last run's result.
+fn timed<T>(
+    repeat: usize,
+    mut f: impl FnMut() -> stillsky::Result<T>,
+) -> Result<(f64, T), Box<dyn std::error::Error>> {
+    let (mut t, mut r) = (Vec::new(), None);
+    for _ in 0..repeat {
+        let s = Instant::now();
+        r = Some(f()?);
+        t.push(s.elapsed().as_secs_f64());
+    }
+    t.sort_by(f64::total_cmp);
+    Ok((t[t.len() / 2], r.ok_or("repeat 0")?))
 }
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
@@ -25,15 +35,9 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     if what == "welch" || what == "all" {
         let x = stillsky_benches::noise(n, 1);
         let cfg = WelchConfig::new(4096);
-        let mut t = Vec::new();
-        let mut r = None;
-        for _ in 0..repeat {
-            let s = Instant::now();
-            r = Some(welch(&x, 100.0, &cfg)?);
-            t.push(s.elapsed().as_secs_f64());
-        }
-        println!("welch 8.64M nperseg 4096: median {:.4} s over {repeat}", median(t));
-        if let (Some(d), Some(r)) = (dump.as_mut(), r) {
+        let (t, r) = timed(repeat, || welch(&x, 100.0, &cfg))?;
+        println!("welch 8.64M nperseg 4096: median {t:.4} s over {repeat}");
+        if let Some(d) = dump.as_mut() {
             for v in &r.values {
                 writeln!(d, "welch {:016x}", v.to_bits())?;
             }
@@ -58,15 +62,8 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
             .collect();
         let refs: Vec<&[f64]> = axes.iter().map(|v| v.as_slice()).collect();
         let cfg = PpsdConfig::default().with_input(stillsky::spectrum::Quantity::Velocity, 1e-9);
-        let mut t = Vec::new();
-        let mut r = None;
-        for _ in 0..repeat {
-            let s = Instant::now();
-            r = Some(probabilistic_psd_axes(&refs, 100.0, &cfg)?);
-            t.push(s.elapsed().as_secs_f64());
-        }
-        let r = r.ok_or("repeat 0")?;
-        println!("ppsd 3 x 8.64M ({} blocks each): median {:.4} s over {repeat}", r[0].1.len(), median(t));
+        let (t, r) = timed(repeat, || probabilistic_psd_axes(&refs, 100.0, &cfg))?;
+        println!("ppsd 3 x 8.64M ({} blocks each): median {t:.4} s over {repeat}", r[0].1.len());
         if let Some(d) = dump.as_mut() {
             for (p, blocks) in &r {
                 for c in p.histogram() {

@@ -17,13 +17,8 @@ use stillsky::schema::ModelFile;
 /// pad and every fifth a spring-and-dashpot pad.
 fn catalogue_toml(n: usize) -> String {
     let mut s = String::new();
-    let mut state = 0x9e37_79b9_7f4a_7c15u64;
-    let mut u = || {
-        state ^= state << 13;
-        state ^= state >> 7;
-        state ^= state << 17;
-        (state >> 11) as f64 / (1u64 << 53) as f64
-    };
+    // Seed 1 starts the generator at 0x9e37_79b9_7f4a_7c15: the catalogue as before.
+    let mut u = stillsky_benches::uniform(1);
     for i in 0..n {
         let kc = 5e4 * (400f64).powf(u());
         let ks = kc * (0.25 + 0.25 * u());

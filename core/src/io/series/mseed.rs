@@ -460,8 +460,9 @@ fn channel_index(all: &[RecordInfo], id: &str, file: &str) -> Result<Index> {
 /// several channels, the one with the most gaps.
 pub(crate) fn inspect(path: &Path, opts: &SeriesOptions) -> Result<TimingReport> {
     let mut channels = scan(path, opts)?;
-    let worst = (0..channels.len())
-        .fold(0, |w, i| if channels[i].report.n_gaps > channels[w].report.n_gaps { i } else { w });
+    // The first of the channels with the most gaps (scan gives at least one).
+    let worst =
+        (0..channels.len()).min_by_key(|&i| std::cmp::Reverse(channels[i].report.n_gaps)).unwrap_or(0);
     Ok(channels.swap_remove(worst).report)
 }
 
@@ -510,11 +511,9 @@ pub(crate) fn open(path: &Path, opts: &SeriesOptions) -> Result<(SeriesHeader, M
         None => (SeriesQuantity::Counts, "counts".to_string()),
     };
     // The series ends with the shortest channel.
-    let shortest = (0..channels.len()).fold(0, |m, i| {
-        if channels[i].report.n_input_frames < channels[m].report.n_input_frames { i } else { m }
-    });
+    let shortest = channels.iter().min_by_key(|c| c.report.n_input_frames).unwrap_or(&channels[0]);
     let first = &channels[0];
-    let mut report = channels[shortest].report.clone();
+    let mut report = shortest.report.clone();
     report.first_time_s = first.report.first_time_s;
     report.last_time_s = first.report.first_time_s + (report.n_input_frames as f64 - 1.0) / first.fs_hz;
     let header = SeriesHeader {
