@@ -3,7 +3,8 @@
 //! of stiffness, loss factor and model kind, generated here), the three demo recordings, calm
 //! and 4 m/s. Prints each engine's wall time, the speed-up, and the largest relative difference
 //! over every numeric column of the rows.
-//! Usage: `sweep_engines [N] [auto-repeats]` (run from the workspace root).
+//! Usage: `sweep_engines [N] [auto-repeats]` (run from the workspace root). `SWEEP_ENGINES_WINDS`
+//! replaces the wind cases (comma-separated, as the `sweep` command takes them, e.g. `calm`).
 use std::path::Path;
 use std::time::Instant;
 use stillsky::batch::{
@@ -54,7 +55,11 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         .iter()
         .map(|g| GroundSource::Recording(ex.join("recordings").join(format!("{g}.csv"))))
         .collect();
-    let winds = [WindCase::calm(), WindCase::parse("4")?];
+    let winds: Vec<WindCase> = std::env::var("SWEEP_ENGINES_WINDS")
+        .unwrap_or_else(|_| "calm,4".into())
+        .split(',')
+        .map(WindCase::parse)
+        .collect::<Result<_, _>>()?;
     let inputs = SweepInputs { model: &model, catalogue: &cat, grounds: &grounds, winds: &winds };
     let cfg = SweepConfig::new()?;
     // Which isolators the engine can take: those whose model differs from the first pad's only

@@ -466,33 +466,47 @@ impl<'m> VariantPlan<'m> {
         ws.bad = bad;
     }
 
-    /// [`VariantPlan::capacitance_small`] for any k (banded kernel with kl = ku = k − 1).
+    /// Whether the general-k capacitance path solves the transposed system (fewer outputs than
+    /// inputs): c·Y(I + D G)⁻¹ D (g − h) = zᵀ D (g − h) with (I + D G)ᵀ z = (c·Y)ᵀ, one
+    /// right-hand side per output instead of one per input.
+    fn transposed(&self) -> bool {
+        self.n_out < self.plan.n_inputs()
+    }
+
+    /// [`VariantPlan::capacitance_small`] for any k (banded kernel with kl = ku = k − 1), on the
+    /// side with fewer right-hand sides ([`VariantPlan::transposed`]): `ws.w` gets w (k × n_in)
+    /// or z (k × n_out), `ws.a0`/`ws.w0` the system solved and its right-hand sides.
     #[inline(always)]
     fn capacitance_band(&self, ws: &mut VariantScratch, r: &[CLane]) {
         let k = self.springs.len();
-        let ni = self.plan.n_inputs();
-        let [_, _, g, gh, ..] = self.split(r);
+        let [_, cy, g, gh, ..] = self.split(r);
+        let t = self.transposed();
         for q in 0..k {
             for p in 0..k {
                 let mut x = ws.d[p] * g[p + q * k];
                 if p == q {
                     x = x + CLane::splat(Complex64::new(1.0, 0.0));
                 }
-                ws.a0[p + q * k] = x;
-                ws.band[ws.lu.index(p, q)] = x;
+                // a0 holds the matrix solved: I + D G, or its transpose.
+                let (i, j) = if t { (q, p) } else { (p, q) };
+                ws.a0[i + j * k] = x;
+                ws.band[ws.lu.index(i, j)] = x;
             }
         }
-        for j in 0..ni {
+        let nrhs = if t { self.n_out } else { self.plan.n_inputs() };
+        for j in 0..nrhs {
             for p in 0..k {
-                ws.w0[p + j * k] = ws.d[p] * gh[p + j * k];
+                ws.w0[p + j * k] = if t { cy[j * k + p] } else { ws.d[p] * gh[p + j * k] };
             }
         }
+        let m = k * nrhs;
         ws.band0.copy_from_slice(&ws.band);
-        ws.w.copy_from_slice(&ws.w0);
+        ws.w[..m].copy_from_slice(&ws.w0[..m]);
         let mut bad = ws.lu.factor_in_place(&mut ws.band);
-        ws.lu.solve_in_place(&ws.band, &mut ws.w, ni);
-        bad |= ws.lu.backward_error_mask(&ws.band0, &ws.w0, &ws.w, ni);
+        ws.lu.solve_in_place(&ws.band, &mut ws.w[..m], nrhs);
+        bad |= ws.lu.backward_error_mask(&ws.band0, &ws.w0[..m], &ws.w[..m], nrhs);
         ws.bad = bad;
+        ws.transposed = t;
     }
 
     /// Redo the flagged lanes with the pivoted scalar solver, then write the block's FRFs for
@@ -508,13 +522,15 @@ impl<'m> VariantPlan<'m> {
         wl: &Lane,
     ) -> Result<()> {
         let (k, ni, no) = (self.springs.len(), self.plan.n_inputs(), self.n_out);
-        let [cx0, cy, ..] = self.split(r);
+        let [cx0, cy, _, gh, ..] = self.split(r);
+        let t = ws.transposed;
+        let m = k * if t { no } else { ni };
         if ws.bad != 0 {
             for (l, &fh) in fb.iter().enumerate() {
                 if ws.bad & (1 << l) != 0 {
                     let mut a: Vec<Complex64> = ws.a0.iter().map(|x| x.get(l)).collect();
-                    let mut w: Vec<Complex64> = ws.w0.iter().map(|x| x.get(l)).collect();
-                    solve_small_in_place(&mut a, k, &mut w, ni)
+                    let mut w: Vec<Complex64> = ws.w0[..m].iter().map(|x| x.get(l)).collect();
+                    solve_small_in_place(&mut a, k, &mut w, m / k)
                         .map_err(|_| Error::Singular { freq_hz: fh })?;
                     for (x, y) in ws.w.iter_mut().zip(&w) {
                         x.set(l, *y);
@@ -522,13 +538,29 @@ impl<'m> VariantPlan<'m> {
                 }
             }
         }
-        for o in 0..no {
+        if t {
+            // H = c·x0 + zᵀ D (g − h).
             for j in 0..ni {
-                let mut y = cx0[o * ni + j];
                 for q in 0..k {
-                    y = y.add_mul(cy[o * k + q], ws.w[q + j * k]);
+                    ws.w0[q] = ws.d[q] * gh[q + j * k];
                 }
-                ws.y[o * ni + j] = y;
+                for o in 0..no {
+                    let mut y = cx0[o * ni + j];
+                    for q in 0..k {
+                        y = y.add_mul(ws.w[q + o * k], ws.w0[q]);
+                    }
+                    ws.y[o * ni + j] = y;
+                }
+            }
+        } else {
+            for o in 0..no {
+                for j in 0..ni {
+                    let mut y = cx0[o * ni + j];
+                    for q in 0..k {
+                        y = y.add_mul(cy[o * k + q], ws.w[q + j * k]);
+                    }
+                    ws.y[o * ni + j] = y;
+                }
             }
         }
         self.emit(ws, fb.len(), dst, v, wl);
@@ -610,11 +642,13 @@ struct VariantScratch {
     a0: Vec<CLane>,
     band: Vec<CLane>,
     band0: Vec<CLane>,
-    /// Right-hand sides and solutions, column-major k × n_in.
+    /// Right-hand sides and solutions, column-major k × n_in (k × n_out when transposed).
     w: Vec<CLane>,
     w0: Vec<CLane>,
     /// Lanes the scalar solver must redo.
     bad: LaneMask,
+    /// The last capacitance solve was of the transposed system ([`VariantPlan::transposed`]).
+    transposed: bool,
     /// The block's FRFs per (output, input).
     y: Vec<CLane>,
     /// RMS sums per (variant of the chunk, output, input), per lane.
@@ -632,8 +666,9 @@ impl VariantScratch {
             band: vec![CLane::ZERO; len],
             band0: vec![CLane::ZERO; len],
             bad: 0,
-            w: vec![CLane::ZERO; k * ni],
-            w0: vec![CLane::ZERO; k * ni],
+            transposed: false,
+            w: vec![CLane::ZERO; k * ni.max(no)],
+            w0: vec![CLane::ZERO; k * ni.max(no)],
             y: vec![CLane::ZERO; no * ni],
             acc: vec![[0.0; LANES]; nv * no * ni],
         }
@@ -776,7 +811,9 @@ mod tests {
     #[test]
     fn general_k_path_matches_direct_models() {
         // Five replaced springs take the banded capacitance kernel (k > 4), and the lanes of a
-        // 13-point grid include padding. Oracle: rebuilt models solved by the dense direct path.
+        // 13-point grid include padding. Three shapes: one input and output, more inputs than
+        // outputs (the transposed capacitance system), more outputs than inputs. Oracle:
+        // rebuilt models solved by the dense direct path.
         let base = chain(8, &[]);
         let f: Vec<f64> = (0..13).map(|k| 1.0 + k as f64 * 37.0).collect();
         let g = FreqGrid::new(f.clone()).unwrap();
@@ -791,33 +828,44 @@ mod tests {
                     .collect()
             })
             .collect();
-        let plan = VariantPlan::new(&base, &names, &["ground_z"], &["m7:z"]).unwrap();
-        let psd = vec![1e-12; f.len()];
-        let (got, rms) = with_rms(&plan, &g, &reps, &psd).unwrap();
-        for (v, rep) in reps.iter().enumerate() {
-            let pads: Vec<String> = rep
-                .iter()
-                .map(|m| match m {
-                    StiffnessModel::Hysteretic { k, loss_factor } => {
-                        format!("stiffness_n_per_m = {k}\nloss_factor = {loss_factor}")
-                    }
-                    _ => unreachable!(),
-                })
-                .collect();
-            let pr: Vec<&str> = pads.iter().map(|s| s.as_str()).collect();
-            let direct = FrfPlan::new(&chain(8, &pr), &["ground_z"], &["m7:z"])
-                .unwrap()
-                .with_solver(crate::frf::SolverChoice::Dense)
-                .evaluate(&g)
-                .unwrap();
-            let g = got.index_axis(ndarray::Axis(0), v).to_owned();
-            let d = direct.data.as_slice().unwrap();
-            assert!(max_rel_diff(g.as_slice().unwrap(), d) < 1e-9, "variant {v}");
-            // Trapezoid rule of |H|² S on the grid (docs/conventions.md).
-            let ms: f64 = (1..f.len())
-                .map(|k| 0.5 * (f[k] - f[k - 1]) * 1e-12 * (d[k].norm_sqr() + d[k - 1].norm_sqr()))
-                .sum();
-            assert!((rms[[v, 0, 0]] - ms.sqrt()).abs() <= 1e-9 * ms.sqrt());
+        let shapes: [(&[&str], &[&str]); 3] = [
+            (&["ground_z"], &["m7:z"]),
+            (&["ground_z", "force:m2:z", "force:m6:z"], &["m7:z"]),
+            (&["ground_z"], &["m7:z", "m3:z", "m0:z"]),
+        ];
+        for (ins, outs) in shapes {
+            let plan = VariantPlan::new(&base, &names, ins, outs).unwrap();
+            assert_eq!(plan.transposed(), outs.len() < ins.len());
+            let psd = vec![1e-12; f.len()];
+            let (got, rms) = with_rms(&plan, &g, &reps, &psd).unwrap();
+            for (v, rep) in reps.iter().enumerate() {
+                let pads: Vec<String> = rep
+                    .iter()
+                    .map(|m| match m {
+                        StiffnessModel::Hysteretic { k, loss_factor } => {
+                            format!("stiffness_n_per_m = {k}\nloss_factor = {loss_factor}")
+                        }
+                        _ => unreachable!(),
+                    })
+                    .collect();
+                let pr: Vec<&str> = pads.iter().map(|s| s.as_str()).collect();
+                let direct = FrfPlan::new(&chain(8, &pr), ins, outs)
+                    .unwrap()
+                    .with_solver(crate::frf::SolverChoice::Dense)
+                    .evaluate(&g)
+                    .unwrap();
+                let gv = got.index_axis(ndarray::Axis(0), v).to_owned();
+                for (o, j) in (0..outs.len()).flat_map(|o| (0..ins.len()).map(move |j| (o, j))) {
+                    let a: Vec<Complex64> = (0..f.len()).map(|q| gv[[q, o, j]]).collect();
+                    let d: Vec<Complex64> = (0..f.len()).map(|q| direct.data[[q, o, j]]).collect();
+                    assert!(max_rel_diff(&a, &d) < 1e-9, "{ins:?} -> {outs:?}: variant {v}, ({o}, {j})");
+                    // Trapezoid rule of |H|² S on the grid (docs/conventions.md).
+                    let ms: f64 = (1..f.len())
+                        .map(|q| 0.5 * (f[q] - f[q - 1]) * 1e-12 * (d[q].norm_sqr() + d[q - 1].norm_sqr()))
+                        .sum();
+                    assert!((rms[[v, o, j]] - ms.sqrt()).abs() <= 1e-9 * ms.sqrt());
+                }
+            }
         }
     }
 
