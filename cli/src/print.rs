@@ -769,9 +769,11 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
         let windy = t.entries.iter().any(|e| e.gust_peak_px.is_finite());
         let person = t.entries.iter().any(|e| e.standing_tilt_px.is_finite());
         let _ = writeln!(s, "\nranking, ground {}, wind {} (image RMS, lower is better):", t.ground, t.wind);
+        // The variant column as wide as its longest label, so long labels keep the columns aligned.
+        let vw = t.entries.iter().map(|e| e.variant.chars().count()).max().unwrap_or(0).max(7);
         let _ = write!(
             s,
-            "  {:>3} {:<48} {:>9} {:>11} {:>7} {:>8}",
+            "  {:>3} {:<vw$} {:>9} {:>11} {:>7} {:>8}",
             "", "variant", "rms px", "P(>1/2 px)", "ratio", "f1 Hz"
         );
         if windy {
@@ -784,7 +786,7 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
         for (k, e) in t.entries.iter().enumerate() {
             let _ = write!(
                 s,
-                "  {:>3} {:<48} {:>9.4} {:>11.3e} {:>7.3} {:>8.2}",
+                "  {:>3} {:<vw$} {:>9.4} {:>11.3e} {:>7.3} {:>8.2}",
                 k + 1,
                 e.variant,
                 e.rms_px,
@@ -825,15 +827,17 @@ pub fn study_text(study: &stillsky::batch::Study, o: &stillsky::batch::StudyOutc
                 })
                 .map_or(f64::NAN, |y| y.range)
         };
+        // An outcome a disturbance does not have (the gust when calm) reads "-".
+        let cell = |v: f64, p: usize| if v.is_nan() { "-".to_string() } else { format!("{v:.p$}") };
         let _ = writeln!(
             s,
-            "  {:<32} {:<34} {:>10.4} {:>10.4} {:>10.3} {:>10.3}",
+            "  {:<32} {:<34} {:>10} {:>10} {:>10} {:>10}",
             x.variable,
             format!("{}, {}", x.ground, x.wind),
-            get("rms_px"),
-            get("gust_peak_px"),
-            get("first_mode_hz"),
-            get("min_static_fos")
+            cell(get("rms_px"), 4),
+            cell(get("gust_peak_px"), 4),
+            cell(get("first_mode_hz"), 3),
+            cell(get("min_static_fos"), 3)
         );
     }
     if !o.summary.failures.is_empty() {

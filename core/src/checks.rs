@@ -1278,8 +1278,8 @@ pub fn rig_checks(
         let r = pier(&section, &material, h, top, m_base / h)?;
         checks.extend(r.report(&material, None).checks);
         notes.push(format!(
-            "pier base moment {m_base:.0} N m (wind{} plus {top_load:.0} N at the top, common practice, no source)",
-            if base_dir.is_nan() { String::new() } else { format!(" from {base_dir:.0}°") }
+            "pier base moment {m_base:.0} N m ({} plus {top_load:.0} N at the top; that load is common practice, no source)",
+            if base_dir.is_nan() { "wind".to_string() } else { format!("wind from {base_dir:.0}°, the worst direction,") }
         ));
         match (p.anchor_count, p.anchor_circle_diameter_m) {
             (Some(nb), Some(db)) => {
