@@ -91,10 +91,11 @@ pub fn wind_spec(
     let turbulence = match (turbulence_intensity, roughness_length_m) {
         (Some(i), None) => Turbulence::Intensity(i),
         (None, Some(z0_m)) => Turbulence::RoughnessLength { z0_m },
-        _ => {
+        (None, None) => Turbulence::Intensity(stillsky::wind::DEFAULT_TURBULENCE_INTENSITY),
+        (Some(_), Some(_)) => {
             return Err(to_pyerr(Error::invalid(
                 "turbulence",
-                "give exactly one of turbulence_intensity or roughness_length_m",
+                "give turbulence_intensity or roughness_length_m, not both",
             )));
         }
     };

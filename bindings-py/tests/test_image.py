@@ -115,5 +115,5 @@ def test_image_motion_needs_valid_ground(model):
         model.image_motion(f, ground={"w": stillsky.Psd(f, np.ones(f.size), "displacement")})
     with pytest.raises(stillsky.InvalidInputError, match="radius_px"):
         model.image_motion(f, ground=stillsky.Psd(f, np.ones(f.size), "displacement")).p_outside(-1.0)
-    with pytest.raises(stillsky.InvalidInputError, match="turbulence"):
-        stillsky.Wind("kaimal", 4.0, 2.0)
+    with pytest.raises(stillsky.InvalidInputError, match="not both"):
+        stillsky.Wind("kaimal", 4.0, 2.0, turbulence_intensity=0.2, roughness_length_m=0.05)

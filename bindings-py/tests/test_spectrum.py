@@ -129,8 +129,17 @@ def test_wind_spectrum_variance():
     vk = stillsky.wind_spectrum("von-karman", f2, 5.0, 2.0, turbulence_intensity=0.2)
     t = 3.5 * 0.7 * 2.0 / 5.0
     np.testing.assert_allclose(vk.values, 4.0 * t / (1.0 + 70.8 * (f2 * t) ** 2) ** (5.0 / 6.0), rtol=2e-4)
-    with pytest.raises(stillsky.InvalidInputError, match="exactly one"):
-        stillsky.wind_spectrum("kaimal", f, 5.0, 2.0)
+    # Neither turbulence argument: the command line's default intensity, 0.2.
+    np.testing.assert_array_equal(
+        stillsky.wind_spectrum("kaimal", f, 5.0, 2.0).values,
+        stillsky.wind_spectrum("kaimal", f, 5.0, 2.0, turbulence_intensity=0.2).values,
+    )
+    np.testing.assert_array_equal(
+        stillsky.Wind("kaimal", 5.0, 2.0).spectrum(f).values,
+        stillsky.Wind("kaimal", 5.0, 2.0, turbulence_intensity=0.2).spectrum(f).values,
+    )
+    with pytest.raises(stillsky.InvalidInputError, match="not both"):
+        stillsky.wind_spectrum("kaimal", f, 5.0, 2.0, turbulence_intensity=0.2, roughness_length_m=0.05)
 
 
 def test_identify_ringdown_two_mode_decay():

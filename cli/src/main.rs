@@ -201,7 +201,7 @@ struct WindArgs {
     #[arg(long, default_value = "kaimal")]
     wind_spectrum: String,
     /// Turbulence intensity σ_u / U.
-    #[arg(long, default_value_t = 0.2)]
+    #[arg(long, default_value_t = stillsky::wind::DEFAULT_TURBULENCE_INTENSITY)]
     turbulence: f64,
     /// The azimuth the wind blows from (deg from north through east, as forecasts give it); the
     /// rig's wind parts are derived for it (default: the file's `[wind_load]`, else 270).

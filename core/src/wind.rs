@@ -45,6 +45,11 @@ pub const SIGMA_U_OVER_U_STAR: f64 = 2.5;
 /// (docs/references.md#s6-3 gives 70.7801).
 pub const VON_KARMAN_C_EXACT: f64 = 70.78012763381714;
 
+/// Turbulence intensity σ_u/U used when neither an intensity nor a roughness length is given
+/// (the command line, the sweep's wind cases and the Python `Wind`): 0.2, common practice for
+/// open ground a couple of metres up, no source.
+pub const DEFAULT_TURBULENCE_INTENSITY: f64 = 0.2;
+
 /// Roughness length assumed when none is given, 0.05 m: terrain category II of EN 1991-1-4
 /// (low vegetation such as grass, isolated obstacles; from memory: verify).
 pub const DEFAULT_ROUGHNESS_LENGTH_M: f64 = 0.05;

@@ -438,7 +438,8 @@ class Wind:
         kind: along-wind spectrum shape (see ``wind_spectrum``).
         mean_speed_m_s: mean speed U at ``height_m`` (m/s), > 0.
         height_m: height above ground (m), > 0.
-        turbulence_intensity: σ_u / U; give this or ``roughness_length_m`` (m), not both.
+        turbulence_intensity: σ_u / U; give this or ``roughness_length_m`` (m), not both; with
+            neither, 0.2 (as on the command line).
         shelter_factor: factor in (0, 1] on the mean speed for a sheltered site.
         air_density_kg_m3: ρ (kg/m³), default 1.225 (ISA sea level).
         admittance: reduce the drag at the model's ``[wind]`` load by the aerodynamic admittance
@@ -754,7 +755,8 @@ def wind_spectrum(
         freq_hz: grid (Hz).
         mean_speed_m_s: mean wind speed U at ``height_m`` (m/s).
         height_m: height above ground (m).
-        turbulence_intensity: I_u = σ_u/U in (0, 1]; give this or ``roughness_length_m``.
+        turbulence_intensity: I_u = σ_u/U in (0, 1]; give this or ``roughness_length_m``, not
+            both; with neither, 0.2 (as on the command line).
         roughness_length_m: aerodynamic roughness length z0 (m).
         shelter_factor: factor in (0, 1] on the mean speed.
     """

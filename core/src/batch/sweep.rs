@@ -87,7 +87,11 @@ impl WindCase {
         let u = num(parts[0], "speed (m/s)")?;
         let z = parts.get(1).map(|s| num(s, "height (m)")).transpose()?.unwrap_or(2.0);
         let kind = parts.get(2).map(|s| WindSpectrum::from_name(s)).transpose()?.unwrap_or_default();
-        let i = parts.get(3).map(|s| num(s, "turbulence intensity")).transpose()?.unwrap_or(0.2);
+        let i = parts
+            .get(3)
+            .map(|s| num(s, "turbulence intensity"))
+            .transpose()?
+            .unwrap_or(crate::wind::DEFAULT_TURBULENCE_INTENSITY);
         WindCase::new(kind, u, z, i)
     }
 
