@@ -331,6 +331,10 @@ fn fit_damped_sine(y: &[f64], dt: f64, mut p: [f64; NP]) -> Result<([f64; NP], V
 /// Errors: those of [`identify_ringdown`]; a plate scale or threshold that is not positive
 /// and finite ([`Error::InvalidArgument`] naming it); fewer than 20 samples after the first excursion
 /// or a fit that does not converge ([`Error::NoConvergence`]).
+/// Largest ratio of the damped-sine fit's residual RMS to the record's noise (its last 10 %)
+/// before the card warns; a fit that follows the decay leaves about the noise (ratio near 1).
+pub const RESIDUAL_TO_NOISE_MAX: f64 = 1.5;
+
 pub fn ringdown_card(x: &[f64], fs_hz: f64, opts: &CardOptions) -> Result<RingdownCard> {
     let fs = require_positive("fs_hz", fs_hz)?;
     if let Some(p) = opts.plate_scale_arcsec_per_px {
@@ -415,6 +419,16 @@ pub fn ringdown_card(x: &[f64], fs_hz: f64, opts: &CardOptions) -> Result<Ringdo
             "the damping methods disagree by {:.0} % of the fit's ζ: a beat, a second mode or a \
              non-exponential decay (friction); read ζ with care",
             100.0 * damping_ratio.method_spread / z_fit
+        ));
+    }
+    // The record's noise from its last 10 % (about its mean): a fit that leaves much more than
+    // that has missed something a single damped sine cannot follow.
+    let noise = (tail.iter().map(|v| (v - rest) * (v - rest)).sum::<f64>() / tail.len() as f64).sqrt();
+    if res_rms > RESIDUAL_TO_NOISE_MAX * noise && res_rms > 1e-3 * first {
+        warnings.push(format!(
+            "the damped sine leaves a residual {:.1} times the record's noise (from its last 10 %): \
+             a second mode, a beat or a non-exponential decay; read ζ with care",
+            res_rms / noise
         ));
     }
     let fit = DampedSineFit {
@@ -554,6 +568,7 @@ mod tests {
         // for 20.48 s. The requirement: value ± u holds the true f and ζ in ≥ 90 % of them.
         let (fs, n, trials) = (200.0, 4096, 200);
         let mut rng = rand::rngs::StdRng::seed_from_u64(20_261_204);
+        let mut residual_warnings = 0usize;
         let (mut cover_f, mut cover_z, mut ok) = (0, 0, 0);
         let mut rel_u_z = Vec::new();
         for s in 0..trials {
@@ -566,18 +581,40 @@ mod tests {
             cover_f += usize::from((c.frequency_hz.value - f).abs() <= c.frequency_hz.uncertainty);
             cover_z += usize::from((c.damping_ratio.value - z).abs() <= c.damping_ratio.uncertainty);
             rel_u_z.push(c.damping_ratio.uncertainty / z);
+            residual_warnings += usize::from(c.warnings.iter().any(|w| w.contains("residual")));
         }
         rel_u_z.sort_by(f64::total_cmp);
         let med_u = rel_u_z[rel_u_z.len() / 2];
         eprintln!(
             "card coverage: {ok}/{trials} identified; f covered {cover_f}, ζ covered {cover_z}; \
-             median u_ζ/ζ {med_u:.3}"
+             median u_ζ/ζ {med_u:.3}; residual warnings {residual_warnings}"
         );
         assert_eq!(ok, trials);
         assert!(cover_f as f64 >= 0.9 * trials as f64, "f coverage {cover_f}/{trials}");
         assert!(cover_z as f64 >= 0.9 * trials as f64, "ζ coverage {cover_z}/{trials}");
         // And the intervals are informative, not arbitrarily wide.
         assert!(med_u < 0.25, "median relative ζ uncertainty {med_u}");
+        // One mode and white noise: the fit leaves the noise, so the residual warning is rare.
+        assert!(residual_warnings * 50 <= trials as usize, "residual warnings on {residual_warnings}/{trials} single-mode taps");
+    }
+
+    #[test]
+    fn a_second_mode_the_fit_cannot_follow_is_warned_about() {
+        // The tap of `tap` plus a second mode 7 % higher, a third of the amplitude, ζ 6 %: the
+        // single damped sine leaves the second mode in its residual, about 2.5 times the noise.
+        let (f, z, fs, n) = (14.0, 0.028, 500.0, 2000);
+        let pre = (0.3 * fs) as usize;
+        let mut x = tap(f, z, fs, n, 0.008, 7);
+        let clean = ringdown_card(&x, fs, &CardOptions::default()).unwrap();
+        assert!(!clean.warnings.iter().any(|w| w.contains("residual")), "{:?}", clean.warnings);
+        let (f2, z2) = (1.07 * f, 0.06);
+        let wn = 2.0 * PI * f2;
+        for (i, v) in x.iter_mut().enumerate().skip(pre) {
+            let t = (i - pre) as f64 / fs;
+            *v += 0.33 * (-z2 * wn * t).exp() * (wn * t + 0.4).cos();
+        }
+        let c = ringdown_card(&x, fs, &CardOptions::default()).unwrap();
+        assert!(c.warnings.iter().any(|w| w.contains("residual")), "{:?} (fit residual {})", c.warnings, c.fit.residual_rms);
     }
 
     #[test]
