@@ -700,7 +700,12 @@ pub fn sky_map_words(m: &stillsky::skymap::SkyMap) -> String {
         let mut c = s.chars();
         c.next().map_or(String::new(), |f| f.to_uppercase().collect::<String>() + c.as_str())
     };
-    format!("{} (pointings below {:.0}° altitude are not mapped)", cap(m.summary_text()), m.min_altitude_deg)
+    let side = m.pier_side_text().map(|t| format!(" {}.", cap(t.to_string()))).unwrap_or_default();
+    format!(
+        "{} (pointings below {:.0}° altitude are not mapped).{side}",
+        cap(m.summary_text()),
+        m.min_altitude_deg
+    )
 }
 
 /// The report page.

@@ -741,6 +741,9 @@ fn write_sky_map(
         m.min_altitude_deg
     );
     println!("{}", m.summary_text());
+    if let Some(t) = m.pier_side_text() {
+        println!("{t}");
+    }
     if let Some(p) = csv {
         stillsky::io::atomic::write_atomic(p, m.csv_text().as_bytes())?;
         println!("csv: {}", p.display());

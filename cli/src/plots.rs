@@ -667,7 +667,7 @@ pub fn sky_map_svg(m: &stillsky::skymap::SkyMap) -> PlotResult<Plot> {
     let (nx, ny) = (xs.len(), ys.len());
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (1100, 830)).into_drawing_area();
+        let root = SVGBackend::with_string(&mut svg, (1100, 856)).into_drawing_area();
         root.fill(&WHITE)?;
         let (main, side) = root.split_horizontally(900);
         let (main, foot) = main.split_vertically(730);
@@ -768,6 +768,9 @@ pub fn sky_map_svg(m: &stillsky::skymap::SkyMap) -> PlotResult<Plot> {
             ),
             2,
         )?;
+        if m.pier_side_text().is_some() {
+            line("tube west of the pier for hour angles below 0, east from the meridian on".into(), 3)?;
+        }
         // Colour scale with numbers in arcsec and pixels.
         let (top, bottom, left) = (90i32, 640i32, 20i32);
         side.draw(&Text::new("RMS", (left, top - 50), (FONT, 18).into_font()))?;

@@ -148,6 +148,9 @@ pub fn report_text(model: &str, r: &Report) -> String {
             m.min_altitude_deg
         );
         let _ = writeln!(s, "  {}", m.summary_text());
+        if let Some(t) = m.pier_side_text() {
+            let _ = writeln!(s, "  {t}");
+        }
     }
     if !r.criteria.is_empty() {
         let _ = writeln!(s, "\nground vs criterion curves (third-octave RMS velocity, worst axis):");

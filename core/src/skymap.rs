@@ -295,6 +295,14 @@ impl SkyMap {
         }
     }
 
+    /// For an equatorial map, how the tube's side of the pier is chosen (the map may change
+    /// abruptly at the meridian, where the side changes); None for an alt-az map.
+    pub fn pier_side_text(&self) -> Option<&'static str> {
+        matches!(self.frame, SkyFrame::Equatorial).then_some(
+            "the tube on the usual side of the pier: west of it for hour angles below 0, east from the meridian on (counterweights down), so the map may jump at hour angle 0",
+        )
+    }
+
     /// The map as CSV: a header, then one row per cell (row-major) with the two coordinates,
     /// rms_arcsec and rms_px (NaN where skipped). Numbers are written in the shortest form that
     /// reads back to the same value.
