@@ -267,12 +267,15 @@ pub fn frf_modes<'py>(
         .collect()
 }
 
+// The signature's literal default is the core's (a literal keeps it visible to Python).
+const _: () = assert!(stillsky::identify::DEFAULT_DAMPING_WEIGHT == 0.1);
+
 /// Adjust model-file numbers (dotted paths) so the model's modes match measured ones.
 /// `parameters`: mapping path → (lower, upper); `targets`: frequencies (Hz) or dicts with
 /// `frequency_hz` and optional `damping_ratio`, `mode`, `weight`. Returns a dict (values,
 /// residuals, costs, convergence) with the fitted `model`.
 #[pyfunction]
-#[pyo3(signature = (model, parameters, targets, *, max_iterations = 60, damping_weight = 1.0))]
+#[pyo3(signature = (model, parameters, targets, *, max_iterations = 60, damping_weight = 0.1))]
 pub fn calibrate<'py>(
     py: Python<'py>,
     model: PyRef<'py, crate::model::PyModel>,

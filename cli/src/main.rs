@@ -545,6 +545,10 @@ struct CalibrateArgs {
     /// Axis (column) of the tap recording; default the first.
     #[arg(long)]
     axis: Option<String>,
+    /// Weight of a damping residual against a frequency residual of the same relative size
+    /// (0.1: a tap gives ζ to about 10 % and f to about 0.1–1 %).
+    #[arg(long, default_value_t = stillsky::identify::DEFAULT_DAMPING_WEIGHT)]
+    damping_weight: f64,
     /// Write the fitted model file here (atomically).
     #[arg(long)]
     out: Option<PathBuf>,
@@ -1327,7 +1331,11 @@ fn calibrate(a: &CalibrateArgs) -> CliResult {
         });
     }
     let c =
-        stillsky::identify::calibrate(&text, &label, &a.params, &targets, &CalibrationOptions::default())?;
+        stillsky::identify::calibrate(&text, &label, &a.params, &targets, &{
+            let mut o = CalibrationOptions::default();
+            o.damping_weight = a.damping_weight;
+            o
+        })?;
     print!("{}", print::calibration_text(&label, &c));
     if let Some(out) = &a.out {
         let body = format!(

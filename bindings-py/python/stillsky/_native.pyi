@@ -706,7 +706,7 @@ def calibrate(
     targets: Sequence[float | dict[str, float]],
     *,
     max_iterations: int = 60,
-    damping_weight: float = 1.0,
+    damping_weight: float = 0.1,
 ) -> dict[str, object]:
     """Adjust numbers in the model's file so its modes match measured ones.
 
@@ -719,7 +719,8 @@ def calibrate(
             ``damping_ratio``, ``mode`` (model mode index, ascending) and ``weight``. Untied
             targets go to the nearest model mode at the starting values.
         max_iterations: Levenberg–Marquardt iterations; damping_weight: weight of damping
-            residuals relative to frequency residuals.
+            residuals relative to frequency residuals (0.1: a tap gives ζ to about 10 % and f
+            to about 0.1–1 %, so a 10 % damping error counts as a 1 % frequency error).
 
     Returns a dict: ``paths``, ``initial``, ``values``, ``at_bound``, ``residuals`` (per target:
     mode, target/model frequency and damping, relative errors), ``initial_cost``, ``cost``,

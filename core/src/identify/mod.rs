@@ -61,7 +61,7 @@ mod frf_fit;
 mod pencil;
 
 pub use calibrate::{
-    Calibration, CalibrationOptions, CalibrationParameter, ModalTarget, TargetResidual, calibrate,
+    Calibration, CalibrationOptions, CalibrationParameter, DEFAULT_DAMPING_WEIGHT, ModalTarget, TargetResidual, calibrate,
     get_parameter, numeric_paths, set_parameter,
 };
 pub use card::{
