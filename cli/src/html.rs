@@ -777,11 +777,13 @@ pub fn sweep_page(c: &SweepContent) -> String {
         let p = |t: &RankTable| t.entries.first().map_or(0.0, |e| e.mean_p_outside_half_px);
         p(a).total_cmp(&p(b))
     });
-    if let Some(best) = hardest.and_then(|t| t.entries.first()) {
+    if let Some((t, best)) = hardest.and_then(|t| t.entries.first().map(|e| (t, e))) {
         let level = Level::from_p_outside(best.mean_p_outside_half_px);
+        let hardest_of = if o.summary.per_wind.len() > 1 { " (the hardest wind case)" } else { "" };
         let reason = format!(
-            "With the best choice ({}), the star's centre is outside ½ px {:.2} % of the time on average over {} case(s) \
+            "In {}{hardest_of}, with the best choice ({}), the star's centre is outside ½ px {:.2} % of the time on average over {} case(s) \
              (rule: {}).",
+            t.scope(),
             best.spec,
             100.0 * best.mean_p_outside_half_px,
             best.cases,
