@@ -595,7 +595,10 @@ mod tests {
         // And the intervals are informative, not arbitrarily wide.
         assert!(med_u < 0.25, "median relative ζ uncertainty {med_u}");
         // One mode and white noise: the fit leaves the noise, so the residual warning is rare.
-        assert!(residual_warnings * 50 <= trials as usize, "residual warnings on {residual_warnings}/{trials} single-mode taps");
+        assert!(
+            residual_warnings * 50 <= trials as usize,
+            "residual warnings on {residual_warnings}/{trials} single-mode taps"
+        );
     }
 
     #[test]
@@ -614,7 +617,12 @@ mod tests {
             *v += 0.33 * (-z2 * wn * t).exp() * (wn * t + 0.4).cos();
         }
         let c = ringdown_card(&x, fs, &CardOptions::default()).unwrap();
-        assert!(c.warnings.iter().any(|w| w.contains("residual")), "{:?} (fit residual {})", c.warnings, c.fit.residual_rms);
+        assert!(
+            c.warnings.iter().any(|w| w.contains("residual")),
+            "{:?} (fit residual {})",
+            c.warnings,
+            c.fit.residual_rms
+        );
     }
 
     #[test]

@@ -61,8 +61,8 @@ mod frf_fit;
 mod pencil;
 
 pub use calibrate::{
-    Calibration, CalibrationOptions, CalibrationParameter, DEFAULT_DAMPING_WEIGHT, ModalTarget, TargetResidual, calibrate,
-    get_parameter, numeric_paths, set_parameter,
+    Calibration, CalibrationOptions, CalibrationParameter, DEFAULT_DAMPING_WEIGHT, ModalTarget,
+    TargetResidual, calibrate, get_parameter, numeric_paths, set_parameter,
 };
 pub use card::{
     CardComparison, CardOptions, DEFAULT_THRESHOLD_PX, DampedSineFit, Estimate, RingdownCard, TrackUnit,
