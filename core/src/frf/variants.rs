@@ -5,8 +5,9 @@
 //! variant is Z(ω) + U_f D U_fᵀ, and its ground load changes by −U_f D U_gᵀ e_d. Per frequency the
 //! reference Z(ω) is factored once and solved for the inputs and U_f (k extra columns); per
 //! variant only the k × k capacitance system (I + D U_fᵀ Z⁻¹ U_f) w = D (g − U_fᵀ x_0) is solved
-//! (Woodbury identity; Hager, SIAM Review 31, 1989), and x = x_0 + Z⁻¹U_f w. Any stiffness model
-//! works, replaced and replacing alike.
+//! (Woodbury identity; Hager, SIAM Review 31, 1989), and x = x_0 + Z⁻¹U_f w; with fewer outputs
+//! than inputs its transpose is solved once per output row instead. Any stiffness model works,
+//! replaced and replacing alike.
 //!
 //! For k ≤ [`RATIONAL_SPRINGS_MAX`] each variant instead evaluates a rational form. By the
 //! matrix determinant lemma det(I + D G) = Σ_S d_S det G[S, S], and y·det(I + D G) = Σ_S d_S
