@@ -326,15 +326,15 @@ fn fit_damped_sine(y: &[f64], dt: f64, mut p: [f64; NP]) -> Result<([f64; NP], V
     Ok((p, cov, (rss / n as f64).sqrt(), iters))
 }
 
+/// Largest ratio of the damped-sine fit's residual RMS to the record's noise (its last 10 %)
+/// before the card warns; a fit that follows the decay leaves about the noise (ratio near 1).
+pub const RESIDUAL_TO_NOISE_MAX: f64 = 1.5;
+
 /// The ring-down card of one record `x` sampled at `fs_hz` (see the module docs).
 ///
 /// Errors: those of [`identify_ringdown`]; a plate scale or threshold that is not positive
 /// and finite ([`Error::InvalidArgument`] naming it); fewer than 20 samples after the first excursion
 /// or a fit that does not converge ([`Error::NoConvergence`]).
-/// Largest ratio of the damped-sine fit's residual RMS to the record's noise (its last 10 %)
-/// before the card warns; a fit that follows the decay leaves about the noise (ratio near 1).
-pub const RESIDUAL_TO_NOISE_MAX: f64 = 1.5;
-
 pub fn ringdown_card(x: &[f64], fs_hz: f64, opts: &CardOptions) -> Result<RingdownCard> {
     let fs = require_positive("fs_hz", fs_hz)?;
     if let Some(p) = opts.plate_scale_arcsec_per_px {
