@@ -41,6 +41,7 @@ fn to_py<'py>(py: Python<'py>, m: &SkyMap) -> PyResult<Bound<'py, PyDict>> {
     d.set_item("best", cell(py, m, m.best)?)?;
     d.set_item("worst", cell(py, m, m.worst)?)?;
     d.set_item("summary", m.summary_text())?;
+    d.set_item("pier_side", m.pier_side_text())?;
     d.set_item("csv", m.csv_text())?;
     Ok(d)
 }

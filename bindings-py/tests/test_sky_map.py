@@ -51,6 +51,9 @@ def test_cells_equal_single_pointings(eq_map):
     # Alt-azimuth: one cell of the tripod against the tripod pointed there.
     t = stillsky.Model.from_toml(TRIPOD).sky_map(FREQ, wind=WIND, altitudes_deg=[35.0, 75.0], azimuths_deg=[200.0])
     assert t["frame"] == "alt_az" and t["rms_arcsec"].shape == (2, 1)
+    # The sides used above are the ones the map says it uses; an alt-az map has no pier side.
+    assert "west of it for hour angles below 0, east from the meridian on" in eq_map["pier_side"]
+    assert t["pier_side"] is None
     one = stillsky.Model.from_toml(TRIPOD, altitude_deg=75.0, azimuth_deg=200.0)
     assert t["rms_arcsec"][1, 0] == pytest.approx(one.image_motion(FREQ, wind=WIND).rms_arcsec, rel=1e-9)
 

@@ -298,7 +298,9 @@ class Model:
             ``rms_arcsec``, ``rms_px`` and ``cell_altitude_deg`` (rows × columns),
             ``latitude_deg``, ``min_altitude_deg``, ``best`` and ``worst`` (dicts with ``row``,
             ``col``, ``row_deg``, ``col_deg``, ``altitude_deg``, ``rms_arcsec``, ``rms_px``,
-            ``place``; None if no cell was computed), ``summary`` (text) and ``csv`` (text).
+            ``place``; None if no cell was computed), ``summary`` (text), ``pier_side`` (text
+            for an equatorial map: the tube changes sides at the meridian; None for alt-az) and
+            ``csv`` (text).
             GIL released.
         """
 
