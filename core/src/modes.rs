@@ -228,24 +228,19 @@ impl Model {
 
     fn compute_modes(&self) -> Result<Modes> {
         let n = self.dof_count();
-        let mass = crate::linalg::MassReduction::new(&self.m_ff, n)?;
-        let (vals0, vecs0) = mass.eigen(&self.static_stiffness())?;
+        let (vals0, vecs0) = crate::linalg::sym_generalized_eigen(&self.static_stiffness(), &self.m_ff, n)?;
         let mut freqs: Vec<f64> = vals0.iter().map(|l| l.max(0.0).sqrt() / (2.0 * PI)).collect();
         let mut shapes = vecs0;
         if !self.terms.is_empty() {
-            // Re-evaluate K′ at each mode's own frequency until the frequency repeats (at most
-            // six times); the shape is the one of the last K′ evaluated. The iterations need the
-            // eigenvalues only; the eigenvectors are computed once, for the last.
+            // Re-evaluate K′ at each mode's own frequency.
             for j in 0..n {
                 let mut fj = freqs[j];
-                for it in 0..6 {
-                    let k = self.real_stiffness_at(fj);
-                    let f_new = mass.eigenvalues(&k)?[j].max(0.0).sqrt() / (2.0 * PI);
+                for _ in 0..6 {
+                    let (v, ph) =
+                        crate::linalg::sym_generalized_eigen(&self.real_stiffness_at(fj), &self.m_ff, n)?;
+                    let f_new = v[j].max(0.0).sqrt() / (2.0 * PI);
+                    shapes[j * n..(j + 1) * n].copy_from_slice(&ph[j * n..(j + 1) * n]);
                     let done = (f_new - fj).abs() <= 1e-10 * f_new.max(1e-300);
-                    if done || it == 5 {
-                        let (_, ph) = mass.eigen(&k)?;
-                        shapes[j * n..(j + 1) * n].copy_from_slice(&ph[j * n..(j + 1) * n]);
-                    }
                     fj = f_new;
                     if done {
                         break;

@@ -366,67 +366,35 @@ impl RealLu {
 /// the standard symmetric problem L⁻¹ K L⁻ᵀ y = λ y is solved; φ = L⁻ᵀ y.
 /// Returns (eigenvalues, column-major eigenvectors).
 pub fn sym_generalized_eigen(k: &[f64], m: &[f64], n: usize) -> Result<(Vec<f64>, Vec<f64>)> {
-    MassReduction::new(m, n)?.eigen(k)
-}
-
-/// The mass matrix's Cholesky factor, kept for many generalized symmetric eigenproblems
-/// K φ = λ M φ with one M (see [`sym_generalized_eigen`]).
-pub struct MassReduction {
-    l: Mat<f64>,
-    n: usize,
-}
-
-impl MassReduction {
-    /// Factor M (column-major n × n, symmetric positive definite).
-    pub fn new(m: &[f64], n: usize) -> Result<MassReduction> {
-        let mm = MatRef::from_column_major_slice(m, n, n);
-        let llt = mm.llt(Side::Lower).map_err(|e| Error::NotPositiveDefinite {
-            matrix: "mass".into(),
-            reason: format!("Cholesky factorisation failed ({e:?}): a free DOF without mass or inertia?"),
-        })?;
-        Ok(MassReduction { l: llt.L().to_owned(), n })
-    }
-
-    /// A = L⁻¹ K L⁻ᵀ, symmetrised against round-off.
-    fn reduce(&self, k: &[f64]) -> Mat<f64> {
-        let n = self.n;
-        let l = self.l.as_ref();
-        // X = L⁻¹ K, then A = L⁻¹ Xᵀ = L⁻¹ K L⁻ᵀ.
-        let mut x: Mat<f64> = MatRef::from_column_major_slice(k, n, n).to_owned();
-        l.solve_lower_triangular_in_place(x.as_mut());
-        let mut a: Mat<f64> = x.transpose().to_owned();
-        l.solve_lower_triangular_in_place(a.as_mut());
-        Mat::<f64>::from_fn(n, n, |i, j| 0.5 * (a[(i, j)] + a[(j, i)]))
-    }
-
-    /// Eigenvalues and mass-normalised eigenvectors (column-major), λ ascending.
-    pub fn eigen(&self, k: &[f64]) -> Result<(Vec<f64>, Vec<f64>)> {
-        let n = self.n;
-        let evd = self.reduce(k).self_adjoint_eigen(Side::Lower).map_err(|e| Error::NoConvergence {
-            what: "symmetric eigen solver".into(),
-            reason: format!("{e:?}"),
-        })?;
-        let s = evd.S().column_vector();
-        let vals: Vec<f64> = (0..n).map(|i| s[i]).collect();
-        let mut phi: Mat<f64> = evd.U().to_owned();
-        self.l.transpose().solve_upper_triangular_in_place(phi.as_mut());
-        let mut vecs = vec![0.0; n * n];
-        for j in 0..n {
-            for i in 0..n {
-                vecs[i + j * n] = phi[(i, j)];
-            }
+    let km = MatRef::from_column_major_slice(k, n, n);
+    let mm = MatRef::from_column_major_slice(m, n, n);
+    let llt = mm.llt(Side::Lower).map_err(|e| Error::NotPositiveDefinite {
+        matrix: "mass".into(),
+        reason: format!("Cholesky factorisation failed ({e:?}): a free DOF without mass or inertia?"),
+    })?;
+    let l = llt.L();
+    // X = L⁻¹ K, then A = L⁻¹ Xᵀ = L⁻¹ K L⁻ᵀ.
+    let mut x: Mat<f64> = km.to_owned();
+    l.solve_lower_triangular_in_place(x.as_mut());
+    let mut a: Mat<f64> = x.transpose().to_owned();
+    l.solve_lower_triangular_in_place(a.as_mut());
+    // Symmetrise against round-off.
+    let a = Mat::<f64>::from_fn(n, n, |i, j| 0.5 * (a[(i, j)] + a[(j, i)]));
+    let evd = a.self_adjoint_eigen(Side::Lower).map_err(|e| Error::NoConvergence {
+        what: "symmetric eigen solver".into(),
+        reason: format!("{e:?}"),
+    })?;
+    let s = evd.S().column_vector();
+    let vals: Vec<f64> = (0..n).map(|i| s[i]).collect();
+    let mut phi: Mat<f64> = evd.U().to_owned();
+    l.transpose().solve_upper_triangular_in_place(phi.as_mut());
+    let mut vecs = vec![0.0; n * n];
+    for j in 0..n {
+        for i in 0..n {
+            vecs[i + j * n] = phi[(i, j)];
         }
-        Ok((vals, vecs))
     }
-
-    /// The eigenvalues alone, λ ascending (no eigenvectors: about a third of the work of
-    /// [`MassReduction::eigen`]).
-    pub fn eigenvalues(&self, k: &[f64]) -> Result<Vec<f64>> {
-        self.reduce(k).self_adjoint_eigenvalues(Side::Lower).map_err(|e| Error::NoConvergence {
-            what: "symmetric eigen solver".into(),
-            reason: format!("{e:?}"),
-        })
-    }
+    Ok((vals, vecs))
 }
 
 #[cfg(test)]
@@ -566,36 +534,5 @@ mod tests {
         let n0 = mm * (v[0] * v[0] + v[1] * v[1]);
         assert!((n0 - 1.0).abs() < 1e-12);
         assert!(sym_generalized_eigen(&k, &[1.0, 0.0, 0.0, 0.0], 2).is_err());
-        // The eigenvalues alone: the same values as with the eigenvectors (one reduction of M).
-        let r = MassReduction::new(&m, 2).unwrap();
-        assert_eq!(r.eigenvalues(&k).unwrap(), l);
-    }
-
-    #[test]
-    fn eigenvalues_alone_equal_those_of_the_full_solution() {
-        // A 12-DOF chain with unequal masses (seeded): the eigenvalue-only path must give the
-        // eigenvalues the full path gives, to round-off.
-        use rand::{Rng, SeedableRng};
-        let n = 12;
-        let mut rng = rand::rngs::StdRng::seed_from_u64(12);
-        let ks: Vec<f64> = (0..n).map(|_| rng.random_range(1e4..1e6)).collect();
-        let ms: Vec<f64> = (0..n).map(|_| rng.random_range(0.5..20.0)).collect();
-        let mut k = vec![0.0; n * n];
-        let mut m = vec![0.0; n * n];
-        for i in 0..n {
-            m[i + i * n] = ms[i];
-            k[i + i * n] += ks[i];
-            if i + 1 < n {
-                k[i + i * n] += ks[i + 1];
-                k[(i + 1) + i * n] -= ks[i + 1];
-                k[i + (i + 1) * n] -= ks[i + 1];
-            }
-        }
-        let r = MassReduction::new(&m, n).unwrap();
-        let (full, _) = r.eigen(&k).unwrap();
-        let alone = r.eigenvalues(&k).unwrap();
-        for (a, b) in alone.iter().zip(&full) {
-            assert!((a - b).abs() <= 1e-12 * b.abs(), "{a} vs {b}");
-        }
     }
 }
