@@ -1330,11 +1330,9 @@ fn calibrate(a: &CalibrateArgs) -> CliResult {
             message: "no targets: give --target FREQ_HZ[:ZETA] or --tap FILE".into(),
         });
     }
-    let c = stillsky::identify::calibrate(&text, &label, &a.params, &targets, &{
-        let mut o = CalibrationOptions::default();
-        o.damping_weight = a.damping_weight;
-        o
-    })?;
+    let mut opts = CalibrationOptions::default();
+    opts.damping_weight = a.damping_weight;
+    let c = stillsky::identify::calibrate(&text, &label, &a.params, &targets, &opts)?;
     print!("{}", print::calibration_text(&label, &c));
     if let Some(out) = &a.out {
         let body = format!(

@@ -462,12 +462,12 @@ fn block_spectrum(
         first_non_finite(v).map_or(Ok(()), |i| Err(non_finite_at("samples", v[i], offset + at + i)))
     };
     let per = nfft / step;
-    if per * step == nfft && n_seg > 0 {
+    if per * step == nfft && n_seg > 0 && w.engine.detrend() == Detrend::Linear {
         // The segments overlap by 3/4, so each is `per` pieces of one step shared with its
-        // neighbours: the trend sums are taken once per piece and combined per segment, with
-        // Σ (i − mid)·xᵢ = Σₖ [Σ (m − mid_p)·x + (k − (per − 1)/2)·step·Σ x] over the pieces k
-        // (m the index in the piece, mid_p its centre). A sample that is not finite makes its
-        // piece's sums not finite; only then is the piece searched for it.
+        // neighbours: the linear trend's sums are taken once per piece and combined per
+        // segment, as Σ (i − mid)·xᵢ = Σₖ [Σ (m − mid_p)·x + (k − (per − 1)/2)·step·Σ x]
+        // over the pieces k (m the index in the piece, mid_p its centre). A sample that is
+        // not finite makes its piece's sums not finite; only then is the piece searched.
         let n_pieces = n_seg + per - 1;
         let mid_p = (step as f64 - 1.0) / 2.0;
         w.pieces.clear();

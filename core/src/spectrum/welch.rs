@@ -429,6 +429,10 @@ impl SegmentEngine {
         self.step
     }
 
+    pub(crate) fn detrend(&self) -> Detrend {
+        self.detrend
+    }
+
     pub(crate) fn n_bins(&self) -> usize {
         self.nperseg / 2 + 1
     }
